@@ -1,0 +1,6 @@
+//! lategame: late-game passer review for football coaching staffs.
+//! Data flows one way: playfile → plays → models → scored → situation →
+//! splits → web / report. No module imports one further up the chain.
+
+pub mod playfile;
+pub mod plays;

@@ -1,0 +1,376 @@
+//! The validated league in columns: one entry per snap, sorted by game and
+//! `seq`, with team, passer and game names interned, plus everything later
+//! stages derive from the raw columns (clock left in half and game, margin,
+//! drive, dropback, next score in the half, each game's result).
+//! Built only by `playfile::load`; read by every later stage, never changed.
+
+use crate::playfile::{Kind, PlayRow};
+use serde::Serialize;
+
+/// Marker for "no passer on this snap" in `Plays::passer`.
+pub const NO_PASSER: u32 = u32::MAX;
+
+/// Seconds in a regulation period.
+pub const PERIOD_SECS: i32 = 900;
+
+/// The next score in the same half, from the offense's side of a snap
+/// (the label the expected-points model is fit on).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+pub enum NextScore {
+    OwnTouchdown,
+    OwnFieldGoal,
+    OwnSafety,
+    OppTouchdown,
+    OppFieldGoal,
+    OppSafety,
+    NoScore,
+}
+
+impl NextScore {
+    pub const ALL: [NextScore; 7] = [
+        NextScore::OwnTouchdown,
+        NextScore::OwnFieldGoal,
+        NextScore::OwnSafety,
+        NextScore::OppTouchdown,
+        NextScore::OppFieldGoal,
+        NextScore::OppSafety,
+        NextScore::NoScore,
+    ];
+    pub fn index(self) -> usize {
+        self as usize
+    }
+    /// Points of this outcome from the offense's side, with a touchdown worth
+    /// `td_value` (six plus the league's average try).
+    pub fn points(self, td_value: f64) -> f64 {
+        match self {
+            NextScore::OwnTouchdown => td_value,
+            NextScore::OwnFieldGoal => 3.0,
+            NextScore::OwnSafety => 2.0,
+            NextScore::OppTouchdown => -td_value,
+            NextScore::OppFieldGoal => -3.0,
+            NextScore::OppSafety => -2.0,
+            NextScore::NoScore => 0.0,
+        }
+    }
+}
+
+/// One game: names, teams and result.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Game {
+    pub key: String,
+    pub season: i32,
+    pub week: i32,
+    pub home: u16,
+    pub away: u16,
+    /// Pregame expected home margin, when the file carries it.
+    pub home_line: Option<f64>,
+    pub home_final: i32,
+    pub away_final: i32,
+    /// Index of the game's first snap in `Plays`; its snaps are `start..end`.
+    pub start: usize,
+    pub end: usize,
+}
+
+impl Game {
+    /// 1.0 home win, 0.0 away win, 0.5 tie.
+    pub fn home_result(&self) -> f64 {
+        match self.home_final.cmp(&self.away_final) {
+            std::cmp::Ordering::Greater => 1.0,
+            std::cmp::Ordering::Less => 0.0,
+            std::cmp::Ordering::Equal => 0.5,
+        }
+    }
+}
+
+/// Where a snap came from, for messages and the cut-up.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Source {
+    pub file: u16,
+    /// 1-based data row within that file.
+    pub row: u32,
+}
+
+/// The league, one vector per column, all of equal length `len()`.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Plays {
+    pub files: Vec<String>,
+    pub teams: Vec<String>,
+    pub passers: Vec<String>,
+    pub games: Vec<Game>,
+
+    // ---- as read ----
+    pub game: Vec<u32>,
+    pub seq: Vec<i32>,
+    pub season: Vec<i32>,
+    pub week: Vec<i32>,
+    pub period: Vec<i32>,
+    /// Seconds left in the period.
+    pub clock: Vec<i32>,
+    pub offense: Vec<u16>,
+    pub defense: Vec<u16>,
+    pub off_score: Vec<i32>,
+    pub def_score: Vec<i32>,
+    pub off_timeouts: Vec<i32>,
+    pub def_timeouts: Vec<i32>,
+    /// 0 when the snap carries no down (kickoffs, tries).
+    pub down: Vec<i32>,
+    /// 0 when the snap carries no down.
+    pub to_go: Vec<i32>,
+    pub ball_on: Vec<i32>,
+    pub kind: Vec<Kind>,
+    /// Index into `passers`, or `NO_PASSER`.
+    pub passer: Vec<u32>,
+    pub complete: Vec<bool>,
+    pub intercepted: Vec<bool>,
+    pub air_yards: Vec<Option<i32>>,
+    pub gain: Vec<i32>,
+    pub fumble_lost: Vec<bool>,
+    pub touchback: Vec<bool>,
+    pub points: Vec<i32>,
+    pub source: Vec<Source>,
+
+    // ---- derived ----
+    /// Seconds left in the half (overtime: in the period).
+    pub secs_half: Vec<i32>,
+    /// Seconds left in regulation (overtime: in the period).
+    pub secs_game: Vec<i32>,
+    /// off_score - def_score.
+    pub margin: Vec<i32>,
+    /// Drive number within the game, from 1; a new drive starts when the
+    /// offense changes or a period 1/3/5+ begins.
+    pub drive: Vec<i32>,
+    pub dropback: Vec<bool>,
+    pub next_score: Vec<NextScore>,
+    /// True when the offense is the home team.
+    pub off_home: Vec<bool>,
+}
+
+impl Plays {
+    pub fn len(&self) -> usize {
+        self.game.len()
+    }
+    pub fn is_empty(&self) -> bool {
+        self.game.is_empty()
+    }
+    pub fn is_overtime(&self, i: usize) -> bool {
+        self.period[i] >= 5
+    }
+    /// Half index: 1 (periods 1-2), 2 (periods 3-4), 3 and up for each
+    /// overtime period.
+    pub fn half(&self, i: usize) -> i32 {
+        half_of(self.period[i])
+    }
+    pub fn seasons(&self) -> Vec<i32> {
+        let mut s: Vec<i32> = self.games.iter().map(|g| g.season).collect();
+        s.sort_unstable();
+        s.dedup();
+        s
+    }
+    pub fn passer_name(&self, i: usize) -> Option<&str> {
+        let p = self.passer[i];
+        (p != NO_PASSER).then(|| self.passers[p as usize].as_str())
+    }
+    pub fn team_index(&self, code: &str) -> Option<u16> {
+        self.teams.iter().position(|t| t == code).map(|p| p as u16)
+    }
+    pub fn passer_index(&self, name: &str) -> Option<u32> {
+        self.passers.iter().position(|t| t == name).map(|p| p as u32)
+    }
+    /// Offense's final result: 1 win, 0 loss, 0.5 tie.
+    pub fn offense_result(&self, i: usize) -> f64 {
+        let g = &self.games[self.game[i] as usize];
+        let home = g.home_result();
+        if self.off_home[i] {
+            home
+        } else {
+            1.0 - home
+        }
+    }
+
+    /// Build from rows already sorted by (game, seq) and already validated.
+    /// `sources` gives each row's origin. Derives every derived column.
+    pub fn from_rows(files: Vec<String>, rows: &[PlayRow], sources: Vec<Source>) -> Plays {
+        let mut p = Plays {
+            files,
+            ..Plays::default()
+        };
+        let mut team_ids = std::collections::HashMap::<String, u16>::new();
+        let mut passer_ids = std::collections::HashMap::<String, u32>::new();
+        let mut intern_team = |p: &mut Plays, s: &str| -> u16 {
+            if let Some(&id) = team_ids.get(s) {
+                return id;
+            }
+            let id = p.teams.len() as u16;
+            p.teams.push(s.to_string());
+            team_ids.insert(s.to_string(), id);
+            id
+        };
+        for (i, r) in rows.iter().enumerate() {
+            let new_game = i == 0 || rows[i - 1].game != r.game;
+            if new_game {
+                if let Some(g) = p.games.last_mut() {
+                    g.end = i;
+                }
+                let home = intern_team(&mut p, &r.home);
+                let away = intern_team(&mut p, &r.away);
+                p.games.push(Game {
+                    key: r.game.clone(),
+                    season: r.season,
+                    week: r.week,
+                    home,
+                    away,
+                    home_line: r.home_line,
+                    home_final: 0,
+                    away_final: 0,
+                    start: i,
+                    end: i,
+                });
+            }
+            let gi = p.games.len() as u32 - 1;
+            let offense = intern_team(&mut p, &r.offense);
+            let defense = intern_team(&mut p, &r.defense);
+            let passer = match &r.passer {
+                Some(name) if !name.is_empty() => {
+                    let next = passer_ids.len() as u32;
+                    let id = *passer_ids.entry(name.clone()).or_insert(next);
+                    if id == next {
+                        p.passers.push(name.clone());
+                    }
+                    id
+                }
+                _ => NO_PASSER,
+            };
+            p.game.push(gi);
+            p.seq.push(r.seq);
+            p.season.push(r.season);
+            p.week.push(r.week);
+            p.period.push(r.period);
+            p.clock.push(r.clock);
+            p.offense.push(offense);
+            p.defense.push(defense);
+            p.off_score.push(r.off_score);
+            p.def_score.push(r.def_score);
+            p.off_timeouts.push(r.off_timeouts);
+            p.def_timeouts.push(r.def_timeouts);
+            p.down.push(r.down.unwrap_or(0));
+            p.to_go.push(if r.down.is_some() { r.to_go.unwrap_or(0) } else { 0 });
+            p.ball_on.push(r.ball_on);
+            p.kind.push(r.kind);
+            p.passer.push(passer);
+            p.complete.push(r.complete.unwrap_or(false));
+            p.intercepted.push(r.intercepted.unwrap_or(false));
+            p.air_yards.push(r.air_yards);
+            p.gain.push(r.gain.unwrap_or(0));
+            p.fumble_lost.push(r.fumble_lost.unwrap_or(false));
+            p.touchback.push(r.touchback.unwrap_or(false));
+            p.points.push(r.points);
+            p.off_home.push(r.offense == r.home);
+        }
+        if let Some(g) = p.games.last_mut() {
+            g.end = rows.len();
+        }
+        p.source = sources;
+        p.derive();
+        p
+    }
+
+    fn derive(&mut self) {
+        let n = self.len();
+        self.secs_half = (0..n).map(|i| secs_left_half(self.period[i], self.clock[i])).collect();
+        self.secs_game = (0..n).map(|i| secs_left_game(self.period[i], self.clock[i])).collect();
+        self.margin = (0..n).map(|i| self.off_score[i] - self.def_score[i]).collect();
+        self.dropback = self.kind.iter().map(|k| k.is_dropback()).collect();
+        self.drive = vec![0; n];
+        self.next_score = vec![NextScore::NoScore; n];
+        for gi in 0..self.games.len() {
+            let (start, end) = (self.games[gi].start, self.games[gi].end);
+            // drives
+            let mut drive = 0;
+            for i in start..end {
+                let new_period_start = i == start
+                    || (self.period[i] != self.period[i - 1] && self.period[i] != 2 && self.period[i] != 4);
+                if new_period_start || self.offense[i] != self.offense[i - 1] {
+                    drive += 1;
+                }
+                self.drive[i] = drive;
+            }
+            // next score in the half, scanning backwards
+            let mut next: Option<(i32, u16, NextScore)> = None; // (half, scoring team, kind for scorer)
+            for i in (start..end).rev() {
+                let half = half_of(self.period[i]);
+                if let Some((h, _, _)) = next {
+                    if h != half {
+                        next = None;
+                    }
+                }
+                if self.points[i] != 0 && !self.kind[i].is_try() {
+                    let (scorer, what) = if self.points[i] > 0 {
+                        let w = if self.points[i] >= 6 {
+                            NextScore::OwnTouchdown
+                        } else if self.points[i] == 3 {
+                            NextScore::OwnFieldGoal
+                        } else {
+                            NextScore::OwnSafety
+                        };
+                        (self.offense[i], w)
+                    } else {
+                        let w = if self.points[i] <= -6 {
+                            NextScore::OwnTouchdown
+                        } else if self.points[i] == -3 {
+                            NextScore::OwnFieldGoal
+                        } else {
+                            NextScore::OwnSafety
+                        };
+                        (self.defense[i], w)
+                    };
+                    next = Some((half, scorer, what));
+                }
+                self.next_score[i] = match next {
+                    None => NextScore::NoScore,
+                    Some((_, scorer, what)) if scorer == self.offense[i] => what,
+                    Some((_, _, what)) => match what {
+                        NextScore::OwnTouchdown => NextScore::OppTouchdown,
+                        NextScore::OwnFieldGoal => NextScore::OppFieldGoal,
+                        _ => NextScore::OppSafety,
+                    },
+                };
+            }
+            // final score
+            let last = end - 1;
+            let (mut off, mut def) = (self.off_score[last], self.def_score[last]);
+            if self.points[last] > 0 {
+                off += self.points[last];
+            } else {
+                def -= self.points[last];
+            }
+            let (hf, af) = if self.off_home[last] { (off, def) } else { (def, off) };
+            self.games[gi].home_final = hf;
+            self.games[gi].away_final = af;
+        }
+    }
+}
+
+pub fn half_of(period: i32) -> i32 {
+    match period {
+        1 | 2 => 1,
+        3 | 4 => 2,
+        p => p - 2,
+    }
+}
+
+/// Seconds left in the half at a snap (in overtime: in the period).
+pub fn secs_left_half(period: i32, clock: i32) -> i32 {
+    match period {
+        1 | 3 => clock + PERIOD_SECS,
+        _ => clock,
+    }
+}
+
+/// Seconds left in regulation (in overtime: in the period).
+pub fn secs_left_game(period: i32, clock: i32) -> i32 {
+    if period >= 5 {
+        clock
+    } else {
+        (4 - period) * PERIOD_SECS + clock
+    }
+}
