@@ -3,13 +3,9 @@
 //! game by game, and writing rows back out. Produces `Plays`; knows nothing
 //! about models, situations or HTTP.
 
-mod read;
-mod validate;
 mod write;
 
-pub use read::{fingerprint, list_files, RawTable};
-pub use validate::{load, load_with, Issue, IssueKind, LoadOptions, LoadReport, Loaded};
-pub use write::{write_rows, write_frame, FileFormat};
+pub use write::{rows_frame, write_frame, write_rows, FileFormat};
 
 use serde::{Deserialize, Serialize};
 
