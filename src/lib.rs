@@ -4,3 +4,4 @@
 
 pub mod playfile;
 pub mod plays;
+pub mod stats;
