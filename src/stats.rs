@@ -820,21 +820,12 @@ mod tests {
                 .collect()
         };
 
-        let mut worst = 0.0f64;
+        let beta_got: Vec<f64> = beta_cases
+            .iter()
+            .map(|&(a, b, p)| Beta::new(a, b).expect("beta").inverse_cdf(p))
+            .collect();
         let want = column("beta_ppf");
-        assert_eq!(want.len(), beta_cases.len());
-        for (&(a, b, p), &w) in beta_cases.iter().zip(&want) {
-            let got = Beta::new(a, b).expect("beta").inverse_cdf(p);
-            worst = worst.max(rel_err(got, w));
-            assert!(
-                rel_err(got, w) <= 1e-9,
-                "Beta({a}, {b}).ppf({p}): statrs {got}, scipy {w}"
-            );
-        }
-        eprintln!(
-            "beta.ppf worst relative error {worst:.2e} over {} cases",
-            want.len()
-        );
+        assert_agrees("beta.ppf", &beta_cases, &beta_got, &want);
         // The same quantiles as beta_posterior reports them.
         let n_plain = beta_cases.len() - 2 * post_cases.len();
         for (i, &(a, b, k, n)) in post_cases.iter().enumerate() {
@@ -851,37 +842,36 @@ mod tests {
                 "{post:?} vs {lo} {hi}"
             );
         }
+        let got: Vec<f64> = norm_cdf
+            .iter()
+            .map(|&(mu, sd, x)| Normal::new(mu, sd).expect("normal").cdf(x))
+            .collect();
+        assert_agrees("norm.cdf", &norm_cdf, &got, &column("norm_cdf"));
+        let got: Vec<f64> = norm_ppf
+            .iter()
+            .map(|&(mu, sd, p)| Normal::new(mu, sd).expect("normal").inverse_cdf(p))
+            .collect();
+        assert_agrees("norm.ppf", &norm_ppf, &got, &column("norm_ppf"));
+    }
 
-        let mut worst = 0.0f64;
-        let want = column("norm_cdf");
-        assert_eq!(want.len(), norm_cdf.len());
-        for (&(mu, sd, x), &w) in norm_cdf.iter().zip(&want) {
-            let got = Normal::new(mu, sd).expect("normal").cdf(x);
-            worst = worst.max(rel_err(got, w));
-            assert!(
-                rel_err(got, w) <= 1e-9,
-                "Normal({mu}, {sd}).cdf({x}): statrs {got}, scipy {w}"
-            );
-        }
-        eprintln!(
-            "norm.cdf worst relative error {worst:.2e} over {} cases",
-            want.len()
+    /// Every statrs value within 1e-9 relative of scipy's.
+    fn assert_agrees(what: &str, cases: &[(f64, f64, f64)], got: &[f64], want: &[f64]) {
+        assert_eq!(
+            want.len(),
+            cases.len(),
+            "{what}: scipy returned a different count"
         );
-
         let mut worst = 0.0f64;
-        let want = column("norm_ppf");
-        assert_eq!(want.len(), norm_ppf.len());
-        for (&(mu, sd, p), &w) in norm_ppf.iter().zip(&want) {
-            let got = Normal::new(mu, sd).expect("normal").inverse_cdf(p);
-            worst = worst.max(rel_err(got, w));
+        for ((case, &g), &w) in cases.iter().zip(got).zip(want) {
+            worst = worst.max(rel_err(g, w));
             assert!(
-                rel_err(got, w) <= 1e-9,
-                "Normal({mu}, {sd}).ppf({p}): statrs {got}, scipy {w}"
+                rel_err(g, w) <= 1e-9,
+                "{what}{case:?}: statrs {g}, scipy {w}"
             );
         }
         eprintln!(
-            "norm.ppf worst relative error {worst:.2e} over {} cases",
-            want.len()
+            "{what} worst relative error {worst:.2e} over {} cases",
+            cases.len()
         );
     }
 
