@@ -540,13 +540,9 @@ mod tests {
     #[test]
     fn beta_prior_recovers_known_prior() {
         // 4,000 units from Beta(20, 80) with 50 tries each.
-        let mut rng = SplitMix(7);
-        let truth = Beta::new(20.0, 80.0).expect("beta");
-        let units: Vec<(f64, f64)> = (0..4000)
-            .map(|_| {
-                let p = truth.inverse_cdf(rng.unit());
-                (rng.binomial(50, p) as f64, 50.0)
-            })
+        let units: Vec<(f64, f64)> = simulate(7, 4000, 50, 50)
+            .iter()
+            .map(|&(_, k, n)| (k, n))
             .collect();
         let prior = fit_beta_prior(&units).expect("prior");
         eprintln!("recovered prior: {prior:?}");
@@ -879,14 +875,9 @@ mod tests {
     // reference for the prior's fitted concentration.
     #[test]
     fn beta_prior_fit_agrees_with_scipy() {
-        let mut rng = SplitMix(11);
-        let truth = Beta::new(20.0, 80.0).expect("beta");
-        let league: Vec<(f64, f64)> = (0..60)
-            .map(|_| {
-                let p = truth.inverse_cdf(rng.unit());
-                let n = rng.range(10, 60);
-                (rng.binomial(n, p) as f64, n as f64)
-            })
+        let league: Vec<(f64, f64)> = simulate(11, 60, 10, 60)
+            .iter()
+            .map(|&(_, k, n)| (k, n))
             .collect();
         let datasets: Vec<Vec<(f64, f64)>> = vec![
             vec![(2.0, 10.0), (5.0, 10.0), (8.0, 10.0)],
@@ -947,17 +938,23 @@ mod tests {
         }
     }
 
-    /// One simulated league: (raw RMSE, shrunk RMSE, interval coverage).
-    fn shrinkage_run(seed: u64) -> (f64, f64, f64) {
+    /// `units` true rates from Beta(20, 80), each with `n_lo..=n_hi` tries:
+    /// `(true rate, successes, tries)`.
+    fn simulate(seed: u64, units: usize, n_lo: u64, n_hi: u64) -> Vec<(f64, f64, f64)> {
         let mut rng = SplitMix(seed);
         let truth = Beta::new(20.0, 80.0).expect("beta");
-        let units: Vec<(f64, f64, f64)> = (0..60)
+        (0..units)
             .map(|_| {
                 let p = truth.inverse_cdf(rng.unit());
-                let n = rng.range(10, 60);
+                let n = rng.range(n_lo, n_hi);
                 (p, rng.binomial(n, p) as f64, n as f64)
             })
-            .collect();
+            .collect()
+    }
+
+    /// One simulated league: (raw RMSE, shrunk RMSE, interval coverage).
+    fn shrinkage_run(seed: u64) -> (f64, f64, f64) {
+        let units = simulate(seed, 60, 10, 60);
         let counts: Vec<(f64, f64)> = units.iter().map(|&(_, k, n)| (k, n)).collect();
         let prior = fit_beta_prior(&counts).expect("prior");
         let (mut se_raw, mut se_shrunk, mut covered) = (0.0, 0.0, 0);
