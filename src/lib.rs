@@ -4,6 +4,9 @@
 //! further up the chain.
 
 pub mod charts;
+pub mod export;
 pub mod playfile;
 pub mod plays;
 pub mod situation;
+pub mod splits;
+pub mod stats;

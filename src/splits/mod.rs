@@ -31,11 +31,6 @@ impl Acc {
         self.sum += x;
         self.sumsq += x * x;
     }
-    fn merge(&mut self, o: &Acc) {
-        self.n += o.n;
-        self.sum += o.sum;
-        self.sumsq += o.sumsq;
-    }
     fn mean(&self) -> Option<f64> {
         (self.n > 0.0).then(|| self.sum / self.n)
     }
@@ -74,7 +69,9 @@ struct PasserSums {
 }
 
 fn accumulate(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
-    let unseasoned = s.with_seasons(None);
+    // The passer filter picks the rows shown, not the league they are
+    // measured against: match on the situation without it.
+    let unseasoned = Situation { passer: None, ..s.with_seasons(None) };
     let seasons = s.seasons.as_deref();
     let mut out = Sums {
         passers: BTreeMap::new(),
@@ -336,12 +333,12 @@ fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: u32) -> Spl
         }
         let post: Vec<Option<stats::Posterior>> = match m.stat {
             Stat::Rate => {
-                let prior = stats::fit_beta_prior(&qual);
+                let Some(prior) = stats::fit_beta_prior(&qual) else { continue };
                 sums.passers
                     .values()
                     .map(|ps| {
                         let a = &ps.accs[j];
-                        (a.n > 0.0).then(|| stats::beta_posterior(&prior, a.sum, a.n))
+                        stats::beta_posterior(&prior, a.sum, a.n)
                     })
                     .collect()
             }
@@ -351,12 +348,16 @@ fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: u32) -> Spl
                     continue;
                 }
                 let means: Vec<(f64, f64)> = qual.iter().map(|(sum, n)| (sum / n, s2 / n)).collect();
-                let prior = stats::fit_normal_prior(&means);
+                let Some(prior) = stats::fit_normal_prior(&means) else { continue };
                 sums.passers
                     .values()
                     .map(|ps| {
                         let a = &ps.accs[j];
-                        (a.n > 0.0).then(|| stats::normal_posterior(&prior, a.sum / a.n, s2 / a.n))
+                        if a.n > 0.0 {
+                            stats::normal_posterior(&prior, a.sum / a.n, s2 / a.n)
+                        } else {
+                            None
+                        }
                     })
                     .collect()
             }
@@ -373,19 +374,21 @@ fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: u32) -> Spl
         // Percentile (on the estimate) and z (on the raw value), qualified only.
         let ests: Vec<f64> = rows.iter().filter(|r| r.qualified).filter_map(|r| r.cells[j].estimate).collect();
         let raws: Vec<f64> = rows.iter().filter(|r| r.qualified).filter_map(|r| r.cells[j].value).collect();
-        let (mean, sd) = stats::mean_sd(&raws);
+        let spread = stats::mean_sd(&raws);
         for row in rows.iter_mut() {
             let c = &mut row.cells[j];
-            if let Some(e) = c.estimate {
-                let pr = stats::percentile_rank(&ests, e);
+            if let Some(pr) = c.estimate.and_then(|e| stats::percentile_rank(&ests, e)) {
                 c.percentile = Some(if m.higher_is_better { pr } else { 100.0 - pr });
             }
-            if let Some(x) = c.value {
+            if let (Some(x), Some((mean, sd))) = (c.value, spread) {
                 c.z = stats::z_score(x, mean, sd);
             }
         }
     }
 
+    if let Some(only) = &s.passer {
+        rows.retain(|r| &r.passer == only);
+    }
     rows.sort_by(|a, b| b.dropbacks.cmp(&a.dropbacks).then(a.passer.cmp(&b.passer)));
     let metrics = (0..nm)
         .map(|j| {
