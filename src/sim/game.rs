@@ -501,7 +501,8 @@ impl Engine<'_, '_> {
                 at += exp_mean(self.rng, 20.0);
             }
             let at = at.round() as i32;
-            self.use_clock(int_in(self.rng, 5, 8), false);
+            let secs = int_in(self.rng, 5, 8);
+            self.use_clock(secs, false);
             if at >= 100 || chance(self.rng, 0.002) {
                 next = self.defense_touchdown(&mut row);
             } else {
@@ -550,7 +551,8 @@ impl Engine<'_, '_> {
         let mut row = self.snap_row(Kind::FieldGoal);
         let distance = 100 - self.ball_on + 17;
         let p = self.fg_prob(distance);
-        self.use_clock(int_in(self.rng, 4, 6), false);
+        let secs = int_in(self.rng, 4, 6);
+        self.use_clock(secs, false);
         let next = if chance(self.rng, p) {
             row.points = 3;
             let off = self.poss;
@@ -572,7 +574,8 @@ impl Engine<'_, '_> {
         row.touchback = Some(false);
         let gross = (45.5 + 6.5 * normal(self.rng) + 2.0 * self.strength[self.poss].kicking).round() as i32;
         let mut land = self.ball_on + gross.max(20);
-        self.use_clock(int_in(self.rng, 7, 10), false);
+        let secs = int_in(self.rng, 7, 10);
+        self.use_clock(secs, false);
         let mut returned = true;
         if self.ball_on > 50 && chance(self.rng, 0.62) {
             // aimed short of the goal line and downed or fair caught
@@ -672,7 +675,7 @@ impl Engine<'_, '_> {
         }
         let tg = self.to_go;
         let on = self.ball_on;
-        let mut p_go = if tg <= 1 {
+        let mut p_go: f64 = if tg <= 1 {
             match on {
                 60.. => 0.60,
                 45..=59 => 0.55,
@@ -855,7 +858,8 @@ impl Engine<'_, '_> {
             self.to_go -= yards;
         }
         let keep = self.running && !self.oob_stops();
-        self.use_clock(if live { int_in(self.rng, 4, 7) } else { 0 }, keep);
+        let secs = if live { int_in(self.rng, 4, 7) } else { 0 };
+        self.use_clock(secs, keep);
         self.push(row);
         Next::Scrimmage
     }
@@ -1031,7 +1035,8 @@ impl Engine<'_, '_> {
             row.complete = Some(false);
             row.intercepted = Some(true);
             row.gain = Some(0);
-            self.use_clock(int_in(self.rng, 5, 9), false);
+            let secs = int_in(self.rng, 5, 9);
+            self.use_clock(secs, false);
             let spot = self.ball_on + air;
             let next = if chance(self.rng, 0.06) {
                 self.defense_touchdown(&mut row)
@@ -1050,7 +1055,8 @@ impl Engine<'_, '_> {
             row.complete = Some(false);
             row.intercepted = Some(false);
             row.gain = Some(0);
-            self.use_clock(int_in(self.rng, 4, 6), false);
+            let secs = int_in(self.rng, 4, 6);
+            self.use_clock(secs, false);
             let next = self.advance(&mut row, 0);
             self.push(row);
             return next;
