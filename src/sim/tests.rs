@@ -24,6 +24,7 @@ fn plays_of(rows: &[PlayRow]) -> Plays {
 
 /// League-level figures, each per team-game unless named a rate.
 #[derive(Debug)]
+#[allow(dead_code)] // read through Debug
 struct Figures {
     seasons: f64,
     games: f64,
@@ -462,22 +463,6 @@ fn pilot_home_line_weights() {
     println!("[{}]", ws.join(", "));
 }
 
-#[test]
-#[ignore]
-fn debug_kneels() {
-    let out = simulate(&SimConfig { seasons: 1, seed: 11, first_season: 2020 });
-    let rows = &out.rows;
-    let mut shown = 0;
-    for (i, r) in rows.iter().enumerate() {
-        if r.kind == Kind::Kneel && r.period == 2 && shown < 6 {
-            shown += 1;
-            for q in &rows[i.saturating_sub(4)..(i + 3).min(rows.len())] {
-                println!("{} p{} {:>4} {} {:?}&{:?} @{} {:?} gain {:?} to {}-{} pts {}", q.game, q.period, q.clock, q.offense, q.down, q.to_go, q.ball_on, q.kind, q.gain, q.off_timeouts, q.def_timeouts, q.points);
-            }
-            println!();
-        }
-    }
-}
 
 /// Key figures over several seeds (run with `--ignored --nocapture`).
 #[test]
@@ -513,23 +498,23 @@ fn sim_schedule_is_balanced() {
     assert!(counts.iter().all(|&c| (8..=9).contains(&c)), "{counts:?}");
 }
 
-/// Slope of margin on home_line by block of seasons (run with `--ignored --nocapture`).
+
+/// The loader accepts the simulated league as CSV and as Parquet.
 #[test]
-#[ignore]
-fn sim_line_slope_by_era() {
-    let out = simulate(&SimConfig { seasons: 48, seed: 1, first_season: 1950 });
-    let plays = plays_of(&out.rows);
-    for block in 0..6 {
-        let lo = 1950 + block * 8;
-        let gs: Vec<_> = plays.games.iter().filter(|g| g.season >= lo && g.season < lo + 8).collect();
-        let xs: Vec<f64> = gs.iter().map(|g| g.home_line.unwrap_or(0.0)).collect();
-        let ys: Vec<f64> = gs.iter().map(|g| (g.home_final - g.away_final) as f64).collect();
-        let (slope, icpt, resid) = simple_regression(&xs, &ys);
-        let n = xs.len() as f64;
-        let m = xs.iter().sum::<f64>() / n;
-        let sd = (xs.iter().map(|x| (x - m).powi(2)).sum::<f64>() / n).sqrt();
-        println!("seasons {lo}-{}: slope {slope:.3} intercept {icpt:.2} resid {resid:.2} line sd {sd:.2}", lo + 7);
+fn sim_output_passes_the_loader() {
+    let out = simulate(&SimConfig { seasons: 1, seed: 21, first_season: 2024 });
+    let dir = std::env::temp_dir().join(format!("lategame-sim-load-{}", std::process::id()));
+    for name in ["demo.csv", "demo.parquet"] {
+        let path = dir.join(name);
+        write_rows(&out.rows, &path).expect("write");
+        let loaded = crate::playfile::load(&path, &Default::default());
+        let report = match &loaded {
+            Ok(l) => &l.report,
+            Err(e) => &e.report,
+        };
+        assert!(!report.has_errors(), "{name}: {}", report.summary(false));
+        assert_eq!(report.rows_kept, out.rows.len(), "{name}");
+        assert_eq!(report.games, GAMES_PER_SEASON, "{name}");
     }
-    let skills: Vec<f64> = out.league.team_seasons.iter().map(|t| t.rating).collect();
-    let _ = skills;
+    let _ = std::fs::remove_dir_all(&dir);
 }
