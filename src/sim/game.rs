@@ -270,7 +270,7 @@ impl Engine<'_, '_> {
             intercepted: None,
             air_yards: None,
             gain: None,
-            fumble_lost: None,
+            fumble_lost: matches!(kind, Kind::Pass | Kind::Run | Kind::Sack | Kind::Scramble).then_some(false),
             touchback: None,
             points: 0,
             home_line: Some(self.g.home_line),
@@ -888,7 +888,8 @@ impl Engine<'_, '_> {
             self.to_go -= yards;
         }
         let keep = self.running && !self.oob_stops();
-        let secs = if live { int_in(self.rng, 4, 7) } else { 0 };
+        // a period never ends on a foul (the down is replayed untimed)
+        let secs = if live { int_in(self.rng, 4, 7).min(self.clock - 1).max(0) } else { 0 };
         self.use_clock(secs, keep);
         self.push(row);
         Next::Scrimmage

@@ -76,7 +76,20 @@ pub struct LeagueInfo {
 
 #[derive(Debug, Clone, PartialEq)]
 pub struct SimOutput {
-    /// Sorted by game key (`season-week-AWAY-HOME`), then `seq`.
+    /// Sorted by game key, then `seq` (from 1). Conventions of the simulated file:
+    /// - game key `season-week-AWAY-HOME`, e.g. `2021-05-HRM-KBY` (week two digits);
+    /// - kickoffs: the kicking team is the offense, `ball_on` is the kicking
+    ///   spot (35; 20 for the free kick after a safety), `touchback` true or false,
+    ///   a return touchdown is `points` −6;
+    /// - tries: `ball_on` 85 for a kick (`KICK_TRY_SPOT`), 98 for two (`TWO_POINT_SPOT`);
+    /// - `gain` is empty on kicks and tries, set on every other snap (penalties:
+    ///   yards enforced, + for the offense; interceptions and incompletions 0);
+    /// - `fumble_lost` is true or false on runs, passes, sacks and scrambles,
+    ///   empty elsewhere; `touchback` only on kickoffs and punts;
+    /// - overtime is one 10-minute period, 2 timeouts each: a touchdown or a
+    ///   defensive score ends it, a field goal on the first possession gives the
+    ///   other side a possession, then any lead wins; no try after an overtime
+    ///   touchdown; still tied at 0:00 is a tie.
     pub rows: Vec<PlayRow>,
     pub truth: Vec<TruthRow>,
     pub league: LeagueInfo,
@@ -164,7 +177,7 @@ pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Opti
     let league_rng = ChaCha8Rng::seed_from_u64(cfg.seed);
     let mut league = League::new(league_rng, cfg.first_season);
     let total = cfg.seasons as usize * GAMES_PER_SEASON;
-    let mut rows: Vec<PlayRow> = Vec::with_capacity(total * 170);
+    let mut rows: Vec<PlayRow> = Vec::with_capacity(total * 166); // ~162 snaps a game
     let mut book = TruthBook::default();
     let mut team_seasons = Vec::new();
     let mut done = 0usize;

@@ -218,6 +218,8 @@ fn check_game(g: &[PlayRow]) {
         let kick = matches!(r.kind, Kind::Kickoff | Kind::Punt | Kind::FieldGoal | Kind::ExtraPoint | Kind::TwoPoint);
         assert_eq!(r.gain.is_none(), kick, "{c}: gain");
         assert_eq!(r.touchback.is_some(), matches!(r.kind, Kind::Kickoff | Kind::Punt), "{c}");
+        let scrimmage = matches!(r.kind, Kind::Pass | Kind::Run | Kind::Sack | Kind::Scramble);
+        assert_eq!(r.fumble_lost.is_some(), scrimmage, "{c}: fumble_lost");
         let ok_points = match r.kind {
             Kind::ExtraPoint => [0, 1].contains(&r.points),
             Kind::TwoPoint => [0, 2].contains(&r.points),
