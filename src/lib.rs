@@ -1,7 +1,10 @@
 //! lategame: late-game passer review for football coaching staffs.
-//! Data flows one way: playfile → plays → models → scored → situation →
-//! splits → web / report. No module imports one further up the chain.
+//! Data flows one way: playfile → plays → models → league (scored) →
+//! situation → splits → web / api / export / report. No module imports one
+//! further up the chain.
 
+pub mod charts;
 pub mod models;
 pub mod playfile;
 pub mod plays;
+pub mod situation;

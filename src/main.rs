@@ -1,1 +1,5 @@
-fn main() {}
+//! The `lategame` command: parse the command line and hand over to the library.
+
+fn main() -> std::process::ExitCode {
+    lategame::cli::main()
+}

@@ -3,8 +3,12 @@
 //! game by game, and writing rows back out. Produces `Plays`; knows nothing
 //! about models, situations or HTTP.
 
+mod read;
+mod validate;
 mod write;
 
+pub use read::{fingerprint, group, list_files, RawTable};
+pub use validate::{load, load_with, Issue, IssueKind, LoadError, LoadOptions, LoadReport, Loaded};
 pub use write::{rows_frame, write_frame, write_rows, FileFormat};
 
 use serde::{Deserialize, Serialize};

@@ -1,8 +1,8 @@
 //! Writing play rows (and scored frames) to CSV or Parquet with polars.
 
 use super::{format_clock, PlayRow};
-use anyhow::{Context, Result};
-use polars::prelude::*;
+use anyhow::{anyhow, Context, Result};
+use polars::prelude::{Column, CsvWriter, DataFrame, ParquetCompression, ParquetWriter, SerWriter};
 use std::path::Path;
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -56,7 +56,7 @@ pub fn rows_frame(rows: &[PlayRow]) -> Result<DataFrame> {
         Column::new("points".into(), s(rows, |r| r.points)),
         Column::new("home_line".into(), s(rows, |r| r.home_line)),
     ];
-    DataFrame::new(cols).context("building the play frame")
+    DataFrame::new(rows.len(), cols).map_err(|e| anyhow!("building the play frame: {e}"))
 }
 
 /// Write rows to `path` (format from the extension). Never overwrites the
@@ -79,13 +79,13 @@ pub fn write_frame(df: &mut DataFrame, path: &Path) -> Result<()> {
             CsvWriter::new(file)
                 .include_header(true)
                 .finish(df)
-                .with_context(|| format!("writing {}", path.display()))?;
+                .map_err(|e| anyhow!("writing {}: {e}", path.display()))?;
         }
         FileFormat::Parquet => {
             ParquetWriter::new(file)
                 .with_compression(ParquetCompression::Zstd(None))
                 .finish(df)
-                .with_context(|| format!("writing {}", path.display()))?;
+                .map_err(|e| anyhow!("writing {}: {e}", path.display()))?;
         }
     }
     Ok(())

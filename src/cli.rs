@@ -1,0 +1,295 @@
+//! The command line: `serve`, `check`, `simulate`, `score`, `splits`,
+//! `report`. Parses arguments with clap, sets up logging and progress bars,
+//! and calls the library; no logic of its own.
+
+use crate::league::{demo_path, League};
+use crate::playfile::{self, LoadOptions};
+use crate::situation::{Preset, Situation};
+use crate::splits::{self, METRICS};
+use anyhow::{Context, Result};
+use clap::{Parser, Subcommand, ValueEnum};
+use indicatif::{ProgressBar, ProgressStyle};
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+#[derive(Parser)]
+#[command(name = "lategame", version, about = "Late-game passer review: fits its own EP/WP models from a league play file and serves situation splits.")]
+struct Cli {
+    #[command(subcommand)]
+    cmd: Option<Cmd>,
+}
+
+#[derive(Subcommand)]
+enum Cmd {
+    /// Serve the pages and the JSON API (default: the bundled demo league).
+    Serve(ServeArgs),
+    /// Validate a play file (or folder) and print the report; non-zero exit on errors.
+    Check {
+        file: PathBuf,
+    },
+    /// Generate the simulated demo league (play file plus truth file).
+    Simulate {
+        #[arg(long, default_value_t = 6)]
+        seasons: u32,
+        #[arg(long, default_value_t = 7)]
+        seed: u64,
+        #[arg(long, default_value_t = 2020)]
+        first_season: i32,
+        /// Output play file (.parquet or .csv); the truth file is written beside it.
+        #[arg(long, default_value = "demo-data/league.parquet")]
+        out: PathBuf,
+    },
+    /// Write every snap with its input columns plus EP, EPA, WP, WPA and completion probability.
+    Score {
+        file: PathBuf,
+        #[arg(short, long)]
+        out: PathBuf,
+        #[arg(long)]
+        lenient: bool,
+        #[arg(long)]
+        refit: bool,
+    },
+    /// Print the passer split table for a situation.
+    Splits {
+        file: Option<PathBuf>,
+        /// A preset: late-close, two-minute, four-minute, late-3rd-4th, red-zone-late, backed-up-late, all.
+        #[arg(long, conflicts_with = "r#where")]
+        preset: Option<String>,
+        /// A situation as URL query parameters, e.g. 'preset=late-close&dn=3,4'.
+        #[arg(long = "where")]
+        r#where: Option<String>,
+        /// Season(s) to include (repeat or comma list).
+        #[arg(long, value_delimiter = ',')]
+        season: Vec<i32>,
+        /// Minimum dropbacks to qualify.
+        #[arg(long, default_value_t = splits::DEFAULT_MIN_DROPBACKS)]
+        min: u32,
+        #[arg(long, value_enum, default_value_t = Format::Table)]
+        format: Format,
+        #[arg(long)]
+        lenient: bool,
+    },
+    /// Write the one-page situation report as PDF, without the server.
+    Report {
+        file: Option<PathBuf>,
+        #[arg(long)]
+        passer: String,
+        #[arg(long, default_value = "late-close")]
+        preset: String,
+        #[arg(long, value_delimiter = ',')]
+        season: Vec<i32>,
+        /// Page size: letter (landscape, default) or a4 (landscape).
+        #[arg(long, default_value = "letter")]
+        paper: String,
+        #[arg(short, long)]
+        out: PathBuf,
+    },
+}
+
+#[derive(clap::Args)]
+pub struct ServeArgs {
+    pub file: Option<PathBuf>,
+    /// Address to listen on.
+    #[arg(long, default_value = "127.0.0.1:8750")]
+    pub bind: String,
+    /// Skip bad rows instead of refusing the file.
+    #[arg(long)]
+    pub lenient: bool,
+    /// Fit the models again even when cached coefficients exist.
+    #[arg(long)]
+    pub refit: bool,
+    /// Our team's code (pages highlight it).
+    #[arg(long)]
+    pub team: Option<String>,
+    /// Our passer's name.
+    #[arg(long)]
+    pub passer: Option<String>,
+    /// Allow binding beyond loopback; every request then needs the access token printed at start.
+    #[arg(long)]
+    pub share: bool,
+}
+
+#[derive(Clone, Copy, ValueEnum)]
+enum Format {
+    Table,
+    Csv,
+    Json,
+}
+
+pub fn main() -> ExitCode {
+    let cli = Cli::parse();
+    tracing_subscriber::fmt()
+        .with_env_filter(tracing_subscriber::EnvFilter::try_from_default_env().unwrap_or_else(|_| "lategame=info,warn".into()))
+        .with_writer(std::io::stderr)
+        .init();
+    match run(cli) {
+        Ok(code) => code,
+        Err(e) => {
+            eprintln!("error: {e:#}");
+            ExitCode::FAILURE
+        }
+    }
+}
+
+fn spinner(msg: &str) -> ProgressBar {
+    let pb = ProgressBar::new_spinner();
+    pb.set_style(ProgressStyle::with_template("{spinner} {msg} {elapsed}").unwrap_or_else(|_| ProgressStyle::default_spinner()));
+    pb.set_message(msg.to_string());
+    pb.enable_steady_tick(std::time::Duration::from_millis(120));
+    pb
+}
+
+/// Load, fit and score with a spinner.
+pub fn open_league(file: Option<PathBuf>, lenient: bool, refit: bool) -> Result<League> {
+    let path = file.unwrap_or_else(demo_path);
+    let pb = spinner(&format!("loading {} and fitting models", path.display()));
+    let league = League::open(&path, &LoadOptions { lenient }, refit);
+    pb.finish_and_clear();
+    let league = league?;
+    if league.report.has_errors() {
+        eprint!("{}", league.report.summary(true));
+    }
+    Ok(league)
+}
+
+fn run(cli: Cli) -> Result<ExitCode> {
+    let cmd = cli.cmd.unwrap_or(Cmd::Serve(ServeArgs {
+        file: None,
+        bind: "127.0.0.1:8750".into(),
+        lenient: false,
+        refit: false,
+        team: None,
+        passer: None,
+        share: false,
+    }));
+    match cmd {
+        Cmd::Serve(args) => {
+            let league = open_league(args.file.clone(), args.lenient, args.refit)?;
+            crate::web::serve_blocking(league, &args)?;
+            Ok(ExitCode::SUCCESS)
+        }
+        Cmd::Check { file } => {
+            let pb = spinner(&format!("checking {}", file.display()));
+            let result = playfile::load(&file, &LoadOptions { lenient: false });
+            pb.finish_and_clear();
+            match result {
+                Ok(loaded) => {
+                    print!("{}", loaded.report.summary(false));
+                    println!("fingerprint {}", loaded.fingerprint);
+                    Ok(ExitCode::SUCCESS)
+                }
+                Err(e) => {
+                    print!("{}", e.report.summary(false));
+                    Ok(ExitCode::FAILURE)
+                }
+            }
+        }
+        Cmd::Simulate { seasons, seed, first_season, out } => {
+            let cfg = crate::sim::SimConfig { seasons, seed, first_season };
+            let pb = ProgressBar::new(0);
+            pb.set_style(ProgressStyle::with_template("simulating {bar:40} {pos}/{len} games {elapsed}").unwrap_or_else(|_| ProgressStyle::default_bar()));
+            let started = std::time::Instant::now();
+            let output = crate::sim::simulate_with_progress(&cfg, &|done, total| {
+                pb.set_length(total as u64);
+                pb.set_position(done as u64);
+            });
+            pb.finish_and_clear();
+            playfile::write_rows(&output.rows, &out)?;
+            let truth = truth_path(&out);
+            crate::sim::write_truth(&output.truth, &truth)?;
+            println!(
+                "{} snaps in {} seasons written to {} (truth: {}) in {:.1} s",
+                output.rows.len(),
+                seasons,
+                out.display(),
+                truth.display(),
+                started.elapsed().as_secs_f64()
+            );
+            Ok(ExitCode::SUCCESS)
+        }
+        Cmd::Score { file, out, lenient, refit } => {
+            if std::fs::canonicalize(&out).ok().is_some_and(|o| std::fs::canonicalize(&file).ok() == Some(o)) {
+                anyhow::bail!("{}: refusing to overwrite the play file; choose another output", out.display());
+            }
+            let league = open_league(Some(file), lenient, refit)?;
+            let mut df = crate::models::scored_frame(&league.scored)?;
+            playfile::write_frame(&mut df, &out)?;
+            println!("{} scored snaps written to {}", league.plays().len(), out.display());
+            Ok(ExitCode::SUCCESS)
+        }
+        Cmd::Splits { file, preset, r#where, season, min, format, lenient } => {
+            let mut situation = situation_from(preset.as_deref(), r#where.as_deref())?;
+            if !season.is_empty() {
+                situation.seasons = Some(season);
+            }
+            let league = open_league(file, lenient, false)?;
+            let table = splits::split_table(league.plays(), &league.values(), &situation, min);
+            match format {
+                Format::Json => println!("{}", serde_json::to_string_pretty(&table)?),
+                Format::Csv => print!("{}", crate::export::split_csv(&table)),
+                Format::Table => print!("{}", text_table(&table)),
+            }
+            Ok(ExitCode::SUCCESS)
+        }
+        Cmd::Report { file, passer, preset, season, paper, out } => {
+            let mut situation = situation_from(Some(&preset), None)?;
+            if !season.is_empty() {
+                situation.seasons = Some(season);
+            }
+            let league = open_league(file, false, false)?;
+            let paper = crate::report::Paper::parse(&paper).context("--paper: expected letter or a4")?;
+            let pdf = crate::report::pdf(&league, &situation, &passer, paper)?;
+            std::fs::write(&out, pdf).with_context(|| format!("writing {}", out.display()))?;
+            println!("report written to {}", out.display());
+            Ok(ExitCode::SUCCESS)
+        }
+    }
+}
+
+fn truth_path(out: &std::path::Path) -> PathBuf {
+    let stem = out.file_stem().map(|s| s.to_string_lossy().to_string()).unwrap_or_else(|| "league".into());
+    out.with_file_name(format!("{stem}-truth.csv"))
+}
+
+fn situation_from(preset: Option<&str>, query: Option<&str>) -> Result<Situation> {
+    let pairs: Vec<(String, String)> = match (preset, query) {
+        (Some(p), _) => vec![("preset".to_string(), p.to_string())],
+        (None, Some(q)) => q
+            .trim_start_matches('?')
+            .split('&')
+            .filter(|kv| !kv.is_empty())
+            .map(|kv| {
+                let (k, v) = kv.split_once('=').unwrap_or((kv, ""));
+                (k.to_string(), v.to_string())
+            })
+            .collect(),
+        (None, None) => vec![("preset".to_string(), Preset::LateClose.key().to_string())],
+    };
+    Situation::from_query(&pairs).map_err(|e| anyhow::anyhow!("{e}"))
+}
+
+fn text_table(t: &splits::SplitTable) -> String {
+    let keys = ["dropbacks", "comp_pct", "ypa", "int_rate", "sack_rate", "rating", "anya", "epa", "success", "wpa_total", "cpoe"];
+    let idx: Vec<usize> = keys.iter().filter_map(|k| splits::metric_index(k)).collect();
+    let mut s = format!("{} — seasons {:?}, min {} dropbacks\n", t.situation, t.seasons, t.min_dropbacks);
+    s.push_str(&format!("{:<22} {:<5}", "passer", "team"));
+    for &j in &idx {
+        s.push_str(&format!(" {:>8}", METRICS[j].short));
+    }
+    s.push('\n');
+    let fmt = |v: Option<f64>, j: usize| v.map(|x| format!("{:.*}", METRICS[j].decimals, x)).unwrap_or_else(|| "-".into());
+    s.push_str(&format!("{:<22} {:<5}", "LEAGUE", ""));
+    for &j in &idx {
+        s.push_str(&format!(" {:>8}", fmt(t.league[j], j)));
+    }
+    s.push('\n');
+    for r in t.qualified() {
+        let name: String = r.passer.chars().take(22).collect();
+        s.push_str(&format!("{:<22} {:<5}", name, r.team));
+        for &j in &idx {
+            s.push_str(&format!(" {:>8}", fmt(r.cells[j].value, j)));
+        }
+        s.push('\n');
+    }
+    s
+}

@@ -1,0 +1,197 @@
+//! Reading one play file (CSV or Parquet) into text columns with polars,
+//! after header checks (missing, duplicated columns) and a UTF-8 check that
+//! can name the row. Listing the files of a folder; the data fingerprint.
+
+use super::validate::{Issue, IssueKind};
+use super::{FileFormat, COLUMNS};
+use polars::prelude::*;
+use sha2::{Digest, Sha256};
+use std::io::Cursor;
+use std::path::{Path, PathBuf};
+
+/// One file's columns in `COLUMNS` order, each as text (`None` when an
+/// optional column is absent from the file).
+pub struct RawTable {
+    pub file: String,
+    pub height: usize,
+    pub columns: Vec<Option<StringChunked>>,
+}
+
+impl RawTable {
+    /// The cell at (`row`, column index into `COLUMNS`), trimmed; `None` when
+    /// empty or null.
+    pub fn cell(&self, col: usize, row: usize) -> Option<&str> {
+        let c = self.columns[col].as_ref()?;
+        let v = c.get(row)?.trim();
+        (!v.is_empty()).then_some(v)
+    }
+}
+
+/// The play files a path stands for: the file itself, or every `.csv` and
+/// `.parquet` file directly inside a folder, sorted by name.
+pub fn list_files(path: &Path) -> Result<Vec<PathBuf>, Issue> {
+    let meta = std::fs::metadata(path).map_err(|e| {
+        Issue::file(path, IssueKind::Unreadable, format!("cannot open: {e}"))
+    })?;
+    if !meta.is_dir() {
+        return Ok(vec![path.to_path_buf()]);
+    }
+    let entries = std::fs::read_dir(path)
+        .map_err(|e| Issue::file(path, IssueKind::Unreadable, format!("cannot list folder: {e}")))?;
+    let mut files: Vec<PathBuf> = entries
+        .filter_map(|e| e.ok().map(|e| e.path()))
+        .filter(|p| p.is_file() && FileFormat::from_path(p).is_ok())
+        .collect();
+    files.sort();
+    if files.is_empty() {
+        return Err(Issue::file(
+            path,
+            IssueKind::Unreadable,
+            "folder holds no .csv or .parquet file".to_string(),
+        ));
+    }
+    Ok(files)
+}
+
+/// Hex SHA-256 over each file's name and bytes (first 16 hex digits): the
+/// key for cached models and what the pages show as the data fingerprint.
+pub fn fingerprint(files: &[(String, Vec<u8>)]) -> String {
+    let mut h = Sha256::new();
+    for (name, bytes) in files {
+        h.update(name.as_bytes());
+        h.update((bytes.len() as u64).to_le_bytes());
+        h.update(bytes);
+    }
+    let digest = h.finalize();
+    digest.iter().take(8).map(|b| format!("{b:02x}")).collect()
+}
+
+/// Parse the bytes of one file. `name` is what messages call it.
+pub fn read_table(name: &str, path: &Path, bytes: &[u8]) -> Result<RawTable, Vec<Issue>> {
+    let format = FileFormat::from_path(path).map_err(|e| vec![Issue::named(name, IssueKind::Unreadable, e.to_string())])?;
+    // polars is well behaved on our inputs, but a reader must never take the
+    // server down: a panic inside it becomes a file error.
+    let result = std::panic::catch_unwind(|| match format {
+        FileFormat::Csv => read_csv(name, bytes),
+        FileFormat::Parquet => read_parquet(name, bytes),
+    });
+    match result {
+        Ok(r) => r,
+        Err(_) => Err(vec![Issue::named(
+            name,
+            IssueKind::Unreadable,
+            "the file could not be parsed (reader failed)".to_string(),
+        )]),
+    }
+}
+
+fn read_csv(name: &str, bytes: &[u8]) -> Result<RawTable, Vec<Issue>> {
+    let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
+    if let Err(e) = std::str::from_utf8(bytes) {
+        let at = e.valid_up_to();
+        let line = bytes[..at].iter().filter(|&&b| b == b'\n').count();
+        let msg = if line == 0 {
+            "the header is not valid UTF-8 text".to_string()
+        } else {
+            format!("row {}: not valid UTF-8 text (byte {}); expected a UTF-8 CSV file", group(line), at)
+        };
+        return Err(vec![Issue::named(name, IssueKind::Unreadable, msg)]);
+    }
+    let text = std::str::from_utf8(bytes).unwrap_or_default();
+    let header_line = text.lines().next().unwrap_or("");
+    if header_line.trim().is_empty() {
+        return Err(vec![Issue::named(name, IssueKind::Empty, "the file is empty; expected a header row naming the columns".into())]);
+    }
+    let header: Vec<String> = split_header(header_line);
+    check_header(name, &header)?;
+    let opts = CsvReadOptions::default()
+        .with_has_header(true)
+        .with_infer_schema_length(Some(0))
+        .with_raise_if_empty(false);
+    let df = opts
+        .into_reader_with_file_handle(Cursor::new(bytes.to_vec()))
+        .finish()
+        .map_err(|e| vec![Issue::named(name, IssueKind::Unreadable, format!("not a readable CSV file: {}", first_line(&e.to_string())))])?;
+    to_table(name, df)
+}
+
+fn read_parquet(name: &str, bytes: &[u8]) -> Result<RawTable, Vec<Issue>> {
+    let df = ParquetReader::new(Cursor::new(bytes.to_vec()))
+        .finish()
+        .map_err(|e| vec![Issue::named(name, IssueKind::Unreadable, format!("not a readable Parquet file: {}", first_line(&e.to_string())))])?;
+    let header: Vec<String> = df.get_column_names().iter().map(|s| s.to_string()).collect();
+    check_header(name, &header)?;
+    to_table(name, df)
+}
+
+fn first_line(s: &str) -> &str {
+    s.lines().next().unwrap_or(s)
+}
+
+/// Split a CSV header line on commas, honouring double quotes.
+fn split_header(line: &str) -> Vec<String> {
+    let mut out = Vec::new();
+    let mut cur = String::new();
+    let mut quoted = false;
+    for ch in line.trim_end_matches('\r').chars() {
+        match ch {
+            '"' => quoted = !quoted,
+            ',' if !quoted => out.push(std::mem::take(&mut cur)),
+            c => cur.push(c),
+        }
+    }
+    out.push(cur);
+    out.into_iter().map(|s| s.trim().to_string()).collect()
+}
+
+fn check_header(name: &str, header: &[String]) -> Result<(), Vec<Issue>> {
+    let mut issues = Vec::new();
+    let mut seen = std::collections::HashSet::new();
+    for h in header {
+        if !seen.insert(h.as_str()) {
+            issues.push(Issue::column(name, h, IssueKind::DuplicateColumn, format!("column {h} appears more than once; expected each column once")));
+        }
+    }
+    for spec in COLUMNS.iter().filter(|c| c.required) {
+        if !header.iter().any(|h| h == spec.name) {
+            issues.push(Issue::column(name, spec.name, IssueKind::MissingColumn, format!("column {} is missing; expected it in the header", spec.name)));
+        }
+    }
+    if issues.is_empty() {
+        Ok(())
+    } else {
+        Err(issues)
+    }
+}
+
+fn to_table(name: &str, df: DataFrame) -> Result<RawTable, Vec<Issue>> {
+    let height = df.height();
+    let mut columns = Vec::with_capacity(COLUMNS.len());
+    for spec in COLUMNS {
+        let Ok(col) = df.column(spec.name) else {
+            columns.push(None);
+            continue;
+        };
+        let as_text = col
+            .cast(&DataType::String)
+            .and_then(|c| c.str().map(|s| s.rechunk().into_owned()))
+            .map_err(|e| {
+                vec![Issue::column(name, spec.name, IssueKind::BadValue, format!("column {} cannot be read as text: {}", spec.name, first_line(&e.to_string())))]
+            })?;
+        columns.push(Some(as_text));
+    }
+    Ok(RawTable { file: name.to_string(), height, columns })
+}
+
+/// 1204 → "1,204".
+pub fn group(n: usize) -> String {
+    let s = n.to_string();
+    let mut out = String::new();
+    for (i, ch) in s.chars().enumerate() {
+        if i > 0 && (s.len() - i) % 3 == 0 {
+            out.push(',');
+        }
+        out.push(ch);
+    }
+    out
+}

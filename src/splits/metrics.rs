@@ -1,0 +1,219 @@
+//! The passer metrics: what each one counts, over which snaps, and how a
+//! single snap contributes to it. The split engine sums these contributions.
+
+use crate::playfile::Kind;
+use crate::plays::Plays;
+use serde::Serialize;
+
+/// Which snaps a metric is taken over.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+pub enum Unit {
+    Dropback,
+    Attempt,
+    PassOrSack,
+    /// Attempts with a completion probability (air yards present).
+    AttemptWithCp,
+    /// 3rd and 4th down attempts with air yards.
+    LateDownAttempt,
+    /// Dropbacks while trailing in the final 2:00 of a half, with a next
+    /// snap by the same offense in the same period.
+    HurryUp,
+}
+
+impl Unit {
+    pub fn label(self) -> &'static str {
+        match self {
+            Unit::Dropback => "dropbacks",
+            Unit::Attempt => "attempts",
+            Unit::PassOrSack => "attempts + sacks",
+            Unit::AttemptWithCp => "attempts with air yards",
+            Unit::LateDownAttempt => "3rd/4th-down attempts",
+            Unit::HurryUp => "hurry-up snaps",
+        }
+    }
+}
+
+/// How a metric is summarised and shrunk.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+pub enum Stat {
+    /// A total; no interval.
+    Count,
+    /// A share of 0/1 outcomes: beta-binomial shrinkage.
+    Rate,
+    /// A per-snap mean: normal-normal shrinkage.
+    Mean,
+}
+
+#[derive(Debug, Clone, Copy, Serialize)]
+pub struct MetricDef {
+    pub key: &'static str,
+    pub label: &'static str,
+    /// Column heading.
+    pub short: &'static str,
+    pub unit: Unit,
+    pub stat: Stat,
+    pub higher_is_better: bool,
+    /// Display multiplier (100 for percentages).
+    pub scale: f64,
+    pub decimals: usize,
+    /// Shown on the projector (fewer columns).
+    pub projector: bool,
+    /// A decision-quality metric (the profile's decision panel).
+    pub decision: bool,
+}
+
+const fn m(
+    key: &'static str,
+    label: &'static str,
+    short: &'static str,
+    unit: Unit,
+    stat: Stat,
+    higher_is_better: bool,
+    scale: f64,
+    decimals: usize,
+    projector: bool,
+    decision: bool,
+) -> MetricDef {
+    MetricDef { key, label, short, unit, stat, higher_is_better, scale, decimals, projector, decision }
+}
+
+use Stat::*;
+use Unit::*;
+
+/// Every metric, in table order.
+pub const METRICS: &[MetricDef] = &[
+    m("dropbacks", "Dropbacks", "DB", Dropback, Count, true, 1.0, 0, true, false),
+    m("attempts", "Attempts", "Att", Attempt, Count, true, 1.0, 0, false, false),
+    m("completions", "Completions", "Cmp", Attempt, Count, true, 1.0, 0, false, false),
+    m("comp_pct", "Completion %", "Cmp%", Attempt, Rate, true, 100.0, 1, false, false),
+    m("yards", "Passing yards", "Yds", Attempt, Count, true, 1.0, 0, false, false),
+    m("ypa", "Yards per attempt", "Y/A", Attempt, Mean, true, 1.0, 2, false, false),
+    m("td", "Touchdown passes", "TD", Attempt, Count, true, 1.0, 0, false, false),
+    m("int", "Interceptions", "Int", Attempt, Count, false, 1.0, 0, false, true),
+    m("int_rate", "Interception %", "Int%", Attempt, Rate, false, 100.0, 1, false, true),
+    m("sacks", "Sacks", "Sk", Dropback, Count, false, 1.0, 0, false, true),
+    m("sack_rate", "Sack %", "Sk%", Dropback, Rate, false, 100.0, 1, false, true),
+    m("scrambles", "Scrambles", "Scr", Dropback, Count, true, 1.0, 0, false, true),
+    m("scramble_rate", "Scramble %", "Scr%", Dropback, Rate, true, 100.0, 1, false, true),
+    m("rating", "Passer rating", "Rate", Attempt, Mean, true, 1.0, 1, true, false),
+    m("anya", "Adj. net yards per attempt", "ANY/A", PassOrSack, Mean, true, 1.0, 2, false, false),
+    m("epa", "EPA per dropback", "EPA/db", Dropback, Mean, true, 1.0, 3, true, false),
+    m("success", "Success rate (EPA > 0)", "Succ%", Dropback, Rate, true, 100.0, 1, true, false),
+    m("wpa_total", "WPA total", "WPA", Dropback, Count, true, 1.0, 3, true, false),
+    m("wpa", "WPA per dropback", "WPA/db", Dropback, Mean, true, 1.0, 4, false, false),
+    m("cpoe", "Completion % over expected", "CPOE", AttemptWithCp, Mean, true, 1.0, 1, true, false),
+    m("turnover", "Turnover %", "TO%", Dropback, Rate, false, 100.0, 1, false, true),
+    m("sticks", "Past the sticks, 3rd/4th down %", "Stx%", LateDownAttempt, Rate, true, 100.0, 1, false, true),
+    m("pace", "Hurry-up pace (s between snaps)", "Pace", HurryUp, Mean, false, 1.0, 1, false, true),
+];
+
+pub fn metric_index(key: &str) -> Option<usize> {
+    METRICS.iter().position(|m| m.key == key)
+}
+
+/// Per-snap values the models add, borrowed from the scored league.
+#[derive(Clone, Copy)]
+pub struct SnapValues<'a> {
+    pub epa: &'a [f64],
+    pub wp: &'a [f64],
+    pub wpa: &'a [f64],
+    pub cp: &'a [f64],
+}
+
+/// Touchdown pass: a completion on which the offense scored six.
+pub fn is_td_pass(p: &Plays, i: usize) -> bool {
+    p.kind[i] == Kind::Pass && p.complete[i] && p.points[i] == 6
+}
+
+pub fn pass_yards(p: &Plays, i: usize) -> f64 {
+    if p.kind[i] == Kind::Pass && p.complete[i] {
+        p.gain[i] as f64
+    } else {
+        0.0
+    }
+}
+
+/// Seconds from dropback `i` to the same offense's next snap in the same
+/// period, when trailing in the final 2:00 of a half (or overtime).
+pub fn hurry_up_gap(p: &Plays, i: usize) -> Option<f64> {
+    if p.margin[i] >= 0 || p.secs_half[i] > 120 || !matches!(p.period[i], 2 | 4 | 5..) {
+        return None;
+    }
+    let j = i + 1;
+    if j >= p.len() || p.game[j] != p.game[i] || p.period[j] != p.period[i] || p.offense[j] != p.offense[i] {
+        return None;
+    }
+    Some((p.clock[i] - p.clock[j]).max(0) as f64)
+}
+
+/// Does snap `i` (a dropback) count toward a metric taken over `unit`?
+pub fn in_unit(p: &Plays, v: &SnapValues, unit: Unit, i: usize) -> bool {
+    let k = p.kind[i];
+    match unit {
+        Dropback => k.is_dropback(),
+        Attempt => k == Kind::Pass,
+        PassOrSack => matches!(k, Kind::Pass | Kind::Sack),
+        AttemptWithCp => k == Kind::Pass && v.cp.get(i).is_some_and(|c| c.is_finite()),
+        LateDownAttempt => k == Kind::Pass && p.down[i] >= 3 && p.air_yards[i].is_some(),
+        HurryUp => k.is_dropback() && hurry_up_gap(p, i).is_some(),
+    }
+}
+
+/// The contribution of dropback `i` to metric `m` (already known to be in
+/// the metric's unit). Rates give 0/1; counts give what they add.
+pub fn value(p: &Plays, v: &SnapValues, m: &MetricDef, i: usize) -> f64 {
+    let b = |x: bool| if x { 1.0 } else { 0.0 };
+    let k = p.kind[i];
+    match m.key {
+        "dropbacks" | "attempts" => 1.0,
+        "completions" | "comp_pct" => b(p.complete[i]),
+        "yards" | "ypa" => pass_yards(p, i),
+        "td" => b(is_td_pass(p, i)),
+        "int" | "int_rate" => b(p.intercepted[i]),
+        "sacks" | "sack_rate" => b(k == Kind::Sack),
+        "scrambles" | "scramble_rate" => b(k == Kind::Scramble),
+        // The rating is a per-attempt mean once its caps are left off:
+        // 100/6 · [5(c − .3) + .25(y − 3) + 20·td + 2.375 − 25·int].
+        "rating" => {
+            100.0 / 6.0
+                * (5.0 * (b(p.complete[i]) - 0.3) + 0.25 * (pass_yards(p, i) - 3.0) + 20.0 * b(is_td_pass(p, i)) + 2.375
+                    - 25.0 * b(p.intercepted[i]))
+        }
+        "anya" => {
+            if k == Kind::Sack {
+                p.gain[i] as f64
+            } else {
+                pass_yards(p, i) + 20.0 * b(is_td_pass(p, i)) - 45.0 * b(p.intercepted[i])
+            }
+        }
+        "epa" => v.epa.get(i).copied().unwrap_or(0.0),
+        "success" => b(v.epa.get(i).is_some_and(|e| *e > 0.0)),
+        "wpa_total" | "wpa" => v.wpa.get(i).copied().unwrap_or(0.0),
+        "cpoe" => 100.0 * (b(p.complete[i]) - v.cp.get(i).copied().unwrap_or(0.0)),
+        "turnover" => b(p.intercepted[i] || p.fumble_lost[i]),
+        "sticks" => b(p.air_yards[i].is_some_and(|a| a >= p.to_go[i])),
+        "pace" => hurry_up_gap(p, i).unwrap_or(0.0),
+        _ => 0.0,
+    }
+}
+
+/// The state cell of a snap for direct standardization:
+/// down (1-4) × distance bucket (1-2, 3-6, 7-10, 11+) × field zone
+/// (own 1-20, own 21-50, opp 49-21, opp 20-1). 64 cells.
+pub const CELLS: usize = 64;
+pub fn cell(p: &Plays, i: usize) -> usize {
+    let down = (p.down[i].clamp(1, 4) - 1) as usize;
+    let dist = match p.to_go[i] {
+        ..=2 => 0,
+        3..=6 => 1,
+        7..=10 => 2,
+        _ => 3,
+    };
+    let zone = match p.ball_on[i] {
+        ..=20 => 0,
+        21..=50 => 1,
+        51..=79 => 2,
+        _ => 3,
+    };
+    down * 16 + dist * 4 + zone
+}
