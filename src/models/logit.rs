@@ -64,13 +64,16 @@ pub struct FitOptions {
     /// Above this many rows, first fit on an evenly spaced subsample of about
     /// this size and start the full Newton iterations from there.
     pub warm_rows: usize,
+    /// Above twice this many rows, sum the Hessian over an evenly spaced
+    /// subsample of about this size (gradient and likelihood stay exact).
+    pub hess_rows: usize,
     /// Worker threads for the row loop (0 = available cores).
     pub threads: usize,
 }
 
 impl Default for FitOptions {
     fn default() -> Self {
-        FitOptions { l2: 1.0, max_iter: 50, tol: 1e-9, warm_rows: 150_000, threads: 0 }
+        FitOptions { l2: 1.0, max_iter: 50, tol: 1e-9, warm_rows: 100_000, hess_rows: 200_000, threads: 0 }
     }
 }
 
@@ -115,13 +118,16 @@ pub struct FitStats {
     pub seconds: f64,
 }
 
-/// Fitted coefficients: one row per non-reference class (binary: one row,
-/// the event), `features` columns.
+/// Fitted coefficients: one row per free class (every class seen in the
+/// labels except the reference; binary: one row, the event).
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct Fit {
     pub classes: usize,
     pub reference: usize,
-    /// `(classes - 1) x features`, row-major.
+    /// The class of each coefficient row. Classes never seen in the labels
+    /// have no row and probability 0.
+    pub free: Vec<usize>,
+    /// `free.len() x features`.
     pub coef: Vec<Vec<f64>>,
     pub stats: FitStats,
 }
@@ -129,11 +135,14 @@ pub struct Fit {
 impl Fit {
     /// Class probabilities for one feature row, written into `out` (length `classes`).
     pub fn probs(&self, x: &[f64], out: &mut [f64]) {
-        softmax_row(&self.coef, self.reference, x, out);
+        softmax_row(&self.coef, &self.free, self.reference, x, out);
     }
     /// Event probability of a binary fit.
     pub fn prob(&self, x: &[f64]) -> f64 {
-        sigmoid(dot(&self.coef[0], x))
+        match self.coef.first() {
+            Some(c) => sigmoid(dot(c, x)),
+            None => 0.0,
+        }
     }
 }
 
@@ -151,36 +160,40 @@ fn dot(a: &[f64], b: &[f64]) -> f64 {
     a.iter().zip(b).map(|(x, y)| x * y).sum()
 }
 
-/// Softmax with the reference class pinned at 0; `coef` has one row per free class.
-fn softmax_row(coef: &[Vec<f64>], reference: usize, x: &[f64], out: &mut [f64]) {
-    let k = out.len();
-    let mut free = 0;
-    let mut max = 0.0f64;
-    for c in 0..k {
-        if c == reference {
-            out[c] = 0.0;
-        } else {
-            out[c] = dot(&coef[free], x);
-            free += 1;
-        }
-        max = max.max(out[c]);
-    }
-    let mut sum = 0.0;
+/// Softmax over the reference (linear predictor 0) and the free classes;
+/// every other class gets 0.
+fn softmax_row(coef: &[Vec<f64>], free: &[usize], reference: usize, x: &[f64], out: &mut [f64]) {
     for v in out.iter_mut() {
-        *v = (*v - max).exp();
-        sum += *v;
+        *v = 0.0;
+    }
+    let mut max = 0.0f64;
+    let mut eta = [0.0f64; 16];
+    for (j, c) in coef.iter().enumerate() {
+        eta[j] = dot(c, x);
+        max = max.max(eta[j]);
+    }
+    let mut sum = (-max).exp();
+    out[reference] = sum;
+    for (j, &c) in free.iter().enumerate() {
+        let e = (eta[j] - max).exp();
+        out[c] = e;
+        sum += e;
     }
     for v in out.iter_mut() {
         *v /= sum;
     }
 }
 
+/// Most classes a multinomial fit takes.
+pub const MAX_CLASSES: usize = 16;
+
 /// Sums over rows: log-likelihood, gradient, and (optionally) Hessian pieces.
 struct Acc {
+    weight: f64,
     ll: f64,
     grad: Vec<f64>, // m * p, class-major
-    /// pair-major: for each free-class pair (j <= l), the upper triangle (a <= b)
-    /// of sum w_i * q_ij (delta_jl - q_il) x_ia x_ib.
+    /// For each feature pair (a <= b, row-major upper triangle), the
+    /// free-class pairs (j <= l) of sum w q_j (delta_jl - q_l) x_a x_b.
     hess: Vec<f64>,
 }
 
@@ -188,45 +201,48 @@ fn tri_len(p: usize) -> usize {
     p * (p + 1) / 2
 }
 
-/// One pass over rows `start..end` (step `stride`) at coefficients `coef`.
-#[allow(clippy::too_many_arguments)]
-fn accumulate(
-    design: &dyn Design,
-    labels: Labels,
-    weights: Option<&[f64]>,
-    coef: &[Vec<f64>],
-    rows: &[usize],
-    with_hess: bool,
-) -> Acc {
-    let p = design.cols();
-    let k = labels.n_classes();
-    let reference = labels.reference();
-    let m = k - 1;
+/// What one pass needs to know about the problem.
+#[derive(Clone, Copy)]
+struct Problem<'a> {
+    design: &'a dyn Design,
+    labels: Labels<'a>,
+    weights: Option<&'a [f64]>,
+    free: &'a [usize],
+    reference: usize,
+    classes: usize,
+}
+
+/// One pass over `rows` at coefficients `coef`.
+fn accumulate(pr: Problem, coef: &[Vec<f64>], rows: &[usize], with_hess: bool) -> Acc {
+    let p = pr.design.cols();
+    let k = pr.classes;
+    let m = pr.free.len();
     let tl = tri_len(p);
-    let npairs = m * (m + 1) / 2;
+    let np = m * (m + 1) / 2;
+    let starts: Vec<usize> = (0..p).map(|a| triangle_index(p, a, a)).collect();
     let mut acc = Acc {
+        weight: 0.0,
         ll: 0.0,
         grad: vec![0.0; m * p],
-        hess: if with_hess { vec![0.0; npairs * tl] } else { Vec::new() },
+        hess: if with_hess { vec![0.0; np * tl] } else { Vec::new() },
     };
     let mut x = vec![0.0; p];
     let mut q = vec![0.0; k];
     let mut t = vec![0.0; k];
-    let mut u = vec![0.0; tl];
-    let mut wq = vec![0.0; npairs];
-    // free class index -> class index
-    let free: Vec<usize> = (0..k).filter(|&c| c != reference).collect();
+    let mut wq = vec![0.0; np];
+    let mut nz: Vec<usize> = Vec::with_capacity(p);
     for &i in rows {
-        let w = weights.map_or(1.0, |w| w[i]);
+        let w = pr.weights.map_or(1.0, |w| w[i]);
         if w == 0.0 {
             continue;
         }
-        design.fill(i, &mut x);
-        softmax_row(coef, reference, &x, &mut q);
+        acc.weight += w;
+        pr.design.fill(i, &mut x);
+        softmax_row(coef, pr.free, pr.reference, &x, &mut q);
         for v in t.iter_mut() {
             *v = 0.0;
         }
-        match labels {
+        match pr.labels {
             Labels::Binary(y) => {
                 t[1] = y[i];
                 t[0] = 1.0 - y[i];
@@ -238,7 +254,7 @@ fn accumulate(
                 acc.ll += w * t[c] * q[c].max(1e-300).ln();
             }
         }
-        for (j, &c) in free.iter().enumerate() {
+        for (j, &c) in pr.free.iter().enumerate() {
             let r = w * (t[c] - q[c]);
             let g = &mut acc.grad[j * p..(j + 1) * p];
             for a in 0..p {
@@ -246,26 +262,26 @@ fn accumulate(
             }
         }
         if with_hess {
-            let mut idx = 0;
-            for a in 0..p {
-                let xa = x[a];
-                for b in a..p {
-                    u[idx] = xa * x[b];
-                    idx += 1;
-                }
-            }
             let mut pi = 0;
-            for (j, &cj) in free.iter().enumerate() {
-                for &cl in &free[j..] {
+            for (j, &cj) in pr.free.iter().enumerate() {
+                for &cl in &pr.free[j..] {
                     let d = if cj == cl { 1.0 } else { 0.0 };
                     wq[pi] = w * q[cj] * (d - q[cl]);
                     pi += 1;
                 }
             }
-            for (pi, &s) in wq.iter().enumerate() {
-                let h = &mut acc.hess[pi * tl..(pi + 1) * tl];
-                for (hv, uv) in h.iter_mut().zip(&u) {
-                    *hv += s * uv;
+            nz.clear();
+            nz.extend((0..p).filter(|&a| x[a] != 0.0));
+            for (ia, &a) in nz.iter().enumerate() {
+                let xa = x[a];
+                let base = starts[a];
+                for &b in &nz[ia..] {
+                    let v = xa * x[b];
+                    let at = (base + b - a) * np;
+                    let dst = &mut acc.hess[at..at + np];
+                    for (h, s) in dst.iter_mut().zip(&wq) {
+                        *h += v * s;
+                    }
                 }
             }
         }
@@ -273,31 +289,27 @@ fn accumulate(
     acc
 }
 
+/// Position of (a, b), a <= b, in the row-major upper triangle of a p x p matrix.
+fn triangle_index(p: usize, a: usize, b: usize) -> usize {
+    a * p - a * (a + 1) / 2 + a + (b - a)
+}
+
 /// `accumulate` split across threads, sums combined.
-fn accumulate_par(
-    design: &dyn Design,
-    labels: Labels,
-    weights: Option<&[f64]>,
-    coef: &[Vec<f64>],
-    rows: &[usize],
-    with_hess: bool,
-    threads: usize,
-) -> Acc {
-    let threads = threads.max(1).min(rows.len().max(1) / 1000 + 1);
+fn accumulate_par(pr: Problem, coef: &[Vec<f64>], rows: &[usize], with_hess: bool, threads: usize) -> Acc {
+    let threads = threads.max(1).min(rows.len() / 2000 + 1);
     if threads == 1 {
-        return accumulate(design, labels, weights, coef, rows, with_hess);
+        return accumulate(pr, coef, rows, with_hess);
     }
     let chunk = rows.len().div_ceil(threads);
     let parts: Vec<Acc> = std::thread::scope(|s| {
-        let handles: Vec<_> = rows
-            .chunks(chunk)
-            .map(|part| s.spawn(move || accumulate(design, labels, weights, coef, part, with_hess)))
-            .collect();
+        let handles: Vec<_> =
+            rows.chunks(chunk).map(|part| s.spawn(move || accumulate(pr, coef, part, with_hess))).collect();
         handles.into_iter().map(|h| h.join().expect("logit worker panicked")).collect()
     });
     let mut it = parts.into_iter();
     let mut total = it.next().expect("at least one part");
     for a in it {
+        total.weight += a.weight;
         total.ll += a.ll;
         for (x, y) in total.grad.iter_mut().zip(&a.grad) {
             *x += y;
@@ -318,13 +330,16 @@ pub enum LogitError {
     Length(usize, usize),
     #[error("label {value} on row {row} is outside {what}")]
     BadLabel { row: usize, value: f64, what: &'static str },
+    #[error("no row has the reference class {0}")]
+    NoReference(usize),
     #[error("the Hessian is not positive definite even after a ridge of {0:e}")]
     Singular(f64),
     #[error("coefficients went non-finite at iteration {0}")]
     NonFinite(usize),
 }
 
-fn check_labels(design: &dyn Design, labels: Labels, weights: Option<&[f64]>) -> Result<(), LogitError> {
+/// Check labels and weights; return the total weight of each class.
+fn check_labels(design: &dyn Design, labels: Labels, weights: Option<&[f64]>) -> Result<Vec<f64>, LogitError> {
     let n = design.rows();
     if n == 0 {
         return Err(LogitError::Empty);
@@ -344,63 +359,94 @@ fn check_labels(design: &dyn Design, labels: Labels, weights: Option<&[f64]>) ->
             return Err(LogitError::BadLabel { row, value: v, what: "weights >= 0" });
         }
     }
+    let wt = |i: usize| weights.map_or(1.0, |w| w[i]);
     match labels {
         Labels::Binary(y) => {
             if let Some((row, &v)) = y.iter().enumerate().find(|(_, v)| !(**v >= 0.0 && **v <= 1.0)) {
                 return Err(LogitError::BadLabel { row, value: v, what: "[0, 1]" });
             }
+            let mut tot = vec![0.0; 2];
+            for (i, &v) in y.iter().enumerate() {
+                tot[1] += wt(i) * v;
+                tot[0] += wt(i) * (1.0 - v);
+            }
+            Ok(tot)
         }
         Labels::Classes { y, classes, reference } => {
-            if reference >= classes || classes < 2 {
+            if reference >= classes || !(2..=MAX_CLASSES).contains(&classes) {
                 return Err(LogitError::BadLabel { row: 0, value: reference as f64, what: "the class list" });
             }
-            if let Some((row, &v)) = y.iter().enumerate().find(|(_, v)| **v as usize >= classes) {
-                return Err(LogitError::BadLabel { row, value: v as f64, what: "the class list" });
+            let mut tot = vec![0.0; classes];
+            for (row, &v) in y.iter().enumerate() {
+                if v as usize >= classes {
+                    return Err(LogitError::BadLabel { row, value: v as f64, what: "the class list" });
+                }
+                tot[v as usize] += wt(row);
             }
+            Ok(tot)
         }
     }
-    Ok(())
 }
 
 /// Fit by Newton's method with step halving. Binary labels give a fit with
 /// `classes == 2`, reference 0 and one coefficient row (the event).
+///
+/// Large fits: Newton on an evenly spaced subsample of `warm_rows` first;
+/// then on all rows, with the exact gradient and log-likelihood every
+/// iteration and the Hessian summed over an evenly spaced subsample of
+/// `hess_rows` (scaled to the full weight), a subsampled Newton method whose
+/// fixed point is the exact maximum. `grad_norm` is exact.
 pub fn fit(design: &dyn Design, labels: Labels, weights: Option<&[f64]>, opts: &FitOptions) -> Result<Fit, LogitError> {
     let started = std::time::Instant::now();
-    check_labels(design, labels, weights)?;
+    let totals = check_labels(design, labels, weights)?;
     let n = design.rows();
     let p = design.cols();
     let k = labels.n_classes();
-    let m = k - 1;
+    let reference = labels.reference();
+    if totals[reference] <= 0.0 {
+        return Err(LogitError::NoReference(reference));
+    }
+    let free: Vec<usize> = (0..k).filter(|&c| c != reference && totals[c] > 0.0).collect();
+    let pr = Problem { design, labels, weights, free: &free, reference, classes: k };
     let threads = if opts.threads == 0 {
         std::thread::available_parallelism().map_or(1, |t| t.get())
     } else {
         opts.threads
     };
-    let mut coef = vec![vec![0.0; p]; m];
+    let mut coef = vec![vec![0.0; p]; free.len()];
     let mut warm_iterations = 0;
-    if opts.warm_rows > 0 && n > 2 * opts.warm_rows {
-        let stride = n / opts.warm_rows;
-        let sub: Vec<usize> = (0..n).step_by(stride).collect();
+    if !free.is_empty() && opts.warm_rows > 0 && n > 2 * opts.warm_rows {
+        let sub: Vec<usize> = (0..n).step_by(n / opts.warm_rows).collect();
         let l2 = opts.l2 * sub.len() as f64 / n as f64;
-        let r = newton(design, labels, weights, &sub, coef, l2, opts.max_iter, opts.tol * 1e3, threads)?;
-        coef = r.0;
-        warm_iterations = r.1;
+        let r = newton(pr, &sub, &sub, coef, l2, opts.max_iter, opts.tol * 1e3, threads)?;
+        coef = r.coef;
+        warm_iterations = r.iterations;
     }
     let all: Vec<usize> = (0..n).collect();
-    let (coef, iterations, converged, grad_norm, log_lik) =
-        newton(design, labels, weights, &all, coef, opts.l2, opts.max_iter, opts.tol, threads)?;
+    let hess_rows: Vec<usize> = if opts.hess_rows > 0 && n > 2 * opts.hess_rows {
+        (0..n).step_by(n / opts.hess_rows).collect()
+    } else {
+        all.clone()
+    };
+    let r = if free.is_empty() {
+        let acc = accumulate_par(pr, &coef, &all, false, threads);
+        NewtonOut { coef, iterations: 0, converged: true, grad_norm: 0.0, log_lik: acc.ll }
+    } else {
+        newton(pr, &all, &hess_rows, coef, opts.l2, opts.max_iter, opts.tol, threads)?
+    };
     Ok(Fit {
         classes: k,
-        reference: labels.reference(),
-        coef,
+        reference,
+        free: free.clone(),
+        coef: r.coef,
         stats: FitStats {
             rows: n,
             features: p,
-            iterations,
+            iterations: r.iterations,
             warm_iterations,
-            converged,
-            grad_norm,
-            log_lik,
+            converged: r.converged,
+            grad_norm: r.grad_norm,
+            log_lik: r.log_lik,
             seconds: started.elapsed().as_secs_f64(),
         },
     })
@@ -410,25 +456,43 @@ fn penalty(coef: &[Vec<f64>], l2: f64) -> f64 {
     coef.iter().map(|r| r[1..].iter().map(|b| b * b).sum::<f64>()).sum::<f64>() * l2 / 2.0
 }
 
-type NewtonOut = (Vec<Vec<f64>>, usize, bool, f64, f64);
+struct NewtonOut {
+    coef: Vec<Vec<f64>>,
+    iterations: usize,
+    converged: bool,
+    grad_norm: f64,
+    log_lik: f64,
+}
 
+/// Newton iterations with step halving on `rows`; the Hessian is summed over
+/// `hess_rows` (a subset of `rows`, or all of them) and scaled up.
 #[allow(clippy::too_many_arguments)]
 fn newton(
-    design: &dyn Design,
-    labels: Labels,
-    weights: Option<&[f64]>,
+    pr: Problem,
     rows: &[usize],
+    hess_rows: &[usize],
     mut coef: Vec<Vec<f64>>,
     l2: f64,
     max_iter: usize,
     tol: f64,
     threads: usize,
 ) -> Result<NewtonOut, LogitError> {
-    let p = design.cols();
+    let p = pr.design.cols();
     let m = coef.len();
     let dim = m * p;
-    let tl = tri_len(p);
-    let mut acc = accumulate_par(design, labels, weights, &coef, rows, true, threads);
+    let np = m * (m + 1) / 2;
+    let same = rows.len() == hess_rows.len();
+    let pass = |coef: &[Vec<f64>]| -> (Acc, Acc) {
+        let full = accumulate_par(pr, coef, rows, same, threads);
+        if same {
+            let h = Acc { weight: full.weight, ll: 0.0, grad: Vec::new(), hess: full.hess.clone() };
+            (full, h)
+        } else {
+            let h = accumulate_par(pr, coef, hess_rows, true, threads);
+            (full, h)
+        }
+    };
+    let (mut acc, mut hacc) = pass(&coef);
     let mut iterations = 0;
     let mut converged = false;
     let penalized_grad = |acc: &Acc, coef: &[Vec<f64>]| -> DVector<f64> {
@@ -446,23 +510,22 @@ fn newton(
             break;
         }
         // Hessian of the negative penalized log-likelihood.
+        let scale = if hacc.weight > 0.0 { acc.weight / hacc.weight } else { 1.0 };
         let mut h = DMatrix::<f64>::zeros(dim, dim);
-        let mut pi = 0;
-        for j in 0..m {
-            for l in j..m {
-                let block = &acc.hess[pi * tl..(pi + 1) * tl];
-                let mut idx = 0;
-                for a in 0..p {
-                    for b in a..p {
-                        let v = block[idx];
-                        idx += 1;
+        for a in 0..p {
+            for b in a..p {
+                let at = triangle_index(p, a, b) * np;
+                let mut pi = 0;
+                for j in 0..m {
+                    for l in j..m {
+                        let v = hacc.hess[at + pi] * scale;
+                        pi += 1;
                         h[(j * p + a, l * p + b)] = v;
                         h[(j * p + b, l * p + a)] = v;
                         h[(l * p + a, j * p + b)] = v;
                         h[(l * p + b, j * p + a)] = v;
                     }
                 }
-                pi += 1;
             }
         }
         for j in 0..m {
@@ -485,7 +548,7 @@ fn newton(
             if trial.iter().flatten().any(|v| !v.is_finite()) {
                 return Err(LogitError::NonFinite(iterations));
             }
-            let trial_acc = accumulate_par(design, labels, weights, &trial, rows, false, threads);
+            let trial_acc = accumulate_par(pr, &trial, rows, false, threads);
             let trial_obj = trial_acc.ll - penalty(&trial, l2);
             if trial_obj >= obj - 1e-12 * obj.abs() {
                 coef = trial;
@@ -496,15 +559,14 @@ fn newton(
         }
         iterations += 1;
         if !accepted {
-            // No step improves the objective: we are at the optimum to
-            // rounding error.
+            // No step improves the objective: at the optimum to rounding error.
             converged = decrement.abs() < tol.max(1e-6);
             break;
         }
-        acc = accumulate_par(design, labels, weights, &coef, rows, true, threads);
+        (acc, hacc) = pass(&coef);
     }
     let g = penalized_grad(&acc, &coef);
-    Ok((coef, iterations, converged, g.norm(), acc.ll))
+    Ok(NewtonOut { coef, iterations, converged, grad_norm: g.norm(), log_lik: acc.ll })
 }
 
 /// Solve `h x = g` for symmetric positive definite `h` by Cholesky, adding a
@@ -561,7 +623,8 @@ mod tests {
                 }
             })
             .collect();
-        let f = fit(&d, Labels::Binary(&y), None, &FitOptions { l2: 0.0, ..Default::default() }).expect("fit");
+        let opts = FitOptions { l2: 0.0, warm_rows: 20_000, hess_rows: 50_000, ..Default::default() };
+        let f = fit(&d, Labels::Binary(&y), None, &opts).expect("fit");
         assert!(f.stats.converged, "{:?}", f.stats);
         for (b, t) in f.coef[0].iter().zip(truth) {
             assert!((b - t).abs() < 0.03, "{b} vs {t}");
@@ -579,7 +642,7 @@ mod tests {
         let y: Vec<u8> = (0..d.n)
             .map(|i| {
                 d.fill(i, &mut x);
-                softmax_row(&truth, 0, &x, &mut q);
+                softmax_row(&truth, &[1, 2], 0, &x, &mut q);
                 let u: f64 = rng.random();
                 if u < q[0] {
                     0
@@ -616,7 +679,8 @@ mod tests {
         let opts = FitOptions { l2: 50.0, ..Default::default() };
         let f = fit(&d, Labels::Binary(&y), Some(&w), &opts).expect("fit");
         let rows: Vec<usize> = (0..d.n).collect();
-        let acc = accumulate(&d, Labels::Binary(&y), Some(&w), &f.coef, &rows, false);
+        let pr = Problem { design: &d, labels: Labels::Binary(&y), weights: Some(&w), free: &[1], reference: 0, classes: 2 };
+        let acc = accumulate(pr, &f.coef, &rows, false);
         assert!(acc.grad[0].abs() < 1e-6);
         for a in 1..5 {
             assert!((acc.grad[a] - 50.0 * f.coef[0][a]).abs() < 1e-6, "{a}");
@@ -745,7 +809,7 @@ mod tests {
         let y: Vec<u8> = (0..d.n)
             .map(|i| {
                 d.fill(i, &mut x);
-                softmax_row(&truth, 0, &x, &mut q);
+                softmax_row(&truth, &[1, 2, 3], 0, &x, &mut q);
                 let mut u: f64 = rng.random();
                 let mut c = 0;
                 while c < 3 && u >= q[c] {
@@ -776,5 +840,45 @@ mod tests {
             }
         }
         eprintln!("multinomial max |diff| = {worst:e}");
+    }
+
+    /// A class no row has gets no coefficients and probability 0, and the
+    /// others fit as if it did not exist.
+    #[test]
+    fn unseen_class_gets_probability_zero() {
+        let d = synth(20_000, 3, 41);
+        let mut rng = ChaCha8Rng::seed_from_u64(42);
+        let y: Vec<u8> = (0..d.n).map(|_| if rng.random::<f64>() < 0.3 { 2 } else { 0 }).collect();
+        let f = fit(&d, Labels::Classes { y: &y, classes: 4, reference: 0 }, None, &FitOptions::default()).expect("fit");
+        assert_eq!(f.free, vec![2]);
+        assert!(f.stats.converged && f.stats.iterations < 10, "{:?}", f.stats);
+        let mut q = [0.0; 4];
+        f.probs(&[1.0, 0.0, 0.0], &mut q);
+        assert_eq!(q[1], 0.0);
+        assert_eq!(q[3], 0.0);
+        assert!((q[2] - 0.3).abs() < 0.02, "{q:?}");
+    }
+
+    /// The subsampled Hessian changes the path, not the answer.
+    #[test]
+    fn subsampled_hessian_reaches_the_same_optimum() {
+        let d = synth(60_000, 5, 51);
+        let mut rng = ChaCha8Rng::seed_from_u64(52);
+        let mut x = vec![0.0; 5];
+        let truth = [0.1, -0.5, 0.7, 0.0, 0.3];
+        let y: Vec<f64> = (0..d.n)
+            .map(|i| {
+                d.fill(i, &mut x);
+                (rng.random::<f64>() < sigmoid(dot(&truth, &x))) as i32 as f64
+            })
+            .collect();
+        let exact = fit(&d, Labels::Binary(&y), None, &FitOptions { warm_rows: 0, hess_rows: 0, ..Default::default() })
+            .expect("fit");
+        let sub = fit(&d, Labels::Binary(&y), None, &FitOptions { warm_rows: 5_000, hess_rows: 5_000, ..Default::default() })
+            .expect("fit");
+        assert!(sub.stats.converged && sub.stats.warm_iterations > 0);
+        for (a, b) in exact.coef[0].iter().zip(&sub.coef[0]) {
+            assert!((a - b).abs() < 1e-6, "{a} vs {b}");
+        }
     }
 }
