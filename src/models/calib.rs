@@ -3,7 +3,7 @@
 //! margin-and-time baseline and a constant ½, reliability tables, EP by bin.
 
 use super::wp::P_EPS;
-use super::{fit_rows, Models};
+use super::{fit_rows_from, Models};
 use crate::plays::Plays;
 use serde::{Deserialize, Serialize};
 
@@ -184,8 +184,8 @@ struct HeldOut {
     cp: Option<ProbScore>,
 }
 
-fn held_out(plays: &Plays, train: &[u32], test: &[u32]) -> anyhow::Result<HeldOut> {
-    let models: Models = fit_rows(plays, train)?;
+fn held_out(plays: &Plays, train: &[u32], test: &[u32], init: Option<&Models>) -> anyhow::Result<HeldOut> {
+    let models: Models = fit_rows_from(plays, train, init)?;
     let ep = models.ep.score_all(plays);
     let (mut wp_pred, mut base_pred, mut actual) = (Vec::new(), Vec::new(), Vec::new());
     let (mut ep_pred, mut ep_actual) = (Vec::new(), Vec::new());
@@ -225,8 +225,14 @@ fn held_out(plays: &Plays, train: &[u32], test: &[u32]) -> anyhow::Result<HeldOu
 
 /// Hold out the most recent season, fit on the rest, score the held-out snaps.
 pub fn calibrate_with(plays: &Plays, opts: &CalibOptions) -> anyhow::Result<Calibration> {
+    calibrate_from(plays, opts, None)
+}
+
+/// `calibrate_with`, the refits started from `init` (models fit on all
+/// snaps): the same held-out fits in fewer Newton iterations.
+pub fn calibrate_from(plays: &Plays, opts: &CalibOptions, init: Option<&Models>) -> anyhow::Result<Calibration> {
     let (train, test, holdout, holdout_season, test_games) = split(plays)?;
-    let h = held_out(plays, &train, &test)?;
+    let h = held_out(plays, &train, &test, init)?;
     let half = vec![0.5; h.actual.len()];
     let mut by_season = Vec::new();
     if opts.leave_one_season_out {
@@ -234,7 +240,7 @@ pub fn calibrate_with(plays: &Plays, opts: &CalibOptions) -> anyhow::Result<Cali
         if seasons.len() >= 2 {
             for s in seasons {
                 let (tr, te): (Vec<u32>, Vec<u32>) = (0..plays.len() as u32).partition(|&i| plays.season[i as usize] != s);
-                let r = held_out(plays, &tr, &te)?;
+                let r = held_out(plays, &tr, &te, init)?;
                 by_season.push(SeasonScore { season: s, wp: r.wp, baseline: r.baseline });
             }
         }

@@ -94,7 +94,7 @@ pub fn features(down: i32, to_go: i32, ball_on: i32, secs_half: i32, out: &mut [
 
 /// Fit on the snaps with a down among `rows` (indices into `plays`); the
 /// constants come from the kickoffs and tries among `rows`.
-pub fn fit(plays: &Plays, rows: &[u32], opts: &FitOptions) -> anyhow::Result<EpModel> {
+pub fn fit(plays: &Plays, rows: &[u32], opts: &FitOptions, init: Option<&EpModel>) -> anyhow::Result<EpModel> {
     let sub = |kind: Kind| -> Option<f64> {
         let (mut s, mut n) = (0.0, 0usize);
         for &i in rows {
@@ -135,7 +135,8 @@ pub fn fit(plays: &Plays, rows: &[u32], opts: &FitOptions) -> anyhow::Result<EpM
         p: FEATURES.len(),
         f: |i: usize, out: &mut [f64]| features(plays.down[i], plays.to_go[i], plays.ball_on[i], plays.secs_half[i], out),
     };
-    let fit = logit::fit(&design, Labels::Classes { y: &y, classes: NextScore::ALL.len(), reference: REFERENCE }, None, opts)
+    let labels = Labels::Classes { y: &y, classes: NextScore::ALL.len(), reference: REFERENCE };
+    let fit = logit::fit_from(&design, labels, None, opts, init.map(|m| &m.fit))
         .map_err(|e| anyhow::anyhow!("expected-points model on {} snaps with a down: {e}", train.len()))?;
     Ok(EpModel {
         fit,

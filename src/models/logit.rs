@@ -59,7 +59,9 @@ pub struct FitOptions {
     /// on the scale of the (weighted) summed log-likelihood.
     pub l2: f64,
     pub max_iter: usize,
-    /// Stop when the Newton decrement `g' H^-1 g` falls below this.
+    /// Stop when the Newton decrement `g' H^-1 g` (about twice the distance
+    /// to the optimum in log-likelihood) falls below `tol` times the total
+    /// weight of the rows.
     pub tol: f64,
     /// Above this many rows, first fit on an evenly spaced subsample of about
     /// this size and start the full Newton iterations from there.
@@ -73,7 +75,7 @@ pub struct FitOptions {
 
 impl Default for FitOptions {
     fn default() -> Self {
-        FitOptions { l2: 1.0, max_iter: 50, tol: 1e-9, warm_rows: 100_000, hess_rows: 200_000, threads: 0 }
+        FitOptions { l2: 1.0, max_iter: 50, tol: 1e-10, warm_rows: 100_000, hess_rows: 200_000, threads: 0 }
     }
 }
 
@@ -397,6 +399,19 @@ fn check_labels(design: &dyn Design, labels: Labels, weights: Option<&[f64]>) ->
 /// `hess_rows` (scaled to the full weight), a subsampled Newton method whose
 /// fixed point is the exact maximum. `grad_norm` is exact.
 pub fn fit(design: &dyn Design, labels: Labels, weights: Option<&[f64]>, opts: &FitOptions) -> Result<Fit, LogitError> {
+    fit_from(design, labels, weights, opts, None)
+}
+
+/// `fit` starting from the coefficients of `init` (a fit of the same model
+/// on related rows) when its classes and columns match; the subsample warm
+/// start is then skipped.
+pub fn fit_from(
+    design: &dyn Design,
+    labels: Labels,
+    weights: Option<&[f64]>,
+    opts: &FitOptions,
+    init: Option<&Fit>,
+) -> Result<Fit, LogitError> {
     let started = std::time::Instant::now();
     let totals = check_labels(design, labels, weights)?;
     let n = design.rows();
@@ -413,9 +428,20 @@ pub fn fit(design: &dyn Design, labels: Labels, weights: Option<&[f64]>, opts: &
     } else {
         opts.threads
     };
-    let mut coef = vec![vec![0.0; p]; free.len()];
+    // Start at the intercept-only optimum: log odds of each class against the reference.
+    let mut coef: Vec<Vec<f64>> = free
+        .iter()
+        .map(|&c| {
+            let mut row = vec![0.0; p];
+            row[0] = (totals[c] / totals[reference]).ln();
+            row
+        })
+        .collect();
     let mut warm_iterations = 0;
-    if !free.is_empty() && opts.warm_rows > 0 && n > 2 * opts.warm_rows {
+    let usable = init.filter(|f| f.free == free && f.reference == reference && f.coef.iter().all(|r| r.len() == p));
+    if let Some(f) = usable {
+        coef = f.coef.clone();
+    } else if !free.is_empty() && opts.warm_rows > 0 && n > 2 * opts.warm_rows {
         let sub: Vec<usize> = (0..n).step_by(n / opts.warm_rows).collect();
         let l2 = opts.l2 * sub.len() as f64 / n as f64;
         let r = newton(pr, &sub, &sub, coef, l2, opts.max_iter, opts.tol * 1e3, threads)?;
@@ -495,6 +521,7 @@ fn newton(
     let (mut acc, mut hacc) = pass(&coef);
     let mut iterations = 0;
     let mut converged = false;
+    let tol = tol * acc.weight.max(1.0);
     let penalized_grad = |acc: &Acc, coef: &[Vec<f64>]| -> DVector<f64> {
         let mut g = DVector::from_column_slice(&acc.grad);
         for j in 0..m {
@@ -676,7 +703,7 @@ mod tests {
         let mut rng = ChaCha8Rng::seed_from_u64(4);
         let y: Vec<f64> = (0..d.n).map(|_| if rng.random::<f64>() < 0.3 { 1.0 } else { 0.5 }).collect();
         let w: Vec<f64> = (0..d.n).map(|_| rng.random_range(0.5..2.0)).collect();
-        let opts = FitOptions { l2: 50.0, ..Default::default() };
+        let opts = FitOptions { l2: 50.0, tol: 1e-15, ..Default::default() };
         let f = fit(&d, Labels::Binary(&y), Some(&w), &opts).expect("fit");
         let rows: Vec<usize> = (0..d.n).collect();
         let pr = Problem { design: &d, labels: Labels::Binary(&y), weights: Some(&w), free: &[1], reference: 0, classes: 2 };

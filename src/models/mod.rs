@@ -85,16 +85,22 @@ pub fn fit(plays: &Plays) -> anyhow::Result<Models> {
 
 /// Fit every model on the snaps `rows` (indices into `plays`).
 pub fn fit_rows(plays: &Plays, rows: &[u32]) -> anyhow::Result<Models> {
+    fit_rows_from(plays, rows, None)
+}
+
+/// `fit_rows` with Newton started from `init`'s coefficients (same answer,
+/// fewer iterations when `init` was fit on overlapping rows).
+pub fn fit_rows_from(plays: &Plays, rows: &[u32], init: Option<&Models>) -> anyhow::Result<Models> {
     let started = std::time::Instant::now();
     if rows.is_empty() {
         anyhow::bail!("no snaps to fit the models on");
     }
     let opts = options();
-    let ep = ep::fit(plays, rows, &opts)?;
+    let ep = ep::fit(plays, rows, &opts, init.map(|m| &m.ep))?;
     let ep_all = ep.score_all(plays);
-    let wp = wp::fit(plays, &ep_all, rows, wp::WpKind::Full, &opts)?;
-    let baseline = wp::fit(plays, &ep_all, rows, wp::WpKind::Baseline, &opts)?;
-    let cp = cp::fit(plays, rows, &opts)?;
+    let wp = wp::fit(plays, &ep_all, rows, wp::WpKind::Full, &opts, init.map(|m| &m.wp))?;
+    let baseline = wp::fit(plays, &ep_all, rows, wp::WpKind::Baseline, &opts, init.map(|m| &m.baseline))?;
+    let cp = cp::fit(plays, rows, &opts, init.and_then(|m| m.cp.as_ref()))?;
     let report = FitReport {
         snaps: rows.len(),
         ep: ep.fit.stats.clone(),
@@ -156,7 +162,7 @@ pub fn fit_and_score_in(
         Some(e) => (e.models, e.calibration, true),
         None => {
             let models = fit(&plays)?;
-            let calibration = calibrate(&plays)?;
+            let calibration = calib::calibrate_from(&plays, &CalibOptions::default(), Some(&models))?;
             if let Some(d) = dir {
                 match cache::store(d, fingerprint, &models, &calibration) {
                     Ok(p) => tracing::info!("fitted models cached in {}", p.display()),
@@ -349,5 +355,43 @@ mod tests {
         let back: Calibration = serde_json::from_str(&json).expect("parse");
         assert_eq!(back.reliability.len(), c.reliability.len());
         assert!((back.wp.brier - c.wp.brier).abs() < 1e-12);
+    }
+
+    /// Timing on a league of about 1.2M snaps: run with
+    /// `cargo test --release --lib models::tests::timing -- --ignored --nocapture`.
+    #[test]
+    #[ignore]
+    fn timing_on_a_million_snaps() {
+        let t = std::time::Instant::now();
+        let plays = testkit::league(10_300, 6, 7);
+        eprintln!("synthetic league: {} snaps in {:.1}s", plays.len(), t.elapsed().as_secs_f64());
+        let dir = std::env::temp_dir().join(format!("lategame-models-timing-{}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&dir);
+        let t = std::time::Instant::now();
+        let models = fit(&plays).expect("fit");
+        let fit_s = t.elapsed().as_secs_f64();
+        let t = std::time::Instant::now();
+        let scores = models.score(&plays);
+        let score_s = t.elapsed().as_secs_f64();
+        eprintln!("fit EP+WP+baseline+CP: {fit_s:.2}s; score all snaps: {score_s:.2}s");
+        for (name, r) in [("ep", &models.report.ep), ("wp", &models.report.wp), ("baseline", &models.report.baseline)] {
+            eprintln!(
+                "  {name}: {} rows x {} features, {} warm + {} full iterations, converged {}, |grad| {:.2e}, {:.2}s",
+                r.rows, r.features, r.warm_iterations, r.iterations, r.converged, r.grad_norm, r.seconds
+            );
+        }
+        if let Some(r) = &models.report.cp {
+            eprintln!("  cp: {} rows, {} + {} iterations, {:.2}s", r.rows, r.warm_iterations, r.iterations, r.seconds);
+        }
+        let t = std::time::Instant::now();
+        let cal = calib::calibrate_from(&plays, &CalibOptions::default(), Some(&models)).expect("calibrate");
+        eprintln!("calibration (refit without the last season): {:.2}s; Brier {:.4} vs baseline {:.4}", t.elapsed().as_secs_f64(), cal.wp.brier, cal.baseline.brier);
+        cache::store(&dir, "timing", &models, &cal).expect("store");
+        let t = std::time::Instant::now();
+        let warm = fit_and_score_in(plays, "timing", false, Some(&dir)).expect("warm");
+        eprintln!("warm start from cache (load + score): {:.2}s, from_cache {}", t.elapsed().as_secs_f64(), warm.from_cache);
+        assert!(warm.from_cache);
+        assert_eq!(scores.ep.len(), warm.scores.ep.len());
+        let _ = std::fs::remove_dir_all(&dir);
     }
 }

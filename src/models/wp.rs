@@ -129,7 +129,14 @@ pub struct WpModel {
 }
 
 /// Fit on `rows` (indices into `plays`) with `ep` the EP before every snap.
-pub fn fit(plays: &Plays, ep: &[f64], rows: &[u32], kind: WpKind, opts: &FitOptions) -> anyhow::Result<WpModel> {
+pub fn fit(
+    plays: &Plays,
+    ep: &[f64],
+    rows: &[u32],
+    kind: WpKind,
+    opts: &FitOptions,
+    init: Option<&WpModel>,
+) -> anyhow::Result<WpModel> {
     let names = kind.features();
     let y: Vec<f64> = rows.iter().map(|&i| plays.offense_result(i as usize)).collect();
     let design = FnDesign {
@@ -137,7 +144,7 @@ pub fn fit(plays: &Plays, ep: &[f64], rows: &[u32], kind: WpKind, opts: &FitOpti
         p: names.len(),
         f: |i: usize, out: &mut [f64]| features(kind, &Situation::of_snap(plays, ep, i), out),
     };
-    let fit = logit::fit(&design, Labels::Binary(&y), None, opts)
+    let fit = logit::fit_from(&design, Labels::Binary(&y), None, opts, init.map(|m| &m.fit))
         .map_err(|e| anyhow::anyhow!("win-probability model ({kind:?}) on {} snaps: {e}", rows.len()))?;
     Ok(WpModel { kind, features: names.iter().map(|s| s.to_string()).collect(), fit })
 }
