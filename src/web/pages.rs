@@ -244,6 +244,7 @@ pub struct Column {
 pub struct CellView {
     pub main: String,
     pub sub: String,
+    pub signal: String,
     pub sort: String,
     pub href: String,
     pub title: String,
@@ -405,15 +406,12 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                 .map(|&j| {
                     let m = &METRICS[j];
                     let c = &r.cells[j];
-                    let sub = if m.stat == Stat::Count {
-                        String::new()
+                    let (sub, signal) = if m.stat == Stat::Count {
+                        (String::new(), String::new())
                     } else {
-                        format!(
-                            "est {} [{}–{}] · signal {}",
-                            fmt(c.estimate, m.decimals),
-                            fmt(c.lo, m.decimals),
-                            fmt(c.hi, m.decimals),
-                            c.signal.map(|s| format!("{:.0}%", s * 100.0)).unwrap_or_else(|| "–".into())
+                        (
+                            format!("{} [{}–{}]", fmt(c.estimate, m.decimals), fmt(c.lo, m.decimals), fmt(c.hi, m.decimals)),
+                            c.signal.map(|s| format!("signal {:.0}%", s * 100.0)).unwrap_or_else(|| "signal –".into()),
                         )
                     };
                     let sortv = match params.sort_by {
@@ -423,6 +421,7 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                     CellView {
                         main: fmt(c.value, m.decimals),
                         sub,
+                        signal,
                         sort: sort_value(sortv),
                         href: format!("/plays{}", with_passer(&r.passer, Some(m.key))),
                         title: format!(
@@ -664,7 +663,6 @@ pub struct SnapView {
     pub score: String,
     pub down_distance: String,
     pub spot: String,
-    pub kind: &'static str,
     pub passer: String,
     pub result: String,
     pub epa: String,
@@ -702,7 +700,6 @@ fn snap_view(s: &splits::Snap) -> SnapView {
         score: s.score.clone(),
         down_distance: s.down_distance.clone(),
         spot: s.spot.clone(),
-        kind: s.kind,
         passer: s.passer.clone().unwrap_or_default(),
         result: s.result.clone(),
         epa: fmt(Some(s.epa), 2),
