@@ -1,7 +1,6 @@
-//! One game, snap by snap: coin toss, kickoffs, downs and distance, runs and
-//! dropbacks, kicks, tries, the clock (play clock, two-minute warning,
-//! timeouts, spikes, kneels) and overtime. Writes `PlayRow`s and feeds the
-//! truth book; owns no league state between games.
+//! One game, snap by snap: kickoffs, downs, runs, dropbacks, kicks, tries, the
+//! clock (play clock, two-minute warning, timeouts, spikes, kneels), overtime.
+//! Writes `PlayRow`s and feeds the truth book; keeps no state between games.
 
 use super::draw::{chance, exp_mean, int_in, logistic, normal, pick, unit, SimRng};
 use super::league::{PasserSkills, TeamStrength};
