@@ -437,16 +437,27 @@ fn sim_time_25_seasons() {
     println!("25 seasons: {} rows in {:.2?}", out.rows.len(), t.elapsed());
 }
 
-/// The pilot regression behind `LINE_WEIGHTS` (run with `--ignored --nocapture`).
+/// The pilot regression behind `LINE_WEIGHTS` (run with `--ignored --nocapture`):
+/// 16 independent leagues of 10 seasons (seeds 1-16), then the slope of the
+/// fitted line on 5 held-out leagues.
 #[test]
 #[ignore]
 fn pilot_home_line_weights() {
-    let mut log = FeatureLog::new();
-    let out = run(&SimConfig { seasons: 60, seed: 1, first_season: 1950 }, &|_, _| {}, Some(&mut log));
-    let plays = plays_of(&out.rows);
-    let y: Vec<f64> = plays.games.iter().map(|g| (g.home_final - g.away_final) as f64).collect();
+    let league = |seed: u64| {
+        let mut log = FeatureLog::new();
+        let out = run(&SimConfig { seasons: 10, seed, first_season: 2000 }, &|_, _| {}, Some(&mut log));
+        let plays = plays_of(&out.rows);
+        let y: Vec<f64> = plays.games.iter().map(|g| (g.home_final - g.away_final) as f64).collect();
+        (log, y)
+    };
+    let (mut feats, mut y) = (FeatureLog::new(), Vec::new());
+    for seed in 1..=16 {
+        let (f, m) = league(seed);
+        feats.extend(f);
+        y.extend(m);
+    }
     let n = y.len();
-    let x = nalgebra::DMatrix::from_fn(n, FEATURES, |i, k| log[i][k]);
+    let x = nalgebra::DMatrix::from_fn(n, FEATURES, |i, k| feats[i][k]);
     let yv = nalgebra::DVector::from_vec(y.clone());
     let xtx = x.transpose() * &x;
     let xty = x.transpose() * &yv;
@@ -463,8 +474,13 @@ fn pilot_home_line_weights() {
     }
     let ws: Vec<String> = beta.iter().map(|b| format!("{b:.2}")).collect();
     println!("[{}]", ws.join(", "));
+    for seed in 101..=105 {
+        let (f, m) = league(seed);
+        let line: Vec<f64> = f.iter().map(|f| f.iter().zip(beta.iter()).map(|(a, b)| a * b).sum()).collect();
+        let (slope, _, resid) = simple_regression(&line, &m);
+        println!("held-out seed {seed}: slope {slope:.3}, residual SD {resid:.2}");
+    }
 }
-
 
 /// Key figures over several seeds (run with `--ignored --nocapture`).
 #[test]
