@@ -13,7 +13,7 @@ pub use snaps::{coach_spot, down_distance, game_snaps, play_list, result_text, S
 use crate::plays::{Plays, NO_PASSER};
 use crate::situation::{Preset, Situation};
 use crate::stats;
-use metrics::{cell, in_unit, value, CELLS};
+use metrics::{cell, contributions, CELLS};
 use serde::Serialize;
 use std::collections::{BTreeMap, HashMap};
 
@@ -31,11 +31,6 @@ impl Acc {
         self.sum += x;
         self.sumsq += x * x;
     }
-    fn merge(&mut self, o: &Acc) {
-        self.n += o.n;
-        self.sum += o.sum;
-        self.sumsq += o.sumsq;
-    }
     fn mean(&self) -> Option<f64> {
         (self.n > 0.0).then(|| self.sum / self.n)
     }
@@ -47,10 +42,10 @@ fn new_accs() -> Accs {
     vec![Acc::default(); METRICS.len()]
 }
 
-fn add_snap(accs: &mut [Acc], p: &Plays, v: &SnapValues, i: usize) {
-    for (j, m) in METRICS.iter().enumerate() {
-        if in_unit(p, v, m.unit, i) {
-            accs[j].add(value(p, v, m, i));
+fn add_masked(accs: &mut [Acc], vals: &[f64], mask: u64) {
+    for (j, a) in accs.iter_mut().enumerate() {
+        if mask & (1 << j) != 0 {
+            a.add(vals[j]);
         }
     }
 }
@@ -74,7 +69,9 @@ struct PasserSums {
 }
 
 fn accumulate(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
-    let unseasoned = s.with_seasons(None);
+    // The passer filter picks the rows shown, not the league they are
+    // measured against: match on the situation without it.
+    let unseasoned = Situation { passer: None, ..s.with_seasons(None) };
     let seasons = s.seasons.as_deref();
     let mut out = Sums {
         passers: BTreeMap::new(),
@@ -83,14 +80,16 @@ fn accumulate(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
         by_season: HashMap::new(),
         league_by_season: BTreeMap::new(),
     };
+    let mut vals = vec![0.0f64; METRICS.len()];
     for i in 0..p.len() {
         if !p.dropback[i] || p.passer[i] == NO_PASSER || !unseasoned.matches(p, v.wp, i) {
             continue;
         }
         let who = p.passer[i];
         let season = p.season[i];
-        add_snap(out.by_season.entry((who, season)).or_insert_with(new_accs), p, v, i);
-        add_snap(out.league_by_season.entry(season).or_insert_with(new_accs), p, v, i);
+        let mask = contributions(p, v, i, &mut vals);
+        add_masked(out.by_season.entry((who, season)).or_insert_with(new_accs), &vals, mask);
+        add_masked(out.league_by_season.entry(season).or_insert_with(new_accs), &vals, mask);
         if seasons.is_some_and(|ss| !ss.contains(&season)) {
             continue;
         }
@@ -101,13 +100,14 @@ fn accumulate(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
             team: p.offense[i],
         });
         ps.team = p.offense[i];
-        for (j, m) in METRICS.iter().enumerate() {
-            if in_unit(p, v, m.unit, i) {
-                let x = value(p, v, m, i);
+        let nm = METRICS.len();
+        for j in 0..nm {
+            if mask & (1 << j) != 0 {
+                let x = vals[j];
                 ps.accs[j].add(x);
                 out.league[j].add(x);
-                out.league_cells[c * METRICS.len() + j].add(x);
-                ps.cells[c * METRICS.len() + j] += 1.0;
+                out.league_cells[c * nm + j].add(x);
+                ps.cells[c * nm + j] += 1.0;
             }
         }
     }
@@ -336,12 +336,12 @@ fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: u32) -> Spl
         }
         let post: Vec<Option<stats::Posterior>> = match m.stat {
             Stat::Rate => {
-                let prior = stats::fit_beta_prior(&qual);
+                let Some(prior) = stats::fit_beta_prior(&qual) else { continue };
                 sums.passers
                     .values()
                     .map(|ps| {
                         let a = &ps.accs[j];
-                        (a.n > 0.0).then(|| stats::beta_posterior(&prior, a.sum, a.n))
+                        stats::beta_posterior(&prior, a.sum, a.n)
                     })
                     .collect()
             }
@@ -351,12 +351,16 @@ fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: u32) -> Spl
                     continue;
                 }
                 let means: Vec<(f64, f64)> = qual.iter().map(|(sum, n)| (sum / n, s2 / n)).collect();
-                let prior = stats::fit_normal_prior(&means);
+                let Some(prior) = stats::fit_normal_prior(&means) else { continue };
                 sums.passers
                     .values()
                     .map(|ps| {
                         let a = &ps.accs[j];
-                        (a.n > 0.0).then(|| stats::normal_posterior(&prior, a.sum / a.n, s2 / a.n))
+                        if a.n > 0.0 {
+                            stats::normal_posterior(&prior, a.sum / a.n, s2 / a.n)
+                        } else {
+                            None
+                        }
                     })
                     .collect()
             }
@@ -373,19 +377,21 @@ fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: u32) -> Spl
         // Percentile (on the estimate) and z (on the raw value), qualified only.
         let ests: Vec<f64> = rows.iter().filter(|r| r.qualified).filter_map(|r| r.cells[j].estimate).collect();
         let raws: Vec<f64> = rows.iter().filter(|r| r.qualified).filter_map(|r| r.cells[j].value).collect();
-        let (mean, sd) = stats::mean_sd(&raws);
+        let spread = stats::mean_sd(&raws);
         for row in rows.iter_mut() {
             let c = &mut row.cells[j];
-            if let Some(e) = c.estimate {
-                let pr = stats::percentile_rank(&ests, e);
+            if let Some(pr) = c.estimate.and_then(|e| stats::percentile_rank(&ests, e)) {
                 c.percentile = Some(if m.higher_is_better { pr } else { 100.0 - pr });
             }
-            if let Some(x) = c.value {
+            if let (Some(x), Some((mean, sd))) = (c.value, spread) {
                 c.z = stats::z_score(x, mean, sd);
             }
         }
     }
 
+    if let Some(only) = &s.passer {
+        rows.retain(|r| &r.passer == only);
+    }
     rows.sort_by(|a, b| b.dropbacks.cmp(&a.dropbacks).then(a.passer.cmp(&b.passer)));
     let metrics = (0..nm)
         .map(|j| {
