@@ -67,6 +67,9 @@ pub struct Calibration {
     pub cp: Option<ProbScore>,
     /// Leave-one-season-out scores; empty unless asked for.
     pub by_season: Vec<SeasonScore>,
+    /// Reliability of the full model over every leave-one-season-out
+    /// prediction pooled; empty unless asked for.
+    pub pooled_reliability: Vec<ReliabilityBin>,
 }
 
 /// Options for `calibrate_with`.
@@ -235,16 +238,20 @@ pub fn calibrate_from(plays: &Plays, opts: &CalibOptions, init: Option<&Models>)
     let h = held_out(plays, &train, &test, init)?;
     let half = vec![0.5; h.actual.len()];
     let mut by_season = Vec::new();
+    let (mut pooled_pred, mut pooled_actual) = (Vec::new(), Vec::new());
     if opts.leave_one_season_out {
         let seasons = plays.seasons();
         if seasons.len() >= 2 {
             for s in seasons {
                 let (tr, te): (Vec<u32>, Vec<u32>) = (0..plays.len() as u32).partition(|&i| plays.season[i as usize] != s);
                 let r = held_out(plays, &tr, &te, init)?;
+                pooled_pred.extend_from_slice(&r.wp_pred);
+                pooled_actual.extend_from_slice(&r.actual);
                 by_season.push(SeasonScore { season: s, wp: r.wp, baseline: r.baseline });
             }
         }
     }
+    let pooled_reliability = if pooled_pred.is_empty() { Vec::new() } else { reliability(&pooled_pred, &pooled_actual) };
     Ok(Calibration {
         holdout,
         holdout_season,
@@ -259,6 +266,7 @@ pub fn calibrate_from(plays: &Plays, opts: &CalibOptions, init: Option<&Models>)
         baseline: h.baseline,
         cp: h.cp,
         by_season,
+        pooled_reliability,
     })
 }
 
