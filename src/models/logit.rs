@@ -703,7 +703,7 @@ mod tests {
         let mut rng = ChaCha8Rng::seed_from_u64(4);
         let y: Vec<f64> = (0..d.n).map(|_| if rng.random::<f64>() < 0.3 { 1.0 } else { 0.5 }).collect();
         let w: Vec<f64> = (0..d.n).map(|_| rng.random_range(0.5..2.0)).collect();
-        let opts = FitOptions { l2: 50.0, tol: 1e-15, ..Default::default() };
+        let opts = FitOptions { l2: 50.0, tol: 1e-20, ..Default::default() };
         let f = fit(&d, Labels::Binary(&y), Some(&w), &opts).expect("fit");
         let rows: Vec<usize> = (0..d.n).collect();
         let pr = Problem { design: &d, labels: Labels::Binary(&y), weights: Some(&w), free: &[1], reference: 0, classes: 2 };
