@@ -93,3 +93,18 @@ fn totals_agree_with_a_plain_count() {
     assert_eq!(one.league, t.league);
     assert_eq!(one.rows[0].cells[db].value, t.rows[0].cells[db].value);
 }
+
+#[test]
+fn the_bundled_demo_league_regenerates_exactly() {
+    // lategame simulate --seasons 6 --seed 7 gives the bundled file byte for byte.
+    use sha2::{Digest, Sha256};
+    let out = simulate(&SimConfig { seasons: 6, seed: 7, first_season: 2020 });
+    let dir = std::env::temp_dir().join(format!("lategame-regen-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("league.parquet");
+    lategame::playfile::write_rows(&out.rows, &path).unwrap();
+    let bundled = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-data/league.parquet");
+    let h = |p: &std::path::Path| format!("{:x}", Sha256::digest(std::fs::read(p).unwrap()));
+    assert_eq!(h(&path), h(&bundled), "regenerate with: lategame simulate --seasons 6 --seed 7 --out demo-data/league.parquet");
+    let _ = std::fs::remove_dir_all(&dir);
+}

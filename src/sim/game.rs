@@ -1,7 +1,6 @@
-//! One game, snap by snap: coin toss, kickoffs, downs and distance, runs and
-//! dropbacks, kicks, tries, the clock (play clock, two-minute warning,
-//! timeouts, spikes, kneels) and overtime. Writes `PlayRow`s and feeds the
-//! truth book; owns no league state between games.
+//! One game, snap by snap: kickoffs, downs, runs, dropbacks, kicks, tries, the
+//! clock (play clock, two-minute warning, timeouts, spikes, kneels), overtime.
+//! Writes `PlayRow`s and feeds the truth book; keeps no state between games.
 
 use super::draw::{chance, exp_mean, int_in, logistic, normal, pick, unit, SimRng};
 use super::league::{PasserSkills, TeamStrength};
@@ -19,15 +18,20 @@ const PUNT_TOUCHBACK: i32 = 20;
 
 /// How much a club's `home_edge` of 1.0 lifts each home strength.
 const HOME_BOOST: TeamStrength = TeamStrength {
-    run_off: 0.18,
-    run_def: 0.18,
-    pass_off: 0.05,
-    pass_def: 0.05,
-    protection: 0.06,
-    pass_rush: 0.06,
+    run_off: 0.13,
+    run_def: 0.13,
+    pass_off: 0.036,
+    pass_def: 0.036,
+    protection: 0.043,
+    pass_rush: 0.043,
     kicking: 0.0,
     pass_lean: 0.0,
 };
+
+/// Spread of a club's game-day form (one draw for its offense, one for its
+/// defense), in the units of the run and pass strengths.
+const FORM_RUN: f64 = 0.36;
+const FORM_PASS: f64 = 0.11;
 
 // ---- dropback model ----
 /// Depth bands of a throw: behind the line, 1-5, 6-10, 11-15, 16-25, 26+.
@@ -35,13 +39,13 @@ const BANDS: usize = 6;
 const BAND_MIN: [i32; BANDS] = [-4, 1, 6, 11, 16, 26];
 const BAND_MAX: [i32; BANDS] = [0, 5, 10, 15, 25, 55];
 const BAND_SHARE: [f64; BANDS] = [0.17, 0.28, 0.22, 0.14, 0.11, 0.08];
-const COMP_LOGIT: [f64; BANDS] = [1.75, 1.30, 0.62, 0.22, -0.30, -0.85];
+const COMP_LOGIT: [f64; BANDS] = [1.70, 1.25, 0.57, 0.17, -0.35, -0.90];
 const INT_LOGIT: [f64; BANDS] = [-5.2, -4.6, -3.9, -3.45, -3.05, -2.7];
-const YAC_MEAN: [f64; BANDS] = [6.0, 4.2, 3.4, 3.3, 3.8, 5.5];
+const YAC_MEAN: [f64; BANDS] = [5.4, 3.8, 3.1, 3.0, 3.4, 5.0];
 const SACK_LOGIT: f64 = -2.75;
-const SCRAMBLE_LOGIT: f64 = -3.1;
+const SCRAMBLE_LOGIT: f64 = -3.3;
 /// League-wide shift of the play-call logit.
-const PASS_SHIFT: f64 = 0.30;
+const PASS_SHIFT: f64 = 0.15;
 /// Share of scrimmage snaps that end in an accepted penalty instead of a play.
 const PENALTY_RATE: f64 = 0.055;
 
@@ -72,6 +76,14 @@ pub(crate) fn play_game(g: &GameSetup, rng: &mut SimRng, out: &mut Vec<PlayRow>,
     h.pass_def += e * HOME_BOOST.pass_def;
     h.protection += e * HOME_BOOST.protection;
     h.pass_rush += e * HOME_BOOST.pass_rush;
+    // game-day form: what no pregame line can see
+    for s in &mut strength {
+        let (off, def) = (normal(rng), normal(rng));
+        s.run_off += FORM_RUN * off;
+        s.pass_off += FORM_PASS * off;
+        s.run_def += FORM_RUN * def;
+        s.pass_def += FORM_PASS * def;
+    }
     let mut eng = Engine {
         g,
         rng,
@@ -90,6 +102,7 @@ pub(crate) fn play_game(g: &GameSetup, rng: &mut SimRng, out: &mut Vec<PlayRow>,
         to_go: 10,
         running: false,
         spike_next: false,
+        kneeling: false,
         opening_receiver: 0,
         ot_first: 0,
         ot_poss: 0,
@@ -146,6 +159,8 @@ struct Engine<'s, 'a> {
     /// The clock runs from the end of the last play to the next snap.
     running: bool,
     spike_next: bool,
+    /// The last snap was a kneel: the offense lets the play clock run.
+    kneeling: bool,
     opening_receiver: usize,
     ot_first: usize,
     ot_poss: u32,
@@ -215,10 +230,16 @@ impl Engine<'_, '_> {
             _ => false,
         }
     }
+    /// The defense leads comfortably in the second half and gives up the
+    /// short stuff (more completions underneath, more yards on the ground).
+    fn soft_defense(&self) -> bool {
+        self.period >= 3 && self.margin() <= -9
+    }
+
     /// The offense `team` runs the clock down.
     fn milk(&self, team: usize) -> bool {
         let m = self.margin_of(team);
-        (self.period == 4 && m > 0 && self.clock <= 720) || (self.period == 4 && m >= 9) || (self.period >= 3 && m >= 17)
+        (self.period == 4 && m > 0 && self.clock <= 720) || (self.period >= 3 && m >= 9)
     }
 
     fn snap_row(&self, kind: Kind) -> PlayRow {
@@ -248,7 +269,7 @@ impl Engine<'_, '_> {
             intercepted: None,
             air_yards: None,
             gain: None,
-            fumble_lost: None,
+            fumble_lost: matches!(kind, Kind::Pass | Kind::Run | Kind::Sack | Kind::Scramble).then_some(false),
             touchback: None,
             points: 0,
             home_line: Some(self.g.home_line),
@@ -257,6 +278,7 @@ impl Engine<'_, '_> {
 
     fn push(&mut self, row: PlayRow) {
         self.seq = row.seq;
+        self.kneeling = row.kind == Kind::Kneel;
         self.out.push(row);
     }
 
@@ -291,7 +313,8 @@ impl Engine<'_, '_> {
                 || (self.period >= 4 && self.margin() <= -9 && self.clock <= 300));
         let def_stop = (self.period == 4 && (-16..0).contains(&dm) && self.clock <= 240)
             || (self.period >= 5 && dm <= 0 && self.clock <= 180);
-        if off_stop && self.timeouts[off] > 0 {
+        let kneeling = std::mem::take(&mut self.kneeling);
+        if off_stop && !kneeling && self.timeouts[off] > 0 {
             let e = int_in(self.rng, 2, 6);
             self.tick(e);
             self.timeouts[off] -= 1;
@@ -303,6 +326,10 @@ impl Engine<'_, '_> {
             self.tick(e);
             self.timeouts[def] -= 1;
             self.running = false;
+            return;
+        }
+        if kneeling {
+            self.tick(39);
             return;
         }
         if self.hurry(off) && self.timeouts[off] == 0 && self.down <= 3 && self.clock <= 60 && self.clock > 2 {
@@ -347,6 +374,7 @@ impl Engine<'_, '_> {
     fn end_period(&mut self, next: Next) -> Next {
         self.running = false;
         self.spike_next = false;
+        self.kneeling = false;
         match self.period {
             1 | 3 => {
                 self.period += 1;
@@ -523,11 +551,11 @@ impl Engine<'_, '_> {
         let m = self.margin();
         let late = self.period == 4 || (self.period == 3 && self.clock < 300);
         let two = if late {
-            matches!(m, -2 | -5 | -9 | -10 | 1 | 5 | 12) || chance(self.rng, 0.03)
+            matches!(m, -2 | -5 | -9 | -10 | 1 | 5 | 12) || chance(self.rng, 0.015)
         } else if self.period == 3 {
-            matches!(m, -2 | -5 | -10 | 1 | 5) || chance(self.rng, 0.03)
+            matches!(m, -2 | -5 | -10 | 1 | 5) || chance(self.rng, 0.015)
         } else {
-            chance(self.rng, 0.03)
+            chance(self.rng, 0.015)
         };
         self.ball_on = if two { TWO_POINT_SPOT } else { KICK_TRY_SPOT };
         let mut row = self.snap_row(if two { Kind::TwoPoint } else { Kind::ExtraPoint });
@@ -783,7 +811,8 @@ impl Engine<'_, '_> {
             5.0 + exp_mean(self.rng, 11.0) + 2.0 * adv
         } else {
             let short = if self.to_go <= 2 { 0.4 } else { 0.0 };
-            3.2 + adv + short + 2.7 * normal(self.rng)
+            let soft = if self.soft_defense() { 0.8 } else { 0.0 };
+            3.6 + adv + short + soft + 2.7 * normal(self.rng)
         };
         if dist <= 5 {
             gain = gain.min(dist as f64 + 1.0) - 0.8;
@@ -792,7 +821,7 @@ impl Engine<'_, '_> {
         row.gain = Some(gain);
         let secs = int_in(self.rng, 4, 7);
         let spot = self.ball_on + gain;
-        if spot > 0 && spot < 100 && chance(self.rng, 0.005) {
+        if spot > 0 && spot < 100 && chance(self.rng, 0.007) {
             row.fumble_lost = Some(true);
             self.use_clock(secs, false);
             self.change_possession(100 - spot);
@@ -858,7 +887,8 @@ impl Engine<'_, '_> {
             self.to_go -= yards;
         }
         let keep = self.running && !self.oob_stops();
-        let secs = if live { int_in(self.rng, 4, 7) } else { 0 };
+        // a period never ends on a foul (the down is replayed untimed)
+        let secs = if live { int_in(self.rng, 4, 7).min(self.clock - 1).max(0) } else { 0 };
         self.use_clock(secs, keep);
         self.push(row);
         Next::Scrimmage
@@ -878,7 +908,7 @@ impl Engine<'_, '_> {
         let m = self.margin();
         let hurry = self.hurry(off);
         let desperate = self.period >= 4 && hurry && m < 0;
-        let prevent = self.period >= 4 && m <= -9 && self.clock <= 300;
+        let prevent = (self.period >= 4 && m <= -9 && self.clock <= 300) || self.soft_defense();
         let long = self.down >= 3 && self.to_go >= 7;
         let poise = if late_close { s.poise } else { 0.0 };
         let dist = 100 - self.ball_on;
@@ -930,7 +960,7 @@ impl Engine<'_, '_> {
         let mut comp = [0.0; BANDS];
         let mut int = [0.0; BANDS];
         for c in 0..BANDS {
-            let soft = if prevent && c <= 2 { 0.25 } else { 0.0 };
+            let soft = if prevent && c <= 2 { 0.35 } else { 0.0 };
             int[c] = logistic(INT_LOGIT[c] + int_shift);
             comp[c] = (1.0 - int[c]) * logistic(COMP_LOGIT[c] + comp_shift + soft);
         }
@@ -981,7 +1011,7 @@ impl Engine<'_, '_> {
         row.gain = Some(-loss);
         let secs = int_in(self.rng, 4, 7);
         let spot = self.ball_on - loss;
-        if spot > 0 && chance(self.rng, 0.035) {
+        if spot > 0 && chance(self.rng, 0.05) {
             row.fumble_lost = Some(true);
             self.use_clock(secs, false);
             if chance(self.rng, 0.08) {
@@ -1065,14 +1095,14 @@ impl Engine<'_, '_> {
         row.intercepted = Some(false);
         let off = self.poss;
         let mut yac = exp_mean(self.rng, YAC_MEAN[c] * (1.0 + 0.8 * self.strength[off].pass_off));
-        if chance(self.rng, 0.04) {
+        if chance(self.rng, 0.03) {
             yac += exp_mean(self.rng, 18.0);
         }
         let gain = (air + yac.round() as i32).max(1 - self.ball_on).min(dist);
         row.gain = Some(gain);
-        let secs = (5.0 + air.max(0) as f64 / 6.0 + yac / 5.0).round() as i32;
+        let secs = (5.0 + air.max(0) as f64 / 8.0 + yac / 6.0).round().min(12.0) as i32;
         let spot = self.ball_on + gain;
-        if spot < 100 && chance(self.rng, 0.006) {
+        if spot < 100 && chance(self.rng, 0.008) {
             row.fumble_lost = Some(true);
             self.use_clock(secs, false);
             self.change_possession(100 - spot);

@@ -27,12 +27,12 @@ pub struct TeamStrength {
 
 /// Spread of each strength across clubs (standard deviations).
 const STRENGTH_SD: TeamStrength = TeamStrength {
-    run_off: 0.45,
-    run_def: 0.45,
-    pass_off: 0.15,
-    pass_def: 0.15,
-    protection: 0.22,
-    pass_rush: 0.22,
+    run_off: 0.40,
+    run_def: 0.40,
+    pass_off: 0.13,
+    pass_def: 0.13,
+    protection: 0.20,
+    pass_rush: 0.20,
     kicking: 0.30,
     pass_lean: 0.20,
 };
@@ -335,8 +335,10 @@ impl League {
         self.passers[pid].out_until = week + missed + 1;
     }
 
-    /// The season's 17 weeks of 16 games, `(home, away)` team indices,
-    /// from the circle method on a shuffled club order.
+    /// The season's 17 weeks of 16 games, `(home, away)` team indices: the
+    /// circle method on a shuffled club order gives the pairings; hosts go to
+    /// the club with fewer home games so far, then a repair pass leaves every
+    /// club 8 or 9 home games.
     pub(crate) fn schedule(&mut self) -> Vec<Vec<(usize, usize)>> {
         let mut order: Vec<usize> = (0..TEAMS).collect();
         shuffle(&mut self.rng, &mut order);
@@ -344,20 +346,55 @@ impl League {
         let ring: Vec<usize> = order[..TEAMS - 1].to_vec();
         let n = ring.len(); // 31
         let first_round = int_in(&mut self.rng, 0, n as i32 - 1) as usize;
-        (0..WEEKS as usize)
+        let mut hosted = [0u32; TEAMS];
+        let mut weeks: Vec<Vec<(usize, usize)>> = (0..WEEKS as usize)
             .map(|w| {
                 let r = (first_round + w) % n;
                 let at = |i: usize| ring[(i + r) % n];
-                let mut games = Vec::with_capacity(TEAMS / 2);
-                let (a, b) = (fixed, at(0));
-                games.push(if r % 2 == 0 { (a, b) } else { (b, a) });
-                for i in 1..TEAMS / 2 {
-                    let (a, b) = (at(i), at(n - i));
-                    games.push(if (i + r) % 2 == 0 { (a, b) } else { (b, a) });
-                }
-                games
+                let mut pairs = vec![(fixed, at(0))];
+                pairs.extend((1..TEAMS / 2).map(|i| (at(i), at(n - i))));
+                pairs
+                    .into_iter()
+                    .map(|(a, b)| {
+                        let a_hosts = match hosted[a].cmp(&hosted[b]) {
+                            std::cmp::Ordering::Less => true,
+                            std::cmp::Ordering::Greater => false,
+                            std::cmp::Ordering::Equal => chance(&mut self.rng, 0.5),
+                        };
+                        let (h, v) = if a_hosts { (a, b) } else { (b, a) };
+                        hosted[h] += 1;
+                        (h, v)
+                    })
+                    .collect()
             })
-            .collect()
+            .collect();
+        // repair: flip a game from a club with 10+ home games to one with 8 or fewer
+        for _ in 0..200 {
+            let Some(over) = (0..TEAMS).find(|&t| hosted[t] >= 10) else { break };
+            let flip = weeks
+                .iter()
+                .enumerate()
+                .flat_map(|(w, g)| g.iter().enumerate().map(move |(k, &p)| (w, k, p)))
+                .find(|&(_, _, (h, v))| h == over && hosted[v] <= 8);
+            let Some((w, k, (h, v))) = flip else { break };
+            weeks[w][k] = (v, h);
+            hosted[h] -= 1;
+            hosted[v] += 1;
+        }
+        for t in 0..TEAMS {
+            while hosted[t] <= 7 {
+                let flip = weeks
+                    .iter()
+                    .enumerate()
+                    .flat_map(|(w, g)| g.iter().enumerate().map(move |(k, &p)| (w, k, p)))
+                    .find(|&(_, _, (h, v))| v == t && hosted[h] >= 9);
+                let Some((w, k, (h, v))) = flip else { break };
+                weeks[w][k] = (v, h);
+                hosted[h] -= 1;
+                hosted[v] += 1;
+            }
+        }
+        weeks
     }
 }
 

@@ -410,7 +410,7 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                         (String::new(), String::new())
                     } else {
                         (
-                            format!("{} [{}–{}]", fmt(c.estimate, m.decimals), fmt(c.lo, m.decimals), fmt(c.hi, m.decimals)),
+                            format!("{} [{}, {}]", fmt(c.estimate, m.decimals), fmt(c.lo, m.decimals), fmt(c.hi, m.decimals)),
                             c.signal.map(|s| format!("signal {:.0}%", s * 100.0)).unwrap_or_else(|| "signal –".into()),
                         )
                     };
@@ -503,7 +503,7 @@ struct ProfilePage {
     passer: String,
     team: String,
     passers: Vec<(String, bool)>,
-    charts: Vec<String>,
+    charts: Vec<(String, String)>,
     trend_chart: String,
     trend_label: String,
     epa_chart: String,
@@ -562,7 +562,11 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                     }
                 })
                 .collect();
-            charts::dot_interval(&format!("{} — {name} by situation (dot: estimate, bar: 90% interval, tick: league)", m.label), &rows, width).to_svg()
+            let unit = if m.scale == 100.0 { " (%)" } else { "" };
+            (
+                format!("{}{unit}", m.label),
+                charts::dot_interval(&format!("{} — {name} by situation (dot: estimate, bar: 90% interval, tick: league)", m.label), &rows, width).to_svg(),
+            )
         })
         .collect();
     let ej = metric_index("epa").unwrap_or(0);
@@ -607,7 +611,7 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                         (
                             fmt(c.and_then(|c| c.value), m.decimals),
                             c.filter(|_| m.stat != Stat::Count)
-                                .map(|c| format!("est {} [{}–{}]", fmt(c.estimate, m.decimals), fmt(c.lo, m.decimals), fmt(c.hi, m.decimals)))
+                                .map(|c| format!("est {} [{}, {}]", fmt(c.estimate, m.decimals), fmt(c.lo, m.decimals), fmt(c.hi, m.decimals)))
                                 .unwrap_or_default(),
                             fmt(line.league[j], m.decimals),
                         )
