@@ -88,7 +88,11 @@ pub fn prob_score(pred: &[f64], actual: &[f64]) -> ProbScore {
         l -= y * pc.ln() + (1.0 - y) * (1.0 - pc).ln();
     }
     let d = n.max(1) as f64;
-    ProbScore { n, brier: b / d, log_loss: l / d }
+    ProbScore {
+        n,
+        brier: b / d,
+        log_loss: l / d,
+    }
 }
 
 pub fn reliability(pred: &[f64], actual: &[f64]) -> Vec<ReliabilityBin> {
@@ -162,7 +166,16 @@ fn split(plays: &Plays) -> anyhow::Result<(Vec<u32>, Vec<u32>, String, Option<i3
             }
         }
         let games = plays.games.iter().filter(|g| g.season == last).count();
-        Ok((train, test, format!("season {last} (fit on the {} earlier seasons)", seasons.len() - 1), Some(last), games))
+        Ok((
+            train,
+            test,
+            format!(
+                "season {last} (fit on the {} earlier seasons)",
+                seasons.len() - 1
+            ),
+            Some(last),
+            games,
+        ))
     } else {
         let ng = plays.games.len();
         let cut = ng - (ng / 5).max(1);
@@ -172,7 +185,13 @@ fn split(plays: &Plays) -> anyhow::Result<(Vec<u32>, Vec<u32>, String, Option<i3
         let at = plays.games[cut].start;
         let train = (0..at as u32).collect();
         let test = (at as u32..plays.len() as u32).collect();
-        Ok((train, test, format!("the last {} of {ng} games of season {last}", ng - cut), None, ng - cut))
+        Ok((
+            train,
+            test,
+            format!("the last {} of {ng} games of season {last}", ng - cut),
+            None,
+            ng - cut,
+        ))
     }
 }
 
@@ -187,7 +206,12 @@ struct HeldOut {
     cp: Option<ProbScore>,
 }
 
-fn held_out(plays: &Plays, train: &[u32], test: &[u32], init: Option<&Models>) -> anyhow::Result<HeldOut> {
+fn held_out(
+    plays: &Plays,
+    train: &[u32],
+    test: &[u32],
+    init: Option<&Models>,
+) -> anyhow::Result<HeldOut> {
     let models: Models = fit_rows_from(plays, train, init)?;
     let ep = models.ep.score_all(plays);
     let (mut wp_pred, mut base_pred, mut actual) = (Vec::new(), Vec::new(), Vec::new());
@@ -233,7 +257,11 @@ pub fn calibrate_with(plays: &Plays, opts: &CalibOptions) -> anyhow::Result<Cali
 
 /// `calibrate_with`, the refits started from `init` (models fit on all
 /// snaps): the same held-out fits in fewer Newton iterations.
-pub fn calibrate_from(plays: &Plays, opts: &CalibOptions, init: Option<&Models>) -> anyhow::Result<Calibration> {
+pub fn calibrate_from(
+    plays: &Plays,
+    opts: &CalibOptions,
+    init: Option<&Models>,
+) -> anyhow::Result<Calibration> {
     let (train, test, holdout, holdout_season, test_games) = split(plays)?;
     let h = held_out(plays, &train, &test, init)?;
     let half = vec![0.5; h.actual.len()];
@@ -243,15 +271,24 @@ pub fn calibrate_from(plays: &Plays, opts: &CalibOptions, init: Option<&Models>)
         let seasons = plays.seasons();
         if seasons.len() >= 2 {
             for s in seasons {
-                let (tr, te): (Vec<u32>, Vec<u32>) = (0..plays.len() as u32).partition(|&i| plays.season[i as usize] != s);
+                let (tr, te): (Vec<u32>, Vec<u32>) =
+                    (0..plays.len() as u32).partition(|&i| plays.season[i as usize] != s);
                 let r = held_out(plays, &tr, &te, init)?;
                 pooled_pred.extend_from_slice(&r.wp_pred);
                 pooled_actual.extend_from_slice(&r.actual);
-                by_season.push(SeasonScore { season: s, wp: r.wp, baseline: r.baseline });
+                by_season.push(SeasonScore {
+                    season: s,
+                    wp: r.wp,
+                    baseline: r.baseline,
+                });
             }
         }
     }
-    let pooled_reliability = if pooled_pred.is_empty() { Vec::new() } else { reliability(&pooled_pred, &pooled_actual) };
+    let pooled_reliability = if pooled_pred.is_empty() {
+        Vec::new()
+    } else {
+        reliability(&pooled_pred, &pooled_actual)
+    };
     Ok(Calibration {
         holdout,
         holdout_season,

@@ -77,10 +77,19 @@ fn kickoff_target(model: &EpModel, plays: &Plays, i: usize) -> f64 {
         return plays.points[i] as f64;
     }
     let j = i + 1;
-    if j >= plays.len() || plays.game[j] != plays.game[i] || plays.half(j) != plays.half(i) || plays.down[j] == 0 {
+    if j >= plays.len()
+        || plays.game[j] != plays.game[i]
+        || plays.half(j) != plays.half(i)
+        || plays.down[j] == 0
+    {
         return 0.0;
     }
-    let ep = model.situation(plays.down[j], plays.to_go[j], plays.ball_on[j], plays.secs_half[j]);
+    let ep = model.situation(
+        plays.down[j],
+        plays.to_go[j],
+        plays.ball_on[j],
+        plays.secs_half[j],
+    );
     if plays.offense[j] == plays.offense[i] {
         ep
     } else {
@@ -123,7 +132,12 @@ pub fn features(down: i32, to_go: i32, ball_on: i32, secs_half: i32, out: &mut [
 
 /// Fit on the snaps with a down among `rows` (indices into `plays`); the
 /// constants come from the kickoffs and tries among `rows`.
-pub fn fit(plays: &Plays, rows: &[u32], opts: &FitOptions, init: Option<&EpModel>) -> anyhow::Result<EpModel> {
+pub fn fit(
+    plays: &Plays,
+    rows: &[u32],
+    opts: &FitOptions,
+    init: Option<&EpModel>,
+) -> anyhow::Result<EpModel> {
     let sub = |kind: Kind| -> Option<f64> {
         let (mut s, mut n) = (0.0, 0usize);
         for &i in rows {
@@ -148,16 +162,39 @@ pub fn fit(plays: &Plays, rows: &[u32], opts: &FitOptions, init: Option<&EpModel
     let try_mean = if tn > 0 { ts / tn as f64 } else { DEFAULT_XP };
     let td_value = 6.0 + try_mean;
 
-    let train: Vec<u32> = rows.iter().copied().filter(|&i| plays.down[i as usize] > 0).collect();
-    let y: Vec<u8> = train.iter().map(|&i| plays.next_score[i as usize].index() as u8).collect();
+    let train: Vec<u32> = rows
+        .iter()
+        .copied()
+        .filter(|&i| plays.down[i as usize] > 0)
+        .collect();
+    let y: Vec<u8> = train
+        .iter()
+        .map(|&i| plays.next_score[i as usize].index() as u8)
+        .collect();
     let design = FnDesign {
         rows: &train,
         p: FEATURES.len(),
-        f: |i: usize, out: &mut [f64]| features(plays.down[i], plays.to_go[i], plays.ball_on[i], plays.secs_half[i], out),
+        f: |i: usize, out: &mut [f64]| {
+            features(
+                plays.down[i],
+                plays.to_go[i],
+                plays.ball_on[i],
+                plays.secs_half[i],
+                out,
+            )
+        },
     };
-    let labels = Labels::Classes { y: &y, classes: NextScore::ALL.len(), reference: REFERENCE };
-    let fit = logit::fit_from(&design, labels, None, opts, init.map(|m| &m.fit))
-        .map_err(|e| anyhow::anyhow!("expected-points model on {} snaps with a down: {e}", train.len()))?;
+    let labels = Labels::Classes {
+        y: &y,
+        classes: NextScore::ALL.len(),
+        reference: REFERENCE,
+    };
+    let fit = logit::fit_from(&design, labels, None, opts, init.map(|m| &m.fit)).map_err(|e| {
+        anyhow::anyhow!(
+            "expected-points model on {} snaps with a down: {e}",
+            train.len()
+        )
+    })?;
     let mut model = EpModel {
         fit,
         features: FEATURES.iter().map(|s| s.to_string()).collect(),
@@ -203,7 +240,10 @@ impl EpModel {
         let mut q = [0.0; 7];
         features(down, to_go, ball_on, secs_half, &mut x);
         self.fit.probs(&x, &mut q);
-        NextScore::ALL.iter().map(|c| q[c.index()] * c.points(self.td_value)).sum()
+        NextScore::ALL
+            .iter()
+            .map(|c| q[c.index()] * c.points(self.td_value))
+            .sum()
     }
 
     /// EP of a kickoff with `secs_half` left, from the kicking team's side.
@@ -217,7 +257,12 @@ impl EpModel {
             Kind::Kickoff => self.kickoff(plays.secs_half[i]),
             Kind::ExtraPoint => self.xp_mean,
             Kind::TwoPoint => self.two_mean,
-            _ => self.situation(plays.down[i], plays.to_go[i], plays.ball_on[i], plays.secs_half[i]),
+            _ => self.situation(
+                plays.down[i],
+                plays.to_go[i],
+                plays.ball_on[i],
+                plays.secs_half[i],
+            ),
         }
     }
 
@@ -242,7 +287,10 @@ pub fn epa(plays: &Plays, ep: &[f64]) -> Vec<f64> {
             if plays.points[i] != 0 || plays.kind[i].is_try() {
                 return plays.points[i] as f64 - ep[i];
             }
-            let after = if i + 1 < n && plays.game[i + 1] == plays.game[i] && plays.half(i + 1) == plays.half(i) {
+            let after = if i + 1 < n
+                && plays.game[i + 1] == plays.game[i]
+                && plays.half(i + 1) == plays.half(i)
+            {
                 if plays.offense[i + 1] == plays.offense[i] {
                     ep[i + 1]
                 } else {

@@ -110,7 +110,11 @@ pub fn features(kind: WpKind, s: &Situation, out: &mut [f64]) {
         }
         WpKind::Full => {
             let line = s.line.unwrap_or(0.0);
-            let late = if s.overtime { 0.0 } else { (1.0 - s.secs_game / 300.0).max(0.0) };
+            let late = if s.overtime {
+                0.0
+            } else {
+                (1.0 - s.secs_game / 300.0).max(0.0)
+            };
             out[0] = 1.0;
             out[1] = m;
             out[2] = s.ep / 7.0;
@@ -151,15 +155,33 @@ pub fn fit(
     init: Option<&WpModel>,
 ) -> anyhow::Result<WpModel> {
     let names = kind.features();
-    let y: Vec<f64> = rows.iter().map(|&i| plays.offense_result(i as usize)).collect();
+    let y: Vec<f64> = rows
+        .iter()
+        .map(|&i| plays.offense_result(i as usize))
+        .collect();
     let design = FnDesign {
         rows,
         p: names.len(),
         f: |i: usize, out: &mut [f64]| features(kind, &Situation::of_snap(plays, ep, i), out),
     };
-    let fit = logit::fit_from(&design, Labels::Binary(&y), None, opts, init.map(|m| &m.fit))
-        .map_err(|e| anyhow::anyhow!("win-probability model ({kind:?}) on {} snaps: {e}", rows.len()))?;
-    Ok(WpModel { kind, features: names.iter().map(|s| s.to_string()).collect(), fit })
+    let fit = logit::fit_from(
+        &design,
+        Labels::Binary(&y),
+        None,
+        opts,
+        init.map(|m| &m.fit),
+    )
+    .map_err(|e| {
+        anyhow::anyhow!(
+            "win-probability model ({kind:?}) on {} snaps: {e}",
+            rows.len()
+        )
+    })?;
+    Ok(WpModel {
+        kind,
+        features: names.iter().map(|s| s.to_string()).collect(),
+        fit,
+    })
 }
 
 impl WpModel {
@@ -172,7 +194,9 @@ impl WpModel {
 
     /// WP before every snap, from its offense's side.
     pub fn score_all(&self, plays: &Plays, ep: &[f64]) -> Vec<f64> {
-        (0..plays.len()).map(|i| self.situation(&Situation::of_snap(plays, ep, i))).collect()
+        (0..plays.len())
+            .map(|i| self.situation(&Situation::of_snap(plays, ep, i)))
+            .collect()
     }
 }
 
