@@ -7,6 +7,7 @@ pub mod charts;
 pub mod export;
 pub mod playfile;
 pub mod plays;
+pub mod report;
 pub mod situation;
 pub mod splits;
 pub mod stats;
