@@ -341,4 +341,12 @@ fn html_has_the_same_numbers_and_no_inline_code() {
     assert!(!lower.contains(" style="), "inline style");
     assert!(!lower.contains("<style"), "style element");
     assert!(report::REPORT_CSS.contains("@page"));
+    if let Ok(keep) = std::env::var("LATEGAME_REPORT_OUT") {
+        // For a look in a browser: the page beside its stylesheet.
+        let _ = std::fs::create_dir_all(&keep);
+        let local = |h: String| h.replace("/static/report.css", "report.css");
+        let _ = std::fs::write(Path::new(&keep).join("report.css"), report::REPORT_CSS);
+        let _ = std::fs::write(Path::new(&keep).join("report-letter.html"), local(html));
+        let _ = std::fs::write(Path::new(&keep).join("report-a4.html"), local(report::html(&d, Paper::A4)));
+    }
 }

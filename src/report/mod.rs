@@ -291,7 +291,15 @@ fn key_metric(j: usize, c: &Cell) -> KeyMetric {
 }
 
 fn row_chart(m: &KeyMetric) -> Figure {
-    let label = if m.higher_is_better { m.label.to_string() } else { format!("{} (low = good)", m.short) };
+    // Short enough for the chart's label gutter; the table has full names.
+    let name = match m.key {
+        "success" => "Success rate",
+        "cpoe" => "CPOE",
+        "anya" => "ANY/A",
+        "int_rate" => "Int %",
+        _ => m.label,
+    };
+    let label = if m.higher_is_better { name.to_string() } else { format!("{name} (low = good)") };
     let row = DotRow {
         label,
         estimate: m.cell.estimate,
