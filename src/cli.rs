@@ -12,6 +12,10 @@ use indicatif::{ProgressBar, ProgressStyle};
 use std::path::PathBuf;
 use std::process::ExitCode;
 
+/// Our team and passer in the bundled demo league.
+pub const DEMO_TEAM: &str = "BRF";
+pub const DEMO_PASSER: &str = "Wendell Jastennox";
+
 #[derive(Parser)]
 #[command(name = "lategame", version, about = "Late-game passer review: fits its own EP/WP models from a league play file and serves situation splits.")]
 struct Cli {
@@ -163,8 +167,14 @@ fn run(cli: Cli) -> Result<ExitCode> {
         share: false,
     }));
     match cmd {
-        Cmd::Serve(args) => {
+        Cmd::Serve(mut args) => {
+            let demo = args.file.is_none();
             let league = open_league(args.file.clone(), args.lenient, args.refit)?;
+            if demo && args.team.is_none() && args.passer.is_none() {
+                // The bundled demo's scenario (demo-data/README.md).
+                args.team = Some(DEMO_TEAM.to_string());
+                args.passer = league.plays().passer_index(DEMO_PASSER).map(|_| DEMO_PASSER.to_string());
+            }
             crate::web::serve_blocking(league, &args)?;
             Ok(ExitCode::SUCCESS)
         }
@@ -236,8 +246,8 @@ fn run(cli: Cli) -> Result<ExitCode> {
             if !season.is_empty() {
                 situation.seasons = Some(season);
             }
-            let league = open_league(file, false, false)?;
             let paper = crate::report::Paper::parse(&paper).context("--paper: expected letter or a4")?;
+            let league = open_league(file, false, false)?;
             let pdf = crate::report::pdf(&league, &situation, &passer, paper)?;
             std::fs::write(&out, pdf).with_context(|| format!("writing {}", out.display()))?;
             println!("report written to {}", out.display());

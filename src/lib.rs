@@ -4,10 +4,15 @@
 //! further up the chain.
 
 pub mod charts;
+pub mod cli;
 pub mod export;
+pub mod league;
+pub mod models;
 pub mod playfile;
 pub mod plays;
 pub mod report;
+pub mod sim;
 pub mod situation;
 pub mod splits;
 pub mod stats;
+pub mod web;

@@ -435,6 +435,12 @@ impl Situation {
         q
     }
 
+    /// Every restriction as query pairs (preset-derived ones included), for
+    /// showing what a preset means.
+    pub fn to_query_full(&self) -> Vec<(String, String)> {
+        Situation { preset: None, ..self.clone() }.to_query()
+    }
+
     /// The same situation with another season list (used for stability and
     /// season-by-season views).
     pub fn with_seasons(&self, seasons: Option<Vec<i32>>) -> Situation {

@@ -156,6 +156,16 @@ fn build(p: &Plays, v: &SnapValues, passer: &str) -> ReportData {
     ReportData::from_parts(p, v, provenance(), &Preset::LateClose.situation(8), passer, splits::DEFAULT_MIN_DROPBACKS).expect("report")
 }
 
+/// A fresh scratch folder for this test process.
+fn scratch() -> std::path::PathBuf {
+    static N: std::sync::atomic::AtomicUsize = std::sync::atomic::AtomicUsize::new(0);
+    let k = N.fetch_add(1, std::sync::atomic::Ordering::SeqCst);
+    let dir = std::env::temp_dir().join(format!("lategame-report-test-{}-{k}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    dir
+}
+
 fn tool(name: &str, args: &[&str]) -> String {
     let out = Command::new(name)
         .args(args)
@@ -270,14 +280,14 @@ fn unknown_passer_and_empty_situation_are_errors() {
 
 #[test]
 fn pdf_is_one_page_with_the_numbers_in_its_text() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = scratch();
     let (p, epa, wp, wpa, cp) = league(None);
     let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp };
     for (paper, size) in [(Paper::Letter, "792 x 612 pts"), (Paper::A4, "841.89 x 595.28 pts")] {
         let d = build(&p, &v, PASSERS[3]);
         let bytes = report::render_pdf(&d, paper).unwrap();
         assert!(bytes.starts_with(b"%PDF-"));
-        let path = write_pdf(dir.path(), &format!("report-{}.pdf", paper.key()), &bytes);
+        let path = write_pdf(&dir, &format!("report-{}.pdf", paper.key()), &bytes);
         let info = tool("pdfinfo", &[&path]);
         assert!(info.lines().any(|l| l.starts_with("Pages:") && l.trim_end().ends_with(" 1")), "{info}");
         assert!(info.contains(size), "{info}");
@@ -301,7 +311,7 @@ fn pdf_is_one_page_with_the_numbers_in_its_text() {
 
 #[test]
 fn small_samples_and_long_names_still_fit() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = scratch();
     let long = "Maximilian Bartholomew Fitzgerald-Wolstenholme Ashbury-Vandercourt the Third of Tallisker Mere";
     let (p, epa, wp, wpa, cp) = league(Some(long));
     let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp };
@@ -309,10 +319,10 @@ fn small_samples_and_long_names_still_fit() {
     assert!(backup.dropbacks < 20 && !backup.qualified);
     assert!(backup.sample_note.starts_with(&format!("n = {} dropbacks", backup.dropbacks)), "{}", backup.sample_note);
     assert!(backup.sample_note.contains("wide"));
-    let path = write_pdf(dir.path(), "backup.pdf", &report::render_pdf(&backup, Paper::Letter).unwrap());
+    let path = write_pdf(&dir, "backup.pdf", &report::render_pdf(&backup, Paper::Letter).unwrap());
     assert_on_page_without_overlaps(&path);
     let d = build(&p, &v, long);
-    let path = write_pdf(dir.path(), "long.pdf", &report::render_pdf(&d, Paper::Letter).unwrap());
+    let path = write_pdf(&dir, "long.pdf", &report::render_pdf(&d, Paper::Letter).unwrap());
     let info = tool("pdfinfo", &[&path]);
     assert!(info.contains("Pages:           1"), "{info}");
     assert!(tool("pdftotext", &[&path, "-"]).contains("Maximilian Bartholomew"));
@@ -349,4 +359,100 @@ fn html_has_the_same_numbers_and_no_inline_code() {
         let _ = std::fs::write(Path::new(&keep).join("report-letter.html"), local(html));
         let _ = std::fs::write(Path::new(&keep).join("report-a4.html"), local(report::html(&d, Paper::A4)));
     }
+}
+
+// ---- the bundled demo league, with fitted models, through the real API ----
+
+mod common;
+
+/// The passer with the most late & close dropbacks in the demo league's
+/// current season, and his report.
+fn demo_report(league: &lategame::league::League) -> ReportData {
+    let s = report::report_situation(league.plays(), &Preset::LateClose.situation(8));
+    let t = splits::split_table(league.plays(), &league.values(), &s, splits::DEFAULT_MIN_DROPBACKS);
+    let passer = t.rows.first().expect("a passer").passer.clone();
+    ReportData::build(league, &Preset::LateClose.situation(8), &passer, splits::DEFAULT_MIN_DROPBACKS).expect("report")
+}
+
+#[test]
+fn demo_report_numbers_equal_the_json_api() {
+    let league = common::demo_league();
+    let d = demo_report(&league);
+    assert_eq!(d.seasons, vec![*league.plays().seasons().last().unwrap()]);
+    assert_eq!(d.provenance.fingerprint, league.scored.fingerprint);
+    assert_eq!(d.provenance.model_version, lategame::models::MODEL_VERSION);
+    let url = format!("{}/api/splits?{}&passer={}", common::demo_server(), d.query_string(), common::enc(&d.passer));
+    let json = common::get(&url).json();
+    // The API names the passer filter too; the situation is the same.
+    assert_eq!(json["situation"].as_str(), Some(format!("{}; passer {}", d.situation, d.passer).as_str()));
+    let row = &json["rows"][0];
+    assert_eq!(row["passer"].as_str(), Some(d.passer.as_str()));
+    assert_eq!(row["dropbacks"].as_u64(), Some(d.dropbacks as u64));
+    let close = |a: Option<f64>, b: Option<f64>| match (a, b) {
+        (Some(x), Some(y)) => (x - y).abs() <= 1e-12 * x.abs().max(1.0),
+        (None, None) => true,
+        _ => false,
+    };
+    for m in &d.metrics {
+        let c = &row["cells"][metric_index(m.key).unwrap()];
+        assert_eq!(c["key"].as_str(), Some(m.key));
+        for (field, ours) in [("value", m.cell.value), ("estimate", m.cell.estimate), ("lo", m.cell.lo), ("hi", m.cell.hi), ("league", m.cell.league), ("percentile", m.cell.percentile), ("signal", m.cell.signal)] {
+            assert!(close(c[field].as_f64(), ours), "{} {field}: api {:?}, report {ours:?}", m.key, c[field]);
+        }
+        assert_eq!(report::fmt_metric(c["estimate"].as_f64(), m.decimals), m.estimate, "{}", m.key);
+        assert_eq!(report::fmt_metric(c["league"].as_f64(), m.decimals), m.league, "{}", m.key);
+    }
+}
+
+#[test]
+fn demo_pdf_and_html_carry_the_numbers() {
+    let league = common::demo_league();
+    let d = demo_report(&league);
+    let dir = scratch();
+    for paper in [Paper::Letter, Paper::A4] {
+        let path = write_pdf(&dir, &format!("demo-{}.pdf", paper.key()), &report::pdf(&league, &Preset::LateClose.situation(8), &d.passer, paper).unwrap());
+        let info = tool("pdfinfo", &[&path]);
+        assert!(info.contains("Pages:           1"), "{info}");
+        let text = tool("pdftotext", &["-layout", &path, "-"]);
+        assert!(text.contains(&d.passer) && text.contains(&d.situation), "{text}");
+        for m in &d.metrics {
+            for s in [&m.value, &m.estimate, &m.interval, &m.league, &m.percentile, &m.signal] {
+                assert!(text.contains(s.as_str()), "{} {s} missing", m.key);
+            }
+        }
+        assert_on_page_without_overlaps(&path);
+    }
+    let html = report::html(&d, Paper::Letter);
+    for m in &d.metrics {
+        assert!(html.contains(&format!(">{}<", m.estimate)), "{}", m.key);
+    }
+    let css = common::get(&format!("{}/static/report.css", common::demo_server()));
+    assert!(css.header("content-type").is_some_and(|t| t.starts_with("text/css")));
+}
+
+#[test]
+fn report_command_writes_one_page() {
+    let league = common::demo_league();
+    let d = demo_report(&league);
+    let dir = scratch();
+    let out = dir.join("cli.pdf");
+    let run = Command::new(env!("CARGO_BIN_EXE_lategame"))
+        .args(["report", "--passer", &d.passer, "--paper", "a4", "-o"])
+        .arg(&out)
+        .env("LATEGAME_CACHE_DIR", std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target").join("test-cache"))
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .unwrap();
+    assert!(run.status.success(), "{}", String::from_utf8_lossy(&run.stderr));
+    let info = tool("pdfinfo", &[&out.to_string_lossy()]);
+    assert!(info.contains("Pages:           1") && info.contains("(A4)"), "{info}");
+    let bad = Command::new(env!("CARGO_BIN_EXE_lategame"))
+        .args(["report", "--passer", "Nobody Here", "-o"])
+        .arg(dir.join("x.pdf"))
+        .env("LATEGAME_CACHE_DIR", std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target").join("test-cache"))
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .unwrap();
+    assert!(!bad.status.success());
+    assert!(String::from_utf8_lossy(&bad.stderr).contains("no passer named 'Nobody Here'"));
 }

@@ -53,7 +53,7 @@ fn y_axis(shapes: &mut Vec<Shape>, sy: &Scale, x: f64, right: f64, ticks: &[f64]
 
 /// Rows of estimate with 90% interval, league tick per row.
 pub fn dot_interval(title: &str, rows: &[DotRow], width: f64) -> Figure {
-    let label_w = (width * 0.34).min(190.0);
+    let label_w = (width * 0.42).min(230.0);
     let row_h = 26.0;
     let top = 8.0;
     let height = top + row_h * rows.len().max(1) as f64 + 30.0;

@@ -99,10 +99,10 @@ pub fn nice_ticks(lo: f64, hi: f64, count: usize) -> Vec<f64> {
         if v > end + step * 0.5 || k > 100 {
             break;
         }
-        // Clean floating noise such as 0.30000000000000004: round to one
-        // decimal finer than the step.
-        let p = 10f64.powi((-step.log10().floor()).max(0.0) as i32 + 1);
-        out.push(((v / step).round() * step * p).round() / p);
+        // Clean floating noise such as 0.6000000000000001.
+        let digits = (-step.log10().floor()).max(0.0) as i32 + 1;
+        let p = 10f64.powi(digits);
+        out.push((v * p).round() / p);
         k += 1;
     }
     out

@@ -9,6 +9,7 @@ pub use html::{html, REPORT_CSS};
 pub use pdf::render_pdf;
 
 use crate::charts::{self, BarItem, DotRow, Figure};
+use crate::league::League;
 use crate::plays::Plays;
 use crate::situation::Situation;
 use crate::splits::{self, metric_index, Cell, Snap, SnapValues, METRICS};
@@ -101,7 +102,7 @@ pub struct KeyMetric {
 #[derive(Debug, Clone)]
 pub struct SnapLine {
     pub snap: Snap,
-    /// "W7 @KBY" (season first when the report spans several).
+    /// "W7 @ KBY"; "'24 W7 @ KBY" when the report spans several seasons.
     pub game: String,
     /// "Q4 2:13", "OT 6:40".
     pub when: String,
@@ -172,6 +173,17 @@ pub fn report_situation(p: &Plays, s: &Situation) -> Situation {
 }
 
 impl ReportData {
+    /// The report for `passer` in `situation` (current season when it names
+    /// none), from an opened league.
+    pub fn build(league: &League, situation: &Situation, passer: &str, min_dropbacks: u32) -> Result<ReportData, ReportError> {
+        let provenance = Provenance {
+            fingerprint: league.scored.fingerprint.clone(),
+            model_version: crate::models::MODEL_VERSION.to_string(),
+            date: today(),
+        };
+        ReportData::from_parts(league.plays(), &league.values(), provenance, situation, passer, min_dropbacks)
+    }
+
     /// The report from plays and their model values. Calls the split
     /// engine once for the table and once for the snaps behind it.
     pub fn from_parts(
@@ -322,7 +334,7 @@ fn ordinal_period(period: i32) -> String {
 fn game_label(p: &Plays, s: &Snap, multi_season: bool) -> String {
     let home = s.index < p.len() && p.off_home[s.index];
     let at = if home { "vs " } else { "@ " };
-    let season = if multi_season { format!("{} ", s.season) } else { String::new() };
+    let season = if multi_season { format!("'{:02} ", s.season.rem_euclid(100)) } else { String::new() };
     format!("{season}W{} {at}{}", s.week, s.defense)
 }
 
@@ -429,6 +441,13 @@ fn civil_from_days(z: i64) -> (i64, u32, u32) {
     let d = (doy - (153 * mp + 2) / 5 + 1) as u32;
     let m = if mp < 10 { mp + 3 } else { mp - 9 } as u32;
     (yoe + era * 400 + i64::from(m <= 2), m, d)
+}
+
+/// The one-page PDF for `passer` in `situation` (current season when it
+/// names none), at the default qualifying minimum.
+pub fn pdf(league: &League, situation: &Situation, passer: &str, paper: Paper) -> anyhow::Result<Vec<u8>> {
+    let data = ReportData::build(league, situation, passer, splits::DEFAULT_MIN_DROPBACKS)?;
+    Ok(render_pdf(&data, paper)?)
 }
 
 #[cfg(test)]

@@ -470,7 +470,7 @@ fn legend(pen: &mut Pen, x: f32, y: f32, w: f32) {
 
 fn snap_table(pen: &mut Pen, x: f32, y: f32, w: f32, title: &str, snaps: &[SnapLine]) {
     pen.heading(x, y, title, w);
-    let fixed = [62.0, 42.0, 34.0, 44.0, 26.0, 38.0];
+    let fixed = [66.0, 38.0, 32.0, 50.0, 24.0, 34.0];
     let result_w = (w - fixed.iter().sum::<f32>()).max(40.0);
     let widths = [fixed[0], fixed[1], fixed[2], fixed[3], fixed[4], result_w, fixed[5]];
     let aligns = [Align::Left, Align::Left, Align::Left, Align::Left, Align::Right, Align::Left, Align::Right];

@@ -44,8 +44,38 @@ pub enum Stat {
     Mean,
 }
 
+/// Which metric (for fast dispatch in the per-snap loop).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+pub enum Id {
+    Dropbacks,
+    Attempts,
+    Completions,
+    CompPct,
+    Yards,
+    Ypa,
+    Td,
+    Int,
+    IntRate,
+    Sacks,
+    SackRate,
+    Scrambles,
+    ScrambleRate,
+    Rating,
+    Anya,
+    Epa,
+    Success,
+    WpaTotal,
+    Wpa,
+    Cpoe,
+    Turnover,
+    Sticks,
+    Pace,
+}
+
 #[derive(Debug, Clone, Copy, Serialize)]
 pub struct MetricDef {
+    #[serde(skip)]
+    pub id: Id,
     pub key: &'static str,
     pub label: &'static str,
     /// Column heading.
@@ -62,7 +92,9 @@ pub struct MetricDef {
     pub decision: bool,
 }
 
+#[allow(clippy::too_many_arguments)]
 const fn m(
+    id: Id,
     key: &'static str,
     label: &'static str,
     short: &'static str,
@@ -74,7 +106,7 @@ const fn m(
     projector: bool,
     decision: bool,
 ) -> MetricDef {
-    MetricDef { key, label, short, unit, stat, higher_is_better, scale, decimals, projector, decision }
+    MetricDef { id, key, label, short, unit, stat, higher_is_better, scale, decimals, projector, decision }
 }
 
 use Stat::*;
@@ -82,29 +114,29 @@ use Unit::*;
 
 /// Every metric, in table order.
 pub const METRICS: &[MetricDef] = &[
-    m("dropbacks", "Dropbacks", "DB", Dropback, Count, true, 1.0, 0, true, false),
-    m("attempts", "Attempts", "Att", Attempt, Count, true, 1.0, 0, false, false),
-    m("completions", "Completions", "Cmp", Attempt, Count, true, 1.0, 0, false, false),
-    m("comp_pct", "Completion %", "Cmp%", Attempt, Rate, true, 100.0, 1, false, false),
-    m("yards", "Passing yards", "Yds", Attempt, Count, true, 1.0, 0, false, false),
-    m("ypa", "Yards per attempt", "Y/A", Attempt, Mean, true, 1.0, 2, false, false),
-    m("td", "Touchdown passes", "TD", Attempt, Count, true, 1.0, 0, false, false),
-    m("int", "Interceptions", "Int", Attempt, Count, false, 1.0, 0, false, true),
-    m("int_rate", "Interception %", "Int%", Attempt, Rate, false, 100.0, 1, false, true),
-    m("sacks", "Sacks", "Sk", Dropback, Count, false, 1.0, 0, false, true),
-    m("sack_rate", "Sack %", "Sk%", Dropback, Rate, false, 100.0, 1, false, true),
-    m("scrambles", "Scrambles", "Scr", Dropback, Count, true, 1.0, 0, false, true),
-    m("scramble_rate", "Scramble %", "Scr%", Dropback, Rate, true, 100.0, 1, false, true),
-    m("rating", "Passer rating", "Rate", Attempt, Mean, true, 1.0, 1, true, false),
-    m("anya", "Adj. net yards per attempt", "ANY/A", PassOrSack, Mean, true, 1.0, 2, false, false),
-    m("epa", "EPA per dropback", "EPA/db", Dropback, Mean, true, 1.0, 3, true, false),
-    m("success", "Success rate (EPA > 0)", "Succ%", Dropback, Rate, true, 100.0, 1, true, false),
-    m("wpa_total", "WPA total", "WPA", Dropback, Count, true, 1.0, 3, true, false),
-    m("wpa", "WPA per dropback", "WPA/db", Dropback, Mean, true, 1.0, 4, false, false),
-    m("cpoe", "Completion % over expected", "CPOE", AttemptWithCp, Mean, true, 1.0, 1, true, false),
-    m("turnover", "Turnover %", "TO%", Dropback, Rate, false, 100.0, 1, false, true),
-    m("sticks", "Past the sticks, 3rd/4th down %", "Stx%", LateDownAttempt, Rate, true, 100.0, 1, false, true),
-    m("pace", "Hurry-up pace (s between snaps)", "Pace", HurryUp, Mean, false, 1.0, 1, false, true),
+    m(Id::Dropbacks, "dropbacks", "Dropbacks", "DB", Dropback, Count, true, 1.0, 0, true, false),
+    m(Id::Attempts, "attempts", "Attempts", "Att", Attempt, Count, true, 1.0, 0, false, false),
+    m(Id::Completions, "completions", "Completions", "Cmp", Attempt, Count, true, 1.0, 0, false, false),
+    m(Id::CompPct, "comp_pct", "Completion %", "Cmp%", Attempt, Rate, true, 100.0, 1, false, false),
+    m(Id::Yards, "yards", "Passing yards", "Yds", Attempt, Count, true, 1.0, 0, false, false),
+    m(Id::Ypa, "ypa", "Yards per attempt", "Y/A", Attempt, Mean, true, 1.0, 2, false, false),
+    m(Id::Td, "td", "Touchdown passes", "TD", Attempt, Count, true, 1.0, 0, false, false),
+    m(Id::Int, "int", "Interceptions", "Int", Attempt, Count, false, 1.0, 0, false, true),
+    m(Id::IntRate, "int_rate", "Interception %", "Int%", Attempt, Rate, false, 100.0, 1, false, true),
+    m(Id::Sacks, "sacks", "Sacks", "Sk", Dropback, Count, false, 1.0, 0, false, true),
+    m(Id::SackRate, "sack_rate", "Sack %", "Sk%", Dropback, Rate, false, 100.0, 1, false, true),
+    m(Id::Scrambles, "scrambles", "Scrambles", "Scr", Dropback, Count, true, 1.0, 0, false, true),
+    m(Id::ScrambleRate, "scramble_rate", "Scramble %", "Scr%", Dropback, Rate, true, 100.0, 1, false, true),
+    m(Id::Rating, "rating", "Passer rating", "Rate", Attempt, Mean, true, 1.0, 1, true, false),
+    m(Id::Anya, "anya", "Adj. net yards per attempt", "ANY/A", PassOrSack, Mean, true, 1.0, 2, false, false),
+    m(Id::Epa, "epa", "EPA per dropback", "EPA/db", Dropback, Mean, true, 1.0, 3, true, false),
+    m(Id::Success, "success", "Success rate (EPA > 0)", "Succ%", Dropback, Rate, true, 100.0, 1, true, false),
+    m(Id::WpaTotal, "wpa_total", "WPA total", "WPA", Dropback, Count, true, 1.0, 3, true, false),
+    m(Id::Wpa, "wpa", "WPA per dropback", "WPA/db", Dropback, Mean, true, 1.0, 4, false, false),
+    m(Id::Cpoe, "cpoe", "Completion % over expected", "CPOE", AttemptWithCp, Mean, true, 1.0, 1, true, false),
+    m(Id::Turnover, "turnover", "Turnover %", "TO%", Dropback, Rate, false, 100.0, 1, false, true),
+    m(Id::Sticks, "sticks", "Past the sticks, 3rd/4th down %", "Stx%", LateDownAttempt, Rate, true, 100.0, 1, false, true),
+    m(Id::Pace, "pace", "Hurry-up pace (s between snaps)", "Pace", HurryUp, Mean, false, 1.0, 1, false, true),
 ];
 
 pub fn metric_index(key: &str) -> Option<usize> {
@@ -164,37 +196,58 @@ pub fn in_unit(p: &Plays, v: &SnapValues, unit: Unit, i: usize) -> bool {
 pub fn value(p: &Plays, v: &SnapValues, m: &MetricDef, i: usize) -> f64 {
     let b = |x: bool| if x { 1.0 } else { 0.0 };
     let k = p.kind[i];
-    match m.key {
-        "dropbacks" | "attempts" => 1.0,
-        "completions" | "comp_pct" => b(p.complete[i]),
-        "yards" | "ypa" => pass_yards(p, i),
-        "td" => b(is_td_pass(p, i)),
-        "int" | "int_rate" => b(p.intercepted[i]),
-        "sacks" | "sack_rate" => b(k == Kind::Sack),
-        "scrambles" | "scramble_rate" => b(k == Kind::Scramble),
+    match m.id {
+        Id::Dropbacks | Id::Attempts => 1.0,
+        Id::Completions | Id::CompPct => b(p.complete[i]),
+        Id::Yards | Id::Ypa => pass_yards(p, i),
+        Id::Td => b(is_td_pass(p, i)),
+        Id::Int | Id::IntRate => b(p.intercepted[i]),
+        Id::Sacks | Id::SackRate => b(k == Kind::Sack),
+        Id::Scrambles | Id::ScrambleRate => b(k == Kind::Scramble),
         // The rating is a per-attempt mean once its caps are left off:
         // 100/6 · [5(c − .3) + .25(y − 3) + 20·td + 2.375 − 25·int].
-        "rating" => {
+        Id::Rating => {
             100.0 / 6.0
                 * (5.0 * (b(p.complete[i]) - 0.3) + 0.25 * (pass_yards(p, i) - 3.0) + 20.0 * b(is_td_pass(p, i)) + 2.375
                     - 25.0 * b(p.intercepted[i]))
         }
-        "anya" => {
+        Id::Anya => {
             if k == Kind::Sack {
                 p.gain[i] as f64
             } else {
                 pass_yards(p, i) + 20.0 * b(is_td_pass(p, i)) - 45.0 * b(p.intercepted[i])
             }
         }
-        "epa" => v.epa.get(i).copied().unwrap_or(0.0),
-        "success" => b(v.epa.get(i).is_some_and(|e| *e > 0.0)),
-        "wpa_total" | "wpa" => v.wpa.get(i).copied().unwrap_or(0.0),
-        "cpoe" => 100.0 * (b(p.complete[i]) - v.cp.get(i).copied().unwrap_or(0.0)),
-        "turnover" => b(p.intercepted[i] || p.fumble_lost[i]),
-        "sticks" => b(p.air_yards[i].is_some_and(|a| a >= p.to_go[i])),
-        "pace" => hurry_up_gap(p, i).unwrap_or(0.0),
-        _ => 0.0,
+        Id::Epa => v.epa.get(i).copied().unwrap_or(0.0),
+        Id::Success => b(v.epa.get(i).is_some_and(|e| *e > 0.0)),
+        Id::WpaTotal | Id::Wpa => v.wpa.get(i).copied().unwrap_or(0.0),
+        Id::Cpoe => 100.0 * (b(p.complete[i]) - v.cp.get(i).copied().unwrap_or(0.0)),
+        Id::Turnover => b(p.intercepted[i] || p.fumble_lost[i]),
+        Id::Sticks => b(p.air_yards[i].is_some_and(|a| a >= p.to_go[i])),
+        Id::Pace => hurry_up_gap(p, i).unwrap_or(0.0),
     }
+}
+
+/// Every metric's contribution of dropback `i` at once: `out[j]` is set and
+/// bit `j` of the returned mask is on when the snap counts toward metric `j`.
+pub fn contributions(p: &Plays, v: &SnapValues, i: usize, out: &mut [f64]) -> u64 {
+    let mut mask = 0u64;
+    let units = [
+        in_unit(p, v, Unit::Dropback, i),
+        in_unit(p, v, Unit::Attempt, i),
+        in_unit(p, v, Unit::PassOrSack, i),
+        in_unit(p, v, Unit::AttemptWithCp, i),
+        in_unit(p, v, Unit::LateDownAttempt, i),
+        in_unit(p, v, Unit::HurryUp, i),
+    ];
+    for (j, m) in METRICS.iter().enumerate() {
+        let inside = units[m.unit as usize];
+        if inside {
+            out[j] = value(p, v, m, i);
+            mask |= 1 << j;
+        }
+    }
+    mask
 }
 
 /// The state cell of a snap for direct standardization:

@@ -13,7 +13,7 @@ pub use snaps::{coach_spot, down_distance, game_snaps, play_list, result_text, S
 use crate::plays::{Plays, NO_PASSER};
 use crate::situation::{Preset, Situation};
 use crate::stats;
-use metrics::{cell, in_unit, value, CELLS};
+use metrics::{cell, contributions, CELLS};
 use serde::Serialize;
 use std::collections::{BTreeMap, HashMap};
 
@@ -42,10 +42,10 @@ fn new_accs() -> Accs {
     vec![Acc::default(); METRICS.len()]
 }
 
-fn add_snap(accs: &mut [Acc], p: &Plays, v: &SnapValues, i: usize) {
-    for (j, m) in METRICS.iter().enumerate() {
-        if in_unit(p, v, m.unit, i) {
-            accs[j].add(value(p, v, m, i));
+fn add_masked(accs: &mut [Acc], vals: &[f64], mask: u64) {
+    for (j, a) in accs.iter_mut().enumerate() {
+        if mask & (1 << j) != 0 {
+            a.add(vals[j]);
         }
     }
 }
@@ -80,14 +80,16 @@ fn accumulate(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
         by_season: HashMap::new(),
         league_by_season: BTreeMap::new(),
     };
+    let mut vals = vec![0.0f64; METRICS.len()];
     for i in 0..p.len() {
         if !p.dropback[i] || p.passer[i] == NO_PASSER || !unseasoned.matches(p, v.wp, i) {
             continue;
         }
         let who = p.passer[i];
         let season = p.season[i];
-        add_snap(out.by_season.entry((who, season)).or_insert_with(new_accs), p, v, i);
-        add_snap(out.league_by_season.entry(season).or_insert_with(new_accs), p, v, i);
+        let mask = contributions(p, v, i, &mut vals);
+        add_masked(out.by_season.entry((who, season)).or_insert_with(new_accs), &vals, mask);
+        add_masked(out.league_by_season.entry(season).or_insert_with(new_accs), &vals, mask);
         if seasons.is_some_and(|ss| !ss.contains(&season)) {
             continue;
         }
@@ -98,13 +100,14 @@ fn accumulate(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
             team: p.offense[i],
         });
         ps.team = p.offense[i];
-        for (j, m) in METRICS.iter().enumerate() {
-            if in_unit(p, v, m.unit, i) {
-                let x = value(p, v, m, i);
+        let nm = METRICS.len();
+        for j in 0..nm {
+            if mask & (1 << j) != 0 {
+                let x = vals[j];
                 ps.accs[j].add(x);
                 out.league[j].add(x);
-                out.league_cells[c * METRICS.len() + j].add(x);
-                ps.cells[c * METRICS.len() + j] += 1.0;
+                out.league_cells[c * nm + j].add(x);
+                ps.cells[c * nm + j] += 1.0;
             }
         }
     }

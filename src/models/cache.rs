@@ -1,0 +1,76 @@
+//! Fitted coefficients and calibration on disk, as JSON keyed by (data
+//! fingerprint, MODEL_VERSION), in the user's cache folder (or
+//! `LATEGAME_CACHE_DIR`); never beside the play file.
+
+use super::{Calibration, Models, MODEL_VERSION};
+use anyhow::Context;
+use serde::{Deserialize, Serialize};
+use sha2::{Digest, Sha256};
+use std::path::{Path, PathBuf};
+
+/// Environment variable naming the cache folder (overrides the default).
+pub const CACHE_DIR_VAR: &str = "LATEGAME_CACHE_DIR";
+
+/// What one cache file holds.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct Entry {
+    pub fingerprint: String,
+    pub model_version: String,
+    pub models: Models,
+    pub calibration: Calibration,
+}
+
+/// The cache folder: `$LATEGAME_CACHE_DIR` if set and non-empty, else
+/// `<user cache dir>/lategame`. `None` when neither is known.
+pub fn cache_dir() -> Option<PathBuf> {
+    match std::env::var_os(CACHE_DIR_VAR) {
+        Some(d) if !d.is_empty() => Some(PathBuf::from(d)),
+        _ => dirs::cache_dir().map(|d| d.join("lategame")),
+    }
+}
+
+/// File name for a fingerprint under the current model version.
+pub fn file_name(fingerprint: &str) -> String {
+    let mut h = Sha256::new();
+    h.update(fingerprint.as_bytes());
+    h.update([0u8]);
+    h.update(MODEL_VERSION.as_bytes());
+    let d = h.finalize();
+    let hex: String = d.iter().take(12).map(|b| format!("{b:02x}")).collect();
+    format!("models-{hex}.json")
+}
+
+/// Read the entry for `fingerprint` from `dir`. A missing, unreadable or
+/// mismatched file is a miss (`Ok(None)` or an error the caller may log).
+pub fn load(dir: &Path, fingerprint: &str) -> anyhow::Result<Option<Entry>> {
+    let path = dir.join(file_name(fingerprint));
+    let text = match std::fs::read_to_string(&path) {
+        Ok(t) => t,
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(None),
+        Err(e) => return Err(e).with_context(|| format!("reading model cache {}", path.display())),
+    };
+    let entry: Entry =
+        serde_json::from_str(&text).with_context(|| format!("model cache {}: not a cache entry", path.display()))?;
+    if entry.fingerprint != fingerprint || entry.model_version != MODEL_VERSION {
+        return Ok(None);
+    }
+    Ok(Some(entry))
+}
+
+/// Write the entry for `fingerprint` into `dir` (created if needed), through
+/// a temporary file and a rename so a reader never sees half a file.
+pub fn store(dir: &Path, fingerprint: &str, models: &Models, calibration: &Calibration) -> anyhow::Result<PathBuf> {
+    std::fs::create_dir_all(dir).with_context(|| format!("creating model cache folder {}", dir.display()))?;
+    let entry = Entry {
+        fingerprint: fingerprint.to_string(),
+        model_version: MODEL_VERSION.to_string(),
+        models: models.clone(),
+        calibration: calibration.clone(),
+    };
+    let path = dir.join(file_name(fingerprint));
+    let tmp = dir.join(format!("{}.tmp{}", file_name(fingerprint), std::process::id()));
+    let text = serde_json::to_string(&entry).context("serializing the fitted models")?;
+    std::fs::write(&tmp, text).with_context(|| format!("writing {}", tmp.display()))?;
+    std::fs::rename(&tmp, &path).with_context(|| format!("renaming {} to {}", tmp.display(), path.display()))?;
+    Ok(path)
+}

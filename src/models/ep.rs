@@ -1,0 +1,205 @@
+//! Expected points: a multinomial logistic model of the next score in the
+//! half (Yurko, Ventura & Horowitz 2019), EP = sum of class probability times
+//! class points; constants for kickoffs and tries; EPA per snap.
+
+use super::logit::{self, FitOptions, FnDesign, Labels};
+use crate::playfile::Kind;
+use crate::plays::{NextScore, Plays};
+use serde::{Deserialize, Serialize};
+
+/// Knots (yards from own goal) of the piecewise-linear field-position basis.
+const BALL_KNOTS: [f64; 9] = [10.0, 20.0, 30.0, 40.0, 50.0, 60.0, 70.0, 80.0, 90.0];
+
+/// Names of the model's columns, in order.
+pub const FEATURES: [&str; 24] = [
+    "intercept",
+    "ball_on",
+    "ball_on_10",
+    "ball_on_20",
+    "ball_on_30",
+    "ball_on_40",
+    "ball_on_50",
+    "ball_on_60",
+    "ball_on_70",
+    "ball_on_80",
+    "ball_on_90",
+    "down2",
+    "down3",
+    "down4",
+    "log_to_go",
+    "down2_log_to_go",
+    "down3_log_to_go",
+    "down4_log_to_go",
+    "goal_to_go",
+    "secs_half",
+    "near_end_half",
+    "ball_on_near_end",
+    "down3_ball_on",
+    "down4_ball_on",
+];
+
+/// The next-score class index used as the reference (no further score).
+pub const REFERENCE: usize = NextScore::NoScore as usize;
+
+/// League try values used when a file holds no tries of a kind.
+const DEFAULT_XP: f64 = 0.94;
+const DEFAULT_TWO: f64 = 0.95;
+
+/// A fitted expected-points model.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct EpModel {
+    pub fit: logit::Fit,
+    pub features: Vec<String>,
+    /// Value of a touchdown: 6 + `try_mean`.
+    pub td_value: f64,
+    /// Mean points of all tries in the file.
+    pub try_mean: f64,
+    /// Mean points of extra-point and two-point tries: a try snap's EP.
+    pub xp_mean: f64,
+    pub two_mean: f64,
+    /// Mean next-score value over kickoffs from the side of the team the file
+    /// lists as offense on the kickoff: a kickoff snap's EP.
+    pub kickoff_ep: f64,
+}
+
+/// Features of one snap (down 0 is scored as 1st and 10).
+pub fn features(down: i32, to_go: i32, ball_on: i32, secs_half: i32, out: &mut [f64]) {
+    let (down, to_go) = if down == 0 { (1, 10) } else { (down, to_go) };
+    let ball = ball_on.clamp(1, 99) as f64;
+    let b = ball / 100.0;
+    let lt = (to_go.max(1) as f64).ln();
+    let d2 = (down == 2) as i32 as f64;
+    let d3 = (down == 3) as i32 as f64;
+    let d4 = (down == 4) as i32 as f64;
+    let ne = (120.0 - secs_half as f64).max(0.0) / 120.0;
+    out[0] = 1.0;
+    out[1] = b;
+    for (k, knot) in BALL_KNOTS.iter().enumerate() {
+        out[2 + k] = (ball - knot).max(0.0) / 100.0;
+    }
+    out[11] = d2;
+    out[12] = d3;
+    out[13] = d4;
+    out[14] = lt;
+    out[15] = d2 * lt;
+    out[16] = d3 * lt;
+    out[17] = d4 * lt;
+    out[18] = (ball_on + to_go >= 100) as i32 as f64;
+    out[19] = secs_half.max(0) as f64 / 1800.0;
+    out[20] = ne;
+    out[21] = b * ne;
+    out[22] = d3 * b;
+    out[23] = d4 * b;
+}
+
+/// Fit on the snaps with a down among `rows` (indices into `plays`); the
+/// constants come from the kickoffs and tries among `rows`.
+pub fn fit(plays: &Plays, rows: &[u32], opts: &FitOptions, init: Option<&EpModel>) -> anyhow::Result<EpModel> {
+    let sub = |kind: Kind| -> Option<f64> {
+        let (mut s, mut n) = (0.0, 0usize);
+        for &i in rows {
+            let i = i as usize;
+            if plays.kind[i] == kind {
+                s += plays.points[i] as f64;
+                n += 1;
+            }
+        }
+        (n > 0).then(|| s / n as f64)
+    };
+    let xp = sub(Kind::ExtraPoint);
+    let two = sub(Kind::TwoPoint);
+    let (mut ts, mut tn) = (0.0, 0usize);
+    for &i in rows {
+        let i = i as usize;
+        if plays.kind[i].is_try() {
+            ts += plays.points[i] as f64;
+            tn += 1;
+        }
+    }
+    let try_mean = if tn > 0 { ts / tn as f64 } else { DEFAULT_XP };
+    let td_value = 6.0 + try_mean;
+    let (mut ks, mut kn) = (0.0, 0usize);
+    for &i in rows {
+        let i = i as usize;
+        if plays.kind[i] == Kind::Kickoff {
+            ks += plays.next_score[i].points(td_value);
+            kn += 1;
+        }
+    }
+    let kickoff_ep = if kn > 0 { ks / kn as f64 } else { 0.0 };
+
+    let train: Vec<u32> = rows.iter().copied().filter(|&i| plays.down[i as usize] > 0).collect();
+    let y: Vec<u8> = train.iter().map(|&i| plays.next_score[i as usize].index() as u8).collect();
+    let design = FnDesign {
+        rows: &train,
+        p: FEATURES.len(),
+        f: |i: usize, out: &mut [f64]| features(plays.down[i], plays.to_go[i], plays.ball_on[i], plays.secs_half[i], out),
+    };
+    let labels = Labels::Classes { y: &y, classes: NextScore::ALL.len(), reference: REFERENCE };
+    let fit = logit::fit_from(&design, labels, None, opts, init.map(|m| &m.fit))
+        .map_err(|e| anyhow::anyhow!("expected-points model on {} snaps with a down: {e}", train.len()))?;
+    Ok(EpModel {
+        fit,
+        features: FEATURES.iter().map(|s| s.to_string()).collect(),
+        td_value,
+        try_mean,
+        xp_mean: xp.unwrap_or(DEFAULT_XP),
+        two_mean: two.unwrap_or(DEFAULT_TWO),
+        kickoff_ep,
+    })
+}
+
+impl EpModel {
+    /// EP of a down-and-distance situation from the offense's side.
+    pub fn situation(&self, down: i32, to_go: i32, ball_on: i32, secs_half: i32) -> f64 {
+        let mut x = [0.0; FEATURES.len()];
+        let mut q = [0.0; 7];
+        features(down, to_go, ball_on, secs_half, &mut x);
+        self.fit.probs(&x, &mut q);
+        NextScore::ALL.iter().map(|c| q[c.index()] * c.points(self.td_value)).sum()
+    }
+
+    /// EP before snap `i`, from its offense's side.
+    pub fn snap(&self, plays: &Plays, i: usize) -> f64 {
+        match plays.kind[i] {
+            Kind::Kickoff => self.kickoff_ep,
+            Kind::ExtraPoint => self.xp_mean,
+            Kind::TwoPoint => self.two_mean,
+            _ => self.situation(plays.down[i], plays.to_go[i], plays.ball_on[i], plays.secs_half[i]),
+        }
+    }
+
+    /// EP before every snap.
+    pub fn score_all(&self, plays: &Plays) -> Vec<f64> {
+        (0..plays.len()).map(|i| self.snap(plays, i)).collect()
+    }
+}
+
+/// EPA per snap from the EP before every snap.
+///
+/// Convention: a snap that scores (`points != 0`) earns its points as scored
+/// minus EP before (a touchdown counts +6, not the touchdown value); the try
+/// that follows earns its own points minus the league mean for its kind. A
+/// try always ends with EP after = 0. Otherwise EP after is the next snap's
+/// EP in the same game and half (negated when the offense changes), and 0
+/// when the half or game ends.
+pub fn epa(plays: &Plays, ep: &[f64]) -> Vec<f64> {
+    let n = plays.len();
+    (0..n)
+        .map(|i| {
+            if plays.points[i] != 0 || plays.kind[i].is_try() {
+                return plays.points[i] as f64 - ep[i];
+            }
+            let after = if i + 1 < n && plays.game[i + 1] == plays.game[i] && plays.half(i + 1) == plays.half(i) {
+                if plays.offense[i + 1] == plays.offense[i] {
+                    ep[i + 1]
+                } else {
+                    -ep[i + 1]
+                }
+            } else {
+                0.0
+            };
+            after - ep[i]
+        })
+        .collect()
+}

@@ -1,0 +1,397 @@
+//! Models fitted from the league itself: expected points, win probability,
+//! completion probability, their calibration, the on-disk coefficient cache,
+//! and the scored frame (every snap with EP, EPA, WP, WPA, completion prob).
+
+pub mod cache;
+pub mod calib;
+pub mod cp;
+pub mod ep;
+pub mod logit;
+pub mod wp;
+#[cfg(test)]
+pub(crate) mod testkit;
+
+pub use calib::{calibrate_with, CalibOptions, Calibration};
+pub use logit::FitStats as ModelReport;
+
+use crate::playfile::{rows_frame, Kind, PlayRow};
+use crate::plays::Plays;
+use anyhow::Context;
+use polars::prelude::{Column, DataFrame};
+use serde::{Deserialize, Serialize};
+
+/// Bumped whenever features, labels or conventions change; part of the cache key.
+pub const MODEL_VERSION: &str = "lategame-models-1";
+
+/// Everything fitted from one league.
+#[derive(Debug, Serialize, Deserialize, Clone, PartialEq)]
+pub struct Models {
+    pub version: String,
+    pub ep: ep::EpModel,
+    pub wp: wp::WpModel,
+    /// Margin-and-time win probability, for comparison only.
+    pub baseline: wp::WpModel,
+    /// `None` when the file carries no air yards.
+    pub cp: Option<cp::CpModel>,
+    pub report: FitReport,
+}
+
+/// How each fit went.
+#[derive(Debug, Serialize, Deserialize, Clone, PartialEq)]
+pub struct FitReport {
+    pub snaps: usize,
+    pub ep: ModelReport,
+    pub wp: ModelReport,
+    pub baseline: ModelReport,
+    pub cp: Option<ModelReport>,
+    /// Wall time of the whole fit.
+    pub seconds: f64,
+}
+
+/// Per-snap values, each `plays.len()` long, all from the offense's side.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Scores {
+    /// EP before the snap.
+    pub ep: Vec<f64>,
+    pub epa: Vec<f64>,
+    /// WP before the snap.
+    pub wp: Vec<f64>,
+    pub wpa: Vec<f64>,
+    /// Completion probability; NaN where no completion model value (not a
+    /// pass with air yards, or no completion model).
+    pub cp: Vec<f64>,
+}
+
+/// A league with its scores and the models and calibration behind them.
+pub struct Scored {
+    pub plays: Plays,
+    pub scores: Scores,
+    pub models: Models,
+    pub calibration: Calibration,
+    pub fingerprint: String,
+    /// True when models and calibration came from the cache.
+    pub from_cache: bool,
+}
+
+fn options() -> logit::FitOptions {
+    logit::FitOptions::default()
+}
+
+/// Fit every model on all snaps.
+pub fn fit(plays: &Plays) -> anyhow::Result<Models> {
+    let all: Vec<u32> = (0..plays.len() as u32).collect();
+    fit_rows(plays, &all)
+}
+
+/// Fit every model on the snaps `rows` (indices into `plays`).
+pub fn fit_rows(plays: &Plays, rows: &[u32]) -> anyhow::Result<Models> {
+    fit_rows_from(plays, rows, None)
+}
+
+/// `fit_rows` with Newton started from `init`'s coefficients (same answer,
+/// fewer iterations when `init` was fit on overlapping rows).
+pub fn fit_rows_from(plays: &Plays, rows: &[u32], init: Option<&Models>) -> anyhow::Result<Models> {
+    let started = std::time::Instant::now();
+    if rows.is_empty() {
+        anyhow::bail!("no snaps to fit the models on");
+    }
+    let opts = options();
+    let ep = ep::fit(plays, rows, &opts, init.map(|m| &m.ep))?;
+    let ep_all = ep.score_all(plays);
+    let wp = wp::fit(plays, &ep_all, rows, wp::WpKind::Full, &opts, init.map(|m| &m.wp))?;
+    let baseline = wp::fit(plays, &ep_all, rows, wp::WpKind::Baseline, &opts, init.map(|m| &m.baseline))?;
+    let cp = cp::fit(plays, rows, &opts, init.and_then(|m| m.cp.as_ref()))?;
+    let report = FitReport {
+        snaps: rows.len(),
+        ep: ep.fit.stats.clone(),
+        wp: wp.fit.stats.clone(),
+        baseline: baseline.fit.stats.clone(),
+        cp: cp.as_ref().map(|c| c.fit.stats.clone()),
+        seconds: started.elapsed().as_secs_f64(),
+    };
+    Ok(Models { version: MODEL_VERSION.to_string(), ep, wp, baseline, cp, report })
+}
+
+impl Models {
+    /// Score every snap of `plays`.
+    pub fn score(&self, plays: &Plays) -> Scores {
+        let ep = self.ep.score_all(plays);
+        let epa = ep::epa(plays, &ep);
+        let wp = self.wp.score_all(plays, &ep);
+        let wpa = wp::wpa(plays, &wp);
+        let cp = match &self.cp {
+            Some(m) => m.score_all(plays),
+            None => vec![f64::NAN; plays.len()],
+        };
+        Scores { ep, epa, wp, wpa, cp }
+    }
+}
+
+/// Hold out the most recent season and measure how well models fit on the
+/// rest predict it (see `calib`).
+pub fn calibrate(plays: &Plays) -> anyhow::Result<Calibration> {
+    calibrate_with(plays, &CalibOptions::default())
+}
+
+/// Models and calibration from the cache when an entry for `fingerprint`
+/// exists (unless `refit`), else fitted and stored; then every snap scored.
+/// A cache that cannot be read or written is logged and otherwise ignored.
+pub fn fit_and_score(plays: Plays, fingerprint: &str, refit: bool) -> anyhow::Result<Scored> {
+    let dir = cache::cache_dir();
+    fit_and_score_in(plays, fingerprint, refit, dir.as_deref())
+}
+
+/// `fit_and_score` with an explicit cache folder (`None`: no cache).
+pub fn fit_and_score_in(
+    plays: Plays,
+    fingerprint: &str,
+    refit: bool,
+    dir: Option<&std::path::Path>,
+) -> anyhow::Result<Scored> {
+    let cached = match (dir, refit) {
+        (Some(d), false) => match cache::load(d, fingerprint) {
+            Ok(e) => e,
+            Err(e) => {
+                tracing::warn!("ignoring the model cache: {e:#}");
+                None
+            }
+        },
+        _ => None,
+    };
+    let (models, calibration, from_cache) = match cached {
+        Some(e) => (e.models, e.calibration, true),
+        None => {
+            let models = fit(&plays)?;
+            let calibration = calib::calibrate_from(&plays, &CalibOptions::default(), Some(&models))?;
+            if let Some(d) = dir {
+                match cache::store(d, fingerprint, &models, &calibration) {
+                    Ok(p) => tracing::info!("fitted models cached in {}", p.display()),
+                    Err(e) => tracing::warn!("could not cache the fitted models: {e:#}"),
+                }
+            }
+            (models, calibration, false)
+        }
+    };
+    let scores = models.score(&plays);
+    Ok(Scored { plays, scores, models, calibration, fingerprint: fingerprint.to_string(), from_cache })
+}
+
+/// The play row of snap `i`, as the file layout spells it.
+fn play_row(plays: &Plays, i: usize) -> PlayRow {
+    let g = &plays.games[plays.game[i] as usize];
+    let has_down = plays.down[i] > 0;
+    let pass = plays.kind[i] == Kind::Pass;
+    PlayRow {
+        game: g.key.clone(),
+        season: plays.season[i],
+        week: plays.week[i],
+        home: plays.teams[g.home as usize].clone(),
+        away: plays.teams[g.away as usize].clone(),
+        seq: plays.seq[i],
+        period: plays.period[i],
+        clock: plays.clock[i],
+        offense: plays.teams[plays.offense[i] as usize].clone(),
+        defense: plays.teams[plays.defense[i] as usize].clone(),
+        off_score: plays.off_score[i],
+        def_score: plays.def_score[i],
+        off_timeouts: plays.off_timeouts[i],
+        def_timeouts: plays.def_timeouts[i],
+        down: has_down.then_some(plays.down[i]),
+        to_go: has_down.then_some(plays.to_go[i]),
+        ball_on: plays.ball_on[i],
+        kind: plays.kind[i],
+        passer: plays.passer_name(i).map(str::to_string),
+        complete: (pass || plays.complete[i]).then_some(plays.complete[i]),
+        intercepted: (pass || plays.intercepted[i]).then_some(plays.intercepted[i]),
+        air_yards: plays.air_yards[i],
+        gain: Some(plays.gain[i]),
+        fumble_lost: Some(plays.fumble_lost[i]),
+        touchback: Some(plays.touchback[i]),
+        points: plays.points[i],
+        home_line: g.home_line,
+    }
+}
+
+/// The scored league as one frame: every column of the play file (same
+/// names and layout as `playfile::rows_frame`; `complete`/`intercepted`
+/// empty on snaps that are not passes unless true), then
+///
+/// - `ep_before`: expected points before the snap, offense's side;
+/// - `epa`: expected points added by the snap (see `ep::epa`);
+/// - `wp_before`: offense's win probability before the snap;
+/// - `wpa`: win probability added (see `wp::wpa`);
+/// - `completion_prob`: probability the pass is caught; empty where the
+///   completion model does not apply.
+pub fn scored_frame(scored: &Scored) -> anyhow::Result<DataFrame> {
+    let plays = &scored.plays;
+    let rows: Vec<PlayRow> = (0..plays.len()).map(|i| play_row(plays, i)).collect();
+    let mut df = rows_frame(&rows)?;
+    let s = &scored.scores;
+    let cp: Vec<Option<f64>> = s.cp.iter().map(|&v| v.is_finite().then_some(v)).collect();
+    let extra = vec![
+        Column::new("ep_before".into(), s.ep.clone()),
+        Column::new("epa".into(), s.epa.clone()),
+        Column::new("wp_before".into(), s.wp.clone()),
+        Column::new("wpa".into(), s.wpa.clone()),
+        Column::new("completion_prob".into(), cp),
+    ];
+    df.hstack_mut(&extra).context("adding the score columns")?;
+    Ok(df)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn small() -> Plays {
+        testkit::league(600, 3, 42)
+    }
+
+    #[test]
+    fn synthetic_league_fits_and_scores() {
+        let plays = small();
+        let models = fit(&plays).expect("fit");
+        assert!(models.report.ep.converged, "{:?}", models.report.ep);
+        assert!(models.report.wp.converged, "{:?}", models.report.wp);
+        let s = models.score(&plays);
+        let n = plays.len();
+        for v in [&s.ep, &s.epa, &s.wp, &s.wpa] {
+            assert_eq!(v.len(), n);
+            assert!(v.iter().all(|x| x.is_finite()));
+        }
+        assert!(s.wp.iter().all(|&p| (0.0..=1.0).contains(&p)));
+        // EP rises with field position on 1st and 10.
+        let ep: Vec<f64> = (1..10).map(|k| models.ep.situation(1, 10, k * 10, 1500)).collect();
+        assert!(ep.windows(2).all(|w| w[1] > w[0]), "{ep:?}");
+        // The completion model is defined exactly on passes with air yards.
+        for i in 0..n {
+            assert_eq!(s.cp[i].is_finite(), cp::applies(&plays, i));
+        }
+        // WPA telescopes within a game: WP before the first snap plus all
+        // WPA from a fixed team's side ends at that team's result.
+        for g in plays.games.iter().take(50) {
+            let home = g.home;
+            let mut wp = if plays.offense[g.start] == home { s.wp[g.start] } else { 1.0 - s.wp[g.start] };
+            for i in g.start..g.end {
+                wp += if plays.offense[i] == home { s.wpa[i] } else { -s.wpa[i] };
+            }
+            assert!((wp - g.home_result()).abs() < 1e-9);
+        }
+    }
+
+    #[test]
+    fn epa_follows_its_convention() {
+        let plays = small();
+        let models = fit(&plays).expect("fit");
+        let s = models.score(&plays);
+        for i in 0..plays.len() - 1 {
+            if plays.points[i] != 0 || plays.kind[i].is_try() {
+                assert!((s.epa[i] - (plays.points[i] as f64 - s.ep[i])).abs() < 1e-12);
+            } else if plays.game[i + 1] == plays.game[i] && plays.half(i + 1) == plays.half(i) {
+                let after = if plays.offense[i + 1] == plays.offense[i] { s.ep[i + 1] } else { -s.ep[i + 1] };
+                assert!((s.epa[i] - (after - s.ep[i])).abs() < 1e-12);
+            } else {
+                assert!((s.epa[i] + s.ep[i]).abs() < 1e-12);
+            }
+        }
+        assert!(plays.kind.iter().zip(&s.ep).all(|(k, &e)| *k != Kind::Kickoff || e == models.ep.kickoff_ep));
+    }
+
+    #[test]
+    fn cache_round_trip_gives_identical_scores() {
+        let dir = std::env::temp_dir().join(format!("lategame-models-cache-{}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&dir);
+        let first = fit_and_score_in(small(), "synthetic-42", false, Some(&dir)).expect("first");
+        assert!(!first.from_cache);
+        let second = fit_and_score_in(small(), "synthetic-42", false, Some(&dir)).expect("second");
+        assert!(second.from_cache);
+        // JSON keeps coefficients to the last bit or so (serde_json's
+        // default float parser may differ by one unit in the last place).
+        let close = |a: &[f64], b: &[f64]| a.iter().zip(b).all(|(x, y)| (x - y).abs() <= 1e-12 * (1.0 + x.abs()));
+        assert!(close(&first.scores.ep, &second.scores.ep));
+        assert!(close(&first.scores.epa, &second.scores.epa));
+        assert!(close(&first.scores.wp, &second.scores.wp));
+        assert!(close(&first.scores.wpa, &second.scores.wpa));
+        assert_eq!(first.models.report.ep.iterations, second.models.report.ep.iterations);
+        assert!((first.calibration.wp.brier - second.calibration.wp.brier).abs() < 1e-12);
+        let forced = fit_and_score_in(small(), "synthetic-42", true, Some(&dir)).expect("refit");
+        assert!(!forced.from_cache);
+        let other = fit_and_score_in(small(), "another-file", false, Some(&dir)).expect("other");
+        assert!(!other.from_cache);
+        // A corrupt entry is a miss, not an error.
+        std::fs::write(dir.join(cache::file_name("synthetic-42")), "{not json").expect("write");
+        let again = fit_and_score_in(small(), "synthetic-42", false, Some(&dir)).expect("corrupt cache");
+        assert!(!again.from_cache);
+        let _ = std::fs::remove_dir_all(&dir);
+    }
+
+    #[test]
+    fn scored_frame_has_inputs_and_scores() {
+        let plays = small();
+        let n = plays.len();
+        let scored = fit_and_score_in(plays, "frame", true, None).expect("score");
+        let df = scored_frame(&scored).expect("frame");
+        assert_eq!(df.height(), n);
+        for c in crate::playfile::COLUMNS {
+            assert!(df.column(c.name).is_ok(), "missing {}", c.name);
+        }
+        for c in ["ep_before", "epa", "wp_before", "wpa", "completion_prob"] {
+            assert!(df.column(c).is_ok(), "missing {c}");
+        }
+        let cp = df.column("completion_prob").expect("cp");
+        let passes = (0..n).filter(|&i| cp::applies(&scored.plays, i)).count();
+        assert_eq!(n - cp.null_count(), passes);
+    }
+
+    #[test]
+    fn calibration_holds_out_the_last_season() {
+        let plays = small();
+        let c = calibrate(&plays).expect("calibrate");
+        assert_eq!(c.holdout_season, Some(2002));
+        assert_eq!(c.train_snaps + c.test_snaps, plays.len());
+        assert_eq!(c.reliability.iter().map(|b| b.n).sum::<usize>(), c.test_snaps);
+        assert!(c.wp.brier < c.constant.brier);
+        let json = serde_json::to_string(&c).expect("json");
+        let back: Calibration = serde_json::from_str(&json).expect("parse");
+        assert_eq!(back.reliability.len(), c.reliability.len());
+        assert!((back.wp.brier - c.wp.brier).abs() < 1e-12);
+    }
+
+    /// Timing on a league of about 1.2M snaps: run with
+    /// `cargo test --release --lib models::tests::timing -- --ignored --nocapture`.
+    #[test]
+    #[ignore]
+    fn timing_on_a_million_snaps() {
+        let t = std::time::Instant::now();
+        let plays = testkit::league(10_300, 6, 7);
+        eprintln!("synthetic league: {} snaps in {:.1}s", plays.len(), t.elapsed().as_secs_f64());
+        let dir = std::env::temp_dir().join(format!("lategame-models-timing-{}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&dir);
+        let t = std::time::Instant::now();
+        let models = fit(&plays).expect("fit");
+        let fit_s = t.elapsed().as_secs_f64();
+        let t = std::time::Instant::now();
+        let scores = models.score(&plays);
+        let score_s = t.elapsed().as_secs_f64();
+        eprintln!("fit EP+WP+baseline+CP: {fit_s:.2}s; score all snaps: {score_s:.2}s");
+        for (name, r) in [("ep", &models.report.ep), ("wp", &models.report.wp), ("baseline", &models.report.baseline)] {
+            eprintln!(
+                "  {name}: {} rows x {} features, {} warm + {} full iterations, converged {}, |grad| {:.2e}, {:.2}s",
+                r.rows, r.features, r.warm_iterations, r.iterations, r.converged, r.grad_norm, r.seconds
+            );
+        }
+        if let Some(r) = &models.report.cp {
+            eprintln!("  cp: {} rows, {} + {} iterations, {:.2}s", r.rows, r.warm_iterations, r.iterations, r.seconds);
+        }
+        let t = std::time::Instant::now();
+        let cal = calib::calibrate_from(&plays, &CalibOptions::default(), Some(&models)).expect("calibrate");
+        eprintln!("calibration (refit without the last season): {:.2}s; Brier {:.4} vs baseline {:.4}", t.elapsed().as_secs_f64(), cal.wp.brier, cal.baseline.brier);
+        cache::store(&dir, "timing", &models, &cal).expect("store");
+        let t = std::time::Instant::now();
+        let warm = fit_and_score_in(plays, "timing", false, Some(&dir)).expect("warm");
+        eprintln!("warm start from cache (load + score): {:.2}s, from_cache {}", t.elapsed().as_secs_f64(), warm.from_cache);
+        assert!(warm.from_cache);
+        assert_eq!(scores.ep.len(), warm.scores.ep.len());
+        let _ = std::fs::remove_dir_all(&dir);
+    }
+}

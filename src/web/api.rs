@@ -1,0 +1,137 @@
+//! JSON twins of every table, with the same query parameters as the pages.
+//! Bad input is a 400 with `{"error", "param", "value", "reason"}`.
+
+use super::query::Params;
+use super::Shared;
+use crate::splits::{self, metric_index, METRICS};
+use axum::extract::{RawQuery, State};
+use axum::http::{header, StatusCode};
+use axum::response::{IntoResponse, Response};
+use axum::Json;
+use serde_json::json;
+
+pub fn bad_request(e: &crate::situation::SituationError) -> Response {
+    (
+        StatusCode::BAD_REQUEST,
+        Json(json!({ "error": e.to_string(), "param": e.param, "value": e.value, "reason": e.reason })),
+    )
+        .into_response()
+}
+
+fn not_found(what: &str) -> Response {
+    (StatusCode::NOT_FOUND, Json(json!({ "error": what }))).into_response()
+}
+
+fn parse(q: &Option<String>) -> Result<Params, Response> {
+    Params::parse(q.as_deref()).map_err(|e| bad_request(&e))
+}
+
+pub async fn summary(State(st): State<Shared>) -> Response {
+    let lg = st.league();
+    let p = lg.plays();
+    Json(json!({
+        "file": lg.source.display().to_string(),
+        "fingerprint": lg.scored.fingerprint,
+        "model_version": crate::models::MODEL_VERSION,
+        "seasons": p.seasons(),
+        "games": p.games.len(),
+        "snaps": p.len(),
+        "teams": p.teams.len(),
+        "passers": p.passers.len(),
+        "validation": lg.report,
+        "fit": lg.scored.models.report,
+    }))
+    .into_response()
+}
+
+/// The split table; `sort`/`dir`/`by` order the rows as on the page.
+pub fn split_for(st: &Shared, params: &Params) -> splits::SplitTable {
+    let lg = st.league();
+    let mut t = splits::split_table(lg.plays(), &lg.values(), &params.situation, params.min_dropbacks);
+    if let Some(key) = &params.sort {
+        t.sort(key, params.sort_by, params.descending);
+    }
+    t
+}
+
+pub async fn splits(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
+    match parse(&q) {
+        Ok(params) => Json(split_for(&st, &params)).into_response(),
+        Err(r) => r,
+    }
+}
+
+pub async fn splits_csv(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
+    match parse(&q) {
+        Ok(params) => (
+            [(header::CONTENT_TYPE, "text/csv; charset=utf-8"), (header::CONTENT_DISPOSITION, "attachment; filename=\"splits.csv\"")],
+            crate::export::split_csv(&split_for(&st, &params)),
+        )
+            .into_response(),
+        Err(r) => r,
+    }
+}
+
+pub async fn profile(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
+    let params = match parse(&q) {
+        Ok(p) => p,
+        Err(r) => return r,
+    };
+    let Some(passer) = params.situation.passer.clone() else {
+        return bad_request(&crate::situation::SituationError { param: "passer".into(), value: String::new(), reason: "a passer name is required".into() });
+    };
+    let lg = st.league();
+    let trend = super::pages::trend_situation(&params);
+    let base = crate::situation::Situation { passer: None, ..params.situation.clone() };
+    match splits::profile(lg.plays(), &lg.values(), &passer, &base, &trend, params.min_dropbacks) {
+        Some(p) => Json(p).into_response(),
+        None => not_found(&format!("no passer named {passer} in this league")),
+    }
+}
+
+pub async fn plays(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
+    let params = match parse(&q) {
+        Ok(p) => p,
+        Err(r) => return r,
+    };
+    let lg = st.league();
+    let metric = params.metric.as_deref().and_then(metric_index).map(|j| &METRICS[j]);
+    let snaps = splits::play_list(lg.plays(), &lg.values(), &params.situation, params.situation.passer.as_deref(), metric);
+    Json(json!({ "situation": params.situation.describe(), "count": snaps.len(), "snaps": snaps })).into_response()
+}
+
+pub async fn game(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
+    let params = match parse(&q) {
+        Ok(p) => p,
+        Err(r) => return r,
+    };
+    let lg = st.league();
+    let Some(key) = params.game.clone() else {
+        return bad_request(&crate::situation::SituationError { param: "game".into(), value: String::new(), reason: "a game key is required".into() });
+    };
+    let Some(gi) = lg.plays().games.iter().position(|g| g.key == key) else {
+        return not_found(&format!("no game {key} in this league"));
+    };
+    let snaps = splits::game_snaps(lg.plays(), &lg.values(), gi);
+    let g = &lg.plays().games[gi];
+    Json(json!({
+        "game": g.key,
+        "home": lg.plays().teams[g.home as usize],
+        "away": lg.plays().teams[g.away as usize],
+        "home_final": g.home_final,
+        "away_final": g.away_final,
+        "snaps": snaps,
+    }))
+    .into_response()
+}
+
+pub async fn calibration(State(st): State<Shared>) -> Response {
+    let lg = st.league();
+    Json(json!({
+        "model_version": crate::models::MODEL_VERSION,
+        "fingerprint": lg.scored.fingerprint,
+        "calibration": lg.scored.calibration,
+        "fit": lg.scored.models.report,
+    }))
+    .into_response()
+}

@@ -1,0 +1,196 @@
+//! The HTTP server: shared state (the loaded league behind a swappable
+//! `Arc`), the router, security headers, the access token for shared mode,
+//! limits and timeouts. Pages live in `pages`, JSON in `api`.
+
+mod api;
+mod assets;
+mod calib;
+mod pages;
+mod query;
+
+use crate::cli::ServeArgs;
+use crate::league::League;
+use crate::playfile::LoadOptions;
+use anyhow::{Context, Result};
+use axum::extract::{Request, State};
+use axum::http::{header, HeaderValue, StatusCode};
+use axum::middleware::{self, Next};
+use axum::response::{IntoResponse, Response};
+use axum::routing::{get, post};
+use axum::Router;
+use std::net::SocketAddr;
+use std::path::PathBuf;
+use std::sync::{Arc, RwLock};
+use std::time::Duration;
+use tower_http::limit::RequestBodyLimitLayer;
+use tower_http::set_header::SetResponseHeaderLayer;
+use tower_http::timeout::TimeoutLayer;
+
+pub use query::Params;
+
+/// What every handler sees.
+pub struct AppState {
+    league: RwLock<Arc<League>>,
+    /// Where the league came from and how, for reloading.
+    source: PathBuf,
+    lenient: bool,
+    /// Defaults for "our team" and "our passer" (a cookie overrides them).
+    pub team: Option<String>,
+    pub passer: Option<String>,
+    /// Required on every request in shared mode.
+    token: Option<String>,
+    /// Last reload outcome, shown on the home page.
+    reload_note: RwLock<Option<String>>,
+}
+
+impl AppState {
+    pub fn new(league: League, lenient: bool, team: Option<String>, passer: Option<String>, token: Option<String>) -> AppState {
+        AppState {
+            source: league.source.clone(),
+            league: RwLock::new(Arc::new(league)),
+            lenient,
+            team,
+            passer,
+            token,
+            reload_note: RwLock::new(None),
+        }
+    }
+
+    /// The league as loaded now (a reload swaps it; requests in flight keep
+    /// the one they started with).
+    pub fn league(&self) -> Arc<League> {
+        match self.league.read() {
+            Ok(g) => g.clone(),
+            Err(p) => p.into_inner().clone(),
+        }
+    }
+
+    /// Load the file again. The new file is validated and scored first; if
+    /// anything fails the old league keeps serving.
+    pub fn reload(&self) -> Result<(), String> {
+        let result = League::open(&self.source, &LoadOptions { lenient: self.lenient }, false);
+        let note = match result {
+            Ok(new) => {
+                let msg = format!("reloaded {}: {} snaps", self.source.display(), new.plays().len());
+                match self.league.write() {
+                    Ok(mut g) => *g = Arc::new(new),
+                    Err(p) => *p.into_inner() = Arc::new(new),
+                }
+                Ok(msg)
+            }
+            Err(e) => Err(format!("reload refused, still serving the earlier file: {e:#}")),
+        };
+        let text = match &note {
+            Ok(m) | Err(m) => m.clone(),
+        };
+        if let Ok(mut g) = self.reload_note.write() {
+            *g = Some(text);
+        }
+        note.map(|_| ())
+    }
+
+    pub fn reload_note(&self) -> Option<String> {
+        self.reload_note.read().ok().and_then(|g| g.clone())
+    }
+}
+
+pub type Shared = Arc<AppState>;
+
+/// Content-Security-Policy: our own scripts, styles and images only.
+pub const CSP: &str = "default-src 'none'; script-src 'self'; style-src 'self'; img-src 'self' data:; connect-src 'self'; form-action 'self'; base-uri 'none'; frame-ancestors 'none'";
+
+pub fn router(state: Shared) -> Router {
+    Router::new()
+        .route("/", get(pages::home))
+        .route("/explore", get(pages::explore))
+        .route("/passer", get(pages::profile))
+        .route("/plays", get(pages::plays))
+        .route("/plays.csv", get(pages::plays_csv))
+        .route("/game", get(pages::game))
+        .route("/calibration", get(pages::calibration))
+        .route("/choose", get(pages::choose))
+        .route("/reload", post(pages::reload))
+        .route("/api/summary", get(api::summary))
+        .route("/api/splits", get(api::splits))
+        .route("/api/splits.csv", get(api::splits_csv))
+        .route("/api/profile", get(api::profile))
+        .route("/api/plays", get(api::plays))
+        .route("/api/game", get(api::game))
+        .route("/api/calibration", get(api::calibration))
+        .route("/static/{file}", get(assets::serve))
+        .fallback(pages::not_found)
+        .layer(middleware::from_fn_with_state(state.clone(), require_token))
+        .layer(RequestBodyLimitLayer::new(16 * 1024))
+        .layer(TimeoutLayer::with_status_code(StatusCode::SERVICE_UNAVAILABLE, Duration::from_secs(20)))
+        .layer(SetResponseHeaderLayer::overriding(header::CONTENT_SECURITY_POLICY, HeaderValue::from_static(CSP)))
+        .layer(SetResponseHeaderLayer::overriding(header::X_CONTENT_TYPE_OPTIONS, HeaderValue::from_static("nosniff")))
+        .layer(SetResponseHeaderLayer::overriding(header::REFERRER_POLICY, HeaderValue::from_static("no-referrer")))
+        .layer(SetResponseHeaderLayer::overriding(header::X_FRAME_OPTIONS, HeaderValue::from_static("DENY")))
+        .with_state(state)
+}
+
+const TOKEN_COOKIE: &str = "lategame_token";
+
+/// In shared mode every request must carry the token: `?token=` once
+/// (answered with a cookie and a redirect to the same page without it), then
+/// the cookie.
+async fn require_token(State(state): State<Shared>, req: Request, next: Next) -> Response {
+    let Some(token) = state.token.clone() else {
+        return next.run(req).await;
+    };
+    if query::cookie(req.headers(), TOKEN_COOKIE).as_deref() == Some(token.as_str()) {
+        return next.run(req).await;
+    }
+    let pairs = query::pairs(req.uri().query());
+    if pairs.iter().any(|(k, v)| k == "token" && constant_eq(v, &token)) {
+        let rest: Vec<(String, String)> = pairs.into_iter().filter(|(k, _)| k != "token").collect();
+        let target = format!("{}{}", req.uri().path(), query::to_query_string(&rest));
+        let cookie = format!("{TOKEN_COOKIE}={token}; Path=/; HttpOnly; SameSite=Strict");
+        return (StatusCode::SEE_OTHER, [(header::LOCATION, target), (header::SET_COOKIE, cookie)]).into_response();
+    }
+    (StatusCode::UNAUTHORIZED, "401: this lategame server is shared with an access token; open the address printed when it started (it ends in ?token=...)").into_response()
+}
+
+fn constant_eq(a: &str, b: &str) -> bool {
+    a.len() == b.len() && a.bytes().zip(b.bytes()).fold(0u8, |acc, (x, y)| acc | (x ^ y)) == 0
+}
+
+/// A random token of 32 hex digits from the operating system.
+pub fn new_token() -> Result<String> {
+    use std::io::Read;
+    let mut bytes = [0u8; 16];
+    std::fs::File::open("/dev/urandom")
+        .and_then(|mut f| f.read_exact(&mut bytes))
+        .context("reading random bytes for the access token")?;
+    Ok(bytes.iter().map(|b| format!("{b:02x}")).collect())
+}
+
+/// Bind and serve until Ctrl-C. Loopback only unless `--share`.
+pub fn serve_blocking(league: League, args: &ServeArgs) -> Result<()> {
+    let addr: SocketAddr = args.bind.parse().with_context(|| format!("--bind {}: expected an address like 127.0.0.1:8750", args.bind))?;
+    if !addr.ip().is_loopback() && !args.share {
+        anyhow::bail!("--bind {addr}: not a loopback address; add --share to serve other machines (with an access token)");
+    }
+    let token = if args.share { Some(new_token()?) } else { None };
+    let state = Arc::new(AppState::new(league, args.lenient, args.team.clone(), args.passer.clone(), token.clone()));
+    let rt = tokio::runtime::Builder::new_multi_thread().enable_all().build()?;
+    rt.block_on(async move {
+        let listener = tokio::net::TcpListener::bind(addr).await.with_context(|| format!("binding {addr}"))?;
+        let local = listener.local_addr()?;
+        match &token {
+            Some(t) => println!("lategame is serving on http://{local}/?token={t}\n(shared mode: give this address only to your staff; the token is printed once)"),
+            None => println!("lategame is serving on http://{local}/"),
+        }
+        axum::serve(listener, router(state))
+            .with_graceful_shutdown(async {
+                let _ = tokio::signal::ctrl_c().await;
+            })
+            .await
+            .context("serving")
+    })
+}
+
+/// Start the server on an already bound listener (tests bind 127.0.0.1:0).
+pub async fn serve_on(listener: tokio::net::TcpListener, state: Shared) -> std::io::Result<()> {
+    axum::serve(listener, router(state)).await
+}

@@ -1,0 +1,875 @@
+//! The server-rendered pages (askama templates): home, situation explorer,
+//! passer profile, play list and cut-up export, game flow, calibration.
+//! Each page is a view of the split engine's values; numbers are formatted
+//! here, nowhere else.
+
+use super::api::split_for;
+use super::query::{self, to_query_string, Params};
+use super::Shared;
+use crate::charts::{self, DotRow, Marker, Series};
+use crate::situation::{Preset, Situation, SituationError, PARAMS};
+use crate::splits::{self, metric_index, MetricInfo, SortBy, Stat, METRICS};
+use askama::Template;
+use axum::extract::{RawQuery, State};
+use axum::http::{header, HeaderMap, StatusCode};
+use axum::response::{Html, IntoResponse, Redirect, Response};
+
+// ------------------------------------------------------------ shared bits
+
+/// Page frame: title, navigation, projector toggle, our team and passer.
+pub struct Chrome {
+    pub title: String,
+    pub active: &'static str,
+    pub projector: bool,
+    pub toggle_href: String,
+    pub toggle_label: &'static str,
+    pub our_team: Option<String>,
+    pub our_passer: Option<String>,
+    pub our_query: String,
+}
+
+const TEAM_COOKIE: &str = "lg_team";
+const PASSER_COOKIE: &str = "lg_passer";
+
+/// Our team and passer: the cookie, else the `serve --team/--passer` default.
+pub fn ours(st: &Shared, headers: &HeaderMap) -> (Option<String>, Option<String>) {
+    let team = query::cookie(headers, TEAM_COOKIE).filter(|t| !t.is_empty()).or_else(|| st.team.clone());
+    let passer = query::cookie(headers, PASSER_COOKIE).filter(|t| !t.is_empty()).or_else(|| st.passer.clone());
+    (team, passer)
+}
+
+fn chrome(st: &Shared, headers: &HeaderMap, params: Option<&Params>, title: String, active: &'static str, path: &str) -> Chrome {
+    let projector = params.is_some_and(|p| p.projector);
+    let toggle_href = match params {
+        Some(p) => format!("{path}{}", p.with(&[("view", if projector { None } else { Some("projector") })])),
+        None => format!("{path}{}", if projector { "" } else { "?view=projector" }),
+    };
+    let (our_team, our_passer) = ours(st, headers);
+    let our_query = match &our_passer {
+        Some(p) => to_query_string(&[("passer".to_string(), p.clone())]),
+        None => String::new(),
+    };
+    Chrome {
+        title,
+        active,
+        projector,
+        toggle_href,
+        toggle_label: if projector { "Laptop view" } else { "Projector view" },
+        our_team,
+        our_passer,
+        our_query,
+    }
+}
+
+fn html<T: Template>(t: &T) -> Response {
+    match t.render() {
+        Ok(body) => Html(body).into_response(),
+        Err(e) => {
+            tracing::error!("template: {e}");
+            (StatusCode::INTERNAL_SERVER_ERROR, "the page could not be drawn").into_response()
+        }
+    }
+}
+
+#[derive(Template)]
+#[template(path = "error.html")]
+struct ErrorPage {
+    chrome: Chrome,
+    status: u16,
+    heading: String,
+    reason: String,
+    back: String,
+}
+
+fn error_page(st: &Shared, headers: &HeaderMap, status: StatusCode, heading: &str, reason: String, back: &str) -> Response {
+    let page = ErrorPage {
+        chrome: chrome(st, headers, None, heading.to_string(), "", "/"),
+        status: status.as_u16(),
+        heading: heading.to_string(),
+        reason,
+        back: back.to_string(),
+    };
+    let mut r = html(&page);
+    *r.status_mut() = status;
+    r
+}
+
+fn bad_query(st: &Shared, headers: &HeaderMap, e: &SituationError, back: &str) -> Response {
+    error_page(st, headers, StatusCode::BAD_REQUEST, "That view can't be drawn", e.to_string(), back)
+}
+
+pub async fn not_found(State(st): State<Shared>, headers: HeaderMap) -> Response {
+    error_page(&st, &headers, StatusCode::NOT_FOUND, "No such page", "Nothing lives at this address.".into(), "/")
+}
+
+/// A number for a table cell; "–" when missing.
+pub fn fmt(v: Option<f64>, decimals: usize) -> String {
+    match v {
+        Some(x) if x.is_finite() => {
+            let s = format!("{x:.decimals$}");
+            if s.starts_with('-') && s.trim_start_matches(['-', '0', '.']).is_empty() {
+                s.trim_start_matches('-').to_string()
+            } else {
+                s
+            }
+        }
+        _ => "–".to_string(),
+    }
+}
+
+fn sort_value(v: Option<f64>) -> String {
+    match v {
+        Some(x) if x.is_finite() => format!("{x}"),
+        _ => String::new(),
+    }
+}
+
+// ------------------------------------------------------------ home
+
+#[derive(Template)]
+#[template(path = "home.html")]
+struct HomePage {
+    chrome: Chrome,
+    file: String,
+    fingerprint: String,
+    model_version: &'static str,
+    seasons: String,
+    games: usize,
+    snaps: usize,
+    teams: Vec<String>,
+    passers: Vec<String>,
+    files: Vec<String>,
+    rows_skipped: usize,
+    issue_lines: Vec<String>,
+    issue_counts: Vec<(String, usize)>,
+    calibration_line: String,
+    reload_note: Option<String>,
+    presets: Vec<(String, String)>,
+    fit_lines: Vec<String>,
+}
+
+pub async fn home(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let params = Params::parse(q.as_deref()).ok();
+    let lg = st.league();
+    let p = lg.plays();
+    let seasons = p.seasons();
+    let mut teams = p.teams.clone();
+    teams.sort();
+    // passers with at least one dropback, most dropbacks first
+    let mut counts = vec![0usize; p.passers.len()];
+    for i in 0..p.len() {
+        if p.dropback[i] && p.passer[i] != crate::plays::NO_PASSER {
+            counts[p.passer[i] as usize] += 1;
+        }
+    }
+    let mut passers: Vec<(usize, String)> = counts.iter().enumerate().filter(|(_, c)| **c > 0).map(|(i, c)| (*c, p.passers[i].clone())).collect();
+    passers.sort_by(|a, b| b.0.cmp(&a.0).then(a.1.cmp(&b.1)));
+    let presets = Preset::ALL.iter().map(|pr| (pr.label().to_string(), format!("/explore?preset={}", pr.key()))).collect();
+    let page = HomePage {
+        chrome: chrome(&st, &headers, params.as_ref(), "What is loaded".into(), "home", "/"),
+        file: lg.source.display().to_string(),
+        fingerprint: lg.scored.fingerprint.clone(),
+        model_version: crate::models::MODEL_VERSION,
+        seasons: match (seasons.first(), seasons.last()) {
+            (Some(a), Some(b)) if a != b => format!("{a}–{b} ({} seasons)", seasons.len()),
+            (Some(a), _) => a.to_string(),
+            _ => "none".into(),
+        },
+        games: p.games.len(),
+        snaps: p.len(),
+        teams,
+        passers: passers.into_iter().map(|(_, n)| n).collect(),
+        files: lg.report.files.clone(),
+        rows_skipped: lg.report.rows_skipped,
+        issue_lines: lg.report.issues.iter().take(20).map(|i| i.to_string()).collect(),
+        issue_counts: lg.report.counts.iter().map(|(k, v)| (k.clone(), *v)).collect(),
+        calibration_line: super::calib::summary(&lg.scored.calibration),
+        reload_note: st.reload_note(),
+        presets,
+        fit_lines: super::calib::fit_lines(&lg.scored.models.report),
+    };
+    html(&page)
+}
+
+/// Remember our team and passer in cookies, then go home.
+pub async fn choose(RawQuery(q): RawQuery) -> Response {
+    let pairs = query::pairs(q.as_deref());
+    let get = |k: &str| pairs.iter().find(|(p, _)| p == k).map(|(_, v)| v.trim().to_string());
+    let enc = |v: &str| serde_urlencoded::to_string([("v", v)]).unwrap_or_default().trim_start_matches("v=").to_string();
+    let mut resp = Redirect::to("/").into_response();
+    for (name, value) in [(TEAM_COOKIE, get("team")), (PASSER_COOKIE, get("passer"))] {
+        if let Some(v) = value {
+            let v: String = v.chars().take(200).collect();
+            let cookie = format!("{name}={}; Path=/; Max-Age=31536000; SameSite=Lax", enc(&v));
+            if let Ok(h) = header::HeaderValue::from_str(&cookie) {
+                resp.headers_mut().append(header::SET_COOKIE, h);
+            }
+        }
+    }
+    resp
+}
+
+pub async fn reload(State(st): State<Shared>) -> Response {
+    let st2 = st.clone();
+    let _ = tokio::task::spawn_blocking(move || st2.reload()).await;
+    Redirect::to("/").into_response()
+}
+
+// ------------------------------------------------------------ explorer
+
+pub struct PresetLink {
+    pub label: &'static str,
+    pub href: String,
+    pub active: bool,
+}
+
+pub struct FormField {
+    pub key: &'static str,
+    pub label: &'static str,
+    pub value: String,
+    pub placeholder: String,
+    pub help: &'static str,
+}
+
+pub struct Column {
+    pub key: &'static str,
+    pub short: &'static str,
+    pub label: &'static str,
+    pub href: String,
+    pub aria_sort: &'static str,
+    pub numeric: bool,
+    pub stability: String,
+}
+
+pub struct CellView {
+    pub main: String,
+    pub sub: String,
+    pub signal: String,
+    pub sort: String,
+    pub href: String,
+    pub title: String,
+}
+
+pub struct RowView {
+    pub passer: String,
+    pub team: String,
+    pub ours: bool,
+    pub profile_href: String,
+    pub cells: Vec<CellView>,
+}
+
+#[derive(Template)]
+#[template(path = "explore.html")]
+struct ExplorePage {
+    chrome: Chrome,
+    presets: Vec<PresetLink>,
+    preset_value: String,
+    os_value: String,
+    site_value: String,
+    fields: Vec<FormField>,
+    min: u32,
+    by_raw: bool,
+    description: String,
+    seasons: String,
+    league_dropbacks: u32,
+    qualified: usize,
+    columns: Vec<Column>,
+    league: Vec<String>,
+    rows: Vec<RowView>,
+    api_href: String,
+    csv_href: String,
+    plays_href: String,
+    sort_note: String,
+}
+
+const FORM_FIELDS: &[(&str, &str)] = &[
+    ("per", "Periods"),
+    ("hs", "Secs left in half"),
+    ("gs", "Secs left in regulation"),
+    ("mg", "Margin (offense)"),
+    ("dn", "Downs"),
+    ("tg", "To go"),
+    ("yl", "Ball on (own goal = 0)"),
+    ("wp", "Win prob."),
+    ("to", "Offense timeouts"),
+    ("dto", "Defense timeouts"),
+    ("sn", "Seasons"),
+    ("wk", "Weeks"),
+    ("tm", "Offense team"),
+    ("opp", "Opponent"),
+];
+
+/// The columns shown: all metrics on a laptop, the projector set on a
+/// projector.
+fn shown_metrics(projector: bool) -> Vec<usize> {
+    METRICS
+        .iter()
+        .enumerate()
+        .filter(|(_, m)| if projector { m.projector } else { m.key != "completions" && m.key != "yards" && m.key != "wpa" })
+        .map(|(j, _)| j)
+        .collect()
+}
+
+fn placeholder(s: &Situation, key: &str) -> String {
+    s.to_query_full().into_iter().find(|(k, _)| k == key).map(|(_, v)| v).unwrap_or_else(|| "any".into())
+}
+
+pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let params = match Params::parse(q.as_deref()) {
+        Ok(p) => p,
+        Err(e) => return bad_query(&st, &headers, &e, "/explore?preset=late-close"),
+    };
+    let mut params = params;
+    if params.situation.preset.is_none() && !params.raw.iter().any(|(k, _)| PARAMS.iter().any(|(p, _)| p == k)) {
+        // A bare /explore opens on late & close.
+        params.situation = Preset::LateClose.situation(params.situation.one_score);
+        params.raw.push(("preset".into(), "late-close".into()));
+    }
+    let table = split_for(&st, &params);
+    let ch = chrome(&st, &headers, Some(&params), "Situation explorer".into(), "explore", "/explore");
+    let sq = params.situation_query();
+    let current_preset = params.situation.preset;
+    let presets = Preset::ALL
+        .iter()
+        .map(|p| {
+            let mut q = vec![("preset".to_string(), p.key().to_string())];
+            if params.situation.one_score != 8 {
+                q.push(("os".into(), params.situation.one_score.to_string()));
+            }
+            if let Some(s) = &params.situation.seasons {
+                q.push(("sn".into(), s.iter().map(|x| x.to_string()).collect::<Vec<_>>().join(",")));
+            }
+            if params.projector {
+                q.push(("view".into(), "projector".into()));
+            }
+            PresetLink { label: p.label(), href: format!("/explore{}", to_query_string(&q)), active: current_preset == Some(*p) }
+        })
+        .collect();
+    let raw_get = |k: &str| params.raw.iter().rev().find(|(p, _)| p == k).map(|(_, v)| v.clone()).unwrap_or_default();
+    let fields = FORM_FIELDS
+        .iter()
+        .map(|(k, label)| FormField {
+            key: k,
+            label,
+            value: raw_get(k),
+            placeholder: placeholder(&params.situation, k),
+            help: PARAMS.iter().find(|(p, _)| p == k).map(|(_, h)| *h).unwrap_or(""),
+        })
+        .collect();
+    let shown = shown_metrics(params.projector);
+    let mut columns = vec![
+        Column { key: "passer", short: "Passer", label: "Passer", href: String::new(), aria_sort: "none", numeric: false, stability: String::new() },
+        Column { key: "team", short: "Team", label: "Team", href: String::new(), aria_sort: "none", numeric: false, stability: String::new() },
+    ];
+    for &j in &shown {
+        let mi = &table.metrics[j];
+        columns.push(Column {
+            key: mi.key,
+            short: mi.short,
+            label: mi.label,
+            href: String::new(),
+            aria_sort: "none",
+            numeric: true,
+            stability: stability_note(mi),
+        });
+    }
+    for c in columns.iter_mut() {
+        let sorted_here = params.sort.as_deref() == Some(c.key);
+        let next_dir = if sorted_here && params.descending { "asc" } else { "desc" };
+        c.href = format!("/explore{}", params.with(&[("sort", Some(c.key)), ("dir", Some(next_dir))]));
+        if sorted_here {
+            c.aria_sort = if params.descending { "descending" } else { "ascending" };
+        }
+    }
+    let league = shown.iter().map(|&j| fmt(table.league[j], METRICS[j].decimals)).collect();
+    let (our_team, our_passer) = (ch.our_team.clone(), ch.our_passer.clone());
+    let with_passer = |passer: &str, metric: Option<&str>| {
+        let mut q = sq.clone();
+        q.retain(|(k, _)| k != "passer");
+        q.push(("passer".into(), passer.to_string()));
+        if let Some(m) = metric {
+            q.push(("metric".into(), m.to_string()));
+        }
+        to_query_string(&q)
+    };
+    let rows = table
+        .rows
+        .iter()
+        .filter(|r| r.qualified || our_passer.as_deref() == Some(r.passer.as_str()))
+        .map(|r| RowView {
+            passer: r.passer.clone(),
+            team: r.team.clone(),
+            ours: our_passer.as_deref() == Some(r.passer.as_str()) || (our_passer.is_none() && our_team.as_deref() == Some(r.team.as_str())),
+            profile_href: format!("/passer{}", to_query_string(&[("passer".to_string(), r.passer.clone())])),
+            cells: shown
+                .iter()
+                .map(|&j| {
+                    let m = &METRICS[j];
+                    let c = &r.cells[j];
+                    let (sub, signal) = if m.stat == Stat::Count {
+                        (String::new(), String::new())
+                    } else {
+                        (
+                            format!("{} [{}, {}]", fmt(c.estimate, m.decimals), fmt(c.lo, m.decimals), fmt(c.hi, m.decimals)),
+                            c.signal.map(|s| format!("signal {:.0}%", s * 100.0)).unwrap_or_else(|| "signal –".into()),
+                        )
+                    };
+                    let sortv = match params.sort_by {
+                        SortBy::Estimate if m.stat != Stat::Count => c.estimate.or(c.value),
+                        _ => c.value,
+                    };
+                    CellView {
+                        main: fmt(c.value, m.decimals),
+                        sub,
+                        signal,
+                        sort: sort_value(sortv),
+                        href: format!("/plays{}", with_passer(&r.passer, Some(m.key))),
+                        title: format!(
+                            "{}: {} over {} {}; league {}; percentile {}",
+                            m.label,
+                            fmt(c.value, m.decimals),
+                            c.n,
+                            m.unit.label(),
+                            fmt(c.league, m.decimals),
+                            fmt(c.percentile, 0)
+                        ),
+                    }
+                })
+                .collect(),
+        })
+        .collect::<Vec<_>>();
+    let sort_note = match &params.sort {
+        Some(k) => format!(
+            "sorted by {} ({}, {})",
+            metric_index(k).map(|j| METRICS[j].label).unwrap_or(k.as_str()),
+            if params.sort_by == SortBy::Estimate { "estimate" } else { "raw value" },
+            if params.descending { "high to low" } else { "low to high" }
+        ),
+        None => "sorted by dropbacks".into(),
+    };
+    let page = ExplorePage {
+        presets,
+        preset_value: current_preset.map(|p| p.key().to_string()).unwrap_or_default(),
+        os_value: params.situation.one_score.to_string(),
+        site_value: raw_get("site"),
+        fields,
+        min: params.min_dropbacks,
+        by_raw: params.sort_by == SortBy::Value,
+        description: table.situation.clone(),
+        seasons: seasons_text(&table.seasons),
+        league_dropbacks: table.league_dropbacks,
+        qualified: table.qualified().count(),
+        columns,
+        league,
+        rows,
+        api_href: format!("/api/splits{}", params.with(&[("view", None)])),
+        csv_href: format!("/api/splits.csv{}", params.with(&[("view", None)])),
+        plays_href: format!("/plays{}", to_query_string(&sq)),
+        sort_note,
+        chrome: ch,
+    };
+    html(&page)
+}
+
+fn stability_note(mi: &MetricInfo) -> String {
+    match mi.stability {
+        Some(r) => format!("season-to-season r = {r:.2} over {} passer pairs", mi.stability_pairs),
+        None if mi.stat == Stat::Count => "a total".into(),
+        None => "too few passers qualified in consecutive seasons to judge".into(),
+    }
+}
+
+fn seasons_text(s: &[i32]) -> String {
+    match (s.first(), s.last()) {
+        (Some(a), Some(b)) if a != b && s.len() == (b - a + 1) as usize => format!("{a}–{b}"),
+        (Some(_), Some(_)) => s.iter().map(|x| x.to_string()).collect::<Vec<_>>().join(", "),
+        _ => "none".into(),
+    }
+}
+
+// ------------------------------------------------------------ profile
+
+pub struct ProfileRowView {
+    pub label: &'static str,
+    pub href: String,
+    pub dropbacks: String,
+    pub cells: Vec<(String, String, String)>,
+}
+
+#[derive(Template)]
+#[template(path = "profile.html")]
+struct ProfilePage {
+    chrome: Chrome,
+    passer: String,
+    team: String,
+    passers: Vec<(String, bool)>,
+    charts: Vec<(String, String)>,
+    trend_chart: String,
+    trend_label: String,
+    epa_chart: String,
+    table_heads: Vec<(&'static str, &'static str)>,
+    rows: Vec<ProfileRowView>,
+    decision_heads: Vec<(&'static str, &'static str)>,
+    decision_rows: Vec<ProfileRowView>,
+    api_href: String,
+    report_href: String,
+    games: Vec<(String, String)>,
+}
+
+/// The situation of the season trend (default late & close).
+pub fn trend_situation(params: &Params) -> Situation {
+    let preset = params.trend.as_deref().and_then(Preset::parse).unwrap_or(Preset::LateClose);
+    preset.situation(params.situation.one_score)
+}
+
+const PROFILE_KEYS: &[&str] = &["epa", "success", "cpoe", "rating", "anya", "sack_rate", "int_rate", "wpa"];
+
+pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let params = match Params::parse(q.as_deref()) {
+        Ok(p) => p,
+        Err(e) => return bad_query(&st, &headers, &e, "/passer"),
+    };
+    let lg = st.league();
+    let p = lg.plays();
+    let (_, our_passer) = ours(&st, &headers);
+    let Some(name) = params.situation.passer.clone().or(our_passer) else {
+        return error_page(&st, &headers, StatusCode::BAD_REQUEST, "Which passer?", "Choose our passer on the home page, or add ?passer=NAME.".into(), "/");
+    };
+    let trend = trend_situation(&params);
+    let base = Situation { passer: None, ..params.situation.clone() };
+    let Some(prof) = splits::profile(p, &lg.values(), &name, &base, &trend, params.min_dropbacks) else {
+        return error_page(&st, &headers, StatusCode::NOT_FOUND, "No such passer", format!("No passer named {name} in this league."), "/");
+    };
+    let ch = chrome(&st, &headers, Some(&params), format!("Passer profile: {name}"), "passer", "/passer");
+    let keys: Vec<usize> = PROFILE_KEYS.iter().filter_map(|k| metric_index(k)).collect();
+    let width = if ch.projector { 560.0 } else { 420.0 };
+    let charts = keys
+        .iter()
+        .map(|&j| {
+            let m = &METRICS[j];
+            let rows: Vec<DotRow> = prof
+                .presets
+                .iter()
+                .map(|line| {
+                    let c = line.row.as_ref().map(|r| &r.cells[j]);
+                    DotRow {
+                        label: line.label.to_string(),
+                        estimate: c.and_then(|c| c.estimate),
+                        lo: c.and_then(|c| c.lo),
+                        hi: c.and_then(|c| c.hi),
+                        raw: c.and_then(|c| c.value),
+                        league: line.league[j],
+                    }
+                })
+                .collect();
+            let unit = if m.scale == 100.0 { " (%)" } else { "" };
+            (
+                format!("{}{unit}", m.label),
+                charts::dot_interval(&format!("{} — {name} by situation (dot: estimate, bar: 90% interval, tick: league)", m.label), &rows, width).to_svg(),
+            )
+        })
+        .collect();
+    let ej = metric_index("epa").unwrap_or(0);
+    let trend_series = vec![
+        Series { name: format!("{name} EPA per dropback"), class: "passer", points: prof.trend.iter().filter_map(|s| s.values[ej].map(|v| (s.season as f64, v))).collect() },
+        Series { name: "League".into(), class: "league", points: prof.trend.iter().filter_map(|s| s.league[ej].map(|v| (s.season as f64, v))).collect() },
+    ];
+    let labels: Vec<(f64, String)> = prof.trend.iter().map(|s| (s.season as f64, s.season.to_string())).collect();
+    let trend_chart = if prof.trend.len() >= 2 {
+        charts::lines(&format!("EPA per dropback by season, {}", prof.trend_situation), &trend_series, &[], width * 1.4, 220.0, None, Some(&labels), &|v| format!("{v:.2}")).to_svg()
+    } else {
+        String::new()
+    };
+    let dist = splits::epa_distribution(p, &lg.values(), &Situation { passer: None, ..trend.clone() }, &name);
+    let epa_chart = charts::histogram(
+        &format!("EPA per dropback, {}: league (n = {}) vs {name} (n = {})", prof.trend_situation, dist.league_n, dist.passer_n),
+        &dist.edges,
+        ("League", &dist.league),
+        (&name, &dist.passer),
+        width * 1.4,
+        220.0,
+    )
+    .to_svg();
+    let table_keys: Vec<usize> = METRICS.iter().enumerate().filter(|(_, m)| m.stat != Stat::Count || m.key == "dropbacks").map(|(j, _)| j).collect();
+    let decision_keys: Vec<usize> = METRICS.iter().enumerate().filter(|(_, m)| m.decision && m.stat != Stat::Count).map(|(j, _)| j).collect();
+    let build_rows = |ks: &[usize]| -> Vec<ProfileRowView> {
+        prof.presets
+            .iter()
+            .map(|line| ProfileRowView {
+                label: line.label,
+                href: {
+                    let mut q = line.query.clone();
+                    q.push(("passer".into(), name.clone()));
+                    format!("/plays{}", to_query_string(&q))
+                },
+                dropbacks: line.row.as_ref().map(|r| r.dropbacks.to_string()).unwrap_or_else(|| "0".into()),
+                cells: ks
+                    .iter()
+                    .map(|&j| {
+                        let m = &METRICS[j];
+                        let c = line.row.as_ref().map(|r| &r.cells[j]);
+                        (
+                            fmt(c.and_then(|c| c.value), m.decimals),
+                            c.filter(|_| m.stat != Stat::Count)
+                                .map(|c| format!("est {} [{}, {}]", fmt(c.estimate, m.decimals), fmt(c.lo, m.decimals), fmt(c.hi, m.decimals)))
+                                .unwrap_or_default(),
+                            fmt(line.league[j], m.decimals),
+                        )
+                    })
+                    .collect(),
+            })
+            .collect()
+    };
+    let heads = |ks: &[usize]| ks.iter().map(|&j| (METRICS[j].short, METRICS[j].label)).collect::<Vec<_>>();
+    // The passer's games, newest first, for the game-flow page.
+    let who = p.passer_index(&name);
+    let mut games: Vec<(String, String)> = Vec::new();
+    for g in p.games.iter().rev() {
+        if (g.start..g.end).any(|i| Some(p.passer[i]) == who) {
+            let label = format!("{} wk {}: {} at {} ({}–{})", g.season, g.week, p.teams[g.away as usize], p.teams[g.home as usize], g.away_final, g.home_final);
+            games.push((format!("/game{}", to_query_string(&[("game".into(), g.key.clone()), ("passer".into(), name.clone())])), label));
+            if games.len() >= 12 {
+                break;
+            }
+        }
+    }
+    let mut all: Vec<(String, bool)> = p.passers.iter().map(|n| (n.clone(), *n == name)).collect();
+    all.sort();
+    let page = ProfilePage {
+        passer: name.clone(),
+        team: prof.team.clone().unwrap_or_default(),
+        passers: all,
+        charts,
+        trend_chart,
+        trend_label: prof.trend_situation.clone(),
+        epa_chart,
+        table_heads: heads(&table_keys),
+        rows: build_rows(&table_keys),
+        decision_heads: heads(&decision_keys),
+        decision_rows: build_rows(&decision_keys),
+        api_href: format!("/api/profile{}", params.with(&[("passer", Some(&name)), ("view", None)])),
+        report_href: format!("/report{}", to_query_string(&[("preset".into(), "late-close".into()), ("passer".into(), name.clone())])),
+        games,
+        chrome: ch,
+    };
+    html(&page)
+}
+
+// ------------------------------------------------------------ play list
+
+pub struct SnapView {
+    pub game: String,
+    pub game_href: String,
+    pub when: String,
+    pub period: i32,
+    pub clock: String,
+    pub teams: String,
+    pub score: String,
+    pub down_distance: String,
+    pub spot: String,
+    pub passer: String,
+    pub result: String,
+    pub epa: String,
+    pub wpa: String,
+    pub epa_sort: String,
+    pub wpa_sort: String,
+}
+
+#[derive(Template)]
+#[template(path = "plays.html")]
+struct PlaysPage {
+    chrome: Chrome,
+    description: String,
+    count: usize,
+    shown: usize,
+    snaps: Vec<SnapView>,
+    csv_href: String,
+    api_href: String,
+    back_href: String,
+}
+
+const PLAY_PAGE_LIMIT: usize = 2000;
+
+fn snap_view(s: &splits::Snap) -> SnapView {
+    SnapView {
+        game: s.game.clone(),
+        game_href: format!(
+            "/game{}",
+            to_query_string(&[("game".into(), s.game.clone()), ("passer".into(), s.passer.clone().unwrap_or_default())])
+        ),
+        when: format!("{} wk {}", s.season, s.week),
+        period: s.period,
+        clock: s.clock.clone(),
+        teams: format!("{} vs {}", s.offense, s.defense),
+        score: s.score.clone(),
+        down_distance: s.down_distance.clone(),
+        spot: s.spot.clone(),
+        passer: s.passer.clone().unwrap_or_default(),
+        result: s.result.clone(),
+        epa: fmt(Some(s.epa), 2),
+        wpa: fmt(Some(s.wpa), 3),
+        epa_sort: sort_value(Some(s.epa)),
+        wpa_sort: sort_value(Some(s.wpa)),
+    }
+}
+
+fn play_list_for(st: &Shared, params: &Params) -> Vec<splits::Snap> {
+    let lg = st.league();
+    let metric = params.metric.as_deref().and_then(metric_index).map(|j| &METRICS[j]);
+    splits::play_list(lg.plays(), &lg.values(), &params.situation, params.situation.passer.as_deref(), metric)
+}
+
+pub async fn plays(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let params = match Params::parse(q.as_deref()) {
+        Ok(p) => p,
+        Err(e) => return bad_query(&st, &headers, &e, "/explore"),
+    };
+    let snaps = play_list_for(&st, &params);
+    let mut description = params.situation.describe();
+    if let Some(m) = params.metric.as_deref().and_then(metric_index) {
+        description.push_str(&format!(" — the {} behind {}", METRICS[m].unit.label(), METRICS[m].label));
+    }
+    let page = PlaysPage {
+        chrome: chrome(&st, &headers, Some(&params), "Snaps behind the number".into(), "plays", "/plays"),
+        description,
+        count: snaps.len(),
+        shown: snaps.len().min(PLAY_PAGE_LIMIT),
+        snaps: snaps.iter().take(PLAY_PAGE_LIMIT).map(snap_view).collect(),
+        csv_href: format!("/plays.csv{}", params.with(&[("view", None)])),
+        api_href: format!("/api/plays{}", params.with(&[("view", None)])),
+        back_href: format!("/explore{}", to_query_string(&Situation { passer: None, ..params.situation.clone() }.to_query())),
+    };
+    html(&page)
+}
+
+/// The cut-up export for the video staff.
+pub async fn plays_csv(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let params = match Params::parse(q.as_deref()) {
+        Ok(p) => p,
+        Err(e) => return bad_query(&st, &headers, &e, "/explore"),
+    };
+    let snaps = play_list_for(&st, &params);
+    (
+        [(header::CONTENT_TYPE, "text/csv; charset=utf-8"), (header::CONTENT_DISPOSITION, "attachment; filename=\"cutup.csv\"")],
+        crate::export::cutup_csv(&snaps),
+    )
+        .into_response()
+}
+
+// ------------------------------------------------------------ game flow
+
+#[derive(Template)]
+#[template(path = "game.html")]
+struct GamePage {
+    chrome: Chrome,
+    heading: String,
+    chart: String,
+    swings: Vec<SnapView>,
+    passer: String,
+    api_href: String,
+}
+
+pub async fn game(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let params = match Params::parse(q.as_deref()) {
+        Ok(p) => p,
+        Err(e) => return bad_query(&st, &headers, &e, "/"),
+    };
+    let lg = st.league();
+    let p = lg.plays();
+    let Some(key) = params.game.clone() else {
+        return error_page(&st, &headers, StatusCode::BAD_REQUEST, "Which game?", "game=: a game key is required (follow a link from a play list or a profile).".into(), "/");
+    };
+    let Some(gi) = p.games.iter().position(|g| g.key == key) else {
+        return error_page(&st, &headers, StatusCode::NOT_FOUND, "No such game", format!("game={key}: no game with that key in this league."), "/");
+    };
+    let g = &p.games[gi];
+    let home = p.teams[g.home as usize].clone();
+    let away = p.teams[g.away as usize].clone();
+    let snaps = splits::game_snaps(p, &lg.values(), gi);
+    let passer = params.situation.passer.clone().unwrap_or_default();
+    // Home win probability across the game, x = seconds elapsed.
+    let elapsed = |i: usize| -> f64 {
+        let per = p.period[i];
+        if per <= 4 {
+            ((per - 1) * 900 + (900 - p.clock[i])) as f64
+        } else {
+            (3600 + (per - 5) * 600 + (600 - p.clock[i].min(600))) as f64
+        }
+    };
+    let wp = &lg.scored.scores.wp;
+    let mut pts: Vec<(f64, f64)> = (g.start..g.end).map(|i| (elapsed(i), if p.off_home[i] { wp[i] } else { 1.0 - wp[i] })).collect();
+    if let Some(last) = pts.last().copied() {
+        pts.push((last.0 + 1.0, g.home_result()));
+    }
+    let mut lev: Vec<usize> = (g.start..g.end).filter(|&i| !passer.is_empty() && p.passer_name(i) == Some(passer.as_str())).collect();
+    lev.sort_by(|&a, &b| lg.scored.scores.wpa[b].abs().partial_cmp(&lg.scored.scores.wpa[a].abs()).unwrap_or(std::cmp::Ordering::Equal));
+    lev.truncate(8);
+    let markers: Vec<Marker> = lev
+        .iter()
+        .map(|&i| Marker {
+            x: elapsed(i),
+            y: if p.off_home[i] { wp[i] } else { 1.0 - wp[i] },
+            class: if lg.scored.scores.wpa[i] >= 0.0 { "pos" } else { "neg" },
+            title: format!("Q{} {} {} — {} (WPA {:+.3})", p.period[i], crate::playfile::format_clock(p.clock[i]), splits::down_distance(p.down[i], p.to_go[i], p.ball_on[i]), splits::result_text(p, i), lg.scored.scores.wpa[i]),
+        })
+        .collect();
+    let labels: Vec<(f64, String)> = vec![(0.0, "Q1".into()), (900.0, "Q2".into()), (1800.0, "Q3".into()), (2700.0, "Q4".into()), (3600.0, "end".into())];
+    let chart = charts::lines(
+        &format!("{home} win probability through the game{}", if passer.is_empty() { String::new() } else { format!("; dots: {passer}'s biggest swings") }),
+        &[Series { name: format!("{home} win probability"), class: "passer", points: pts }],
+        &markers,
+        if params.projector { 1400.0 } else { 1000.0 },
+        300.0,
+        Some((0.0, 1.0)),
+        Some(&labels),
+        &|v| format!("{:.0}%", v * 100.0),
+    )
+    .to_svg();
+    let mut order: Vec<usize> = (0..snaps.len()).collect();
+    order.sort_by(|&a, &b| snaps[b].wpa.abs().partial_cmp(&snaps[a].wpa.abs()).unwrap_or(std::cmp::Ordering::Equal));
+    let swings = order.iter().take(12).map(|&k| snap_view(&snaps[k])).collect();
+    let page = GamePage {
+        chrome: chrome(&st, &headers, Some(&params), format!("Game flow: {away} at {home}"), "game", "/game"),
+        heading: format!("{} week {}: {away} {} at {home} {}", g.season, g.week, g.away_final, g.home_final),
+        chart,
+        swings,
+        passer,
+        api_href: format!("/api/game{}", to_query_string(&[("game".into(), key)])),
+    };
+    html(&page)
+}
+
+// ------------------------------------------------------------ calibration
+
+#[derive(Template)]
+#[template(path = "calibration.html")]
+struct CalibrationPage {
+    chrome: Chrome,
+    fingerprint: String,
+    model_version: &'static str,
+    summary: String,
+    chart: String,
+    wp_rows: Vec<Vec<String>>,
+    ep_rows: Vec<Vec<String>>,
+    scores: Vec<Vec<String>>,
+    fit_lines: Vec<String>,
+}
+
+pub async fn calibration(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let params = Params::parse(q.as_deref()).ok();
+    let lg = st.league();
+    let view = super::calib::view(&lg.scored.calibration);
+    let chart = charts::reliability(&view.title, &view.bins, 420.0, 360.0).to_svg();
+    let page = CalibrationPage {
+        chrome: chrome(&st, &headers, params.as_ref(), "Model calibration".into(), "calibration", "/calibration"),
+        fingerprint: lg.scored.fingerprint.clone(),
+        model_version: crate::models::MODEL_VERSION,
+        summary: super::calib::summary(&lg.scored.calibration),
+        chart,
+        wp_rows: view.wp_rows,
+        ep_rows: view.ep_rows,
+        scores: view.scores,
+        fit_lines: super::calib::fit_lines(&lg.scored.models.report),
+    };
+    html(&page)
+}

@@ -1,0 +1,152 @@
+//! Query strings and cookies: the situation plus the page's own parameters
+//! (minimum dropbacks, sort, projector view, subject passer, metric, game),
+//! each checked with a reason a coach can read.
+
+use crate::situation::{Situation, SituationError};
+use crate::splits::{metric_index, SortBy, DEFAULT_MIN_DROPBACKS};
+use axum::http::HeaderMap;
+
+/// Decoded `key=value` pairs (`+` and percent escapes undone).
+pub fn pairs(query: Option<&str>) -> Vec<(String, String)> {
+    let Some(q) = query else { return Vec::new() };
+    serde_urlencoded::from_str::<Vec<(String, String)>>(q).unwrap_or_else(|_| {
+        // Undecodable input: keep what splits cleanly, raw.
+        q.split('&')
+            .filter(|kv| !kv.is_empty())
+            .map(|kv| {
+                let (k, v) = kv.split_once('=').unwrap_or((kv, ""));
+                (k.to_string(), v.to_string())
+            })
+            .collect()
+    })
+}
+
+/// `?a=1&b=2` (empty when there are no pairs), percent-encoded.
+pub fn to_query_string(pairs: &[(String, String)]) -> String {
+    if pairs.is_empty() {
+        return String::new();
+    }
+    match serde_urlencoded::to_string(pairs) {
+        Ok(s) => format!("?{s}"),
+        Err(_) => String::new(),
+    }
+}
+
+pub fn cookie(headers: &HeaderMap, name: &str) -> Option<String> {
+    for value in headers.get_all(axum::http::header::COOKIE) {
+        let Ok(text) = value.to_str() else { continue };
+        for part in text.split(';') {
+            if let Some((k, v)) = part.trim().split_once('=') {
+                if k == name {
+                    let decoded: Vec<(String, String)> = serde_urlencoded::from_str(&format!("v={v}")).unwrap_or_default();
+                    return decoded.into_iter().next().map(|(_, v)| v).or(Some(v.to_string()));
+                }
+            }
+        }
+    }
+    None
+}
+
+/// Everything a page or API call can be asked for.
+#[derive(Debug, Clone)]
+pub struct Params {
+    pub situation: Situation,
+    /// The raw pairs (to rebuild links).
+    pub raw: Vec<(String, String)>,
+    pub min_dropbacks: u32,
+    pub sort: Option<String>,
+    pub descending: bool,
+    pub sort_by: SortBy,
+    pub projector: bool,
+    pub metric: Option<String>,
+    pub game: Option<String>,
+    pub trend: Option<String>,
+    pub paper: Option<String>,
+}
+
+fn bad(param: &str, value: &str, reason: &str) -> SituationError {
+    SituationError { param: param.into(), value: value.into(), reason: reason.into() }
+}
+
+impl Params {
+    pub fn parse(query: Option<&str>) -> Result<Params, SituationError> {
+        let raw = pairs(query);
+        let situation = Situation::from_query(&raw)?;
+        let get = |k: &str| raw.iter().rev().find(|(p, _)| p == k).map(|(_, v)| v.clone());
+        let min_dropbacks = match get("min") {
+            None => DEFAULT_MIN_DROPBACKS,
+            Some(v) if v.trim().is_empty() => DEFAULT_MIN_DROPBACKS,
+            Some(v) => match v.trim().parse::<u32>() {
+                Ok(n) if (1..=100_000).contains(&n) => n,
+                _ => return Err(bad("min", &v, "expected a whole number of dropbacks 1-100000")),
+            },
+        };
+        let sort = match get("sort") {
+            None => None,
+            Some(v) if v.is_empty() => None,
+            Some(v) if v == "passer" || v == "team" || metric_index(&v).is_some() => Some(v),
+            Some(v) => return Err(bad("sort", &v, "unknown column; expected passer, team or a metric key such as epa")),
+        };
+        let descending = match get("dir").as_deref() {
+            None | Some("") | Some("desc") => true,
+            Some("asc") => false,
+            Some(v) => return Err(bad("dir", v, "expected asc or desc")),
+        };
+        let sort_by = match get("by").as_deref() {
+            None | Some("") | Some("est") => SortBy::Estimate,
+            Some("raw") => SortBy::Value,
+            Some(v) => return Err(bad("by", v, "expected est or raw")),
+        };
+        let projector = match get("view").as_deref() {
+            None | Some("") | Some("laptop") => false,
+            Some("projector") => true,
+            Some(v) => return Err(bad("view", v, "expected laptop or projector")),
+        };
+        let metric = match get("metric") {
+            None => None,
+            Some(v) if v.is_empty() => None,
+            Some(v) if metric_index(&v).is_some() => Some(v),
+            Some(v) => return Err(bad("metric", &v, "unknown metric key")),
+        };
+        let trend = match get("trend") {
+            None => None,
+            Some(v) if v.is_empty() => None,
+            Some(v) if crate::situation::Preset::parse(&v).is_some() => Some(v),
+            Some(v) => return Err(bad("trend", &v, "unknown preset")),
+        };
+        let paper = match get("paper").as_deref() {
+            None | Some("") => None,
+            Some(v @ ("letter" | "a4")) => Some(v.to_string()),
+            Some(v) => return Err(bad("paper", v, "expected letter or a4")),
+        };
+        Ok(Params {
+            situation,
+            min_dropbacks,
+            sort,
+            descending,
+            sort_by,
+            projector,
+            metric,
+            game: get("game").filter(|g| !g.is_empty()),
+            trend,
+            paper,
+            raw,
+        })
+    }
+
+    /// The situation's own query (no page parameters).
+    pub fn situation_query(&self) -> Vec<(String, String)> {
+        self.situation.to_query()
+    }
+
+    /// The full query with some keys replaced (None removes a key).
+    pub fn with(&self, changes: &[(&str, Option<&str>)]) -> String {
+        let mut q: Vec<(String, String)> = self.raw.iter().filter(|(k, _)| !changes.iter().any(|(c, _)| c == k) && k != "token").cloned().collect();
+        for (k, v) in changes {
+            if let Some(v) = v {
+                q.push((k.to_string(), v.to_string()));
+            }
+        }
+        to_query_string(&q)
+    }
+}

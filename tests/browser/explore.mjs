@@ -1,0 +1,75 @@
+// Real-browser check of the situation explorer, driven by tests/browser.rs:
+// load the explorer in headless chromium, click a column heading, check the
+// rows are re-sorted in place with aria-sort updated and no console errors,
+// and save screenshots of each page in laptop and projector sizes.
+// usage: node explore.mjs BASE_URL SHOT_DIR PASSER
+import { chromium } from "playwright-core";
+
+const [base, shotDir, passer] = process.argv.slice(2);
+const errors = [];
+const browser = await chromium.launch({
+  executablePath: "/usr/bin/chromium",
+  args: ["--no-sandbox", "--disable-gpu", "--disable-background-networking", "--no-first-run", "--disable-quic", "--disable-component-update", "--disable-sync"],
+});
+function fail(msg) {
+  console.error("FAIL: " + msg);
+  process.exitCode = 1;
+}
+try {
+  const page = await browser.newPage({ viewport: { width: 1366, height: 768 } });
+  page.on("console", (m) => { if (m.type() === "error") errors.push(m.text()); });
+  page.on("pageerror", (e) => errors.push(String(e)));
+  await page.goto(base + "/explore?preset=all", { waitUntil: "load" });
+  const header = page.locator('#splits thead th[data-key="epa"]');
+  await header.click();
+  const state = await page.evaluate(() => {
+    const th = document.querySelector('#splits thead th[data-key="epa"]');
+    const heads = Array.from(th.parentNode.children);
+    const idx = heads.indexOf(th);
+    const vals = Array.from(document.querySelectorAll("#splits tbody tr")).map((r) => parseFloat(r.children[idx].getAttribute("data-sort")));
+    return { aria: th.getAttribute("aria-sort"), vals, url: window.location.search };
+  });
+  if (state.aria !== "descending") fail("aria-sort after one click is " + state.aria);
+  const v = state.vals.filter((x) => !Number.isNaN(x));
+  if (v.length < 5) fail("too few rows: " + v.length);
+  for (let i = 1; i < v.length; i++) if (v[i - 1] < v[i]) { fail("not descending at row " + i + ": " + v[i - 1] + " < " + v[i]); break; }
+  if (!state.url.includes("sort=epa")) fail("address bar not updated: " + state.url);
+  await header.click();
+  const aria2 = await header.getAttribute("aria-sort");
+  if (aria2 !== "ascending") fail("aria-sort after two clicks is " + aria2);
+  // keyboard: focus the heading link and press Enter sorts too
+  await page.locator('#splits thead th[data-key="rating"] a').focus();
+  await page.keyboard.press("Enter");
+  const aria3 = await page.locator('#splits thead th[data-key="rating"]').getAttribute("aria-sort");
+  if (aria3 !== "descending") fail("keyboard sort gave aria-sort " + aria3);
+
+  const enc = encodeURIComponent(passer);
+  const pages = [
+    ["home", "/"],
+    ["explore", "/explore?preset=late-close"],
+    ["profile", "/passer?passer=" + enc],
+    ["plays", "/plays?preset=late-close&passer=" + enc],
+    ["calibration", "/calibration"],
+    ["report", "/report?preset=late-close&passer=" + enc],
+  ];
+  for (const [size, w, h, view] of [["laptop", 1366, 768, ""], ["projector", 1920, 1080, "view=projector"]]) {
+    await page.setViewportSize({ width: w, height: h });
+    for (const [name, path] of pages) {
+      const url = base + path + (view ? (path.includes("?") ? "&" : "?") + view : "");
+      const resp = await page.goto(url, { waitUntil: "load" });
+      if (!resp || resp.status() !== 200) fail(name + " answered " + (resp && resp.status()));
+      await page.screenshot({ path: `${shotDir}/${name}-${size}.png`, fullPage: false });
+    }
+  }
+  // projector axis labels are at least 14 px
+  await page.goto(base + "/passer?passer=" + enc + "&view=projector", { waitUntil: "load" });
+  const tick = await page.evaluate(() => {
+    const t = document.querySelector("svg .tick");
+    return t ? parseFloat(getComputedStyle(t).fontSize) : 0;
+  });
+  if (tick < 14) fail("projector tick labels are " + tick + " px");
+} finally {
+  await browser.close();
+}
+if (errors.length) fail("console errors: " + errors.join(" | "));
+if (!process.exitCode) console.log("browser check passed");

@@ -1,0 +1,108 @@
+//! Test support: the demo league opened once per test binary, and a real
+//! server on 127.0.0.1:0 talking HTTP.
+
+#![allow(dead_code)]
+
+use lategame::league::{demo_path, League};
+use lategame::playfile::LoadOptions;
+use lategame::web::{serve_on, AppState};
+use std::path::PathBuf;
+use std::sync::{Arc, OnceLock};
+
+/// Cached model coefficients go under target/, never into the user's cache.
+pub fn use_test_cache() {
+    let dir = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target").join("test-cache");
+    // SAFETY: set before any thread of this test binary reads the variable.
+    unsafe { std::env::set_var("LATEGAME_CACHE_DIR", dir) };
+}
+
+pub fn demo_league() -> League {
+    use_test_cache();
+    League::open(&demo_path(), &LoadOptions::default(), false).expect("demo league opens")
+}
+
+/// Start a server for `league` on a random loopback port; returns the base URL.
+pub fn spawn(league: League, team: Option<String>, passer: Option<String>, token: Option<String>) -> String {
+    let state = Arc::new(AppState::new(league, false, team, passer, token));
+    spawn_state(state)
+}
+
+pub fn spawn_state(state: Arc<AppState>) -> String {
+    let (tx, rx) = std::sync::mpsc::channel();
+    std::thread::spawn(move || {
+        let rt = tokio::runtime::Builder::new_multi_thread().worker_threads(2).enable_all().build().expect("runtime");
+        rt.block_on(async move {
+            let listener = tokio::net::TcpListener::bind("127.0.0.1:0").await.expect("bind");
+            tx.send(listener.local_addr().expect("addr")).expect("send");
+            let _ = serve_on(listener, state).await;
+        });
+    });
+    let addr = rx.recv().expect("server address");
+    format!("http://{addr}")
+}
+
+/// The demo league's server, shared by the tests of one binary.
+pub fn demo_server() -> &'static str {
+    static URL: OnceLock<String> = OnceLock::new();
+    URL.get_or_init(|| spawn(demo_league(), None, None, None))
+}
+
+pub struct Reply {
+    pub status: u16,
+    pub body: String,
+    pub headers: Vec<(String, String)>,
+}
+
+impl Reply {
+    pub fn header(&self, name: &str) -> Option<&str> {
+        self.headers.iter().find(|(k, _)| k.eq_ignore_ascii_case(name)).map(|(_, v)| v.as_str())
+    }
+    pub fn json(&self) -> serde_json::Value {
+        serde_json::from_str(&self.body).unwrap_or_else(|e| panic!("not JSON ({e}): {}", &self.body[..self.body.len().min(300)]))
+    }
+}
+
+fn agent() -> ureq::Agent {
+    ureq::AgentBuilder::new().redirects(0).timeout(std::time::Duration::from_secs(60)).build()
+}
+
+pub fn get(url: &str) -> Reply {
+    get_with(url, &[])
+}
+
+pub fn get_with(url: &str, headers: &[(&str, &str)]) -> Reply {
+    let mut req = agent().get(url);
+    for (k, v) in headers {
+        req = req.set(k, v);
+    }
+    let resp = match req.call() {
+        Ok(r) => r,
+        Err(ureq::Error::Status(_, r)) => r,
+        Err(e) => panic!("GET {url}: {e}"),
+    };
+    let status = resp.status();
+    let headers = resp.headers_names().into_iter().filter_map(|n| resp.header(&n).map(|v| (n.clone(), v.to_string()))).collect();
+    let body = resp.into_string().unwrap_or_default();
+    Reply { status, body, headers }
+}
+
+pub fn post(url: &str) -> Reply {
+    let resp = match agent().post(url).call() {
+        Ok(r) => r,
+        Err(ureq::Error::Status(_, r)) => r,
+        Err(e) => panic!("POST {url}: {e}"),
+    };
+    let status = resp.status();
+    let headers = resp.headers_names().into_iter().filter_map(|n| resp.header(&n).map(|v| (n.clone(), v.to_string()))).collect();
+    Reply { status, body: resp.into_string().unwrap_or_default(), headers }
+}
+
+/// Percent-encode a query value.
+pub fn enc(s: &str) -> String {
+    s.bytes()
+        .map(|b| match b {
+            b'A'..=b'Z' | b'a'..=b'z' | b'0'..=b'9' | b'-' | b'_' | b'.' | b'~' => (b as char).to_string(),
+            _ => format!("%{b:02X}"),
+        })
+        .collect()
+}

@@ -1,0 +1,224 @@
+//! The real server over HTTP on a random loopback port: every page and API
+//! answers for every preset, bad queries get a 400 with a reason, pages show
+//! the API's numbers, sorting, escaping, security headers, the access token,
+//! static-file traversal and the cut-up export.
+
+mod common;
+use common::*;
+
+const PRESETS: &[&str] = &["late-close", "two-minute", "four-minute", "late-3rd-4th", "red-zone-late", "backed-up-late", "all"];
+
+/// The passer with the most late-and-close dropbacks.
+fn busiest_passer(base: &str) -> String {
+    let j = get(&format!("{base}/api/splits?preset=late-close")).json();
+    j["rows"][0]["passer"].as_str().expect("a passer").to_string()
+}
+
+#[test]
+fn every_page_and_api_answers_for_every_preset() {
+    let base = demo_server();
+    let passer = enc(&busiest_passer(base));
+    for p in PRESETS {
+        for path in [
+            format!("/explore?preset={p}"),
+            format!("/explore?preset={p}&view=projector"),
+            format!("/api/splits?preset={p}"),
+            format!("/api/splits.csv?preset={p}"),
+            format!("/plays?preset={p}&passer={passer}"),
+            format!("/plays.csv?preset={p}&passer={passer}"),
+            format!("/api/plays?preset={p}&passer={passer}"),
+        ] {
+            let r = get(&format!("{base}{path}"));
+            assert_eq!(r.status, 200, "{path}: {}", &r.body[..r.body.len().min(300)]);
+        }
+    }
+    for path in ["/", "/calibration", "/api/calibration", "/api/summary", "/static/app.css", "/static/app.js", "/explore"] {
+        let r = get(&format!("{base}{path}"));
+        assert_eq!(r.status, 200, "{path}");
+    }
+    let r = get(&format!("{base}/passer?passer={passer}"));
+    assert_eq!(r.status, 200);
+    assert!(r.body.contains("<svg"), "profile has charts");
+    let r = get(&format!("{base}/api/profile?passer={passer}"));
+    assert_eq!(r.status, 200);
+    assert_eq!(r.json()["presets"].as_array().map(|a| a.len()), Some(PRESETS.len()));
+    let plays = get(&format!("{base}/api/plays?preset=late-close&passer={passer}")).json();
+    let game = plays["snaps"][0]["game"].as_str().expect("a game").to_string();
+    assert_eq!(get(&format!("{base}/game?game={}&passer={passer}", enc(&game))).status, 200);
+    assert_eq!(get(&format!("{base}/api/game?game={}", enc(&game))).status, 200);
+}
+
+#[test]
+fn bad_queries_get_400_with_a_reason_on_page_and_in_json() {
+    let base = demo_server();
+    let r = get(&format!("{base}/explore?mg=9..3"));
+    assert_eq!(r.status, 400);
+    assert!(r.body.contains("mg=9..3: lower bound above upper"), "{}", r.body);
+    let r = get(&format!("{base}/api/splits?mg=9..3"));
+    assert_eq!(r.status, 400);
+    let j = r.json();
+    assert_eq!(j["error"], "mg=9..3: lower bound above upper");
+    assert_eq!(j["param"], "mg");
+    for q in ["dn=7", "preset=nowhere", "min=0", "sort=nonsense", "wp=0.2..1.5", "per=6", "yl=%ff"] {
+        let r = get(&format!("{base}/api/splits?{q}"));
+        assert_eq!(r.status, 400, "{q}: {}", r.body);
+        assert!(r.json()["reason"].as_str().is_some_and(|s| !s.is_empty()), "{q}");
+        assert_eq!(get(&format!("{base}/explore?{q}")).status, 400, "{q}");
+    }
+    assert_eq!(get(&format!("{base}/game?game=NOPE")).status, 404);
+    assert_eq!(get(&format!("{base}/nowhere")).status, 404);
+}
+
+/// `data-sort` values of one column of the explorer table, in row order.
+fn column_values(html: &str, col: usize) -> Vec<String> {
+    let body = html.split("<tbody>").nth(1).unwrap_or("").split("</tbody>").next().unwrap_or("");
+    body.split("<tr")
+        .skip(1)
+        .map(|row| {
+            let cells: Vec<&str> = row.split("data-sort=\"").skip(1).collect();
+            cells.get(col).map(|c| c.split('"').next().unwrap_or("").to_string()).unwrap_or_default()
+        })
+        .collect()
+}
+
+#[test]
+fn page_numbers_equal_the_json_api() {
+    let base = demo_server();
+    let q = "preset=late-close&sort=epa&dir=desc";
+    let page = get(&format!("{base}/explore?{q}")).body;
+    let json = get(&format!("{base}/api/splits?{q}")).json();
+    let rows = json["rows"].as_array().unwrap();
+    let qualified: Vec<&serde_json::Value> = rows.iter().filter(|r| r["qualified"] == true).collect();
+    // column 0 = passer, 1 = team, 2.. = metrics in the laptop order
+    let names = column_values(&page, 0);
+    assert_eq!(names.len(), qualified.len());
+    for (n, r) in names.iter().zip(&qualified) {
+        assert_eq!(n, r["passer"].as_str().unwrap());
+    }
+    // the EPA column carries the estimate the API reports, digit for digit
+    let keys = json["metrics"].as_array().unwrap().iter().map(|m| m["key"].as_str().unwrap().to_string()).collect::<Vec<_>>();
+    let shown: Vec<&String> = keys.iter().filter(|k| !matches!(k.as_str(), "completions" | "yards" | "wpa")).collect();
+    let epa_col = 2 + shown.iter().position(|k| *k == "epa").unwrap();
+    let epa_idx = keys.iter().position(|k| k == "epa").unwrap();
+    let page_epa = column_values(&page, epa_col);
+    for (v, r) in page_epa.iter().zip(&qualified) {
+        let api = r["cells"][epa_idx]["estimate"].as_f64().unwrap();
+        // serde_json reads floats to within an ulp or so; the page wrote the same f64
+        let page_v = v.parse::<f64>().unwrap();
+        assert!((page_v - api).abs() <= 1e-12 * api.abs().max(1.0), "{page_v} vs {api}");
+    }
+    // and the visible raw number is the API's value rounded to 3 places
+    let raw = r_cell_text(&page, &qualified[0]["passer"].as_str().unwrap().to_string(), epa_col);
+    assert_eq!(raw, format!("{:.3}", qualified[0]["cells"][epa_idx]["value"].as_f64().unwrap()));
+}
+
+fn r_cell_text(html: &str, passer: &str, col: usize) -> String {
+    let row = html.split("<tr").find(|r| r.contains(&format!("data-sort=\"{passer}\""))).unwrap_or("");
+    let cell = row.split("data-sort=\"").nth(col + 1).unwrap_or("");
+    let link = cell.split("title=\"").nth(1).unwrap_or("");
+    link.split('>').nth(1).unwrap_or("").split('<').next().unwrap_or("").to_string()
+}
+
+#[test]
+fn sorting_orders_rows() {
+    let base = demo_server();
+    let j = get(&format!("{base}/api/splits?preset=all&sort=epa&dir=desc")).json();
+    let idx = j["metrics"].as_array().unwrap().iter().position(|m| m["key"] == "epa").unwrap();
+    let est: Vec<f64> = j["rows"].as_array().unwrap().iter().filter_map(|r| r["cells"][idx]["estimate"].as_f64()).collect();
+    assert!(est.len() > 5);
+    assert!(est.windows(2).all(|w| w[0] >= w[1]), "{est:?}");
+    let j = get(&format!("{base}/api/splits?preset=all&sort=passer&dir=asc")).json();
+    let names: Vec<String> = j["rows"].as_array().unwrap().iter().map(|r| r["passer"].as_str().unwrap().to_string()).collect();
+    let mut sorted = names.clone();
+    sorted.sort();
+    assert_eq!(names, sorted);
+    let page = get(&format!("{base}/explore?preset=all&sort=epa&dir=asc")).body;
+    assert!(page.contains("aria-sort=\"ascending\""));
+}
+
+#[test]
+fn security_headers_and_static_files() {
+    let base = demo_server();
+    let r = get(&format!("{base}/"));
+    assert!(r.header("content-security-policy").is_some_and(|v| v.contains("script-src 'self'") && !v.contains("unsafe-inline")));
+    assert_eq!(r.header("x-content-type-options"), Some("nosniff"));
+    assert_eq!(r.header("referrer-policy"), Some("no-referrer"));
+    assert!(!r.body.contains("<script>"), "no inline scripts");
+    for path in ["/static/../Cargo.toml", "/static/..%2f..%2fCargo.toml", "/static/%2e%2e%2fCargo.toml", "/static/%2fetc%2fpasswd", "/static//etc/passwd", "/static/app.css%00.js"] {
+        let r = get(&format!("{base}{path}"));
+        assert!(r.status == 404 || r.status == 400, "{path}: {}", r.status);
+        assert!(!r.body.contains("[package]") && !r.body.contains("root:"), "{path}");
+    }
+}
+
+#[test]
+fn cutup_export_is_csv_with_safe_cells() {
+    let base = demo_server();
+    let passer = enc(&busiest_passer(base));
+    let r = get(&format!("{base}/plays.csv?preset=late-close&passer={passer}"));
+    assert!(r.header("content-type").unwrap_or("").starts_with("text/csv"));
+    let mut lines = r.body.lines();
+    assert_eq!(lines.next(), Some("game,season,week,seq,period,clock,offense,defense,score,down_distance,spot,kind,passer,result,epa,wpa"));
+    let n = lines.clone().count();
+    let api = get(&format!("{base}/api/plays?preset=late-close&passer={passer}")).json();
+    assert_eq!(n as u64, api["count"].as_u64().unwrap());
+    for l in lines {
+        for cell in l.split(',') {
+            let risky = cell.starts_with(['=', '@']) || (cell.starts_with(['+', '-']) && cell.parse::<f64>().is_err());
+            assert!(!risky, "{cell}");
+        }
+    }
+}
+
+#[test]
+fn markup_from_the_file_is_shown_as_text() {
+    use lategame::playfile::write_rows;
+    use lategame::sim::{simulate, SimConfig};
+    let mut out = simulate(&SimConfig { seasons: 1, seed: 3, first_season: 2030 });
+    let victim = out.rows.iter().find_map(|r| r.passer.clone()).unwrap();
+    let evil = "<script>alert(1)</script>";
+    for r in out.rows.iter_mut() {
+        if r.passer.as_deref() == Some(victim.as_str()) {
+            r.passer = Some(evil.to_string());
+        }
+    }
+    let dir = std::env::temp_dir().join(format!("lategame-http-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("evil.parquet");
+    write_rows(&out.rows, &path).unwrap();
+    use_test_cache();
+    let league = lategame::league::League::open(&path, &Default::default(), false).unwrap();
+    let base = spawn(league, None, Some(evil.to_string()), None);
+    for url in [format!("{base}/explore?preset=all&min=1"), format!("{base}/passer?passer={}", enc(evil)), format!("{base}/plays?preset=all&passer={}", enc(evil)), format!("{base}/")] {
+        let r = get(&url);
+        assert_eq!(r.status, 200, "{url}");
+        assert!(!r.body.contains(evil), "{url} shows raw markup");
+        assert!(r.body.contains("&lt;script&gt;") || r.body.contains("&#60;script&#62;") || r.body.contains("&#x3c;script"), "{url} shows the name escaped");
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn shared_mode_needs_the_token() {
+    use_test_cache();
+    let base = spawn(demo_league(), None, None, Some("abc123".into()));
+    assert_eq!(get(&format!("{base}/")).status, 401);
+    assert_eq!(get(&format!("{base}/api/summary")).status, 401);
+    assert_eq!(get(&format!("{base}/?token=wrong")).status, 401);
+    let r = get(&format!("{base}/explore?preset=all&token=abc123"));
+    assert_eq!(r.status, 303);
+    assert_eq!(r.header("location"), Some("/explore?preset=all"));
+    let cookie = r.header("set-cookie").unwrap().split(';').next().unwrap().to_string();
+    assert_eq!(get_with(&format!("{base}/api/summary"), &[("Cookie", &cookie)]).status, 200);
+}
+
+#[test]
+fn choosing_our_passer_sets_a_cookie() {
+    let base = demo_server();
+    let passer = busiest_passer(base);
+    let r = get(&format!("{base}/choose?team=&passer={}", enc(&passer)));
+    assert_eq!(r.status, 303);
+    let cookie = r.header("set-cookie").unwrap().split(';').next().unwrap().to_string();
+    let page = get_with(&format!("{base}/explore?preset=late-close"), &[("Cookie", &cookie)]).body;
+    assert!(page.contains("class=\"ours\""), "our passer's row is highlighted");
+}
