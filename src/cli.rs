@@ -6,7 +6,7 @@ use crate::league::{demo_path, League};
 use crate::playfile::{self, LoadOptions};
 use crate::situation::{Preset, Situation};
 use crate::splits::{self, METRICS};
-use anyhow::Result;
+use anyhow::{Context, Result};
 use clap::{Parser, Subcommand, ValueEnum};
 use indicatif::{ProgressBar, ProgressStyle};
 use std::path::PathBuf;
@@ -246,8 +246,12 @@ fn run(cli: Cli) -> Result<ExitCode> {
             if !season.is_empty() {
                 situation.seasons = Some(season);
             }
-            let _ = (file, passer, paper, out, situation);
-            anyhow::bail!("INTEGRATION: report module not merged yet")
+            let paper = crate::report::Paper::parse(&paper).context("--paper: expected letter or a4")?;
+            let league = open_league(file, false, false)?;
+            let pdf = crate::report::pdf(&league, &situation, &passer, paper)?;
+            std::fs::write(&out, pdf).with_context(|| format!("writing {}", out.display()))?;
+            println!("report written to {}", out.display());
+            Ok(ExitCode::SUCCESS)
         }
     }
 }

@@ -10,6 +10,7 @@ pub mod league;
 pub mod models;
 pub mod playfile;
 pub mod plays;
+pub mod report;
 pub mod sim;
 pub mod situation;
 pub mod splits;

@@ -35,8 +35,25 @@ impl Scale {
             _ => self,
         }
     }
+    /// Round ticks inside the domain. Loose labelling of a domain already
+    /// widened by `nice` can step past both ends (those ticks would be
+    /// pinned to the edge under the wrong label), so they are dropped, and
+    /// a finer count is tried when fewer than three remain.
     pub fn ticks(&self, count: usize) -> Vec<f64> {
-        nice_ticks(self.d0, self.d1, count)
+        let (lo, hi) = (self.d0.min(self.d1), self.d0.max(self.d1));
+        let eps = (hi - lo).abs() * 1e-9;
+        let inside = |c: usize| -> Vec<f64> { nice_ticks(self.d0, self.d1, c).into_iter().filter(|t| *t >= lo - eps && *t <= hi + eps).collect() };
+        let mut best = inside(count);
+        for c in count + 1..=count * 2 {
+            if best.len() >= 3 {
+                break;
+            }
+            let more = inside(c);
+            if more.len() > best.len() {
+                best = more;
+            }
+        }
+        best
     }
 }
 
@@ -108,6 +125,19 @@ mod tests {
         assert_eq!(nice_ticks(0.0, 1.0, 6), vec![0.0, 0.2, 0.4, 0.6, 0.8, 1.0]);
         let t = nice_ticks(-0.37, 0.52, 5);
         assert!(t.first().unwrap() <= &-0.37 && t.last().unwrap() >= &0.52);
+    }
+
+    #[test]
+    fn ticks_stay_inside_a_widened_domain() {
+        // -0.08..0.35 widens to -0.2..0.4, whose own loose ticks would be
+        // -0.5, 0, 0.5; only ticks inside are kept, at a finer step.
+        let s = Scale::new((-0.08, 0.35), (0.0, 100.0)).nice(4);
+        assert_eq!((s.d0, s.d1), (-0.2, 0.4));
+        let t = s.ticks(4);
+        assert!(t.len() >= 3, "{t:?}");
+        assert!(t.iter().all(|v| *v >= s.d0 && *v <= s.d1), "{t:?}");
+        let s = Scale::new((0.19, 0.61), (0.0, 100.0)).nice(5);
+        assert!(s.ticks(5).iter().all(|v| *v >= s.d0 && *v <= s.d1));
     }
 
     #[test]
