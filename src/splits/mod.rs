@@ -93,7 +93,57 @@ struct PasserSums {
     team: u16,
 }
 
+/// The pass over the league, in two halves on two threads, merged.
 fn accumulate(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
+    let n = p.len();
+    let mid = n / 2;
+    let (first, second) = std::thread::scope(|scope| {
+        let later = scope.spawn(|| accumulate_range(p, v, s, mid..n));
+        let first = accumulate_range(p, v, s, 0..mid);
+        (first, later.join())
+    });
+    match second {
+        Ok(second) => merge(first, second),
+        Err(_) => accumulate_range(p, v, s, 0..n),
+    }
+}
+
+fn merge_accs(a: &mut [Acc], b: &[Acc]) {
+    for (x, y) in a.iter_mut().zip(b) {
+        x.n += y.n;
+        x.sum += y.sum;
+        x.sumsq += y.sumsq;
+    }
+}
+
+/// `a` then `b` (b's snaps come later, so its team wins).
+fn merge(mut a: Sums, b: Sums) -> Sums {
+    for (who, ps) in b.passers {
+        match a.passers.get_mut(&who) {
+            Some(mine) => {
+                merge_accs(&mut mine.accs, &ps.accs);
+                for (x, y) in mine.cells.iter_mut().zip(&ps.cells) {
+                    *x += y;
+                }
+                mine.team = ps.team;
+            }
+            None => {
+                a.passers.insert(who, ps);
+            }
+        }
+    }
+    merge_accs(&mut a.league, &b.league);
+    merge_accs(&mut a.league_cells, &b.league_cells);
+    for (k, accs) in b.by_season {
+        merge_accs(a.by_season.entry(k).or_insert_with(new_accs), &accs);
+    }
+    for (k, accs) in b.league_by_season {
+        merge_accs(a.league_by_season.entry(k).or_insert_with(new_accs), &accs);
+    }
+    a
+}
+
+fn accumulate_range(p: &Plays, v: &SnapValues, s: &Situation, range: std::ops::Range<usize>) -> Sums {
     // The passer filter picks the rows shown, not the league they are
     // measured against: match on the situation without it.
     let unseasoned = Situation { passer: None, ..s.with_seasons(None) };
@@ -106,7 +156,7 @@ fn accumulate(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
         league_by_season: BTreeMap::new(),
     };
     let mut vals = vec![0.0f64; METRICS.len()];
-    for i in 0..p.len() {
+    for i in range {
         if !p.dropback[i] || p.passer[i] == NO_PASSER || !unseasoned.matches(p, v.wp, i) {
             continue;
         }
