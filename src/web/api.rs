@@ -46,8 +46,7 @@ pub async fn summary(State(st): State<Shared>) -> Response {
 
 /// The split table; `sort`/`dir`/`by` order the rows as on the page.
 pub fn split_for(st: &Shared, params: &Params, focus: Option<&str>) -> splits::SplitTable {
-    let lg = st.league();
-    let mut t = splits::split_table_for(lg.plays(), &lg.values(), &params.situation, params.min_dropbacks, focus);
+    let mut t = (*st.split_table(&params.situation, params.min_dropbacks, focus)).clone();
     if let Some(key) = &params.sort {
         t.sort(key, params.sort_by, params.descending);
     }

@@ -41,7 +41,13 @@ pub struct AppState {
     token: Option<String>,
     /// Last reload outcome, shown on the home page.
     reload_note: RwLock<Option<String>>,
+    /// Split tables already computed for this league, by view (the league
+    /// never changes until a reload, which empties it).
+    splits_cache: std::sync::Mutex<std::collections::HashMap<String, Arc<crate::splits::SplitTable>>>,
 }
+
+/// How many split tables the cache keeps before it starts over.
+const SPLITS_CACHE_SIZE: usize = 128;
 
 impl AppState {
     pub fn new(league: League, lenient: bool, team: Option<String>, passer: Option<String>, token: Option<String>) -> AppState {
@@ -53,6 +59,7 @@ impl AppState {
             passer,
             token,
             reload_note: RwLock::new(None),
+            splits_cache: std::sync::Mutex::new(std::collections::HashMap::new()),
         }
     }
 
@@ -76,6 +83,9 @@ impl AppState {
                     Ok(mut g) => *g = Arc::new(new),
                     Err(p) => *p.into_inner() = Arc::new(new),
                 }
+                if let Ok(mut c) = self.splits_cache.lock() {
+                    c.clear();
+                }
                 Ok(msg)
             }
             Err(e) => Err(format!("reload refused, still serving the earlier file: {e:#}")),
@@ -87,6 +97,24 @@ impl AppState {
             *g = Some(text);
         }
         note.map(|_| ())
+    }
+
+    /// The split table for a situation, minimum and focus passer, computed
+    /// once per loaded league. The key is the situation's canonical query.
+    pub fn split_table(&self, situation: &crate::situation::Situation, min: u32, focus: Option<&str>) -> Arc<crate::splits::SplitTable> {
+        let league = self.league();
+        let key = format!("{:?}|{min}|{focus:?}|{:p}", situation.to_query(), Arc::as_ptr(&league));
+        if let Some(t) = self.splits_cache.lock().ok().and_then(|c| c.get(&key).cloned()) {
+            return t;
+        }
+        let t = Arc::new(crate::splits::split_table_for(league.plays(), &league.values(), situation, min, focus));
+        if let Ok(mut c) = self.splits_cache.lock() {
+            if c.len() >= SPLITS_CACHE_SIZE {
+                c.clear();
+            }
+            c.insert(key, t.clone());
+        }
+        t
     }
 
     pub fn reload_note(&self) -> Option<String> {
