@@ -426,6 +426,9 @@ fn demo_pdf_and_html_carry_the_numbers() {
     for m in &d.metrics {
         assert!(html.contains(&format!(">{}<", m.estimate)), "{}", m.key);
     }
+    if let Ok(keep) = std::env::var("LATEGAME_REPORT_OUT") {
+        let _ = std::fs::write(Path::new(&keep).join("demo-letter.html"), html.replace("/static/report.css", "report.css"));
+    }
     let css = common::get(&format!("{}/static/report.css", common::demo_server()));
     assert!(css.header("content-type").is_some_and(|t| t.starts_with("text/css")));
 }
