@@ -49,8 +49,8 @@ pub fn load(dir: &Path, fingerprint: &str) -> anyhow::Result<Option<Entry>> {
         Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(None),
         Err(e) => return Err(e).with_context(|| format!("reading model cache {}", path.display())),
     };
-    let entry: Entry =
-        serde_json::from_str(&text).with_context(|| format!("model cache {}: not a cache entry", path.display()))?;
+    let entry: Entry = serde_json::from_str(&text)
+        .with_context(|| format!("model cache {}: not a cache entry", path.display()))?;
     if entry.fingerprint != fingerprint || entry.model_version != MODEL_VERSION {
         return Ok(None);
     }
@@ -59,8 +59,14 @@ pub fn load(dir: &Path, fingerprint: &str) -> anyhow::Result<Option<Entry>> {
 
 /// Write the entry for `fingerprint` into `dir` (created if needed), through
 /// a temporary file and a rename so a reader never sees half a file.
-pub fn store(dir: &Path, fingerprint: &str, models: &Models, calibration: &Calibration) -> anyhow::Result<PathBuf> {
-    std::fs::create_dir_all(dir).with_context(|| format!("creating model cache folder {}", dir.display()))?;
+pub fn store(
+    dir: &Path,
+    fingerprint: &str,
+    models: &Models,
+    calibration: &Calibration,
+) -> anyhow::Result<PathBuf> {
+    std::fs::create_dir_all(dir)
+        .with_context(|| format!("creating model cache folder {}", dir.display()))?;
     let entry = Entry {
         fingerprint: fingerprint.to_string(),
         model_version: MODEL_VERSION.to_string(),
@@ -68,9 +74,14 @@ pub fn store(dir: &Path, fingerprint: &str, models: &Models, calibration: &Calib
         calibration: calibration.clone(),
     };
     let path = dir.join(file_name(fingerprint));
-    let tmp = dir.join(format!("{}.tmp{}", file_name(fingerprint), std::process::id()));
+    let tmp = dir.join(format!(
+        "{}.tmp{}",
+        file_name(fingerprint),
+        std::process::id()
+    ));
     let text = serde_json::to_string(&entry).context("serializing the fitted models")?;
     std::fs::write(&tmp, text).with_context(|| format!("writing {}", tmp.display()))?;
-    std::fs::rename(&tmp, &path).with_context(|| format!("renaming {} to {}", tmp.display(), path.display()))?;
+    std::fs::rename(&tmp, &path)
+        .with_context(|| format!("renaming {} to {}", tmp.display(), path.display()))?;
     Ok(path)
 }

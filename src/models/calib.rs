@@ -67,6 +67,9 @@ pub struct Calibration {
     pub cp: Option<ProbScore>,
     /// Leave-one-season-out scores; empty unless asked for.
     pub by_season: Vec<SeasonScore>,
+    /// Reliability of the full model over every leave-one-season-out
+    /// prediction pooled; empty unless asked for.
+    pub pooled_reliability: Vec<ReliabilityBin>,
 }
 
 /// Options for `calibrate_with`.
@@ -85,7 +88,11 @@ pub fn prob_score(pred: &[f64], actual: &[f64]) -> ProbScore {
         l -= y * pc.ln() + (1.0 - y) * (1.0 - pc).ln();
     }
     let d = n.max(1) as f64;
-    ProbScore { n, brier: b / d, log_loss: l / d }
+    ProbScore {
+        n,
+        brier: b / d,
+        log_loss: l / d,
+    }
 }
 
 pub fn reliability(pred: &[f64], actual: &[f64]) -> Vec<ReliabilityBin> {
@@ -159,7 +166,16 @@ fn split(plays: &Plays) -> anyhow::Result<(Vec<u32>, Vec<u32>, String, Option<i3
             }
         }
         let games = plays.games.iter().filter(|g| g.season == last).count();
-        Ok((train, test, format!("season {last} (fit on the {} earlier seasons)", seasons.len() - 1), Some(last), games))
+        Ok((
+            train,
+            test,
+            format!(
+                "season {last} (fit on the {} earlier seasons)",
+                seasons.len() - 1
+            ),
+            Some(last),
+            games,
+        ))
     } else {
         let ng = plays.games.len();
         let cut = ng - (ng / 5).max(1);
@@ -169,7 +185,13 @@ fn split(plays: &Plays) -> anyhow::Result<(Vec<u32>, Vec<u32>, String, Option<i3
         let at = plays.games[cut].start;
         let train = (0..at as u32).collect();
         let test = (at as u32..plays.len() as u32).collect();
-        Ok((train, test, format!("the last {} of {ng} games of season {last}", ng - cut), None, ng - cut))
+        Ok((
+            train,
+            test,
+            format!("the last {} of {ng} games of season {last}", ng - cut),
+            None,
+            ng - cut,
+        ))
     }
 }
 
@@ -184,7 +206,12 @@ struct HeldOut {
     cp: Option<ProbScore>,
 }
 
-fn held_out(plays: &Plays, train: &[u32], test: &[u32], init: Option<&Models>) -> anyhow::Result<HeldOut> {
+fn held_out(
+    plays: &Plays,
+    train: &[u32],
+    test: &[u32],
+    init: Option<&Models>,
+) -> anyhow::Result<HeldOut> {
     let models: Models = fit_rows_from(plays, train, init)?;
     let ep = models.ep.score_all(plays);
     let (mut wp_pred, mut base_pred, mut actual) = (Vec::new(), Vec::new(), Vec::new());
@@ -230,21 +257,38 @@ pub fn calibrate_with(plays: &Plays, opts: &CalibOptions) -> anyhow::Result<Cali
 
 /// `calibrate_with`, the refits started from `init` (models fit on all
 /// snaps): the same held-out fits in fewer Newton iterations.
-pub fn calibrate_from(plays: &Plays, opts: &CalibOptions, init: Option<&Models>) -> anyhow::Result<Calibration> {
+pub fn calibrate_from(
+    plays: &Plays,
+    opts: &CalibOptions,
+    init: Option<&Models>,
+) -> anyhow::Result<Calibration> {
     let (train, test, holdout, holdout_season, test_games) = split(plays)?;
     let h = held_out(plays, &train, &test, init)?;
     let half = vec![0.5; h.actual.len()];
     let mut by_season = Vec::new();
+    let (mut pooled_pred, mut pooled_actual) = (Vec::new(), Vec::new());
     if opts.leave_one_season_out {
         let seasons = plays.seasons();
         if seasons.len() >= 2 {
             for s in seasons {
-                let (tr, te): (Vec<u32>, Vec<u32>) = (0..plays.len() as u32).partition(|&i| plays.season[i as usize] != s);
+                let (tr, te): (Vec<u32>, Vec<u32>) =
+                    (0..plays.len() as u32).partition(|&i| plays.season[i as usize] != s);
                 let r = held_out(plays, &tr, &te, init)?;
-                by_season.push(SeasonScore { season: s, wp: r.wp, baseline: r.baseline });
+                pooled_pred.extend_from_slice(&r.wp_pred);
+                pooled_actual.extend_from_slice(&r.actual);
+                by_season.push(SeasonScore {
+                    season: s,
+                    wp: r.wp,
+                    baseline: r.baseline,
+                });
             }
         }
     }
+    let pooled_reliability = if pooled_pred.is_empty() {
+        Vec::new()
+    } else {
+        reliability(&pooled_pred, &pooled_actual)
+    };
     Ok(Calibration {
         holdout,
         holdout_season,
@@ -259,6 +303,7 @@ pub fn calibrate_from(plays: &Plays, opts: &CalibOptions, init: Option<&Models>)
         baseline: h.baseline,
         cp: h.cp,
         by_season,
+        pooled_reliability,
     })
 }
 

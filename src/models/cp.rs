@@ -69,16 +69,46 @@ pub struct CpModel {
 
 /// Fit on the passes with air yards among `rows`; `None` when there are none
 /// (a file without the optional `air_yards` column).
-pub fn fit(plays: &Plays, rows: &[u32], opts: &FitOptions, init: Option<&CpModel>) -> anyhow::Result<Option<CpModel>> {
-    let train: Vec<u32> = rows.iter().copied().filter(|&i| applies(plays, i as usize)).collect();
+pub fn fit(
+    plays: &Plays,
+    rows: &[u32],
+    opts: &FitOptions,
+    init: Option<&CpModel>,
+) -> anyhow::Result<Option<CpModel>> {
+    let train: Vec<u32> = rows
+        .iter()
+        .copied()
+        .filter(|&i| applies(plays, i as usize))
+        .collect();
     if train.is_empty() {
         return Ok(None);
     }
-    let y: Vec<f64> = train.iter().map(|&i| plays.complete[i as usize] as i32 as f64).collect();
-    let design = FnDesign { rows: &train, p: FEATURES.len(), f: |i: usize, out: &mut [f64]| snap_features(plays, i, out) };
-    let fit = logit::fit_from(&design, Labels::Binary(&y), None, opts, init.map(|m| &m.fit))
-        .map_err(|e| anyhow::anyhow!("completion model on {} passes with air yards: {e}", train.len()))?;
-    Ok(Some(CpModel { features: FEATURES.iter().map(|s| s.to_string()).collect(), fit }))
+    let y: Vec<f64> = train
+        .iter()
+        .map(|&i| plays.complete[i as usize] as i32 as f64)
+        .collect();
+    let design = FnDesign {
+        rows: &train,
+        p: FEATURES.len(),
+        f: |i: usize, out: &mut [f64]| snap_features(plays, i, out),
+    };
+    let fit = logit::fit_from(
+        &design,
+        Labels::Binary(&y),
+        None,
+        opts,
+        init.map(|m| &m.fit),
+    )
+    .map_err(|e| {
+        anyhow::anyhow!(
+            "completion model on {} passes with air yards: {e}",
+            train.len()
+        )
+    })?;
+    Ok(Some(CpModel {
+        features: FEATURES.iter().map(|s| s.to_string()).collect(),
+        fit,
+    }))
 }
 
 impl CpModel {

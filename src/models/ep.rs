@@ -1,6 +1,6 @@
 //! Expected points: a multinomial logistic model of the next score in the
 //! half (Yurko, Ventura & Horowitz 2019), EP = sum of class probability times
-//! class points; constants for kickoffs and tries; EPA per snap.
+//! class points; kickoff and try values; EPA per snap.
 
 use super::logit::{self, FitOptions, FnDesign, Labels};
 use crate::playfile::Kind;
@@ -58,9 +58,47 @@ pub struct EpModel {
     pub xp_mean: f64,
     pub two_mean: f64,
     /// Mean next-score value over kickoffs from the side of the team the file
-    /// lists as offense on the kickoff: a kickoff snap's EP.
+    /// lists as offense on the kickoff (the kicking team).
     pub kickoff_ep: f64,
+    /// A kickoff snap's EP is `kickoff_a + kickoff_b * EP(1st and 10 at the
+    /// own KICKOFF_REF_SPOT with the same time left in the half)`, fit by least
+    /// squares over kickoffs on what each was worth to the kicking team (its
+    /// points, else minus the receiving team's EP on the next snap): so
+    /// kickoff EPA averages zero and kickoff EP fades as the half runs out.
+    pub kickoff_a: f64,
+    pub kickoff_b: f64,
 }
+
+/// What a kickoff was worth to the kicking team: its points if it scored,
+/// else the EP of the next snap in the half from the kicking team's side
+/// (0 when the half ends).
+fn kickoff_target(model: &EpModel, plays: &Plays, i: usize) -> f64 {
+    if plays.points[i] != 0 {
+        return plays.points[i] as f64;
+    }
+    let j = i + 1;
+    if j >= plays.len()
+        || plays.game[j] != plays.game[i]
+        || plays.half(j) != plays.half(i)
+        || plays.down[j] == 0
+    {
+        return 0.0;
+    }
+    let ep = model.situation(
+        plays.down[j],
+        plays.to_go[j],
+        plays.ball_on[j],
+        plays.secs_half[j],
+    );
+    if plays.offense[j] == plays.offense[i] {
+        ep
+    } else {
+        -ep
+    }
+}
+
+/// Field position (own yard line) of the reference snap for kickoff EP.
+pub const KICKOFF_REF_SPOT: i32 = 25;
 
 /// Features of one snap (down 0 is scored as 1st and 10).
 pub fn features(down: i32, to_go: i32, ball_on: i32, secs_half: i32, out: &mut [f64]) {
@@ -94,7 +132,12 @@ pub fn features(down: i32, to_go: i32, ball_on: i32, secs_half: i32, out: &mut [
 
 /// Fit on the snaps with a down among `rows` (indices into `plays`); the
 /// constants come from the kickoffs and tries among `rows`.
-pub fn fit(plays: &Plays, rows: &[u32], opts: &FitOptions, init: Option<&EpModel>) -> anyhow::Result<EpModel> {
+pub fn fit(
+    plays: &Plays,
+    rows: &[u32],
+    opts: &FitOptions,
+    init: Option<&EpModel>,
+) -> anyhow::Result<EpModel> {
     let sub = |kind: Kind| -> Option<f64> {
         let (mut s, mut n) = (0.0, 0usize);
         for &i in rows {
@@ -118,35 +161,76 @@ pub fn fit(plays: &Plays, rows: &[u32], opts: &FitOptions, init: Option<&EpModel
     }
     let try_mean = if tn > 0 { ts / tn as f64 } else { DEFAULT_XP };
     let td_value = 6.0 + try_mean;
-    let (mut ks, mut kn) = (0.0, 0usize);
-    for &i in rows {
-        let i = i as usize;
-        if plays.kind[i] == Kind::Kickoff {
-            ks += plays.next_score[i].points(td_value);
-            kn += 1;
-        }
-    }
-    let kickoff_ep = if kn > 0 { ks / kn as f64 } else { 0.0 };
 
-    let train: Vec<u32> = rows.iter().copied().filter(|&i| plays.down[i as usize] > 0).collect();
-    let y: Vec<u8> = train.iter().map(|&i| plays.next_score[i as usize].index() as u8).collect();
+    let train: Vec<u32> = rows
+        .iter()
+        .copied()
+        .filter(|&i| plays.down[i as usize] > 0)
+        .collect();
+    let y: Vec<u8> = train
+        .iter()
+        .map(|&i| plays.next_score[i as usize].index() as u8)
+        .collect();
     let design = FnDesign {
         rows: &train,
         p: FEATURES.len(),
-        f: |i: usize, out: &mut [f64]| features(plays.down[i], plays.to_go[i], plays.ball_on[i], plays.secs_half[i], out),
+        f: |i: usize, out: &mut [f64]| {
+            features(
+                plays.down[i],
+                plays.to_go[i],
+                plays.ball_on[i],
+                plays.secs_half[i],
+                out,
+            )
+        },
     };
-    let labels = Labels::Classes { y: &y, classes: NextScore::ALL.len(), reference: REFERENCE };
-    let fit = logit::fit_from(&design, labels, None, opts, init.map(|m| &m.fit))
-        .map_err(|e| anyhow::anyhow!("expected-points model on {} snaps with a down: {e}", train.len()))?;
-    Ok(EpModel {
+    let labels = Labels::Classes {
+        y: &y,
+        classes: NextScore::ALL.len(),
+        reference: REFERENCE,
+    };
+    let fit = logit::fit_from(&design, labels, None, opts, init.map(|m| &m.fit)).map_err(|e| {
+        anyhow::anyhow!(
+            "expected-points model on {} snaps with a down: {e}",
+            train.len()
+        )
+    })?;
+    let mut model = EpModel {
         fit,
         features: FEATURES.iter().map(|s| s.to_string()).collect(),
         td_value,
         try_mean,
         xp_mean: xp.unwrap_or(DEFAULT_XP),
         two_mean: two.unwrap_or(DEFAULT_TWO),
-        kickoff_ep,
-    })
+        kickoff_ep: 0.0,
+        kickoff_a: 0.0,
+        kickoff_b: 0.0,
+    };
+    // Kickoffs: least squares of the next-score value on the reference EP.
+    let (mut xs, mut ys) = (Vec::new(), Vec::new());
+    for &i in rows {
+        let i = i as usize;
+        if plays.kind[i] == Kind::Kickoff {
+            xs.push(model.situation(1, 10, KICKOFF_REF_SPOT, plays.secs_half[i]));
+            ys.push(kickoff_target(&model, plays, i));
+        }
+    }
+    if !ys.is_empty() {
+        let n = ys.len() as f64;
+        let (mx, my) = (xs.iter().sum::<f64>() / n, ys.iter().sum::<f64>() / n);
+        let sxx: f64 = xs.iter().map(|x| (x - mx) * (x - mx)).sum();
+        let sxy: f64 = xs.iter().zip(&ys).map(|(x, y)| (x - mx) * (y - my)).sum();
+        let b = if sxx > 1e-9 * n { sxy / sxx } else { 0.0 };
+        model.kickoff_ep = rows
+            .iter()
+            .filter(|&&i| plays.kind[i as usize] == Kind::Kickoff)
+            .map(|&i| plays.next_score[i as usize].points(td_value))
+            .sum::<f64>()
+            / n;
+        model.kickoff_b = b;
+        model.kickoff_a = my - b * mx;
+    }
+    Ok(model)
 }
 
 impl EpModel {
@@ -156,16 +240,29 @@ impl EpModel {
         let mut q = [0.0; 7];
         features(down, to_go, ball_on, secs_half, &mut x);
         self.fit.probs(&x, &mut q);
-        NextScore::ALL.iter().map(|c| q[c.index()] * c.points(self.td_value)).sum()
+        NextScore::ALL
+            .iter()
+            .map(|c| q[c.index()] * c.points(self.td_value))
+            .sum()
+    }
+
+    /// EP of a kickoff with `secs_half` left, from the kicking team's side.
+    pub fn kickoff(&self, secs_half: i32) -> f64 {
+        self.kickoff_a + self.kickoff_b * self.situation(1, 10, KICKOFF_REF_SPOT, secs_half)
     }
 
     /// EP before snap `i`, from its offense's side.
     pub fn snap(&self, plays: &Plays, i: usize) -> f64 {
         match plays.kind[i] {
-            Kind::Kickoff => self.kickoff_ep,
+            Kind::Kickoff => self.kickoff(plays.secs_half[i]),
             Kind::ExtraPoint => self.xp_mean,
             Kind::TwoPoint => self.two_mean,
-            _ => self.situation(plays.down[i], plays.to_go[i], plays.ball_on[i], plays.secs_half[i]),
+            _ => self.situation(
+                plays.down[i],
+                plays.to_go[i],
+                plays.ball_on[i],
+                plays.secs_half[i],
+            ),
         }
     }
 
@@ -190,7 +287,10 @@ pub fn epa(plays: &Plays, ep: &[f64]) -> Vec<f64> {
             if plays.points[i] != 0 || plays.kind[i].is_try() {
                 return plays.points[i] as f64 - ep[i];
             }
-            let after = if i + 1 < n && plays.game[i + 1] == plays.game[i] && plays.half(i + 1) == plays.half(i) {
+            let after = if i + 1 < n
+                && plays.game[i + 1] == plays.game[i]
+                && plays.half(i + 1) == plays.half(i)
+            {
                 if plays.offense[i + 1] == plays.offense[i] {
                     ep[i + 1]
                 } else {

@@ -75,7 +75,14 @@ pub struct FitOptions {
 
 impl Default for FitOptions {
     fn default() -> Self {
-        FitOptions { l2: 1.0, max_iter: 50, tol: 1e-10, warm_rows: 100_000, hess_rows: 200_000, threads: 0 }
+        FitOptions {
+            l2: 1.0,
+            max_iter: 50,
+            tol: 1e-10,
+            warm_rows: 100_000,
+            hess_rows: 200_000,
+            threads: 0,
+        }
     }
 }
 
@@ -86,7 +93,11 @@ pub enum Labels<'a> {
     /// Target probability of the event (0, 1, or in between, e.g. 0.5 for a tie).
     Binary(&'a [f64]),
     /// Class index per row in `0..classes`.
-    Classes { y: &'a [u8], classes: usize, reference: usize },
+    Classes {
+        y: &'a [u8],
+        classes: usize,
+        reference: usize,
+    },
 }
 
 impl Labels<'_> {
@@ -226,7 +237,11 @@ fn accumulate(pr: Problem, coef: &[Vec<f64>], rows: &[usize], with_hess: bool) -
         weight: 0.0,
         ll: 0.0,
         grad: vec![0.0; m * p],
-        hess: if with_hess { vec![0.0; np * tl] } else { Vec::new() },
+        hess: if with_hess {
+            vec![0.0; np * tl]
+        } else {
+            Vec::new()
+        },
     };
     let mut x = vec![0.0; p];
     let mut q = vec![0.0; k];
@@ -297,16 +312,27 @@ fn triangle_index(p: usize, a: usize, b: usize) -> usize {
 }
 
 /// `accumulate` split across threads, sums combined.
-fn accumulate_par(pr: Problem, coef: &[Vec<f64>], rows: &[usize], with_hess: bool, threads: usize) -> Acc {
+fn accumulate_par(
+    pr: Problem,
+    coef: &[Vec<f64>],
+    rows: &[usize],
+    with_hess: bool,
+    threads: usize,
+) -> Acc {
     let threads = threads.max(1).min(rows.len() / 2000 + 1);
     if threads == 1 {
         return accumulate(pr, coef, rows, with_hess);
     }
     let chunk = rows.len().div_ceil(threads);
     let parts: Vec<Acc> = std::thread::scope(|s| {
-        let handles: Vec<_> =
-            rows.chunks(chunk).map(|part| s.spawn(move || accumulate(pr, coef, part, with_hess))).collect();
-        handles.into_iter().map(|h| h.join().expect("logit worker panicked")).collect()
+        let handles: Vec<_> = rows
+            .chunks(chunk)
+            .map(|part| s.spawn(move || accumulate(pr, coef, part, with_hess)))
+            .collect();
+        handles
+            .into_iter()
+            .map(|h| h.join().expect("logit worker panicked"))
+            .collect()
     });
     let mut it = parts.into_iter();
     let mut total = it.next().expect("at least one part");
@@ -331,7 +357,11 @@ pub enum LogitError {
     #[error("labels: {0} rows, design: {1} rows")]
     Length(usize, usize),
     #[error("label {value} on row {row} is outside {what}")]
-    BadLabel { row: usize, value: f64, what: &'static str },
+    BadLabel {
+        row: usize,
+        value: f64,
+        what: &'static str,
+    },
     #[error("no row has the reference class {0}")]
     NoReference(usize),
     #[error("the Hessian is not positive definite even after a ridge of {0:e}")]
@@ -341,7 +371,11 @@ pub enum LogitError {
 }
 
 /// Check labels and weights; return the total weight of each class.
-fn check_labels(design: &dyn Design, labels: Labels, weights: Option<&[f64]>) -> Result<Vec<f64>, LogitError> {
+fn check_labels(
+    design: &dyn Design,
+    labels: Labels,
+    weights: Option<&[f64]>,
+) -> Result<Vec<f64>, LogitError> {
     let n = design.rows();
     if n == 0 {
         return Err(LogitError::Empty);
@@ -357,15 +391,31 @@ fn check_labels(design: &dyn Design, labels: Labels, weights: Option<&[f64]>) ->
         if w.len() != n {
             return Err(LogitError::Length(w.len(), n));
         }
-        if let Some((row, &v)) = w.iter().enumerate().find(|(_, v)| !(v.is_finite() && **v >= 0.0)) {
-            return Err(LogitError::BadLabel { row, value: v, what: "weights >= 0" });
+        if let Some((row, &v)) = w
+            .iter()
+            .enumerate()
+            .find(|(_, v)| !(v.is_finite() && **v >= 0.0))
+        {
+            return Err(LogitError::BadLabel {
+                row,
+                value: v,
+                what: "weights >= 0",
+            });
         }
     }
     let wt = |i: usize| weights.map_or(1.0, |w| w[i]);
     match labels {
         Labels::Binary(y) => {
-            if let Some((row, &v)) = y.iter().enumerate().find(|(_, v)| !(**v >= 0.0 && **v <= 1.0)) {
-                return Err(LogitError::BadLabel { row, value: v, what: "[0, 1]" });
+            if let Some((row, &v)) = y
+                .iter()
+                .enumerate()
+                .find(|(_, v)| !(**v >= 0.0 && **v <= 1.0))
+            {
+                return Err(LogitError::BadLabel {
+                    row,
+                    value: v,
+                    what: "[0, 1]",
+                });
             }
             let mut tot = vec![0.0; 2];
             for (i, &v) in y.iter().enumerate() {
@@ -374,14 +424,26 @@ fn check_labels(design: &dyn Design, labels: Labels, weights: Option<&[f64]>) ->
             }
             Ok(tot)
         }
-        Labels::Classes { y, classes, reference } => {
+        Labels::Classes {
+            y,
+            classes,
+            reference,
+        } => {
             if reference >= classes || !(2..=MAX_CLASSES).contains(&classes) {
-                return Err(LogitError::BadLabel { row: 0, value: reference as f64, what: "the class list" });
+                return Err(LogitError::BadLabel {
+                    row: 0,
+                    value: reference as f64,
+                    what: "the class list",
+                });
             }
             let mut tot = vec![0.0; classes];
             for (row, &v) in y.iter().enumerate() {
                 if v as usize >= classes {
-                    return Err(LogitError::BadLabel { row, value: v as f64, what: "the class list" });
+                    return Err(LogitError::BadLabel {
+                        row,
+                        value: v as f64,
+                        what: "the class list",
+                    });
                 }
                 tot[v as usize] += wt(row);
             }
@@ -398,7 +460,12 @@ fn check_labels(design: &dyn Design, labels: Labels, weights: Option<&[f64]>) ->
 /// iteration and the Hessian summed over an evenly spaced subsample of
 /// `hess_rows` (scaled to the full weight), a subsampled Newton method whose
 /// fixed point is the exact maximum. `grad_norm` is exact.
-pub fn fit(design: &dyn Design, labels: Labels, weights: Option<&[f64]>, opts: &FitOptions) -> Result<Fit, LogitError> {
+pub fn fit(
+    design: &dyn Design,
+    labels: Labels,
+    weights: Option<&[f64]>,
+    opts: &FitOptions,
+) -> Result<Fit, LogitError> {
     fit_from(design, labels, weights, opts, None)
 }
 
@@ -421,8 +488,17 @@ pub fn fit_from(
     if totals[reference] <= 0.0 {
         return Err(LogitError::NoReference(reference));
     }
-    let free: Vec<usize> = (0..k).filter(|&c| c != reference && totals[c] > 0.0).collect();
-    let pr = Problem { design, labels, weights, free: &free, reference, classes: k };
+    let free: Vec<usize> = (0..k)
+        .filter(|&c| c != reference && totals[c] > 0.0)
+        .collect();
+    let pr = Problem {
+        design,
+        labels,
+        weights,
+        free: &free,
+        reference,
+        classes: k,
+    };
     let threads = if opts.threads == 0 {
         std::thread::available_parallelism().map_or(1, |t| t.get())
     } else {
@@ -438,13 +514,24 @@ pub fn fit_from(
         })
         .collect();
     let mut warm_iterations = 0;
-    let usable = init.filter(|f| f.free == free && f.reference == reference && f.coef.iter().all(|r| r.len() == p));
+    let usable = init.filter(|f| {
+        f.free == free && f.reference == reference && f.coef.iter().all(|r| r.len() == p)
+    });
     if let Some(f) = usable {
         coef = f.coef.clone();
     } else if !free.is_empty() && opts.warm_rows > 0 && n > 2 * opts.warm_rows {
         let sub: Vec<usize> = (0..n).step_by(n / opts.warm_rows).collect();
         let l2 = opts.l2 * sub.len() as f64 / n as f64;
-        let r = newton(pr, &sub, &sub, coef, l2, opts.max_iter, opts.tol * 1e3, threads)?;
+        let r = newton(
+            pr,
+            &sub,
+            &sub,
+            coef,
+            l2,
+            opts.max_iter,
+            opts.tol * 1e3,
+            threads,
+        )?;
         coef = r.coef;
         warm_iterations = r.iterations;
     }
@@ -456,9 +543,24 @@ pub fn fit_from(
     };
     let r = if free.is_empty() {
         let acc = accumulate_par(pr, &coef, &all, false, threads);
-        NewtonOut { coef, iterations: 0, converged: true, grad_norm: 0.0, log_lik: acc.ll }
+        NewtonOut {
+            coef,
+            iterations: 0,
+            converged: true,
+            grad_norm: 0.0,
+            log_lik: acc.ll,
+        }
     } else {
-        newton(pr, &all, &hess_rows, coef, opts.l2, opts.max_iter, opts.tol, threads)?
+        newton(
+            pr,
+            &all,
+            &hess_rows,
+            coef,
+            opts.l2,
+            opts.max_iter,
+            opts.tol,
+            threads,
+        )?
     };
     Ok(Fit {
         classes: k,
@@ -479,7 +581,11 @@ pub fn fit_from(
 }
 
 fn penalty(coef: &[Vec<f64>], l2: f64) -> f64 {
-    coef.iter().map(|r| r[1..].iter().map(|b| b * b).sum::<f64>()).sum::<f64>() * l2 / 2.0
+    coef.iter()
+        .map(|r| r[1..].iter().map(|b| b * b).sum::<f64>())
+        .sum::<f64>()
+        * l2
+        / 2.0
 }
 
 struct NewtonOut {
@@ -511,7 +617,12 @@ fn newton(
     let pass = |coef: &[Vec<f64>]| -> (Acc, Acc) {
         let full = accumulate_par(pr, coef, rows, same, threads);
         if same {
-            let h = Acc { weight: full.weight, ll: 0.0, grad: Vec::new(), hess: full.hess.clone() };
+            let h = Acc {
+                weight: full.weight,
+                ll: 0.0,
+                grad: Vec::new(),
+                hess: full.hess.clone(),
+            };
             (full, h)
         } else {
             let h = accumulate_par(pr, coef, hess_rows, true, threads);
@@ -537,7 +648,11 @@ fn newton(
             break;
         }
         // Hessian of the negative penalized log-likelihood.
-        let scale = if hacc.weight > 0.0 { acc.weight / hacc.weight } else { 1.0 };
+        let scale = if hacc.weight > 0.0 {
+            acc.weight / hacc.weight
+        } else {
+            1.0
+        };
         let mut h = DMatrix::<f64>::zeros(dim, dim);
         for a in 0..p {
             for b in a..p {
@@ -570,8 +685,9 @@ fn newton(
         let mut t = 1.0;
         let mut accepted = false;
         for _ in 0..40 {
-            let trial: Vec<Vec<f64>> =
-                (0..m).map(|j| (0..p).map(|a| coef[j][a] + t * step[j * p + a]).collect()).collect();
+            let trial: Vec<Vec<f64>> = (0..m)
+                .map(|j| (0..p).map(|a| coef[j][a] + t * step[j * p + a]).collect())
+                .collect();
             if trial.iter().flatten().any(|v| !v.is_finite()) {
                 return Err(LogitError::NonFinite(iterations));
             }
@@ -593,14 +709,23 @@ fn newton(
         (acc, hacc) = pass(&coef);
     }
     let g = penalized_grad(&acc, &coef);
-    Ok(NewtonOut { coef, iterations, converged, grad_norm: g.norm(), log_lik: acc.ll })
+    Ok(NewtonOut {
+        coef,
+        iterations,
+        converged,
+        grad_norm: g.norm(),
+        log_lik: acc.ll,
+    })
 }
 
 /// Solve `h x = g` for symmetric positive definite `h` by Cholesky, adding a
 /// growing ridge if rounding makes it indefinite.
 fn solve_spd(h: DMatrix<f64>, g: &DVector<f64>) -> Result<DVector<f64>, LogitError> {
     let dim = h.nrows();
-    let scale = (0..dim).map(|i| h[(i, i)].abs()).fold(0.0, f64::max).max(1e-300);
+    let scale = (0..dim)
+        .map(|i| h[(i, i)].abs())
+        .fold(0.0, f64::max)
+        .max(1e-300);
     let mut ridge = 0.0;
     for _ in 0..12 {
         let mut hr = h.clone();
@@ -610,7 +735,11 @@ fn solve_spd(h: DMatrix<f64>, g: &DVector<f64>) -> Result<DVector<f64>, LogitErr
         if let Some(ch) = hr.cholesky() {
             return Ok(ch.solve(g));
         }
-        ridge = if ridge == 0.0 { scale * 1e-12 } else { ridge * 100.0 };
+        ridge = if ridge == 0.0 {
+            scale * 1e-12
+        } else {
+            ridge * 100.0
+        };
     }
     Err(LogitError::Singular(ridge))
 }
@@ -650,7 +779,12 @@ mod tests {
                 }
             })
             .collect();
-        let opts = FitOptions { l2: 0.0, warm_rows: 20_000, hess_rows: 50_000, ..Default::default() };
+        let opts = FitOptions {
+            l2: 0.0,
+            warm_rows: 20_000,
+            hess_rows: 50_000,
+            ..Default::default()
+        };
         let f = fit(&d, Labels::Binary(&y), None, &opts).expect("fit");
         assert!(f.stats.converged, "{:?}", f.stats);
         for (b, t) in f.coef[0].iter().zip(truth) {
@@ -682,9 +816,16 @@ mod tests {
             .collect();
         let f = fit(
             &d,
-            Labels::Classes { y: &y, classes: 3, reference: 0 },
+            Labels::Classes {
+                y: &y,
+                classes: 3,
+                reference: 0,
+            },
             None,
-            &FitOptions { l2: 0.0, ..Default::default() },
+            &FitOptions {
+                l2: 0.0,
+                ..Default::default()
+            },
         )
         .expect("fit");
         assert!(f.stats.converged);
@@ -701,12 +842,25 @@ mod tests {
     fn penalized_fit_meets_its_optimality_condition() {
         let d = synth(5_000, 5, 3);
         let mut rng = ChaCha8Rng::seed_from_u64(4);
-        let y: Vec<f64> = (0..d.n).map(|_| if rng.random::<f64>() < 0.3 { 1.0 } else { 0.5 }).collect();
+        let y: Vec<f64> = (0..d.n)
+            .map(|_| if rng.random::<f64>() < 0.3 { 1.0 } else { 0.5 })
+            .collect();
         let w: Vec<f64> = (0..d.n).map(|_| rng.random_range(0.5..2.0)).collect();
-        let opts = FitOptions { l2: 50.0, tol: 1e-15, ..Default::default() };
+        let opts = FitOptions {
+            l2: 50.0,
+            tol: 1e-20,
+            ..Default::default()
+        };
         let f = fit(&d, Labels::Binary(&y), Some(&w), &opts).expect("fit");
         let rows: Vec<usize> = (0..d.n).collect();
-        let pr = Problem { design: &d, labels: Labels::Binary(&y), weights: Some(&w), free: &[1], reference: 0, classes: 2 };
+        let pr = Problem {
+            design: &d,
+            labels: Labels::Binary(&y),
+            weights: Some(&w),
+            free: &[1],
+            reference: 0,
+            classes: 2,
+        };
         let acc = accumulate(pr, &f.coef, &rows, false);
         assert!(acc.grad[0].abs() < 1e-6);
         for a in 1..5 {
@@ -719,9 +873,29 @@ mod tests {
     fn threads_agree_with_one_thread() {
         let d = synth(30_000, 4, 5);
         let mut rng = ChaCha8Rng::seed_from_u64(6);
-        let y: Vec<f64> = (0..d.n).map(|_| if rng.random::<f64>() < 0.4 { 1.0 } else { 0.0 }).collect();
-        let one = fit(&d, Labels::Binary(&y), None, &FitOptions { threads: 1, ..Default::default() }).expect("fit");
-        let two = fit(&d, Labels::Binary(&y), None, &FitOptions { threads: 2, ..Default::default() }).expect("fit");
+        let y: Vec<f64> = (0..d.n)
+            .map(|_| if rng.random::<f64>() < 0.4 { 1.0 } else { 0.0 })
+            .collect();
+        let one = fit(
+            &d,
+            Labels::Binary(&y),
+            None,
+            &FitOptions {
+                threads: 1,
+                ..Default::default()
+            },
+        )
+        .expect("fit");
+        let two = fit(
+            &d,
+            Labels::Binary(&y),
+            None,
+            &FitOptions {
+                threads: 2,
+                ..Default::default()
+            },
+        )
+        .expect("fit");
         for (a, b) in one.coef[0].iter().zip(&two.coef[0]) {
             assert!((a - b).abs() < 1e-9);
         }
@@ -745,8 +919,13 @@ mod tests {
             eprintln!("LATEGAME_SKIP_PY=1: skipping the statsmodels comparison");
             return None;
         }
-        let script = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/ref/logit_ref.py");
-        let out = std::process::Command::new("python3").arg(&script).arg(csv).arg(mode).output();
+        let script =
+            std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/ref/logit_ref.py");
+        let out = std::process::Command::new("python3")
+            .arg(&script)
+            .arg(csv)
+            .arg(mode)
+            .output();
         let out = match out {
             Ok(o) => o,
             Err(e) => panic!("cannot run python3 for the reference fit ({e}); install Python 3 with statsmodels, or set LATEGAME_SKIP_PY=1"),
@@ -756,11 +935,18 @@ mod tests {
             "reference fit failed (is statsmodels installed? `pip install statsmodels`, or set LATEGAME_SKIP_PY=1): {}",
             String::from_utf8_lossy(&out.stderr)
         );
-        let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("reference output is JSON");
+        let v: serde_json::Value =
+            serde_json::from_slice(&out.stdout).expect("reference output is JSON");
         let rows = v["coef"].as_array().expect("coef array");
         Some(
             rows.iter()
-                .map(|r| r.as_array().expect("row").iter().map(|x| x.as_f64().expect("number")).collect())
+                .map(|r| {
+                    r.as_array()
+                        .expect("row")
+                        .iter()
+                        .map(|x| x.as_f64().expect("number"))
+                        .collect()
+                })
                 .collect(),
         )
     }
@@ -813,13 +999,35 @@ mod tests {
         let w: Vec<f64> = (0..d.n).map(|_| rng.random_range(1..4) as f64).collect();
         let path = temp_csv("binary.csv");
         write_csv(&path, &d, &y, &w);
-        let Some(want) = reference(&path, "binary") else { return };
-        let f = fit(&d, Labels::Binary(&y), Some(&w), &FitOptions { l2: 0.0, tol: 1e-12, ..Default::default() }).expect("fit");
+        let Some(want) = reference(&path, "binary") else {
+            return;
+        };
+        let f = fit(
+            &d,
+            Labels::Binary(&y),
+            Some(&w),
+            &FitOptions {
+                l2: 0.0,
+                tol: 1e-12,
+                ..Default::default()
+            },
+        )
+        .expect("fit");
         assert!(f.stats.converged);
         for (a, (b, r)) in f.coef[0].iter().zip(&want[0]).enumerate() {
-            assert!((b - r).abs() < 1e-4, "coefficient {a}: ours {b}, statsmodels {r}");
+            assert!(
+                (b - r).abs() < 1e-4,
+                "coefficient {a}: ours {b}, statsmodels {r}"
+            );
         }
-        eprintln!("binary max |diff| = {:e}", f.coef[0].iter().zip(&want[0]).map(|(a, b)| (a - b).abs()).fold(0.0, f64::max));
+        eprintln!(
+            "binary max |diff| = {:e}",
+            f.coef[0]
+                .iter()
+                .zip(&want[0])
+                .map(|(a, b)| (a - b).abs())
+                .fold(0.0, f64::max)
+        );
     }
 
     #[test]
@@ -849,12 +1057,22 @@ mod tests {
         let yf: Vec<f64> = y.iter().map(|&c| c as f64).collect();
         let path = temp_csv("multinomial.csv");
         write_csv(&path, &d, &yf, &vec![1.0; d.n]);
-        let Some(want) = reference(&path, "multinomial") else { return };
+        let Some(want) = reference(&path, "multinomial") else {
+            return;
+        };
         let f = fit(
             &d,
-            Labels::Classes { y: &y, classes: 4, reference: 0 },
+            Labels::Classes {
+                y: &y,
+                classes: 4,
+                reference: 0,
+            },
             None,
-            &FitOptions { l2: 0.0, tol: 1e-12, ..Default::default() },
+            &FitOptions {
+                l2: 0.0,
+                tol: 1e-12,
+                ..Default::default()
+            },
         )
         .expect("fit");
         assert!(f.stats.converged);
@@ -863,7 +1081,11 @@ mod tests {
             for a in 0..6 {
                 let (b, r) = (f.coef[j][a], want[j][a]);
                 worst = worst.max((b - r).abs());
-                assert!((b - r).abs() < 1e-4, "class {} coefficient {a}: ours {b}, statsmodels {r}", j + 1);
+                assert!(
+                    (b - r).abs() < 1e-4,
+                    "class {} coefficient {a}: ours {b}, statsmodels {r}",
+                    j + 1
+                );
             }
         }
         eprintln!("multinomial max |diff| = {worst:e}");
@@ -875,10 +1097,26 @@ mod tests {
     fn unseen_class_gets_probability_zero() {
         let d = synth(20_000, 3, 41);
         let mut rng = ChaCha8Rng::seed_from_u64(42);
-        let y: Vec<u8> = (0..d.n).map(|_| if rng.random::<f64>() < 0.3 { 2 } else { 0 }).collect();
-        let f = fit(&d, Labels::Classes { y: &y, classes: 4, reference: 0 }, None, &FitOptions::default()).expect("fit");
+        let y: Vec<u8> = (0..d.n)
+            .map(|_| if rng.random::<f64>() < 0.3 { 2 } else { 0 })
+            .collect();
+        let f = fit(
+            &d,
+            Labels::Classes {
+                y: &y,
+                classes: 4,
+                reference: 0,
+            },
+            None,
+            &FitOptions::default(),
+        )
+        .expect("fit");
         assert_eq!(f.free, vec![2]);
-        assert!(f.stats.converged && f.stats.iterations < 10, "{:?}", f.stats);
+        assert!(
+            f.stats.converged && f.stats.iterations < 10,
+            "{:?}",
+            f.stats
+        );
         let mut q = [0.0; 4];
         f.probs(&[1.0, 0.0, 0.0], &mut q);
         assert_eq!(q[1], 0.0);
@@ -899,10 +1137,28 @@ mod tests {
                 (rng.random::<f64>() < sigmoid(dot(&truth, &x))) as i32 as f64
             })
             .collect();
-        let exact = fit(&d, Labels::Binary(&y), None, &FitOptions { warm_rows: 0, hess_rows: 0, ..Default::default() })
-            .expect("fit");
-        let sub = fit(&d, Labels::Binary(&y), None, &FitOptions { warm_rows: 5_000, hess_rows: 5_000, ..Default::default() })
-            .expect("fit");
+        let exact = fit(
+            &d,
+            Labels::Binary(&y),
+            None,
+            &FitOptions {
+                warm_rows: 0,
+                hess_rows: 0,
+                ..Default::default()
+            },
+        )
+        .expect("fit");
+        let sub = fit(
+            &d,
+            Labels::Binary(&y),
+            None,
+            &FitOptions {
+                warm_rows: 5_000,
+                hess_rows: 5_000,
+                ..Default::default()
+            },
+        )
+        .expect("fit");
         assert!(sub.stats.converged && sub.stats.warm_iterations > 0);
         for (a, b) in exact.coef[0].iter().zip(&sub.coef[0]) {
             assert!((a - b).abs() < 1e-6, "{a} vs {b}");

@@ -7,9 +7,9 @@ pub mod calib;
 pub mod cp;
 pub mod ep;
 pub mod logit;
-pub mod wp;
 #[cfg(test)]
 pub(crate) mod testkit;
+pub mod wp;
 
 pub use calib::{calibrate_with, CalibOptions, Calibration};
 pub use logit::FitStats as ModelReport;
@@ -21,7 +21,7 @@ use polars::prelude::{Column, DataFrame};
 use serde::{Deserialize, Serialize};
 
 /// Bumped whenever features, labels or conventions change; part of the cache key.
-pub const MODEL_VERSION: &str = "lategame-models-1";
+pub const MODEL_VERSION: &str = "lategame-models-2";
 
 /// Everything fitted from one league.
 #[derive(Debug, Serialize, Deserialize, Clone, PartialEq)]
@@ -98,8 +98,22 @@ pub fn fit_rows_from(plays: &Plays, rows: &[u32], init: Option<&Models>) -> anyh
     let opts = options();
     let ep = ep::fit(plays, rows, &opts, init.map(|m| &m.ep))?;
     let ep_all = ep.score_all(plays);
-    let wp = wp::fit(plays, &ep_all, rows, wp::WpKind::Full, &opts, init.map(|m| &m.wp))?;
-    let baseline = wp::fit(plays, &ep_all, rows, wp::WpKind::Baseline, &opts, init.map(|m| &m.baseline))?;
+    let wp = wp::fit(
+        plays,
+        &ep_all,
+        rows,
+        wp::WpKind::Full,
+        &opts,
+        init.map(|m| &m.wp),
+    )?;
+    let baseline = wp::fit(
+        plays,
+        &ep_all,
+        rows,
+        wp::WpKind::Baseline,
+        &opts,
+        init.map(|m| &m.baseline),
+    )?;
     let cp = cp::fit(plays, rows, &opts, init.and_then(|m| m.cp.as_ref()))?;
     let report = FitReport {
         snaps: rows.len(),
@@ -109,7 +123,14 @@ pub fn fit_rows_from(plays: &Plays, rows: &[u32], init: Option<&Models>) -> anyh
         cp: cp.as_ref().map(|c| c.fit.stats.clone()),
         seconds: started.elapsed().as_secs_f64(),
     };
-    Ok(Models { version: MODEL_VERSION.to_string(), ep, wp, baseline, cp, report })
+    Ok(Models {
+        version: MODEL_VERSION.to_string(),
+        ep,
+        wp,
+        baseline,
+        cp,
+        report,
+    })
 }
 
 impl Models {
@@ -123,7 +144,13 @@ impl Models {
             Some(m) => m.score_all(plays),
             None => vec![f64::NAN; plays.len()],
         };
-        Scores { ep, epa, wp, wpa, cp }
+        Scores {
+            ep,
+            epa,
+            wp,
+            wpa,
+            cp,
+        }
     }
 }
 
@@ -162,7 +189,8 @@ pub fn fit_and_score_in(
         Some(e) => (e.models, e.calibration, true),
         None => {
             let models = fit(&plays)?;
-            let calibration = calib::calibrate_from(&plays, &CalibOptions::default(), Some(&models))?;
+            let calibration =
+                calib::calibrate_from(&plays, &CalibOptions::default(), Some(&models))?;
             if let Some(d) = dir {
                 match cache::store(d, fingerprint, &models, &calibration) {
                     Ok(p) => tracing::info!("fitted models cached in {}", p.display()),
@@ -173,7 +201,14 @@ pub fn fit_and_score_in(
         }
     };
     let scores = models.score(&plays);
-    Ok(Scored { plays, scores, models, calibration, fingerprint: fingerprint.to_string(), from_cache })
+    Ok(Scored {
+        plays,
+        scores,
+        models,
+        calibration,
+        fingerprint: fingerprint.to_string(),
+        from_cache,
+    })
 }
 
 /// The play row of snap `i`, as the file layout spells it.
@@ -261,7 +296,9 @@ mod tests {
         }
         assert!(s.wp.iter().all(|&p| (0.0..=1.0).contains(&p)));
         // EP rises with field position on 1st and 10.
-        let ep: Vec<f64> = (1..10).map(|k| models.ep.situation(1, 10, k * 10, 1500)).collect();
+        let ep: Vec<f64> = (1..10)
+            .map(|k| models.ep.situation(1, 10, k * 10, 1500))
+            .collect();
         assert!(ep.windows(2).all(|w| w[1] > w[0]), "{ep:?}");
         // The completion model is defined exactly on passes with air yards.
         for i in 0..n {
@@ -271,9 +308,17 @@ mod tests {
         // WPA from a fixed team's side ends at that team's result.
         for g in plays.games.iter().take(50) {
             let home = g.home;
-            let mut wp = if plays.offense[g.start] == home { s.wp[g.start] } else { 1.0 - s.wp[g.start] };
+            let mut wp = if plays.offense[g.start] == home {
+                s.wp[g.start]
+            } else {
+                1.0 - s.wp[g.start]
+            };
             for i in g.start..g.end {
-                wp += if plays.offense[i] == home { s.wpa[i] } else { -s.wpa[i] };
+                wp += if plays.offense[i] == home {
+                    s.wpa[i]
+                } else {
+                    -s.wpa[i]
+                };
             }
             assert!((wp - g.home_result()).abs() < 1e-9);
         }
@@ -288,18 +333,25 @@ mod tests {
             if plays.points[i] != 0 || plays.kind[i].is_try() {
                 assert!((s.epa[i] - (plays.points[i] as f64 - s.ep[i])).abs() < 1e-12);
             } else if plays.game[i + 1] == plays.game[i] && plays.half(i + 1) == plays.half(i) {
-                let after = if plays.offense[i + 1] == plays.offense[i] { s.ep[i + 1] } else { -s.ep[i + 1] };
+                let after = if plays.offense[i + 1] == plays.offense[i] {
+                    s.ep[i + 1]
+                } else {
+                    -s.ep[i + 1]
+                };
                 assert!((s.epa[i] - (after - s.ep[i])).abs() < 1e-12);
             } else {
                 assert!((s.epa[i] + s.ep[i]).abs() < 1e-12);
             }
         }
-        assert!(plays.kind.iter().zip(&s.ep).all(|(k, &e)| *k != Kind::Kickoff || e == models.ep.kickoff_ep));
+        assert!((0..plays.len())
+            .all(|i| plays.kind[i] != Kind::Kickoff
+                || s.ep[i] == models.ep.kickoff(plays.secs_half[i])));
     }
 
     #[test]
     fn cache_round_trip_gives_identical_scores() {
-        let dir = std::env::temp_dir().join(format!("lategame-models-cache-{}", std::process::id()));
+        let dir =
+            std::env::temp_dir().join(format!("lategame-models-cache-{}", std::process::id()));
         let _ = std::fs::remove_dir_all(&dir);
         let first = fit_and_score_in(small(), "synthetic-42", false, Some(&dir)).expect("first");
         assert!(!first.from_cache);
@@ -307,12 +359,19 @@ mod tests {
         assert!(second.from_cache);
         // JSON keeps coefficients to the last bit or so (serde_json's
         // default float parser may differ by one unit in the last place).
-        let close = |a: &[f64], b: &[f64]| a.iter().zip(b).all(|(x, y)| (x - y).abs() <= 1e-12 * (1.0 + x.abs()));
+        let close = |a: &[f64], b: &[f64]| {
+            a.iter()
+                .zip(b)
+                .all(|(x, y)| (x - y).abs() <= 1e-12 * (1.0 + x.abs()))
+        };
         assert!(close(&first.scores.ep, &second.scores.ep));
         assert!(close(&first.scores.epa, &second.scores.epa));
         assert!(close(&first.scores.wp, &second.scores.wp));
         assert!(close(&first.scores.wpa, &second.scores.wpa));
-        assert_eq!(first.models.report.ep.iterations, second.models.report.ep.iterations);
+        assert_eq!(
+            first.models.report.ep.iterations,
+            second.models.report.ep.iterations
+        );
         assert!((first.calibration.wp.brier - second.calibration.wp.brier).abs() < 1e-12);
         let forced = fit_and_score_in(small(), "synthetic-42", true, Some(&dir)).expect("refit");
         assert!(!forced.from_cache);
@@ -320,7 +379,8 @@ mod tests {
         assert!(!other.from_cache);
         // A corrupt entry is a miss, not an error.
         std::fs::write(dir.join(cache::file_name("synthetic-42")), "{not json").expect("write");
-        let again = fit_and_score_in(small(), "synthetic-42", false, Some(&dir)).expect("corrupt cache");
+        let again =
+            fit_and_score_in(small(), "synthetic-42", false, Some(&dir)).expect("corrupt cache");
         assert!(!again.from_cache);
         let _ = std::fs::remove_dir_all(&dir);
     }
@@ -349,7 +409,10 @@ mod tests {
         let c = calibrate(&plays).expect("calibrate");
         assert_eq!(c.holdout_season, Some(2002));
         assert_eq!(c.train_snaps + c.test_snaps, plays.len());
-        assert_eq!(c.reliability.iter().map(|b| b.n).sum::<usize>(), c.test_snaps);
+        assert_eq!(
+            c.reliability.iter().map(|b| b.n).sum::<usize>(),
+            c.test_snaps
+        );
         assert!(c.wp.brier < c.constant.brier);
         let json = serde_json::to_string(&c).expect("json");
         let back: Calibration = serde_json::from_str(&json).expect("parse");
@@ -364,8 +427,13 @@ mod tests {
     fn timing_on_a_million_snaps() {
         let t = std::time::Instant::now();
         let plays = testkit::league(10_300, 6, 7);
-        eprintln!("synthetic league: {} snaps in {:.1}s", plays.len(), t.elapsed().as_secs_f64());
-        let dir = std::env::temp_dir().join(format!("lategame-models-timing-{}", std::process::id()));
+        eprintln!(
+            "synthetic league: {} snaps in {:.1}s",
+            plays.len(),
+            t.elapsed().as_secs_f64()
+        );
+        let dir =
+            std::env::temp_dir().join(format!("lategame-models-timing-{}", std::process::id()));
         let _ = std::fs::remove_dir_all(&dir);
         let t = std::time::Instant::now();
         let models = fit(&plays).expect("fit");
@@ -374,22 +442,39 @@ mod tests {
         let scores = models.score(&plays);
         let score_s = t.elapsed().as_secs_f64();
         eprintln!("fit EP+WP+baseline+CP: {fit_s:.2}s; score all snaps: {score_s:.2}s");
-        for (name, r) in [("ep", &models.report.ep), ("wp", &models.report.wp), ("baseline", &models.report.baseline)] {
+        for (name, r) in [
+            ("ep", &models.report.ep),
+            ("wp", &models.report.wp),
+            ("baseline", &models.report.baseline),
+        ] {
             eprintln!(
                 "  {name}: {} rows x {} features, {} warm + {} full iterations, converged {}, |grad| {:.2e}, {:.2}s",
                 r.rows, r.features, r.warm_iterations, r.iterations, r.converged, r.grad_norm, r.seconds
             );
         }
         if let Some(r) = &models.report.cp {
-            eprintln!("  cp: {} rows, {} + {} iterations, {:.2}s", r.rows, r.warm_iterations, r.iterations, r.seconds);
+            eprintln!(
+                "  cp: {} rows, {} + {} iterations, {:.2}s",
+                r.rows, r.warm_iterations, r.iterations, r.seconds
+            );
         }
         let t = std::time::Instant::now();
-        let cal = calib::calibrate_from(&plays, &CalibOptions::default(), Some(&models)).expect("calibrate");
-        eprintln!("calibration (refit without the last season): {:.2}s; Brier {:.4} vs baseline {:.4}", t.elapsed().as_secs_f64(), cal.wp.brier, cal.baseline.brier);
+        let cal = calib::calibrate_from(&plays, &CalibOptions::default(), Some(&models))
+            .expect("calibrate");
+        eprintln!(
+            "calibration (refit without the last season): {:.2}s; Brier {:.4} vs baseline {:.4}",
+            t.elapsed().as_secs_f64(),
+            cal.wp.brier,
+            cal.baseline.brier
+        );
         cache::store(&dir, "timing", &models, &cal).expect("store");
         let t = std::time::Instant::now();
         let warm = fit_and_score_in(plays, "timing", false, Some(&dir)).expect("warm");
-        eprintln!("warm start from cache (load + score): {:.2}s, from_cache {}", t.elapsed().as_secs_f64(), warm.from_cache);
+        eprintln!(
+            "warm start from cache (load + score): {:.2}s, from_cache {}",
+            t.elapsed().as_secs_f64(),
+            warm.from_cache
+        );
         assert!(warm.from_cache);
         assert_eq!(scores.ep.len(), warm.scores.ep.len());
         let _ = std::fs::remove_dir_all(&dir);

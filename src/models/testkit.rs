@@ -23,7 +23,14 @@ struct G {
 }
 
 impl G {
-    fn push(&mut self, off: usize, down: Option<(i32, i32)>, ball_on: i32, kind: Kind, rng: &mut ChaCha8Rng) -> usize {
+    fn push(
+        &mut self,
+        off: usize,
+        down: Option<(i32, i32)>,
+        ball_on: i32,
+        kind: Kind,
+        rng: &mut ChaCha8Rng,
+    ) -> usize {
         let names = [self.home.clone(), self.away.clone()];
         let seq = self.rows.len() as i32 + 1;
         self.rows.push(PlayRow {
@@ -105,7 +112,12 @@ pub fn league(games: usize, seasons: i32, seed: u64) -> Plays {
         play_game(&mut g, &mut rng);
         rows.extend(g.rows);
     }
-    let sources = (0..rows.len()).map(|i| Source { file: 0, row: i as u32 + 1 }).collect();
+    let sources = (0..rows.len())
+        .map(|i| Source {
+            file: 0,
+            row: i as u32 + 1,
+        })
+        .collect();
     Plays::from_rows(vec!["synthetic".into()], &rows, sources)
 }
 
@@ -161,7 +173,11 @@ fn play_game(g: &mut G, rng: &mut ChaCha8Rng) {
             let cp = 1.0 / (1.0 + (-(1.4 - 0.07 * air as f64 + 0.3 * edge)).exp());
             let complete = rng.random::<f64>() < cp;
             let int = !complete && rng.random::<f64>() < 0.05;
-            let gain = if complete { (air + rng.random_range(0..8)).min(100 - ball) } else { 0 };
+            let gain = if complete {
+                (air + rng.random_range(0..8)).min(100 - ball)
+            } else {
+                0
+            };
             let points = if complete && ball + gain >= 100 { 6 } else { 0 };
             let i = g.push(off, Some((down, to_go)), ball, Kind::Pass, rng);
             g.rows[i].air_yards = Some(air);
@@ -169,11 +185,29 @@ fn play_game(g: &mut G, rng: &mut ChaCha8Rng) {
             g.rows[i].intercepted = Some(int);
             g.rows[i].gain = Some(gain);
             g.rows[i].points = points;
-            finish(g, rng, &mut off, &mut down, &mut to_go, &mut ball, &mut kick, &mut need_kickoff, gain, points, int, Kind::Pass);
+            finish(
+                g,
+                rng,
+                &mut off,
+                &mut down,
+                &mut to_go,
+                &mut ball,
+                &mut kick,
+                &mut need_kickoff,
+                gain,
+                points,
+                int,
+                Kind::Pass,
+            );
             continue;
         } else {
             kind = Kind::Run;
-            gain = rng.random_range(-3..9) + if rng.random::<f64>() < 0.05 + 0.02 * edge { 20 } else { 0 };
+            gain = rng.random_range(-3..9)
+                + if rng.random::<f64>() < 0.05 + 0.02 * edge {
+                    20
+                } else {
+                    0
+                };
         }
         gain = gain.min(100 - ball);
         if kind == Kind::Run && ball + gain >= 100 {
@@ -185,7 +219,20 @@ fn play_game(g: &mut G, rng: &mut ChaCha8Rng) {
         let i = g.push(off, Some((down, to_go)), ball, kind, rng);
         g.rows[i].gain = Some(gain);
         g.rows[i].points = points;
-        finish(g, rng, &mut off, &mut down, &mut to_go, &mut ball, &mut kick, &mut need_kickoff, gain, points, turnover, kind);
+        finish(
+            g,
+            rng,
+            &mut off,
+            &mut down,
+            &mut to_go,
+            &mut ball,
+            &mut kick,
+            &mut need_kickoff,
+            gain,
+            points,
+            turnover,
+            kind,
+        );
     }
 }
 
@@ -212,9 +259,27 @@ fn finish(
     if points == 6 {
         // the try, at the same clock
         let two = rng.random::<f64>() < 0.1;
-        let i = g.push(*off, None, if two { 98 } else { 85 }, if two { Kind::TwoPoint } else { Kind::ExtraPoint }, rng);
+        let i = g.push(
+            *off,
+            None,
+            if two { 98 } else { 85 },
+            if two {
+                Kind::TwoPoint
+            } else {
+                Kind::ExtraPoint
+            },
+            rng,
+        );
         let good = rng.random::<f64>() < if two { 0.48 } else { 0.94 };
-        let p = if good { if two { 2 } else { 1 } } else { 0 };
+        let p = if good {
+            if two {
+                2
+            } else {
+                1
+            }
+        } else {
+            0
+        };
         g.rows[i].points = p;
         g.score[*off] += p;
     }
@@ -224,7 +289,11 @@ fn finish(
         *kick = *off;
         *need_kickoff = true;
         if ended {
-            *kick = if g.period == 3 { rng.random_range(0..2) } else { *kick };
+            *kick = if g.period == 3 {
+                rng.random_range(0..2)
+            } else {
+                *kick
+            };
         }
         return;
     }

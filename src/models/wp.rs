@@ -3,6 +3,7 @@
 //! field and the pregame line; a margin-and-time baseline; WPA per snap.
 
 use super::logit::{self, FitOptions, FnDesign, Labels};
+use crate::playfile::Kind;
 use crate::plays::Plays;
 use serde::{Deserialize, Serialize};
 
@@ -26,7 +27,7 @@ pub enum WpKind {
     Baseline,
 }
 
-pub const FULL_FEATURES: [&str; 15] = [
+pub const FULL_FEATURES: [&str; 18] = [
     "intercept",
     "margin",
     "ep",
@@ -42,6 +43,9 @@ pub const FULL_FEATURES: [&str; 15] = [
     "off_timeouts_late",
     "def_timeouts_late",
     "margin_late",
+    "kickoff",
+    "kickoff_time_left",
+    "try",
 ];
 
 pub const BASELINE_FEATURES: [&str; 4] = ["intercept", "margin", "stern_margin", "time_left"];
@@ -68,6 +72,10 @@ pub struct Situation {
     pub off_home: bool,
     /// Pregame expected margin of the offense, if the file has a line.
     pub line: Option<f64>,
+    /// A kickoff (the file's offense is the kicking team).
+    pub kickoff: bool,
+    /// An extra-point or two-point try.
+    pub is_try: bool,
 }
 
 impl Situation {
@@ -82,6 +90,8 @@ impl Situation {
             def_timeouts: plays.def_timeouts[i] as f64,
             off_home: plays.off_home[i],
             line: g.home_line.map(|l| if plays.off_home[i] { l } else { -l }),
+            kickoff: plays.kind[i] == Kind::Kickoff,
+            is_try: plays.kind[i].is_try(),
         }
     }
 }
@@ -100,7 +110,11 @@ pub fn features(kind: WpKind, s: &Situation, out: &mut [f64]) {
         }
         WpKind::Full => {
             let line = s.line.unwrap_or(0.0);
-            let late = if s.overtime { 0.0 } else { (1.0 - s.secs_game / 300.0).max(0.0) };
+            let late = if s.overtime {
+                0.0
+            } else {
+                (1.0 - s.secs_game / 300.0).max(0.0)
+            };
             out[0] = 1.0;
             out[1] = m;
             out[2] = s.ep / 7.0;
@@ -116,6 +130,9 @@ pub fn features(kind: WpKind, s: &Situation, out: &mut [f64]) {
             out[12] = s.off_timeouts / 3.0 * late;
             out[13] = s.def_timeouts / 3.0 * late;
             out[14] = m * late;
+            out[15] = s.kickoff as i32 as f64;
+            out[16] = s.kickoff as i32 as f64 * frac;
+            out[17] = s.is_try as i32 as f64;
         }
     }
 }
@@ -138,15 +155,33 @@ pub fn fit(
     init: Option<&WpModel>,
 ) -> anyhow::Result<WpModel> {
     let names = kind.features();
-    let y: Vec<f64> = rows.iter().map(|&i| plays.offense_result(i as usize)).collect();
+    let y: Vec<f64> = rows
+        .iter()
+        .map(|&i| plays.offense_result(i as usize))
+        .collect();
     let design = FnDesign {
         rows,
         p: names.len(),
         f: |i: usize, out: &mut [f64]| features(kind, &Situation::of_snap(plays, ep, i), out),
     };
-    let fit = logit::fit_from(&design, Labels::Binary(&y), None, opts, init.map(|m| &m.fit))
-        .map_err(|e| anyhow::anyhow!("win-probability model ({kind:?}) on {} snaps: {e}", rows.len()))?;
-    Ok(WpModel { kind, features: names.iter().map(|s| s.to_string()).collect(), fit })
+    let fit = logit::fit_from(
+        &design,
+        Labels::Binary(&y),
+        None,
+        opts,
+        init.map(|m| &m.fit),
+    )
+    .map_err(|e| {
+        anyhow::anyhow!(
+            "win-probability model ({kind:?}) on {} snaps: {e}",
+            rows.len()
+        )
+    })?;
+    Ok(WpModel {
+        kind,
+        features: names.iter().map(|s| s.to_string()).collect(),
+        fit,
+    })
 }
 
 impl WpModel {
@@ -159,7 +194,9 @@ impl WpModel {
 
     /// WP before every snap, from its offense's side.
     pub fn score_all(&self, plays: &Plays, ep: &[f64]) -> Vec<f64> {
-        (0..plays.len()).map(|i| self.situation(&Situation::of_snap(plays, ep, i))).collect()
+        (0..plays.len())
+            .map(|i| self.situation(&Situation::of_snap(plays, ep, i)))
+            .collect()
     }
 }
 

@@ -50,6 +50,31 @@ fn add_masked(accs: &mut [Acc], vals: &[f64], mask: u64) {
     }
 }
 
+/// A multiply-rotate hasher for the small integer keys of the per-season
+/// sums (the standard hasher's DoS resistance is not needed for them).
+#[derive(Default, Clone, Copy)]
+struct IntHasher(u64);
+impl std::hash::Hasher for IntHasher {
+    fn finish(&self) -> u64 {
+        self.0
+    }
+    fn write(&mut self, bytes: &[u8]) {
+        for &b in bytes {
+            self.write_u64(b as u64);
+        }
+    }
+    fn write_u32(&mut self, n: u32) {
+        self.write_u64(n as u64);
+    }
+    fn write_i32(&mut self, n: i32) {
+        self.write_u64(n as u32 as u64);
+    }
+    fn write_u64(&mut self, n: u64) {
+        self.0 = (self.0.rotate_left(5) ^ n).wrapping_mul(0x51_7c_c1_b7_27_22_0a_95);
+    }
+}
+type IntMap<K, V> = HashMap<K, V, std::hash::BuildHasherDefault<IntHasher>>;
+
 /// One pass over the league for a situation.
 struct Sums {
     passers: BTreeMap<u32, PasserSums>,
@@ -57,7 +82,7 @@ struct Sums {
     /// League sums per state cell (CELLS × metrics).
     league_cells: Vec<Acc>,
     /// Per (passer, season), ignoring the situation's season filter.
-    by_season: HashMap<(u32, i32), Accs>,
+    by_season: IntMap<(u32, i32), Accs>,
     league_by_season: BTreeMap<i32, Accs>,
 }
 
@@ -77,7 +102,7 @@ fn accumulate(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
         passers: BTreeMap::new(),
         league: new_accs(),
         league_cells: vec![Acc::default(); CELLS * METRICS.len()],
-        by_season: HashMap::new(),
+        by_season: IntMap::default(),
         league_by_season: BTreeMap::new(),
     };
     let mut vals = vec![0.0f64; METRICS.len()];
@@ -267,11 +292,18 @@ pub const DEFAULT_MIN_DROPBACKS: u32 = 20;
 
 /// The split table for a situation.
 pub fn split_table(p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32) -> SplitTable {
-    let sums = accumulate(p, v, s);
-    build_table(p, &sums, s, min_dropbacks)
+    split_table_for(p, v, s, min_dropbacks, None)
 }
 
-fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: u32) -> SplitTable {
+/// The split table, with estimates and intervals also for `focus` (our
+/// passer) when he falls short of the minimum. Other unqualified passers get
+/// raw numbers only.
+pub fn split_table_for(p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32, focus: Option<&str>) -> SplitTable {
+    let sums = accumulate(p, v, s);
+    build_table(p, &sums, s, min_dropbacks, focus)
+}
+
+fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: u32, focus: Option<&str>) -> SplitTable {
     let nm = METRICS.len();
     let db = metric_index("dropbacks").unwrap_or(0);
     let league: Vec<Option<f64>> = (0..nm).map(|j| raw_value(&sums.league, j)).collect();
@@ -319,52 +351,20 @@ fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: u32) -> Spl
         })
         .collect();
 
-    // Empirical Bayes per metric, priors from the qualified passers.
-    for j in 0..nm {
+    // Empirical Bayes per metric, priors from the qualified passers; the
+    // metrics are independent, so two threads share them.
+    let wanted: Vec<bool> = rows.iter().map(|r| r.qualified || focus == Some(r.passer.as_str()) || s.passer.as_deref() == Some(r.passer.as_str())).collect();
+    let jobs: Vec<usize> = (0..nm).filter(|&j| METRICS[j].stat != Stat::Count).collect();
+    let run = |js: &[usize]| js.iter().map(|&j| (j, shrink(sums, j, &sigma2, &wanted, min_dropbacks))).collect::<Vec<_>>();
+    let results: Vec<(usize, Vec<Option<stats::Posterior>>)> = std::thread::scope(|scope| {
+        let (a, b) = jobs.split_at(jobs.len() / 2);
+        let other = scope.spawn(|| run(b));
+        let mut mine = run(a);
+        mine.extend(other.join().unwrap_or_default());
+        mine
+    });
+    for (j, post) in results {
         let m = &METRICS[j];
-        if m.stat == Stat::Count {
-            continue;
-        }
-        let qual: Vec<(f64, f64)> = sums
-            .passers
-            .values()
-            .filter(|ps| ps.accs[db].n as u32 >= min_dropbacks.max(1) && ps.accs[j].n > 0.0)
-            .map(|ps| (ps.accs[j].sum, ps.accs[j].n))
-            .collect();
-        if qual.len() < 3 {
-            continue;
-        }
-        let post: Vec<Option<stats::Posterior>> = match m.stat {
-            Stat::Rate => {
-                let Some(prior) = stats::fit_beta_prior(&qual) else { continue };
-                sums.passers
-                    .values()
-                    .map(|ps| {
-                        let a = &ps.accs[j];
-                        stats::beta_posterior(&prior, a.sum, a.n)
-                    })
-                    .collect()
-            }
-            _ => {
-                let s2 = sigma2[j];
-                if !s2.is_finite() {
-                    continue;
-                }
-                let means: Vec<(f64, f64)> = qual.iter().map(|(sum, n)| (sum / n, s2 / n)).collect();
-                let Some(prior) = stats::fit_normal_prior(&means) else { continue };
-                sums.passers
-                    .values()
-                    .map(|ps| {
-                        let a = &ps.accs[j];
-                        if a.n > 0.0 {
-                            stats::normal_posterior(&prior, a.sum / a.n, s2 / a.n)
-                        } else {
-                            None
-                        }
-                    })
-                    .collect()
-            }
-        };
         for (row, post) in rows.iter_mut().zip(post) {
             let Some(post) = post else { continue };
             let c = &mut row.cells[j];
@@ -425,6 +425,46 @@ fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: u32) -> Spl
         league_dropbacks: sums.league[db].n as u32,
         league,
         rows,
+    }
+}
+
+/// Posteriors of metric `j` for every passer (in `sums.passers` order) that
+/// is `wanted`; the prior is fitted to the qualified passers.
+fn shrink(sums: &Sums, j: usize, sigma2: &[f64], wanted: &[bool], min_dropbacks: u32) -> Vec<Option<stats::Posterior>> {
+    let db = metric_index("dropbacks").unwrap_or(0);
+    let none = || vec![None; sums.passers.len()];
+    let qual: Vec<(f64, f64)> = sums
+        .passers
+        .values()
+        .filter(|ps| ps.accs[db].n as u32 >= min_dropbacks.max(1) && ps.accs[j].n > 0.0)
+        .map(|ps| (ps.accs[j].sum, ps.accs[j].n))
+        .collect();
+    if qual.len() < 3 {
+        return none();
+    }
+    let per = sums.passers.values().zip(wanted);
+    match METRICS[j].stat {
+        Stat::Rate => {
+            let Some(prior) = stats::fit_beta_prior(&qual) else { return none() };
+            per.map(|(ps, &w)| if w { stats::beta_posterior(&prior, ps.accs[j].sum, ps.accs[j].n) } else { None }).collect()
+        }
+        _ => {
+            let s2 = sigma2[j];
+            if !s2.is_finite() || s2 <= 0.0 {
+                return none();
+            }
+            let means: Vec<(f64, f64)> = qual.iter().map(|(sum, n)| (sum / n, s2 / n)).collect();
+            let Some(prior) = stats::fit_normal_prior(&means) else { return none() };
+            per.map(|(ps, &w)| {
+                let a = &ps.accs[j];
+                if w && a.n > 0.0 {
+                    stats::normal_posterior(&prior, a.sum / a.n, s2 / a.n)
+                } else {
+                    None
+                }
+            })
+            .collect()
+        }
     }
 }
 
@@ -519,7 +559,7 @@ pub fn profile(p: &Plays, v: &SnapValues, passer: &str, base: &Situation, trend:
     for preset in Preset::ALL {
         let mut s = preset.situation(base.one_score);
         s.seasons = base.seasons.clone();
-        let t = split_table(p, v, &s, min_dropbacks);
+        let t = split_table_for(p, v, &s, min_dropbacks, Some(passer));
         let row = t.row(passer).cloned();
         if team.is_none() {
             team = row.as_ref().map(|r| r.team.clone());

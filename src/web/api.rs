@@ -45,9 +45,9 @@ pub async fn summary(State(st): State<Shared>) -> Response {
 }
 
 /// The split table; `sort`/`dir`/`by` order the rows as on the page.
-pub fn split_for(st: &Shared, params: &Params) -> splits::SplitTable {
+pub fn split_for(st: &Shared, params: &Params, focus: Option<&str>) -> splits::SplitTable {
     let lg = st.league();
-    let mut t = splits::split_table(lg.plays(), &lg.values(), &params.situation, params.min_dropbacks);
+    let mut t = splits::split_table_for(lg.plays(), &lg.values(), &params.situation, params.min_dropbacks, focus);
     if let Some(key) = &params.sort {
         t.sort(key, params.sort_by, params.descending);
     }
@@ -56,7 +56,7 @@ pub fn split_for(st: &Shared, params: &Params) -> splits::SplitTable {
 
 pub async fn splits(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
     match parse(&q) {
-        Ok(params) => Json(split_for(&st, &params)).into_response(),
+        Ok(params) => Json(split_for(&st, &params, None)).into_response(),
         Err(r) => r,
     }
 }
@@ -65,7 +65,7 @@ pub async fn splits_csv(State(st): State<Shared>, RawQuery(q): RawQuery) -> Resp
     match parse(&q) {
         Ok(params) => (
             [(header::CONTENT_TYPE, "text/csv; charset=utf-8"), (header::CONTENT_DISPOSITION, "attachment; filename=\"splits.csv\"")],
-            crate::export::split_csv(&split_for(&st, &params)),
+            crate::export::split_csv(&split_for(&st, &params, None)),
         )
             .into_response(),
         Err(r) => r,

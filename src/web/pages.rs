@@ -325,8 +325,8 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         params.situation = Preset::LateClose.situation(params.situation.one_score);
         params.raw.push(("preset".into(), "late-close".into()));
     }
-    let table = split_for(&st, &params);
     let ch = chrome(&st, &headers, Some(&params), "Situation explorer".into(), "explore", "/explore");
+    let table = split_for(&st, &params, ch.our_passer.as_deref());
     let sq = params.situation_query();
     let current_preset = params.situation.preset;
     let presets = Preset::ALL
