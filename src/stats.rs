@@ -141,10 +141,10 @@ fn beta_binomial_log_lik(units: &[(f64, f64)], m: f64, s: f64) -> f64 {
         .sum()
 }
 
-/// Maximiser of `f` over `[lo, hi]` searched on a log scale: a grid of 40 steps,
+/// Maximiser of `f` over `[lo, hi]` searched on a log scale: a grid of 100 steps,
 /// then golden-section search between the best grid point's neighbours.
 fn argmax_log(f: impl Fn(f64) -> f64, lo: f64, hi: f64) -> f64 {
-    const STEPS: usize = 40;
+    const STEPS: usize = 100;
     let (ulo, uhi) = (lo.ln(), hi.ln());
     let g = |u: f64| f(u.exp());
     let at = |i: usize| ulo + (uhi - ulo) * i as f64 / STEPS as f64;

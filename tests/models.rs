@@ -139,10 +139,10 @@ fn first_down_ep_rises_and_matches_the_league() {
 }
 
 /// Within ±0.6 points of Carter & Machol in every strip. This compares the
-/// demo league with the 1969-70 NFL more than it tests the model (which
+/// demo league with the professional league of 1969-70 more than it tests the model (which
 /// `first_down_ep_rises_and_matches_the_league` checks against the league).
 #[test]
-#[ignore = "the demo league outscores the 1971 NFL: its first-down EP runs 0.4-0.9 points above Carter & Machol"]
+#[ignore = "the demo league outscores the professional league Carter & Machol measured: its first-down EP runs 0.4-0.9 points above Carter & Machol"]
 fn first_down_ep_matches_carter_machol() {
     let Some(d) = demo() else { return };
     let (ours, _) = first_down_strips(d);
@@ -159,7 +159,7 @@ fn first_down_ep_matches_carter_machol() {
 
 /// Stern, H. (1991). On the Probability of Winning a Football Game.
 /// The American Statistician 45(3), 179-183: the final margin is roughly
-/// Normal(line, σ²) with σ = 13.86 in the NFL, so the pregame win
+/// Normal(line, σ²) with σ = 13.86 in the professional league he studied, so the pregame win
 /// probability given a line L is Φ(L / σ). Our WP at the opening kickoff
 /// with the offense's line L, averaged over the kicking team being home or
 /// away, against Φ(L / σ) for `sigma`; prints each side and the gaps.
@@ -232,7 +232,7 @@ fn league_line_fit(d: &Demo) -> (f64, f64, f64) {
 fn pregame_wp_follows_stern_fit_to_the_league() {
     let Some(d) = demo() else { return };
     let (a, b, sigma) = league_line_fit(d);
-    eprintln!("league: home margin = {a:.2} + {b:.3} x line, residual SD {sigma:.2} (Stern's NFL: line, 13.86)");
+    eprintln!("league: home margin = {a:.2} + {b:.3} x line, residual SD {sigma:.2} (Stern: line, 13.86)");
     let worst = pregame_gap(d, sigma / b);
     assert!(
         worst <= 0.05,
@@ -240,8 +240,8 @@ fn pregame_wp_follows_stern_fit_to_the_league() {
         sigma / b
     );
 }
-/// Stern's NFL σ = 13.86: pregame WP within ±0.04 of Φ(L/13.86). Compares
-/// the demo league's game-to-game randomness with the NFL's as much as it
+/// Stern’s σ = 13.86: pregame WP within ±0.04 of Φ(L/13.86). Compares
+/// the demo league's game-to-game randomness with the league Stern studied as much as it
 /// tests the model.
 #[test]
 #[ignore = "the demo league's line understates its margins (slope about 1.12), so its pregame WP is steeper than Φ(L/13.86)"]

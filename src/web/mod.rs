@@ -110,6 +110,8 @@ pub fn router(state: Shared) -> Router {
         .route("/calibration", get(pages::calibration))
         .route("/choose", get(pages::choose))
         .route("/reload", post(pages::reload))
+        .route("/report", get(pages::report_html))
+        .route("/report.pdf", get(pages::report_pdf))
         .route("/api/summary", get(api::summary))
         .route("/api/splits", get(api::splits))
         .route("/api/splits.csv", get(api::splits_csv))
