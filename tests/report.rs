@@ -232,7 +232,7 @@ fn numbers_are_the_split_engines() {
     // Current season by default.
     assert_eq!(d.seasons, vec![2025]);
     let s = report::report_situation(&p, &Preset::LateClose.situation(8));
-    let t = splits::split_table(&p, &v, &s, splits::DEFAULT_MIN_DROPBACKS);
+    let t = splits::split_table_for(&p, &v, &s, splits::DEFAULT_MIN_DROPBACKS, Some(PASSERS[2]));
     let row = t.row(PASSERS[2]).expect("row");
     assert_eq!(d.situation, t.situation);
     assert_eq!(d.query, t.query);
@@ -319,6 +319,8 @@ fn small_samples_and_long_names_still_fit() {
     assert!(backup.dropbacks < 20 && !backup.qualified);
     assert!(backup.sample_note.starts_with(&format!("n = {} dropbacks", backup.dropbacks)), "{}", backup.sample_note);
     assert!(backup.sample_note.contains("wide"));
+    // Below the minimum he still gets estimates and ranges (the report is about him).
+    assert!(backup.metrics.iter().all(|m| m.cell.estimate.is_some() && m.cell.lo.is_some()), "no estimates for the backup");
     let path = write_pdf(&dir, "backup.pdf", &report::render_pdf(&backup, Paper::Letter).unwrap());
     assert_on_page_without_overlaps(&path);
     let d = build(&p, &v, long);
@@ -425,6 +427,9 @@ fn demo_pdf_and_html_carry_the_numbers() {
     let html = report::html(&d, Paper::Letter);
     for m in &d.metrics {
         assert!(html.contains(&format!(">{}<", m.estimate)), "{}", m.key);
+    }
+    if let Ok(keep) = std::env::var("LATEGAME_REPORT_OUT") {
+        let _ = std::fs::write(Path::new(&keep).join("demo-letter.html"), html.replace("/static/report.css", "report.css"));
     }
     let css = common::get(&format!("{}/static/report.css", common::demo_server()));
     assert!(css.header("content-type").is_some_and(|t| t.starts_with("text/css")));

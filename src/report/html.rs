@@ -28,5 +28,5 @@ pub fn html(data: &ReportData, paper: Paper) -> String {
         footnotes: &FOOTNOTES,
         snap_tables: vec![("Biggest gains (WPA)", &data.best), ("Biggest losses (WPA)", &data.worst)],
     };
-    page.render().unwrap_or_else(|e| format!("<!doctype html><title>Report</title><p>The report page could not be rendered: {}</p>", super::super::charts::xml_escape(&e.to_string())))
+    page.render().unwrap_or_else(|e| format!("<!doctype html><title>Report</title><p>The report page could not be rendered: {}</p>", crate::charts::xml_escape(&e.to_string())))
 }

@@ -185,7 +185,8 @@ impl ReportData {
     }
 
     /// The report from plays and their model values. Calls the split
-    /// engine once for the table and once for the snaps behind it.
+    /// engine once for the table (focused on `passer`) and once for the
+    /// snaps behind it.
     pub fn from_parts(
         p: &Plays,
         v: &SnapValues,
@@ -198,7 +199,9 @@ impl ReportData {
             return Err(ReportError::UnknownPasser(passer.to_string()));
         }
         let s = report_situation(p, situation);
-        let table = splits::split_table(p, v, &s, min_dropbacks);
+        // Focus on the subject: he gets estimates even below the minimum,
+        // exactly as the API gives them for `passer=` in the query.
+        let table = splits::split_table_for(p, v, &s, min_dropbacks, Some(passer));
         let Some(row) = table.row(passer) else {
             return Err(ReportError::NoDropbacks { passer: passer.to_string(), situation: table.situation.clone() });
         };
