@@ -424,15 +424,7 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                         signal,
                         sort: sort_value(sortv),
                         href: format!("/plays{}", with_passer(&r.passer, Some(m.key))),
-                        title: format!(
-                            "{}: {} over {} {}; league {}; percentile {}",
-                            m.label,
-                            fmt(c.value, m.decimals),
-                            c.n,
-                            m.unit.label(),
-                            fmt(c.league, m.decimals),
-                            fmt(c.percentile, 0)
-                        ),
+                        title: format!("{} {}; pct {}", c.n, m.unit.label(), fmt(c.percentile, 0)),
                     }
                 })
                 .collect(),
