@@ -187,6 +187,43 @@ impl Plays {
         }
     }
 
+    /// Snap `i` back as a play-file row (`complete`/`intercepted` empty on
+    /// snaps that are not passes unless true).
+    pub fn row(&self, i: usize) -> PlayRow {
+        let g = &self.games[self.game[i] as usize];
+        let has_down = self.down[i] > 0;
+        let pass = self.kind[i] == Kind::Pass;
+        PlayRow {
+            game: g.key.clone(),
+            season: self.season[i],
+            week: self.week[i],
+            home: self.teams[g.home as usize].clone(),
+            away: self.teams[g.away as usize].clone(),
+            seq: self.seq[i],
+            period: self.period[i],
+            clock: self.clock[i],
+            offense: self.teams[self.offense[i] as usize].clone(),
+            defense: self.teams[self.defense[i] as usize].clone(),
+            off_score: self.off_score[i],
+            def_score: self.def_score[i],
+            off_timeouts: self.off_timeouts[i],
+            def_timeouts: self.def_timeouts[i],
+            down: has_down.then_some(self.down[i]),
+            to_go: has_down.then_some(self.to_go[i]),
+            ball_on: self.ball_on[i],
+            kind: self.kind[i],
+            passer: self.passer_name(i).map(str::to_string),
+            complete: (pass || self.complete[i]).then_some(self.complete[i]),
+            intercepted: (pass || self.intercepted[i]).then_some(self.intercepted[i]),
+            air_yards: self.air_yards[i],
+            gain: Some(self.gain[i]),
+            fumble_lost: Some(self.fumble_lost[i]),
+            touchback: Some(self.touchback[i]),
+            points: self.points[i],
+            home_line: g.home_line,
+        }
+    }
+
     /// Build from rows already sorted by (game, seq) and already validated.
     /// `sources` gives each row's origin. Derives every derived column.
     pub fn from_rows(files: Vec<String>, rows: &[PlayRow], sources: Vec<Source>) -> Plays {

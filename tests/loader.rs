@@ -231,7 +231,7 @@ fn csv_and_parquet_give_the_same_league() {
     let p = write(dir.path(), "a.csv", &csv_with(|_, r| r.to_string()));
     let from_csv = load(&p, &LoadOptions::default()).unwrap().plays;
     // write the same rows back out as Parquet and CSV with our writer
-    let rows: Vec<playfile::PlayRow> = (0..from_csv.len()).map(|i| row_of(&from_csv, i)).collect();
+    let rows: Vec<playfile::PlayRow> = (0..from_csv.len()).map(|i| from_csv.row(i)).collect();
     let pq = dir.path().join("b.parquet");
     playfile::write_rows(&rows, &pq).unwrap();
     let csv2 = dir.path().join("c.csv");
@@ -275,40 +275,6 @@ fn check_command_reports_and_exits_nonzero() {
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stdout));
 }
 
-fn row_of(p: &lategame::plays::Plays, i: usize) -> playfile::PlayRow {
-    let g = &p.games[p.game[i] as usize];
-    let has_down = p.down[i] > 0;
-    let is_pass = p.kind[i] == playfile::Kind::Pass;
-    playfile::PlayRow {
-        game: g.key.clone(),
-        season: p.season[i],
-        week: p.week[i],
-        home: p.teams[g.home as usize].clone(),
-        away: p.teams[g.away as usize].clone(),
-        seq: p.seq[i],
-        period: p.period[i],
-        clock: p.clock[i],
-        offense: p.teams[p.offense[i] as usize].clone(),
-        defense: p.teams[p.defense[i] as usize].clone(),
-        off_score: p.off_score[i],
-        def_score: p.def_score[i],
-        off_timeouts: p.off_timeouts[i],
-        def_timeouts: p.def_timeouts[i],
-        down: has_down.then_some(p.down[i]),
-        to_go: has_down.then_some(p.to_go[i]),
-        ball_on: p.ball_on[i],
-        kind: p.kind[i],
-        passer: p.passer_name(i).map(String::from),
-        complete: is_pass.then_some(p.complete[i]),
-        intercepted: is_pass.then_some(p.intercepted[i]),
-        air_yards: p.air_yards[i],
-        gain: Some(p.gain[i]),
-        fumble_lost: Some(p.fumble_lost[i]),
-        touchback: Some(p.touchback[i]),
-        points: p.points[i],
-        home_line: g.home_line,
-    }
-}
 
 proptest::proptest! {
     #![proptest_config(proptest::prelude::ProptestConfig { cases: 64, ..Default::default() })]

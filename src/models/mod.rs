@@ -14,7 +14,7 @@ pub mod wp;
 pub use calib::{calibrate_with, CalibOptions, Calibration};
 pub use logit::FitStats as ModelReport;
 
-use crate::playfile::{rows_frame, Kind, PlayRow};
+use crate::playfile::{rows_frame, PlayRow};
 use crate::plays::Plays;
 use anyhow::Context;
 use polars::prelude::{Column, DataFrame};
@@ -211,41 +211,6 @@ pub fn fit_and_score_in(
     })
 }
 
-/// The play row of snap `i`, as the file layout spells it.
-fn play_row(plays: &Plays, i: usize) -> PlayRow {
-    let g = &plays.games[plays.game[i] as usize];
-    let has_down = plays.down[i] > 0;
-    let pass = plays.kind[i] == Kind::Pass;
-    PlayRow {
-        game: g.key.clone(),
-        season: plays.season[i],
-        week: plays.week[i],
-        home: plays.teams[g.home as usize].clone(),
-        away: plays.teams[g.away as usize].clone(),
-        seq: plays.seq[i],
-        period: plays.period[i],
-        clock: plays.clock[i],
-        offense: plays.teams[plays.offense[i] as usize].clone(),
-        defense: plays.teams[plays.defense[i] as usize].clone(),
-        off_score: plays.off_score[i],
-        def_score: plays.def_score[i],
-        off_timeouts: plays.off_timeouts[i],
-        def_timeouts: plays.def_timeouts[i],
-        down: has_down.then_some(plays.down[i]),
-        to_go: has_down.then_some(plays.to_go[i]),
-        ball_on: plays.ball_on[i],
-        kind: plays.kind[i],
-        passer: plays.passer_name(i).map(str::to_string),
-        complete: (pass || plays.complete[i]).then_some(plays.complete[i]),
-        intercepted: (pass || plays.intercepted[i]).then_some(plays.intercepted[i]),
-        air_yards: plays.air_yards[i],
-        gain: Some(plays.gain[i]),
-        fumble_lost: Some(plays.fumble_lost[i]),
-        touchback: Some(plays.touchback[i]),
-        points: plays.points[i],
-        home_line: g.home_line,
-    }
-}
 
 /// The scored league as one frame: every column of the play file (same
 /// names and layout as `playfile::rows_frame`; `complete`/`intercepted`
@@ -259,7 +224,7 @@ fn play_row(plays: &Plays, i: usize) -> PlayRow {
 ///   completion model does not apply.
 pub fn scored_frame(scored: &Scored) -> anyhow::Result<DataFrame> {
     let plays = &scored.plays;
-    let rows: Vec<PlayRow> = (0..plays.len()).map(|i| play_row(plays, i)).collect();
+    let rows: Vec<PlayRow> = (0..plays.len()).map(|i| plays.row(i)).collect();
     let mut df = rows_frame(&rows)?;
     let s = &scored.scores;
     let cp: Vec<Option<f64>> = s.cp.iter().map(|&v| v.is_finite().then_some(v)).collect();
@@ -277,6 +242,7 @@ pub fn scored_frame(scored: &Scored) -> anyhow::Result<DataFrame> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::playfile::Kind;
 
     fn small() -> Plays {
         testkit::league(600, 3, 42)

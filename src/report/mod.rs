@@ -252,7 +252,7 @@ impl ReportData {
         format!(
             "{} dropbacks · league {} dropbacks by {} passers ({} with {}+)",
             self.dropbacks,
-            group(self.league_dropbacks as u64),
+            crate::playfile::group(self.league_dropbacks as usize),
             self.passers,
             self.qualified_passers,
             self.min_dropbacks.max(1)
@@ -409,18 +409,6 @@ fn seasons_label(seasons: &[i32]) -> String {
     }
 }
 
-/// 12345 → "12,345".
-fn group(n: u64) -> String {
-    let s = n.to_string();
-    let mut out = String::new();
-    for (i, ch) in s.chars().enumerate() {
-        if i > 0 && (s.len() - i) % 3 == 0 {
-            out.push(',');
-        }
-        out.push(ch);
-    }
-    out
-}
 
 /// Today's date (UTC) from the system clock, YYYY-MM-DD.
 pub fn today() -> String {
@@ -477,9 +465,9 @@ mod tests {
 
     #[test]
     fn labels() {
-        assert_eq!(group(3204), "3,204");
-        assert_eq!(group(999), "999");
-        assert_eq!(group(1_234_567), "1,234,567");
+        assert_eq!(crate::playfile::group(3204), "3,204");
+        assert_eq!(crate::playfile::group(999), "999");
+        assert_eq!(crate::playfile::group(1_234_567), "1,234,567");
         assert_eq!(seasons_label(&[2025]), "season 2025");
         assert_eq!(seasons_label(&[2021, 2022, 2023]), "seasons 2021–2023");
         assert_eq!(seasons_label(&[2021, 2023]), "seasons 2021, 2023");
