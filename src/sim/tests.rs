@@ -25,7 +25,6 @@ fn plays_of(rows: &[PlayRow]) -> Plays {
 /// League-level figures, each per team-game unless named a rate.
 #[derive(Debug)]
 #[allow(dead_code)] // read through Debug
-#[allow(dead_code)] // read through its Debug print in the realism test
 struct Figures {
     seasons: f64,
     games: f64,
