@@ -231,13 +231,16 @@ pub fn load_with(tables: Vec<RawTable>, opts: &LoadOptions, mut report: LoadRepo
             report.push(Issue::named(&t.file, IssueKind::Empty, "the file has a header but no rows; expected one row per snap".into()));
             continue;
         }
-        for r in 0..t.height {
-            let mut issues = Vec::new();
-            if let Some(row) = parse_row(t, r, &mut issues) {
-                if issues.is_empty() {
-                    rows.push((row, Source { file: fi as u16, row: (r + 1) as u32 }));
-                }
-            }
+        // Rows are independent here: parse the two halves on two threads,
+        // then keep file order.
+        let mid = t.height / 2;
+        let (first, second) = std::thread::scope(|scope| {
+            let later = scope.spawn(|| parse_rows(t, fi, mid..t.height));
+            (parse_rows(t, fi, 0..mid), later.join())
+        });
+        let second = second.unwrap_or_else(|_| parse_rows(t, fi, mid..t.height));
+        for (ok, issues) in [first, second] {
+            rows.extend(ok);
             for i in issues {
                 report.push(i);
             }
@@ -262,6 +265,22 @@ pub fn load_with(tables: Vec<RawTable>, opts: &LoadOptions, mut report: LoadRepo
 }
 
 // ---------------------------------------------------------------- cells
+
+/// Parse rows `range` of one table: the valid rows, and every issue found.
+fn parse_rows(t: &RawTable, fi: usize, range: std::ops::Range<usize>) -> (Vec<(PlayRow, Source)>, Vec<Issue>) {
+    let mut rows = Vec::with_capacity(range.len());
+    let mut all = Vec::new();
+    for r in range {
+        let mut issues = Vec::new();
+        if let Some(row) = parse_row(t, r, &mut issues) {
+            if issues.is_empty() {
+                rows.push((row, Source { file: fi as u16, row: (r + 1) as u32 }));
+            }
+        }
+        all.append(&mut issues);
+    }
+    (rows, all)
+}
 
 const C_GAME: usize = 0;
 const C_SEASON: usize = 1;
@@ -297,7 +316,7 @@ struct Cells<'a> {
     issues: &'a mut Vec<Issue>,
 }
 
-impl Cells<'_> {
+impl<'a> Cells<'a> {
     fn bad(&mut self, col: usize, value: &str, expected: &str) {
         let name = COLUMNS[col].name;
         self.issues.push(Issue {
@@ -308,8 +327,9 @@ impl Cells<'_> {
             message: format!("column {name} is {}; expected {expected}", show(value)),
         });
     }
-    fn raw(&self, col: usize) -> Option<&str> {
-        self.t.cell(col, self.row)
+    fn raw(&self, col: usize) -> Option<&'a str> {
+        let t: &'a RawTable = self.t;
+        t.cell(col, self.row)
     }
     fn text(&mut self, col: usize, required: bool) -> Option<String> {
         match self.raw(col) {
@@ -329,40 +349,36 @@ impl Cells<'_> {
     }
     /// An integer in lo..=hi; `None` when empty (an error too if `required`).
     fn int(&mut self, col: usize, lo: i64, hi: i64, required: bool, expected: &str) -> Option<i32> {
-        let v = match self.raw(col) {
-            None => {
-                if required {
-                    self.bad(col, "", expected);
-                }
-                return None;
+        let Some(v) = self.raw(col) else {
+            if required {
+                self.bad(col, "", expected);
             }
-            Some(v) => v.to_string(),
+            return None;
         };
-        match parse_int(&v) {
+        match parse_int(v) {
             Some(x) if x >= lo && x <= hi => Some(x as i32),
             _ => {
-                self.bad(col, &v, expected);
+                self.bad(col, v, expected);
                 None
             }
         }
     }
     fn boolean(&mut self, col: usize, required: bool, expected: &str) -> Option<bool> {
-        let v = match self.raw(col) {
-            None => {
-                if required {
-                    self.bad(col, "", expected);
-                }
-                return None;
+        let Some(v) = self.raw(col) else {
+            if required {
+                self.bad(col, "", expected);
             }
-            Some(v) => v.to_string(),
+            return None;
         };
-        match v.to_ascii_lowercase().as_str() {
-            "true" | "t" | "1" | "yes" | "y" => Some(true),
-            "false" | "f" | "0" | "no" | "n" => Some(false),
-            _ => {
-                self.bad(col, &v, expected);
-                None
-            }
+        const TRUE: [&str; 5] = ["true", "t", "1", "yes", "y"];
+        const FALSE: [&str; 5] = ["false", "f", "0", "no", "n"];
+        if TRUE.iter().any(|w| v.eq_ignore_ascii_case(w)) {
+            Some(true)
+        } else if FALSE.iter().any(|w| v.eq_ignore_ascii_case(w)) {
+            Some(false)
+        } else {
+            self.bad(col, v, expected);
+            None
         }
     }
 }
@@ -570,17 +586,28 @@ fn parse_row(t: &RawTable, r: usize, issues: &mut Vec<Issue>) -> Option<PlayRow>
 /// reported and dropped; later rows are compared with the last kept row.
 /// Returns the kept rows sorted by season, week, game key and seq.
 fn check_games(rows: Vec<(PlayRow, Source)>, tables: &[RawTable], report: &mut LoadReport) -> Vec<(PlayRow, Source)> {
-    let mut by_game: HashMap<String, Vec<(PlayRow, Source)>> = HashMap::new();
-    let mut order: Vec<String> = Vec::new();
+    // Group rows by game, keeping file order within a game. Rows of a game
+    // usually come together, so the map is consulted only when the key changes.
+    let mut index: HashMap<String, usize> = HashMap::new();
+    let mut groups: Vec<Vec<(PlayRow, Source)>> = Vec::new();
+    let mut last: Option<usize> = None;
     for (row, src) in rows {
-        if !by_game.contains_key(&row.game) {
-            order.push(row.game.clone());
-        }
-        by_game.entry(row.game.clone()).or_default().push((row, src));
+        let g = match last {
+            Some(g) if groups[g][0].0.game == row.game => g,
+            _ => match index.get(&row.game) {
+                Some(&g) => g,
+                None => {
+                    index.insert(row.game.clone(), groups.len());
+                    groups.push(Vec::new());
+                    groups.len() - 1
+                }
+            },
+        };
+        groups[g].push((row, src));
+        last = Some(g);
     }
-    let mut kept_games: Vec<Vec<(PlayRow, Source)>> = Vec::with_capacity(order.len());
-    for key in order {
-        let Some(rows) = by_game.remove(&key) else { continue };
+    let mut kept_games: Vec<Vec<(PlayRow, Source)>> = Vec::with_capacity(groups.len());
+    for rows in groups {
         let mut kept: Vec<(PlayRow, Source)> = Vec::with_capacity(rows.len());
         for (row, src) in rows {
             let issue = kept.last().map(|(prev, psrc)| compare(&kept[0].0, &kept[0].1, prev, psrc, &row, src.file, tables)).unwrap_or(None);
@@ -595,7 +622,9 @@ fn check_games(rows: Vec<(PlayRow, Source)>, tables: &[RawTable], report: &mut L
                 None => kept.push((row, src)),
             }
         }
-        kept_games.push(kept);
+        if !kept.is_empty() {
+            kept_games.push(kept);
+        }
     }
     kept_games.sort_by(|a, b| {
         let (x, y) = (&a[0].0, &b[0].0);
@@ -630,25 +659,26 @@ fn compare(
     tables: &[RawTable],
 ) -> Option<(IssueKind, &'static str, String)> {
     let g = &row.game;
-    for (col, same, a, b) in [
-        ("season", first.season == row.season, first.season.to_string(), row.season.to_string()),
-        ("week", first.week == row.week, first.week.to_string(), row.week.to_string()),
-        ("home", first.home == row.home, first.home.clone(), row.home.clone()),
-        ("away", first.away == row.away, first.away.clone(), row.away.clone()),
-        (
-            "home_line",
-            first.home_line == row.home_line,
-            first.home_line.map(|x| x.to_string()).unwrap_or_else(|| "empty".into()),
-            row.home_line.map(|x| x.to_string()).unwrap_or_else(|| "empty".into()),
-        ),
-    ] {
-        if !same {
-            return Some((
-                IssueKind::GameMismatch,
-                col,
-                format!("column {col} is {b} but game {g} has {a} on {}; expected the same on every row of a game", where_(fsrc, tables, cur_file)),
-            ));
-        }
+    let differs: Option<(&'static str, String, String)> = if first.season != row.season {
+        Some(("season", first.season.to_string(), row.season.to_string()))
+    } else if first.week != row.week {
+        Some(("week", first.week.to_string(), row.week.to_string()))
+    } else if first.home != row.home {
+        Some(("home", first.home.clone(), row.home.clone()))
+    } else if first.away != row.away {
+        Some(("away", first.away.clone(), row.away.clone()))
+    } else if first.home_line != row.home_line {
+        let show = |v: Option<f64>| v.map(|x| x.to_string()).unwrap_or_else(|| "empty".into());
+        Some(("home_line", show(first.home_line), show(row.home_line)))
+    } else {
+        None
+    };
+    if let Some((col, a, b)) = differs {
+        return Some((
+            IssueKind::GameMismatch,
+            col,
+            format!("column {col} is {b} but game {g} has {a} on {}; expected the same on every row of a game", where_(fsrc, tables, cur_file)),
+        ));
     }
     if row.seq <= prev.seq {
         return Some((
