@@ -545,17 +545,12 @@ impl Situation {
             }
             parts.push(label);
         }
-        let base = match self.preset {
-            Some(p) => p.situation(self.one_score),
-            None => Situation::default(),
-        };
         let extra: Vec<String> = self
             .to_query()
             .into_iter()
             .filter(|(k, _)| k != "preset" && k != "os")
             .map(|(k, v)| describe_param(&k, &v))
             .collect();
-        let _ = base;
         parts.extend(extra);
         if parts.is_empty() {
             "All snaps".to_string()
