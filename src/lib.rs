@@ -6,6 +6,7 @@
 pub mod charts;
 pub mod cli;
 pub mod export;
+pub mod fuzz_props;
 pub mod league;
 pub mod models;
 pub mod playfile;

@@ -7,7 +7,7 @@ mod read;
 mod validate;
 mod write;
 
-pub use read::{fingerprint, group, list_files, RawTable};
+pub use read::{fingerprint, group, list_files, read_table, RawTable};
 pub use validate::{load, load_with, Issue, IssueKind, LoadError, LoadOptions, LoadReport, Loaded};
 pub use write::{rows_frame, write_frame, write_rows, FileFormat};
 

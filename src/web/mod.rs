@@ -6,7 +6,7 @@ mod api;
 mod assets;
 mod calib;
 mod pages;
-mod query;
+pub mod query;
 
 use crate::cli::ServeArgs;
 use crate::league::League;
