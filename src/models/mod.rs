@@ -21,7 +21,7 @@ use polars::prelude::{Column, DataFrame};
 use serde::{Deserialize, Serialize};
 
 /// Bumped whenever features, labels or conventions change; part of the cache key.
-pub const MODEL_VERSION: &str = "lategame-models-2";
+pub const MODEL_VERSION: &str = "lategame-models-3";
 
 /// Everything fitted from one league.
 #[derive(Debug, Serialize, Deserialize, Clone, PartialEq)]

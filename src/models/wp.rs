@@ -27,7 +27,7 @@ pub enum WpKind {
     Baseline,
 }
 
-pub const FULL_FEATURES: [&str; 18] = [
+pub const FULL_FEATURES: [&str; 19] = [
     "intercept",
     "margin",
     "ep",
@@ -46,6 +46,7 @@ pub const FULL_FEATURES: [&str; 18] = [
     "kickoff",
     "kickoff_time_left",
     "try",
+    "stern_margin_ep_line_time",
 ];
 
 pub const BASELINE_FEATURES: [&str; 4] = ["intercept", "margin", "stern_margin", "time_left"];
@@ -133,6 +134,9 @@ pub fn features(kind: WpKind, s: &Situation, out: &mut [f64]) {
             out[15] = s.kickoff as i32 as f64;
             out[16] = s.kickoff as i32 as f64 * frac;
             out[17] = s.is_try as i32 as f64;
+            // Lets the weight of the Stern term change with time left: early
+            // in the game a margin or a line says less than late.
+            out[18] = out[4] * frac;
         }
     }
 }

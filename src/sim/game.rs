@@ -30,8 +30,8 @@ const HOME_BOOST: TeamStrength = TeamStrength {
 
 /// Spread of a club's game-day form (one draw for its offense, one for its
 /// defense), in the units of the run and pass strengths.
-const FORM_RUN: f64 = 0.36;
-const FORM_PASS: f64 = 0.11;
+const FORM_RUN: f64 = 0.432;
+const FORM_PASS: f64 = 0.132;
 
 // ---- dropback model ----
 /// Depth bands of a throw: behind the line, 1-5, 6-10, 11-15, 16-25, 26+.
@@ -39,15 +39,33 @@ const BANDS: usize = 6;
 const BAND_MIN: [i32; BANDS] = [-4, 1, 6, 11, 16, 26];
 const BAND_MAX: [i32; BANDS] = [0, 5, 10, 15, 25, 55];
 const BAND_SHARE: [f64; BANDS] = [0.17, 0.28, 0.22, 0.14, 0.11, 0.08];
-const COMP_LOGIT: [f64; BANDS] = [1.70, 1.25, 0.57, 0.17, -0.35, -0.90];
-const INT_LOGIT: [f64; BANDS] = [-5.2, -4.6, -3.9, -3.45, -3.05, -2.7];
-const YAC_MEAN: [f64; BANDS] = [5.4, 3.8, 3.1, 3.0, 3.4, 5.0];
+const COMP_LOGIT: [f64; BANDS] = [1.58, 1.13, 0.45, 0.05, -0.47, -1.02];
+const INT_LOGIT: [f64; BANDS] = [-5.15, -4.55, -3.85, -3.4, -3.0, -2.65];
+const YAC_MEAN: [f64; BANDS] = [5.13, 3.61, 2.95, 2.85, 3.23, 4.75];
 const SACK_LOGIT: f64 = -2.75;
 const SCRAMBLE_LOGIT: f64 = -3.3;
 /// League-wide shift of the play-call logit.
 const PASS_SHIFT: f64 = 0.15;
 /// Share of scrimmage snaps that end in an accepted penalty instead of a play.
-const PENALTY_RATE: f64 = 0.055;
+const PENALTY_RATE: f64 = 0.12;
+/// Lost fumbles: on a run that is not a touchdown or safety, after a catch.
+const RUN_FUMBLE_LOST: f64 = 0.014;
+const CATCH_FUMBLE_LOST: f64 = 0.02;
+/// Mean gain of an ordinary run (not a loss, not a breakaway) before strengths.
+const RUN_BASE: f64 = 3.3;
+/// Field-goal make logit at 20 yards before the kicker's strength.
+const FG_BASE_LOGIT: f64 = 3.7;
+
+// ---- backed up ----
+/// At or inside its own 15 the offense is cramped: the defense crowds the
+/// line, the passer has no room to drop, the punter stands at the end line.
+/// These four constants (with the dropback and penalty levels above) were set
+/// by simulating 12-season leagues until first-and-ten EP by strip came
+/// within about half a point of Carter & Machol (1971), see tests/models.rs.
+const BACKED_UP_LINE: i32 = 15;
+const BACKED_UP_SACK_LOGIT: f64 = 1.2;
+const BACKED_UP_RUN_LOSS: f64 = 2.5;
+const BACKED_UP_PUNT_SHORT: f64 = 7.0;
 
 /// Everything the engine needs to know before kickoff. Index 0 is home.
 pub(crate) struct GameSetup<'a> {
@@ -570,9 +588,13 @@ impl Engine<'_, '_> {
         Next::Kickoff { kicker: off, spot: KICKOFF_SPOT }
     }
 
+    fn backed_up(&self) -> bool {
+        self.ball_on <= BACKED_UP_LINE
+    }
+
     fn fg_prob(&self, distance: i32) -> f64 {
         let d = (distance - 20) as f64;
-        logistic(4.2 - 0.06 * d - 0.0016 * d * d + self.strength[self.poss].kicking)
+        logistic(FG_BASE_LOGIT - 0.06 * d - 0.0016 * d * d + self.strength[self.poss].kicking)
     }
 
     fn field_goal(&mut self) -> Next {
@@ -600,7 +622,8 @@ impl Engine<'_, '_> {
     fn punt(&mut self) -> Next {
         let mut row = self.snap_row(Kind::Punt);
         row.touchback = Some(false);
-        let gross = (45.5 + 6.5 * normal(self.rng) + 2.0 * self.strength[self.poss].kicking).round() as i32;
+        let short = if self.backed_up() { BACKED_UP_PUNT_SHORT } else { 0.0 };
+        let gross = (45.5 - short + 6.5 * normal(self.rng) + 2.0 * self.strength[self.poss].kicking).round() as i32;
         let mut land = self.ball_on + gross.max(20);
         let secs = int_in(self.rng, 7, 10);
         self.use_clock(secs, false);
@@ -812,7 +835,8 @@ impl Engine<'_, '_> {
         } else {
             let short = if self.to_go <= 2 { 0.4 } else { 0.0 };
             let soft = if self.soft_defense() { 0.8 } else { 0.0 };
-            3.6 + adv + short + soft + 2.7 * normal(self.rng)
+            let cramped = if self.backed_up() { BACKED_UP_RUN_LOSS } else { 0.0 };
+            RUN_BASE - cramped + adv + short + soft + 2.7 * normal(self.rng)
         };
         if dist <= 5 {
             gain = gain.min(dist as f64 + 1.0) - 0.8;
@@ -821,7 +845,7 @@ impl Engine<'_, '_> {
         row.gain = Some(gain);
         let secs = int_in(self.rng, 4, 7);
         let spot = self.ball_on + gain;
-        if spot > 0 && spot < 100 && chance(self.rng, 0.007) {
+        if spot > 0 && spot < 100 && chance(self.rng, RUN_FUMBLE_LOST) {
             row.fumble_lost = Some(true);
             self.use_clock(secs, false);
             self.change_possession(100 - spot);
@@ -913,7 +937,8 @@ impl Engine<'_, '_> {
         let poise = if late_close { s.poise } else { 0.0 };
         let dist = 100 - self.ball_on;
 
-        let mut sack = SACK_LOGIT + sd.pass_rush - so.protection - s.sack_avoidance - 0.5 * poise;
+        let cramped = if self.backed_up() { BACKED_UP_SACK_LOGIT } else { 0.0 };
+        let mut sack = SACK_LOGIT + cramped + sd.pass_rush - so.protection - s.sack_avoidance - 0.5 * poise;
         if long {
             sack += 0.35;
         }
@@ -1102,7 +1127,7 @@ impl Engine<'_, '_> {
         row.gain = Some(gain);
         let secs = (5.0 + air.max(0) as f64 / 8.0 + yac / 6.0).round().min(12.0) as i32;
         let spot = self.ball_on + gain;
-        if spot < 100 && chance(self.rng, 0.008) {
+        if spot < 100 && chance(self.rng, CATCH_FUMBLE_LOST) {
             row.fumble_lost = Some(true);
             self.use_clock(secs, false);
             self.change_possession(100 - spot);

@@ -122,14 +122,15 @@ pub(crate) const FEATURES: usize = 14;
 /// (run with `--ignored --nocapture`): ordinary least squares, no intercept,
 /// of the realized home margin on these 14 features, pooled over 16
 /// independent 10-season leagues (seeds 1-16, 43,520 games); the printed
-/// coefficients are pasted here. Pilot residual SD 12.92 points, SD of the
-/// fitted line 5.67, standard errors 0.06-0.34; on five held-out leagues
-/// (seeds 101-105) the slope of margin on line was 0.98-1.07. A single
+/// coefficients are pasted here. Pilot residual SD 13.49 points, SD of the
+/// fitted line 5.05, standard errors 0.06-0.36; on five held-out leagues
+/// (seeds 101-105) the slope of margin on line was 0.92-1.06. A single
 /// 60-season league gave weights whose slope on fresh 8-season leagues was
 /// 1.07-1.15 (a long league drifts into a different mix of passers), hence
-/// the pooling. Refit after changing the engine's strengths, skills or home boost.
+/// the pooling. Refit after changing the engine's strengths, skills or home
+/// boost (last refit: after the backed-up and turnover calibration).
 pub(crate) const LINE_WEIGHTS: [f64; FEATURES] =
-    [2.71, 2.88, 18.06, 11.96, 3.48, 3.34, 1.23, 9.31, -2.71, 3.06, 1.37, 0.30, 1.37, 2.10];
+    [2.61, 2.43, 16.35, 11.62, 3.77, 3.35, 0.97, 8.51, -2.33, 2.91, 1.25, 0.11, 1.20, 1.91];
 
 fn features(
     home: &TeamStrength,
