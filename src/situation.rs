@@ -400,6 +400,10 @@ impl Situation {
             q.push(("os".to_string(), self.one_score.to_string()));
         }
         fn list(v: &[i32]) -> String {
+            v.iter().map(|x| x.to_string()).collect::<Vec<_>>().join(",")
+        }
+        // Only periods name overtime; a season or down of 5 stays a number.
+        fn periods(v: &[i32]) -> String {
             v.iter().map(|x| if *x == OT { "ot".to_string() } else { x.to_string() }).collect::<Vec<_>>().join(",")
         }
         macro_rules! field {
@@ -413,7 +417,7 @@ impl Situation {
                 }
             };
         }
-        field!(periods, "per", |v: &Vec<i32>| list(v));
+        field!(periods, "per", |v: &Vec<i32>| periods(v));
         field!(half_secs, "hs", |r: &Range| r.show());
         field!(game_secs, "gs", |r: &Range| r.show());
         field!(margin, "mg", |r: &Range| r.show());
@@ -621,6 +625,9 @@ mod tests {
         let s = Situation::from_query(&q("preset=late-close&dn=3,4&yl=50..&sn=2021..2023&passer=A B")).unwrap();
         assert_eq!(Situation::from_query(&s.to_query()).unwrap(), s);
         assert_eq!(s.seasons, Some(vec![2021, 2022, 2023]));
+        // Found by the situation_query fuzz target: season 5 came back as "ot".
+        let s = Situation::from_query(&q("sn=5&per=4,ot")).unwrap();
+        assert_eq!(Situation::from_query(&s.to_query()).unwrap(), s);
     }
 
     #[test]
