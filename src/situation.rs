@@ -352,6 +352,9 @@ impl Situation {
                                 },
                             }
                         }
+                        if out.is_empty() {
+                            return Err(err("per", v, "empty list; expected 1, 2, 3, 4 or ot"));
+                        }
                         out.sort_unstable();
                         out.dedup();
                         Some(out)
@@ -611,6 +614,10 @@ mod tests {
         assert_eq!(e.to_string(), "yl=abc: 'abc' is not a number");
         let e = Situation::from_query(&q("preset=nope")).unwrap_err();
         assert!(e.to_string().starts_with("preset=nope: unknown preset"));
+        // Found by the situation_query fuzz target: "per=," was an empty filter
+        // that matched no snap and did not survive the round trip.
+        let e = Situation::from_query(&q("per=,")).unwrap_err();
+        assert_eq!(e.to_string(), "per=,: empty list; expected 1, 2, 3, 4 or ot");
     }
 
     #[test]
