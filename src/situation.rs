@@ -402,12 +402,9 @@ impl Situation {
         if self.one_score != 8 {
             q.push(("os".to_string(), self.one_score.to_string()));
         }
-        fn list(v: &[i32]) -> String {
-            v.iter().map(|x| x.to_string()).collect::<Vec<_>>().join(",")
-        }
         // Only periods name overtime; a season or down of 5 stays a number.
-        fn periods(v: &[i32]) -> String {
-            v.iter().map(|x| if *x == OT { "ot".to_string() } else { x.to_string() }).collect::<Vec<_>>().join(",")
+        fn list(v: &[i32], ot: bool) -> String {
+            v.iter().map(|x| if ot && *x == OT { "ot".to_string() } else { x.to_string() }).collect::<Vec<_>>().join(",")
         }
         macro_rules! field {
             ($f:ident, $k:expr, $show:expr) => {
@@ -420,17 +417,17 @@ impl Situation {
                 }
             };
         }
-        field!(periods, "per", |v: &Vec<i32>| periods(v));
+        field!(periods, "per", |v: &Vec<i32>| list(v, true));
         field!(half_secs, "hs", |r: &Range| r.show());
         field!(game_secs, "gs", |r: &Range| r.show());
         field!(margin, "mg", |r: &Range| r.show());
-        field!(downs, "dn", |v: &Vec<i32>| list(v));
+        field!(downs, "dn", |v: &Vec<i32>| list(v, false));
         field!(to_go, "tg", |r: &Range| r.show());
         field!(ball_on, "yl", |r: &Range| r.show());
         field!(wp, "wp", |r: &Range| r.show());
         field!(off_timeouts, "to", |r: &Range| r.show());
         field!(def_timeouts, "dto", |r: &Range| r.show());
-        field!(seasons, "sn", |v: &Vec<i32>| list(v));
+        field!(seasons, "sn", |v: &Vec<i32>| list(v, false));
         field!(weeks, "wk", |r: &Range| r.show());
         field!(site, "site", |s: &Site| match s {
             Site::Home => "home".to_string(),
