@@ -13,7 +13,7 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 
 /// Our team and passer in the bundled demo league.
-pub const DEMO_TEAM: &str = "BRF";
+pub const DEMO_TEAM: &str = "BEK";
 pub const DEMO_PASSER: &str = "Wendell Jastennox";
 
 #[derive(Parser)]
