@@ -9,6 +9,7 @@ pub mod export;
 pub mod fuzz_props;
 pub mod league;
 pub mod models;
+pub mod palette;
 pub mod playfile;
 pub mod plays;
 pub mod report;
