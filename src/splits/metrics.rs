@@ -130,7 +130,7 @@ pub const METRICS: &[MetricDef] = &[
     m(Id::Rating, "rating", "Passer rating", "Passer rating", Attempt, Mean, true, 1.0, 1, true, false),
     m(Id::Anya, "anya", "Adj. net yards per attempt", "ANY/A", PassOrSack, Mean, true, 1.0, 2, false, false),
     m(Id::Epa, "epa", "EPA per dropback", "EPA/dropback", Dropback, Mean, true, 1.0, 3, true, false),
-    m(Id::Success, "success", "Success rate (EPA > 0)", "Success %", Dropback, Rate, true, 100.0, 1, true, false),
+    m(Id::Success, "success", "Success rate (% EPA > 0)", "Success %", Dropback, Rate, true, 100.0, 1, true, false),
     m(Id::WpaTotal, "wpa_total", "WPA total", "WPA", Dropback, Count, true, 1.0, 3, true, false),
     m(Id::Wpa, "wpa", "WPA per dropback", "WPA/dropback", Dropback, Mean, true, 1.0, 4, false, false),
     m(Id::Cpoe, "cpoe", "Completion % over expected", "CPOE", AttemptWithCp, Mean, true, 1.0, 1, true, false),
