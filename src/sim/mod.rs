@@ -70,6 +70,8 @@ pub struct PasserInfo {
 
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct LeagueInfo {
+    /// The league's invented name (`LEAGUE_NAME`).
+    pub name: &'static str,
     pub teams: Vec<TeamInfo>,
     pub team_seasons: Vec<TeamSeasonInfo>,
     pub passers: Vec<PasserInfo>,
@@ -274,5 +276,5 @@ pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Opti
             home_points: t.home_edge * LINE_WEIGHTS[FEATURES - 1],
         })
         .collect();
-    SimOutput { rows, truth, league: LeagueInfo { teams, team_seasons, passers } }
+    SimOutput { rows, truth, league: LeagueInfo { name: LEAGUE_NAME, teams, team_seasons, passers } }
 }
