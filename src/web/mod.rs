@@ -8,10 +8,7 @@ mod calib;
 mod pages;
 pub mod query;
 
-use crate::cli::ServeArgs;
-use crate::league::League;
-use crate::playfile::LoadOptions;
-use anyhow::{Context, Result};
+use crate::league::{League, LeagueConfig};
 use axum::extract::{Request, State};
 use axum::http::{header, HeaderValue, StatusCode};
 use axum::middleware::{self, Next};
@@ -19,7 +16,6 @@ use axum::response::{IntoResponse, Response};
 use axum::routing::{get, post};
 use axum::Router;
 use std::net::SocketAddr;
-use std::path::PathBuf;
 use std::sync::{Arc, RwLock};
 use std::time::Duration;
 use tower_http::limit::RequestBodyLimitLayer;
@@ -28,12 +24,55 @@ use tower_http::timeout::TimeoutLayer;
 
 pub use query::Params;
 
+/// What the app needs besides the league: where the league is reloaded
+/// from (with its cache folder), our team and passer, the access token.
+#[derive(Debug, Clone)]
+pub struct AppConfig {
+    pub league: LeagueConfig,
+    /// Defaults for "our team" and "our passer" (a cookie overrides them).
+    pub team: Option<String>,
+    pub passer: Option<String>,
+    /// Required on every request when set (shared mode).
+    pub token: Option<String>,
+}
+
+impl AppConfig {
+    /// Reload from `league`; no team, passer or token.
+    pub fn new(league: LeagueConfig) -> AppConfig {
+        AppConfig { league, team: None, passer: None, token: None }
+    }
+}
+
+/// How to serve: the app, the address, and whether other machines may
+/// connect (then with a fresh access token). The CLI builds it from its flags.
+#[derive(Debug, Clone)]
+pub struct ServeConfig {
+    pub app: AppConfig,
+    /// Address to listen on, e.g. `127.0.0.1:8750`.
+    pub bind: String,
+    pub share: bool,
+}
+
+/// Why the server could not start or stopped.
+#[derive(Debug, thiserror::Error)]
+pub enum ServeError {
+    #[error("--bind {0}: expected an address like 127.0.0.1:8750")]
+    BadAddress(String),
+    #[error("--bind {0}: not a loopback address; add --share to serve other machines (with an access token)")]
+    NotLoopback(SocketAddr),
+    #[error("reading random bytes for the access token: {0}")]
+    Random(String),
+    #[error("binding {addr}: {source}")]
+    Bind { addr: SocketAddr, source: std::io::Error },
+    #[error("serving: {0}")]
+    Io(#[from] std::io::Error),
+}
+
 /// What every handler sees.
 pub struct AppState {
     league: RwLock<Arc<League>>,
     /// Where the league came from and how, for reloading.
-    source: PathBuf,
-    lenient: bool,
+    config: LeagueConfig,
     /// Defaults for "our team" and "our passer" (a cookie overrides them).
     pub team: Option<String>,
     pub passer: Option<String>,
@@ -50,14 +89,13 @@ pub struct AppState {
 const SPLITS_CACHE_SIZE: usize = 128;
 
 impl AppState {
-    pub fn new(league: League, lenient: bool, team: Option<String>, passer: Option<String>, token: Option<String>) -> AppState {
+    pub fn new(league: League, cfg: AppConfig) -> AppState {
         AppState {
-            source: league.source.clone(),
             league: RwLock::new(Arc::new(league)),
-            lenient,
-            team,
-            passer,
-            token,
+            config: LeagueConfig { refit: false, ..cfg.league },
+            team: cfg.team,
+            passer: cfg.passer,
+            token: cfg.token,
             reload_note: RwLock::new(None),
             splits_cache: std::sync::Mutex::new(std::collections::HashMap::new()),
         }
@@ -75,10 +113,10 @@ impl AppState {
     /// Load the file again. The new file is validated and scored first; if
     /// anything fails the old league keeps serving.
     pub fn reload(&self) -> Result<(), String> {
-        let result = League::open(&self.source, &LoadOptions { lenient: self.lenient }, false);
+        let result = League::open_with(&self.config);
         let note = match result {
             Ok(new) => {
-                let msg = format!("reloaded {}: {} snaps", self.source.display(), new.plays().len());
+                let msg = format!("reloaded {}: {} snaps", self.config.path.display(), new.plays().len());
                 match self.league.write() {
                     Ok(mut g) => *g = Arc::new(new),
                     Err(p) => *p.into_inner() = Arc::new(new),
@@ -186,26 +224,26 @@ fn constant_eq(a: &str, b: &str) -> bool {
 }
 
 /// A random token of 32 hex digits from the operating system.
-pub fn new_token() -> Result<String> {
+pub fn new_token() -> Result<String, ServeError> {
     use std::io::Read;
     let mut bytes = [0u8; 16];
     std::fs::File::open("/dev/urandom")
         .and_then(|mut f| f.read_exact(&mut bytes))
-        .context("reading random bytes for the access token")?;
+        .map_err(|e| ServeError::Random(e.to_string()))?;
     Ok(bytes.iter().map(|b| format!("{b:02x}")).collect())
 }
 
-/// Bind and serve until Ctrl-C. Loopback only unless `--share`.
-pub fn serve_blocking(league: League, args: &ServeArgs) -> Result<()> {
-    let addr: SocketAddr = args.bind.parse().with_context(|| format!("--bind {}: expected an address like 127.0.0.1:8750", args.bind))?;
-    if !addr.ip().is_loopback() && !args.share {
-        anyhow::bail!("--bind {addr}: not a loopback address; add --share to serve other machines (with an access token)");
+/// Bind and serve until Ctrl-C. Loopback only unless `share`.
+pub fn serve_blocking(league: League, cfg: ServeConfig) -> Result<(), ServeError> {
+    let addr: SocketAddr = cfg.bind.parse().map_err(|_| ServeError::BadAddress(cfg.bind.clone()))?;
+    if !addr.ip().is_loopback() && !cfg.share {
+        return Err(ServeError::NotLoopback(addr));
     }
-    let token = if args.share { Some(new_token()?) } else { None };
-    let state = Arc::new(AppState::new(league, args.lenient, args.team.clone(), args.passer.clone(), token.clone()));
+    let token = if cfg.share { Some(new_token()?) } else { None };
+    let state = Arc::new(AppState::new(league, AppConfig { token: token.clone(), ..cfg.app }));
     let rt = tokio::runtime::Builder::new_multi_thread().enable_all().build()?;
     rt.block_on(async move {
-        let listener = tokio::net::TcpListener::bind(addr).await.with_context(|| format!("binding {addr}"))?;
+        let listener = tokio::net::TcpListener::bind(addr).await.map_err(|source| ServeError::Bind { addr, source })?;
         let local = listener.local_addr()?;
         match &token {
             Some(t) => println!("lategame is serving on http://{local}/?token={t}\n(shared mode: give this address only to your staff; the token is printed once)"),
@@ -215,8 +253,8 @@ pub fn serve_blocking(league: League, args: &ServeArgs) -> Result<()> {
             .with_graceful_shutdown(async {
                 let _ = tokio::signal::ctrl_c().await;
             })
-            .await
-            .context("serving")
+            .await?;
+        Ok(())
     })
 }
 
