@@ -76,14 +76,10 @@ pub fn load_with(tables: Vec<RawTable>, opts: &LoadOptions, mut report: LoadRepo
             report.push(Issue::named(&t.file, IssueKind::Empty, "the file has a header but no rows; expected one row per snap".into()));
             continue;
         }
-        // Rows are independent here: parse the two halves on two threads,
-        // then keep file order.
+        // Rows are independent here: parse the two halves on rayon's
+        // threads, then keep file order.
         let mid = t.height / 2;
-        let (first, second) = std::thread::scope(|scope| {
-            let later = scope.spawn(|| parse_rows(t, fi, mid..t.height));
-            (parse_rows(t, fi, 0..mid), later.join())
-        });
-        let second = second.unwrap_or_else(|_| parse_rows(t, fi, mid..t.height));
+        let (first, second) = rayon::join(|| parse_rows(t, fi, 0..mid), || parse_rows(t, fi, mid..t.height));
         for (ok, issues) in [first, second] {
             rows.extend(ok);
             for i in issues {

@@ -84,19 +84,14 @@ pub(super) struct PasserSums {
     pub(super) team: u16,
 }
 
-/// The pass over the league, in two halves on two threads, merged.
+/// The pass over the league, in two halves on rayon's threads, merged in
+/// snap order (the same halves on every machine, so the same sums). A panic
+/// in either half reaches the caller.
 pub(super) fn accumulate(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
     let n = p.len();
     let mid = n / 2;
-    let (first, second) = std::thread::scope(|scope| {
-        let later = scope.spawn(|| accumulate_range(p, v, s, mid..n));
-        let first = accumulate_range(p, v, s, 0..mid);
-        (first, later.join())
-    });
-    match second {
-        Ok(second) => merge(first, second),
-        Err(_) => accumulate_range(p, v, s, 0..n),
-    }
+    let (first, second) = rayon::join(|| accumulate_range(p, v, s, 0..mid), || accumulate_range(p, v, s, mid..n));
+    merge(first, second)
 }
 
 fn merge_accs(a: &mut [Acc], b: &[Acc]) {

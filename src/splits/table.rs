@@ -8,6 +8,7 @@ use super::shrink::{adjusted, shrink, stability};
 use crate::plays::Plays;
 use crate::situation::Situation;
 use crate::stats;
+use rayon::prelude::*;
 use serde::Serialize;
 
 /// One number in the table, with everything said about it.
@@ -196,17 +197,12 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: 
         .collect();
 
     // Empirical Bayes per metric, priors from the qualified passers; the
-    // metrics are independent, so two threads share them.
+    // metrics are independent, so rayon's threads share them (results in
+    // metric order; a panic in one reaches the caller).
     let wanted: Vec<bool> = rows.iter().map(|r| r.qualified || focus == Some(r.passer.as_str()) || s.passer.as_deref() == Some(r.passer.as_str())).collect();
     let jobs: Vec<usize> = (0..nm).filter(|&j| METRICS[j].stat != Stat::Count).collect();
-    let run = |js: &[usize]| js.iter().map(|&j| (j, shrink(sums, j, &sigma2, &wanted, min_dropbacks))).collect::<Vec<_>>();
-    let results: Vec<(usize, Vec<Option<stats::Posterior>>)> = std::thread::scope(|scope| {
-        let (a, b) = jobs.split_at(jobs.len() / 2);
-        let other = scope.spawn(|| run(b));
-        let mut mine = run(a);
-        mine.extend(other.join().unwrap_or_default());
-        mine
-    });
+    let results: Vec<(usize, Vec<Option<stats::Posterior>>)> =
+        jobs.par_iter().map(|&j| (j, shrink(sums, j, &sigma2, &wanted, min_dropbacks))).collect();
     for (j, post) in results {
         let m = &METRICS[j];
         for (row, post) in rows.iter_mut().zip(post) {

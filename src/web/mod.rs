@@ -225,11 +225,8 @@ fn constant_eq(a: &str, b: &str) -> bool {
 
 /// A random token of 32 hex digits from the operating system.
 pub fn new_token() -> Result<String, ServeError> {
-    use std::io::Read;
     let mut bytes = [0u8; 16];
-    std::fs::File::open("/dev/urandom")
-        .and_then(|mut f| f.read_exact(&mut bytes))
-        .map_err(|e| ServeError::Random(e.to_string()))?;
+    getrandom::fill(&mut bytes).map_err(|e| ServeError::Random(e.to_string()))?;
     Ok(bytes.iter().map(|b| format!("{b:02x}")).collect())
 }
 
@@ -261,4 +258,25 @@ pub fn serve_blocking(league: League, cfg: ServeConfig) -> Result<(), ServeError
 /// Start the server on an already bound listener (tests bind 127.0.0.1:0).
 pub async fn serve_on(listener: tokio::net::TcpListener, state: Shared) -> std::io::Result<()> {
     axum::serve(listener, router(state)).await
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn tokens_are_32_hex_digits_and_differ() {
+        let a = new_token().expect("random bytes");
+        let b = new_token().expect("random bytes");
+        assert_eq!(a.len(), 32);
+        assert!(a.bytes().all(|c| c.is_ascii_hexdigit() && !c.is_ascii_uppercase()), "{a}");
+        assert_ne!(a, b);
+    }
+
+    #[test]
+    fn tokens_compare_in_full() {
+        assert!(constant_eq("abc123", "abc123"));
+        assert!(!constant_eq("abc123", "abc124"));
+        assert!(!constant_eq("abc123", "abc12"));
+    }
 }
