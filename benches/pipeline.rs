@@ -109,9 +109,9 @@ fn main() -> anyhow::Result<()> {
         Err(e) => println!("pandas: python3 not runnable: {e}"),
     }
 
-    let state = std::sync::Arc::new(lategame::web::AppState::new(league, lategame::web::AppConfig::new(league_cfg)));
+    let app = lategame::web::App::new(league, lategame::web::AppConfig::new(league_cfg));
     let rt = tokio::runtime::Builder::new_current_thread().enable_all().build()?;
-    let router = lategame::web::router(state.clone());
+    let (state, router) = (app.state, app.router);
     let render = |uri: String| {
         rt.block_on(async {
             use tower::ServiceExt;

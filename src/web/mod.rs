@@ -21,6 +21,8 @@ use std::time::Duration;
 use tower_http::limit::RequestBodyLimitLayer;
 use tower_http::set_header::SetResponseHeaderLayer;
 use tower_http::timeout::TimeoutLayer;
+use tower_http::trace::TraceLayer;
+use tower_http::classify::{ServerErrorsAsFailures, SharedClassifier};
 
 pub use query::Params;
 
@@ -89,7 +91,7 @@ pub struct AppState {
 const SPLITS_CACHE_SIZE: usize = 128;
 
 impl AppState {
-    pub fn new(league: League, cfg: AppConfig) -> AppState {
+    fn new(league: League, cfg: AppConfig) -> AppState {
         AppState {
             league: RwLock::new(Arc::new(league)),
             config: LeagueConfig { refit: false, ..cfg.league },
@@ -162,10 +164,25 @@ impl AppState {
 
 pub type Shared = Arc<AppState>;
 
+/// The app: its shared state and the router over it.
+pub struct App {
+    pub state: Shared,
+    pub router: Router,
+}
+
+impl App {
+    /// The one way to build the app: `serve`, the tests and the benches all
+    /// come through here, the cache folder in `cfg.league`.
+    pub fn new(league: League, cfg: AppConfig) -> App {
+        let state = Arc::new(AppState::new(league, cfg));
+        App { router: router(state.clone()), state }
+    }
+}
+
 /// Content-Security-Policy: our own scripts, styles and images only.
 pub const CSP: &str = "default-src 'none'; script-src 'self'; style-src 'self'; img-src 'self' data:; connect-src 'self'; form-action 'self'; base-uri 'none'; frame-ancestors 'none'";
 
-pub fn router(state: Shared) -> Router {
+fn router(state: Shared) -> Router {
     Router::new()
         .route("/", get(pages::home))
         .route("/explore", get(pages::explore))
@@ -194,7 +211,24 @@ pub fn router(state: Shared) -> Router {
         .layer(SetResponseHeaderLayer::overriding(header::X_CONTENT_TYPE_OPTIONS, HeaderValue::from_static("nosniff")))
         .layer(SetResponseHeaderLayer::overriding(header::REFERRER_POLICY, HeaderValue::from_static("no-referrer")))
         .layer(SetResponseHeaderLayer::overriding(header::X_FRAME_OPTIONS, HeaderValue::from_static("DENY")))
+        .layer(request_log())
         .with_state(state)
+}
+
+/// One log line per request with its status and time taken, in a span
+/// naming the method and path (never the query: it may hold the token).
+fn request_log() -> TraceLayer<
+    SharedClassifier<ServerErrorsAsFailures>,
+    impl Fn(&Request) -> tracing::Span + Clone,
+    (),
+    impl Fn(&Response, Duration, &tracing::Span) + Clone,
+> {
+    TraceLayer::new_for_http()
+        .make_span_with(|req: &Request| tracing::info_span!("request", method = %req.method(), path = %req.uri().path()))
+        .on_request(())
+        .on_response(|res: &Response, latency: Duration, _: &tracing::Span| {
+            tracing::info!(status = res.status().as_u16(), "answered in {:.1} ms", latency.as_secs_f64() * 1000.0)
+        })
 }
 
 const TOKEN_COOKIE: &str = "lategame_token";
@@ -237,7 +271,7 @@ pub fn serve_blocking(league: League, cfg: ServeConfig) -> Result<(), ServeError
         return Err(ServeError::NotLoopback(addr));
     }
     let token = if cfg.share { Some(new_token()?) } else { None };
-    let state = Arc::new(AppState::new(league, AppConfig { token: token.clone(), ..cfg.app }));
+    let app = App::new(league, AppConfig { token: token.clone(), ..cfg.app });
     let rt = tokio::runtime::Builder::new_multi_thread().enable_all().build()?;
     rt.block_on(async move {
         let listener = tokio::net::TcpListener::bind(addr).await.map_err(|source| ServeError::Bind { addr, source })?;
@@ -246,7 +280,7 @@ pub fn serve_blocking(league: League, cfg: ServeConfig) -> Result<(), ServeError
             Some(t) => println!("lategame is serving on http://{local}/?token={t}\n(shared mode: give this address only to your staff; the token is printed once)"),
             None => println!("lategame is serving on http://{local}/"),
         }
-        axum::serve(listener, router(state))
+        axum::serve(listener, app.router)
             .with_graceful_shutdown(async {
                 let _ = tokio::signal::ctrl_c().await;
             })
@@ -255,9 +289,9 @@ pub fn serve_blocking(league: League, cfg: ServeConfig) -> Result<(), ServeError
     })
 }
 
-/// Start the server on an already bound listener (tests bind 127.0.0.1:0).
-pub async fn serve_on(listener: tokio::net::TcpListener, state: Shared) -> std::io::Result<()> {
-    axum::serve(listener, router(state)).await
+/// Serve `app` on an already bound listener (tests bind 127.0.0.1:0).
+pub async fn serve_on(listener: tokio::net::TcpListener, app: App) -> std::io::Result<()> {
+    axum::serve(listener, app.router).await
 }
 
 #[cfg(test)]

@@ -4,9 +4,9 @@
 #![allow(dead_code)]
 
 use lategame::league::{demo_path, League, LeagueConfig};
-use lategame::web::{serve_on, AppConfig, AppState};
+use lategame::web::{serve_on, App, AppConfig};
 use std::path::{Path, PathBuf};
-use std::sync::{Arc, OnceLock};
+use std::sync::OnceLock;
 
 /// Cached model coefficients go under target/, never into the user's cache.
 pub fn test_cache_dir() -> PathBuf {
@@ -30,17 +30,18 @@ pub fn demo_league() -> League {
 /// A reload reads the league's own file again.
 pub fn spawn(league: League, team: Option<String>, passer: Option<String>, token: Option<String>) -> String {
     let cfg = AppConfig { team, passer, token, ..AppConfig::new(league_config(&league.source)) };
-    spawn_state(Arc::new(AppState::new(league, cfg)))
+    spawn_app(App::new(league, cfg))
 }
 
-pub fn spawn_state(state: Arc<AppState>) -> String {
+/// Serve `app` on a random loopback port; returns the base URL.
+pub fn spawn_app(app: App) -> String {
     let (tx, rx) = std::sync::mpsc::channel();
     std::thread::spawn(move || {
         let rt = tokio::runtime::Builder::new_multi_thread().worker_threads(2).enable_all().build().expect("runtime");
         rt.block_on(async move {
             let listener = tokio::net::TcpListener::bind("127.0.0.1:0").await.expect("bind");
             tx.send(listener.local_addr().expect("addr")).expect("send");
-            let _ = serve_on(listener, state).await;
+            let _ = serve_on(listener, app).await;
         });
     });
     let addr = rx.recv().expect("server address");
