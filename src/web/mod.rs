@@ -15,6 +15,7 @@ use axum::middleware::{self, Next};
 use axum::response::{IntoResponse, Response};
 use axum::routing::{get, post};
 use axum::Router;
+use axum_extra::extract::cookie::{Cookie, CookieJar, SameSite};
 use std::net::SocketAddr;
 use std::sync::{Arc, RwLock};
 use std::time::Duration;
@@ -236,19 +237,19 @@ const TOKEN_COOKIE: &str = "lategame_token";
 /// In shared mode every request must carry the token: `?token=` once
 /// (answered with a cookie and a redirect to the same page without it), then
 /// the cookie.
-async fn require_token(State(state): State<Shared>, req: Request, next: Next) -> Response {
+async fn require_token(State(state): State<Shared>, jar: CookieJar, req: Request, next: Next) -> Response {
     let Some(token) = state.token.clone() else {
         return next.run(req).await;
     };
-    if query::cookie(req.headers(), TOKEN_COOKIE).as_deref() == Some(token.as_str()) {
+    if jar.get(TOKEN_COOKIE).is_some_and(|c| constant_eq(c.value(), &token)) {
         return next.run(req).await;
     }
     let pairs = query::pairs(req.uri().query());
     if pairs.iter().any(|(k, v)| k == "token" && constant_eq(v, &token)) {
         let rest: Vec<(String, String)> = pairs.into_iter().filter(|(k, _)| k != "token").collect();
         let target = format!("{}{}", req.uri().path(), query::to_query_string(&rest));
-        let cookie = format!("{TOKEN_COOKIE}={token}; Path=/; HttpOnly; SameSite=Strict");
-        return (StatusCode::SEE_OTHER, [(header::LOCATION, target), (header::SET_COOKIE, cookie)]).into_response();
+        let cookie = Cookie::build((TOKEN_COOKIE, token)).path("/").http_only(true).same_site(SameSite::Strict);
+        return (StatusCode::SEE_OTHER, jar.add(cookie), [(header::LOCATION, target)]).into_response();
     }
     (StatusCode::UNAUTHORIZED, "401: this lategame server is shared with an access token; open the address printed when it started (it ends in ?token=...)").into_response()
 }
