@@ -210,16 +210,24 @@ END {
         layers = layers sprintf("\n  %2d:%s", round, row)
     }
     if (placed_n == ntop) print "\nlayers, bottom first (each imports only layers below it):" layers
+    # strongly connected groups: modules that reach each other
     bad = 0
-    for (i = 1; i <= nn; i++) for (j = i + 1; j <= nn; j++) {
-        a = nodes[i]; b = nodes[j]
-        if (toponly && (index(a, "::") || index(b, "::"))) continue
-        if (reach[a, b] && reach[b, a]) {
-            if (!bad) print "\nCYCLES (each pair imports the other, directly or through others):"
-            bad = 1
-            how = ((a, b) in edge) && ((b, a) in edge) ? "directly" : "around a loop"
-            print "  " a " <-> " b " (" how ")"
+    for (i = 1; i <= nn; i++) {
+        a = nodes[i]
+        if (a in grouped) continue
+        if (toponly && index(a, "::")) continue
+        members = a; size = 1
+        for (j = i + 1; j <= nn; j++) {
+            b = nodes[j]
+            if (reach[a, b] && reach[b, a]) { members = members " " b; size++; grouped[b] = 1 }
         }
+        if (size == 1) continue
+        if (!bad) print "\nCYCLES (modules that import each other, directly or around a loop):"
+        bad = 1
+        n = split(members, m, " ")
+        links = ""
+        for (x = 1; x <= n; x++) for (y = 1; y <= n; y++) if ((m[x], m[y]) in edge) links = links " " m[x] "->" m[y]
+        print "  " members "\n    imports among them:" links
     }
     if (!bad) {
         if (toponly) print "\nno import cycles between the " ntop " top-level modules"
