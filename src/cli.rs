@@ -56,10 +56,9 @@ enum Cmd {
     /// Print the passer split table for a situation.
     Splits {
         file: Option<PathBuf>,
-        /// A preset: late-close, two-minute, four-minute, late-3rd-4th, red-zone-late, backed-up-late, all.
-        #[arg(long, conflicts_with = "r#where")]
+        #[arg(long, conflicts_with = "r#where", help = preset_help())]
         preset: Option<String>,
-        /// A situation as URL query parameters, e.g. 'preset=late-close&dn=3,4'.
+        /// A situation in the pages' query language, e.g. 'preset=end-of-game&down=3,4&ball-on=+20..' (see README, "Situation parameters").
         #[arg(long = "where")]
         r#where: Option<String>,
         /// Season(s) to include (repeat or comma list).
@@ -78,7 +77,7 @@ enum Cmd {
         file: Option<PathBuf>,
         #[arg(long)]
         passer: String,
-        #[arg(long, default_value = "late-close")]
+        #[arg(long, default_value = Preset::DEFAULT.key(), help = preset_help())]
         preset: String,
         #[arg(long, value_delimiter = ',')]
         season: Vec<i32>,
@@ -261,21 +260,26 @@ fn truth_path(out: &std::path::Path) -> PathBuf {
     out.with_file_name(format!("{stem}-truth.csv"))
 }
 
+/// "A preset: ..." with every preset's key, for `--preset`.
+fn preset_help() -> String {
+    format!("A preset: {}.", Preset::keys())
+}
+
+/// The situation of `--preset` or `--where`, read by the pages' own parser
+/// (percent escapes undone, unknown keys refused with the nearest one).
 fn situation_from(preset: Option<&str>, query: Option<&str>) -> Result<Situation> {
-    let pairs: Vec<(String, String)> = match (preset, query) {
-        (Some(p), _) => vec![("preset".to_string(), p.to_string())],
-        (None, Some(q)) => q
-            .trim_start_matches('?')
-            .split('&')
-            .filter(|kv| !kv.is_empty())
-            .map(|kv| {
-                let (k, v) = kv.split_once('=').unwrap_or((kv, ""));
-                (k.to_string(), v.to_string())
-            })
-            .collect(),
-        (None, None) => vec![("preset".to_string(), Preset::LateClose.key().to_string())],
+    let parsed = match (preset, query) {
+        (Some(p), _) => Situation::from_query(&[("preset".to_string(), p.to_string())]),
+        (None, Some(q)) => {
+            let pairs = crate::situation::decode_pairs(q);
+            if let Some((k, _)) = pairs.iter().find(|(k, _)| crate::situation::params::spec(k).is_some_and(|s| s.field == crate::situation::params::Field::Page)) {
+                anyhow::bail!("--where: '{k}' is a page setting, not a situation filter (the command takes --min, --season, --format)");
+            }
+            Situation::from_query(&pairs)
+        }
+        (None, None) => Ok(Preset::DEFAULT.situation(8)),
     };
-    Situation::from_query(&pairs).map_err(|e| anyhow::anyhow!("{e}"))
+    parsed.map_err(|e| anyhow::anyhow!("{e}"))
 }
 
 fn text_table(t: &splits::SplitTable) -> String {

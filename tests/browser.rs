@@ -21,7 +21,7 @@ fn explorer_sorts_in_a_real_browser_and_pages_render() {
     assert!(std::path::Path::new("/usr/bin/chromium").exists(), "chromium is not installed: apt-get install chromium (.ci/run does)");
     let league = common::demo_league();
     let passer = {
-        let t = lategame::splits::split_table(league.plays(), &league.values(), &lategame::situation::Preset::LateClose.situation(8), 20);
+        let t = lategame::splits::split_table(league.plays(), &league.values(), &lategame::situation::Preset::EndOfGame.situation(8), 20);
         t.rows[0].passer.clone()
     };
     let base = common::spawn(league, None, Some(passer.clone()), None);
