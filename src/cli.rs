@@ -307,3 +307,24 @@ fn text_table(t: &splits::SplitTable) -> String {
     }
     s
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn where_reads_the_pages_language() {
+        let s = situation_from(None, Some("preset=end-of-game&down=3,4&ball-on=%2B20..")).unwrap();
+        assert_eq!(s, Situation::from_query_string("preset=end-of-game&down=3,4&ball-on=%2B20..").unwrap());
+        assert_eq!(s.ball_on, Some(crate::situation::Range::new(Some(80.0), None)));
+        // an unescaped `+` (a space once decoded) still means the opponent's side
+        assert_eq!(situation_from(None, Some("preset=end-of-game&down=3,4&ball-on=+20..")).unwrap(), s);
+        let e = situation_from(None, Some("preset=end-of-game&downn=3")).unwrap_err().to_string();
+        assert_eq!(e, "downn=3: unknown filter 'downn'; did you mean 'down'?");
+        let e = situation_from(None, Some("min=3")).unwrap_err().to_string();
+        assert!(e.contains("'min' is a page setting"), "{e}");
+        assert_eq!(situation_from(Some("two-minute-drill"), None).unwrap(), Preset::TwoMinuteDrill.situation(8));
+        assert!(situation_from(Some("late-close"), None).is_err());
+        assert_eq!(situation_from(None, None).unwrap(), Preset::DEFAULT.situation(8));
+    }
+}

@@ -316,3 +316,21 @@ fn words_and_units_a_coach_writes() {
     assert_eq!(count("preset=end-of-game&margin=any"), count("quarter=4,ot&game-left=..7:30"));
     assert!(count("preset=end-of-game&result=interception") > 0);
 }
+
+#[test]
+fn the_season_follows_a_passer_link_and_the_passer_page_says_which() {
+    let base = demo_server();
+    let season = get(&format!("{base}/api/summary")).json()["seasons"].as_array().and_then(|s| s.last().cloned()).expect("a season").to_string();
+    let page = get(&format!("{base}/explore?preset=end-of-game&season={season}")).body;
+    let (href, name) = links(&page).into_iter().find(|(h, _)| h.starts_with("/passer?")).expect("a passer link");
+    assert!(href.ends_with(&format!("&season={season}")), "{href}");
+    let profile = get(&format!("{base}{href}")).body;
+    assert!(profile.contains(&format!("Seasons {season}</p>")), "season not shown");
+    assert!(profile.contains(&format!("name=\"season\" value=\"{season}\"")), "season box");
+    // a lower-case name opens the same page
+    let lower = get(&format!("{base}/passer?passer={}&season={season}", enc(&name.to_lowercase())));
+    assert_eq!(lower.status, 200);
+    assert!(lower.body.contains(&format!("<h1>{name}")));
+    let all = get(&format!("{base}/passer?passer={}", enc(&name))).body;
+    assert!(all.contains("All seasons ("), "all seasons said");
+}
