@@ -749,11 +749,11 @@ fn list_note(params: &Params, snaps: &[splits::Snap], counted: &[bool]) -> ListN
     match m.stat {
         Stat::Count if exact => ListNote { text: format!("{} snaps: exactly the ones counted in {}", snaps.len(), m.label), marking: false },
         Stat::Count if PlayResult::counted_by(m.key).is_some() => ListNote {
-            text: format!("{} {unit}; the {n_counted} counted in {} are marked ●", snaps.len(), m.label),
+            text: format!("{} {unit}; the {n_counted} counted in {} are marked ● (sort on Counted to list them first)", snaps.len(), m.label),
             marking: true,
         },
         Stat::Rate => ListNote {
-            text: format!("{} {unit}: the denominator of {}; the {n_counted} it counts are marked ●", snaps.len(), m.label),
+            text: format!("{} {unit}: the denominator of {}; the {n_counted} it counts are marked ● (sort on Counted to list them first)", snaps.len(), m.label),
             marking: true,
         },
         Stat::Count => ListNote { text: format!("{} {unit}: every one adds to {}", snaps.len(), m.label), marking: false },
