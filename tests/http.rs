@@ -333,4 +333,10 @@ fn the_season_follows_a_passer_link_and_the_passer_page_says_which() {
     assert!(lower.body.contains(&format!("<h1>{name}")));
     let all = get(&format!("{base}/passer?passer={}", enc(&name))).body;
     assert!(all.contains("All seasons ("), "all seasons said");
+    // a season the file lacks is named as such, with what it covers
+    let r = get(&format!("{base}/api/splits?preset=end-of-game&season=1999"));
+    assert_eq!(r.status, 400);
+    let reason = r.json()["reason"].as_str().unwrap_or("").to_string();
+    assert!(reason.starts_with("not in the file; the file covers ") && reason.ends_with(&season), "{reason}");
+    assert_eq!(get(&format!("{base}/explore?preset=end-of-game&season=1999")).status, 400);
 }

@@ -153,11 +153,30 @@ impl Params {
 }
 
 /// Team codes and passer names as the league spells them, matched without
-/// regard to case; a name the league lacks is refused with the nearest one.
+/// regard to case; a name the league lacks is refused with the nearest one,
+/// and seasons the file lacks with the seasons it covers.
 pub fn resolve_names(plays: &Plays, s: &mut Situation) -> Result<(), SituationError> {
     resolve(Field::Team, &mut s.offense, &plays.teams, "team")?;
     resolve(Field::Opponent, &mut s.opponent, &plays.teams, "team")?;
-    resolve(Field::Passer, &mut s.passer, &plays.passers, "passer")
+    resolve(Field::Passer, &mut s.passer, &plays.passers, "passer")?;
+    check_seasons(plays, s)
+}
+
+/// A season list with no season of the file in it is refused with the
+/// seasons the file covers (an empty table would say "lower the minimum").
+fn check_seasons(plays: &Plays, s: &Situation) -> Result<(), SituationError> {
+    let Some(asked) = &s.seasons else { return Ok(()) };
+    let have = plays.seasons();
+    if have.is_empty() || asked.iter().any(|x| have.contains(x)) {
+        return Ok(());
+    }
+    let covers = match (have.first(), have.last()) {
+        (Some(a), Some(b)) if a != b && have.len() == (b - a + 1) as usize => format!("{a}-{b}"),
+        _ => have.iter().map(|x| x.to_string()).collect::<Vec<_>>().join(", "),
+    };
+    let key = spec_of(Field::Seasons).map(|s| s.key).unwrap_or("season");
+    let value = s.show(Field::Seasons).unwrap_or_default();
+    Err(bad(key, &value, &format!("not in the file; the file covers {covers}")))
 }
 
 fn resolve(field: Field, name: &mut Option<String>, known: &[String], what: &str) -> Result<(), SituationError> {
