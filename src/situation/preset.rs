@@ -54,9 +54,9 @@ impl Preset {
     pub fn label(self) -> &'static str {
         match self {
             Preset::EndOfGame => "End of game, one score",
-            Preset::TwoMinuteDrill => "Two-minute drill, tied or behind",
+            Preset::TwoMinuteDrill => "Two-minute, tied or behind",
             Preset::FourMinuteLead => "Four-minute offense, ahead",
-            Preset::EndOfGameLateDowns => "End of game, 3rd & 4th down",
+            Preset::EndOfGameLateDowns => "End of game, 3rd/4th down",
             Preset::EndOfGameRedZone => "End of game, red zone",
             Preset::EndOfGameBackedUp => "End of game, backed up",
             Preset::EverySnap => "Every snap",

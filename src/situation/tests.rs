@@ -128,7 +128,7 @@ fn describe_is_in_words() {
     let s = parse("preset=two-minute-drill&down=3,4&result=interception&ball-on=-20..-1&team=qrm");
     assert_eq!(
         s.describe(),
-        "Two-minute drill, tied or behind (one score = 8); down 3,4; ball on -1..-20; offense qrm; result interception"
+        "Two-minute, tied or behind (one score = 8); down 3,4; ball on -1..-20; offense qrm; result interception"
     );
     assert_eq!(Situation::default().describe(), "Every snap");
 }
@@ -180,5 +180,13 @@ proptest::proptest! {
     fn every_yard_line_and_clock_reads_back(b in 1i32..=99, secs in 0u32..=3600) {
         let s = parse(&format!("ball-on={b}&game-left={secs}"));
         proptest::prop_assert_eq!(Situation::from_query(&s.to_query()).unwrap(), s);
+    }
+}
+
+#[test]
+fn preset_labels_fit_the_profile_charts() {
+    // the profile's dot charts show about 26 characters of a row label
+    for p in Preset::ALL {
+        assert!(p.label().chars().count() <= 26, "{} is too long for a chart row", p.label());
     }
 }
