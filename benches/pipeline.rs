@@ -65,12 +65,12 @@ fn main() -> anyhow::Result<()> {
     let league = League::open_with(&league_cfg)?;
     println!("warm start (load + cached models + score) {:>5.2} s   (from cache: {})", t.elapsed().as_secs_f64(), league.scored.from_cache);
 
-    let s = Preset::LateClose.situation(8);
+    let s = Preset::EndOfGame.situation(8);
     let (p50, p99) = time_n(40, || {
         let t = splits::split_table(league.plays(), &league.values(), &s, 20);
         std::hint::black_box(t);
     });
-    println!("split table, late & close  p50 {p50:>7.2} ms   p99 {p99:>7.2} ms");
+    println!("split table, end of game   p50 {p50:>7.2} ms   p99 {p99:>7.2} ms");
 
     // The floor: one plain pass over the columns the filter and a few sums need.
     let p = league.plays();
@@ -125,14 +125,14 @@ fn main() -> anyhow::Result<()> {
     let mut k = 0;
     let (u50, u99) = time_n(20, || {
         k += 1;
-        render(format!("/explore?preset=late-close&min={}", 20 + k));
+        render(format!("/explore?preset=end-of-game&min={}", 20 + k));
     });
     println!("explorer page render, new view     p50 {u50:>7.2} ms   p99 {u99:>7.2} ms");
-    let (e50, e99) = time_n(30, || render("/explore?preset=late-close".to_string()));
+    let (e50, e99) = time_n(30, || render("/explore?preset=end-of-game".to_string()));
     println!("explorer page render, cached view  p50 {e50:>7.2} ms   p99 {e99:>7.2} ms");
 
     let league = state.league();
-    // The report covers the latest season: take its busiest late-and-close passer.
+    // The report covers the latest season: take its busiest end-of-game passer.
     let last = league.plays().seasons().last().copied();
     let latest = lategame::situation::Situation { seasons: last.map(|x| vec![x]), ..s.clone() };
     let passer = splits::split_table(league.plays(), &league.values(), &latest, 20).rows.first().map(|r| r.passer.clone()).unwrap_or_default();

@@ -46,11 +46,11 @@ fn main() -> anyhow::Result<()> {
         if league.scored.from_cache { "from cache" } else { "fitted" },
         t.elapsed().as_secs_f64()
     );
-    let base = Preset::LateClose.situation(8);
+    let base = Preset::EndOfGame.situation(8);
     let s = report::report_situation(league.plays(), &base);
     let t = splits::split_table(league.plays(), &league.values(), &s, splits::DEFAULT_MIN_DROPBACKS);
     let passer = t.rows.first().map(|r| r.passer.clone()).unwrap_or_default();
-    println!("passer {passer}, {} late & close dropbacks in {:?}", t.rows.first().map(|r| r.dropbacks).unwrap_or(0), t.seasons);
+    println!("passer {passer}, {} end-of-game dropbacks in {:?}", t.rows.first().map(|r| r.dropbacks).unwrap_or(0), t.seasons);
 
     let runs = 20;
     let (b50, b99) = time_n(runs, || {

@@ -57,10 +57,9 @@ enum Cmd {
     /// Print the passer split table for a situation.
     Splits {
         file: Option<PathBuf>,
-        /// A preset: late-close, two-minute, four-minute, late-3rd-4th, red-zone-late, backed-up-late, all.
-        #[arg(long, conflicts_with = "r#where")]
+        #[arg(long, conflicts_with = "r#where", help = preset_help())]
         preset: Option<String>,
-        /// A situation as URL query parameters, e.g. 'preset=late-close&dn=3,4'.
+        /// A situation in the pages' query language, e.g. 'preset=end-of-game&down=3,4&ball-on=+20..' (see README, "Situation parameters").
         #[arg(long = "where")]
         r#where: Option<String>,
         /// Season(s) to include (repeat or comma list).
@@ -79,7 +78,7 @@ enum Cmd {
         file: Option<PathBuf>,
         #[arg(long)]
         passer: String,
-        #[arg(long, default_value = "late-close")]
+        #[arg(long, default_value = Preset::DEFAULT.key(), help = preset_help())]
         preset: String,
         #[arg(long, value_delimiter = ',')]
         season: Vec<i32>,
@@ -284,21 +283,26 @@ fn truth_path(out: &std::path::Path) -> PathBuf {
     out.with_file_name(format!("{stem}-truth.csv"))
 }
 
+/// "A preset: ..." with every preset's key, for `--preset`.
+fn preset_help() -> String {
+    format!("A preset: {}.", Preset::keys())
+}
+
+/// The situation of `--preset` or `--where`, read by the pages' own parser
+/// (percent escapes undone, unknown keys refused with the nearest one).
 fn situation_from(preset: Option<&str>, query: Option<&str>) -> Result<Situation> {
-    let pairs: Vec<(String, String)> = match (preset, query) {
-        (Some(p), _) => vec![("preset".to_string(), p.to_string())],
-        (None, Some(q)) => q
-            .trim_start_matches('?')
-            .split('&')
-            .filter(|kv| !kv.is_empty())
-            .map(|kv| {
-                let (k, v) = kv.split_once('=').unwrap_or((kv, ""));
-                (k.to_string(), v.to_string())
-            })
-            .collect(),
-        (None, None) => vec![("preset".to_string(), Preset::LateClose.key().to_string())],
+    let parsed = match (preset, query) {
+        (Some(p), _) => Situation::from_query(&[("preset".to_string(), p.to_string())]),
+        (None, Some(q)) => {
+            let pairs = crate::situation::decode_pairs(q);
+            if let Some((k, _)) = pairs.iter().find(|(k, _)| crate::situation::params::spec(k).is_some_and(|s| s.field == crate::situation::params::Field::Page)) {
+                anyhow::bail!("--where: '{k}' is a page setting, not a situation filter (the command takes --min, --season, --format)");
+            }
+            Situation::from_query(&pairs)
+        }
+        (None, None) => Ok(Preset::DEFAULT.situation(8)),
     };
-    Situation::from_query(&pairs).map_err(|e| anyhow::anyhow!("{e}"))
+    parsed.map_err(|e| anyhow::anyhow!("{e}"))
 }
 
 fn text_table(t: &splits::SplitTable) -> String {
@@ -327,4 +331,25 @@ fn text_table(t: &splits::SplitTable) -> String {
         s.push('\n');
     }
     s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn where_reads_the_pages_language() {
+        let s = situation_from(None, Some("preset=end-of-game&down=3,4&ball-on=%2B20..")).unwrap();
+        assert_eq!(s, Situation::from_query_string("preset=end-of-game&down=3,4&ball-on=%2B20..").unwrap());
+        assert_eq!(s.ball_on, Some(crate::situation::Range::new(Some(80.0), None)));
+        // an unescaped `+` (a space once decoded) still means the opponent's side
+        assert_eq!(situation_from(None, Some("preset=end-of-game&down=3,4&ball-on=+20..")).unwrap(), s);
+        let e = situation_from(None, Some("preset=end-of-game&downn=3")).unwrap_err().to_string();
+        assert_eq!(e, "downn=3: unknown filter 'downn'; did you mean 'down'?");
+        let e = situation_from(None, Some("min=3")).unwrap_err().to_string();
+        assert!(e.contains("'min' is a page setting"), "{e}");
+        assert_eq!(situation_from(Some("two-minute-drill"), None).unwrap(), Preset::TwoMinuteDrill.situation(8));
+        assert!(situation_from(Some("late-close"), None).is_err());
+        assert_eq!(situation_from(None, None).unwrap(), Preset::DEFAULT.situation(8));
+    }
 }

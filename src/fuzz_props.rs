@@ -51,7 +51,8 @@ pub fn loader_csv(data: &[u8]) {
 
 /// The page/API query parser on an arbitrary query string.
 ///
-/// Properties: no panic; a refusal names its parameter and gives a reason;
+/// Properties: no panic; a refusal (a bad value or an unknown key) names its
+/// parameter and gives a reason;
 /// an accepted situation survives the round trip through its own query
 /// pairs and through the percent-encoded link the pages build from them,
 /// and can be put in words.

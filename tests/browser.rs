@@ -1,6 +1,7 @@
 //! A real browser against the real server: headless chromium (Debian's,
-//! driven by playwright-core from npm) sorts the explorer by clicking and
-//! saves screenshots of every page at laptop and projector sizes under
+//! driven by playwright-core from npm) sorts the explorer by clicking,
+//! submits the filter form with a preset and a season, and saves
+//! screenshots of every page at laptop and projector sizes under
 //! target/screenshots. `.ci/run` installs both; set LATEGAME_SKIP_BROWSER=1
 //! to skip on a machine without them.
 
@@ -21,7 +22,7 @@ fn explorer_sorts_in_a_real_browser_and_pages_render() {
     assert!(std::path::Path::new("/usr/bin/chromium").exists(), "chromium is not installed: apt-get install chromium (.ci/run does)");
     let league = common::demo_league();
     let passer = {
-        let t = lategame::splits::split_table(league.plays(), &league.values(), &lategame::situation::Preset::LateClose.situation(8), 20);
+        let t = lategame::splits::split_table(league.plays(), &league.values(), &lategame::situation::Preset::EndOfGame.situation(8), 20);
         t.rows[0].passer.clone()
     };
     let base = common::spawn(league, None, Some(passer.clone()), None);
@@ -31,6 +32,7 @@ fn explorer_sorts_in_a_real_browser_and_pages_render() {
     let text = format!("{}{}", String::from_utf8_lossy(&out.stdout), String::from_utf8_lossy(&out.stderr));
     assert!(out.status.success(), "{text}");
     assert!(text.contains("browser check passed"), "{text}");
+    eprintln!("{text}");
     for name in ["home", "explore", "profile", "plays", "calibration", "report"] {
         for size in ["laptop", "projector"] {
             assert!(shots.join(format!("{name}-{size}.png")).exists(), "{name}-{size}.png");

@@ -6,11 +6,11 @@
 mod common;
 use common::*;
 
-const PRESETS: &[&str] = &["late-close", "two-minute", "four-minute", "late-3rd-4th", "red-zone-late", "backed-up-late", "all"];
+const PRESETS: &[&str] = &["end-of-game", "two-minute-drill", "four-minute-lead", "end-of-game-3rd-4th", "end-of-game-red-zone", "end-of-game-backed-up", "every-snap"];
 
-/// The passer with the most late-and-close dropbacks.
+/// The passer with the most end-of-game dropbacks.
 fn busiest_passer(base: &str) -> String {
-    let j = get(&format!("{base}/api/splits?preset=late-close")).json();
+    let j = get(&format!("{base}/api/splits?preset=end-of-game")).json();
     j["rows"][0]["passer"].as_str().expect("a passer").to_string()
 }
 
@@ -42,7 +42,7 @@ fn every_page_and_api_answers_for_every_preset() {
     let r = get(&format!("{base}/api/profile?passer={passer}"));
     assert_eq!(r.status, 200);
     assert_eq!(r.json()["presets"].as_array().map(|a| a.len()), Some(PRESETS.len()));
-    let plays = get(&format!("{base}/api/plays?preset=late-close&passer={passer}")).json();
+    let plays = get(&format!("{base}/api/plays?preset=end-of-game&passer={passer}")).json();
     let game = plays["snaps"][0]["game"].as_str().expect("a game").to_string();
     assert_eq!(get(&format!("{base}/game?game={}&passer={passer}", enc(&game))).status, 200);
     assert_eq!(get(&format!("{base}/api/game?game={}", enc(&game))).status, 200);
@@ -51,15 +51,15 @@ fn every_page_and_api_answers_for_every_preset() {
 #[test]
 fn bad_queries_get_400_with_a_reason_on_page_and_in_json() {
     let base = demo_server();
-    let r = get(&format!("{base}/explore?mg=9..3"));
+    let r = get(&format!("{base}/explore?margin=9..3"));
     assert_eq!(r.status, 400);
-    assert!(r.body.contains("mg=9..3: lower bound above upper"), "{}", r.body);
-    let r = get(&format!("{base}/api/splits?mg=9..3"));
+    assert!(r.body.contains("margin=9..3: lower bound above upper"), "{}", r.body);
+    let r = get(&format!("{base}/api/splits?margin=9..3"));
     assert_eq!(r.status, 400);
     let j = r.json();
-    assert_eq!(j["error"], "mg=9..3: lower bound above upper");
-    assert_eq!(j["param"], "mg");
-    for q in ["dn=7", "preset=nowhere", "min=0", "sort=nonsense", "wp=0.2..1.5", "per=6", "yl=%ff"] {
+    assert_eq!(j["error"], "margin=9..3: lower bound above upper");
+    assert_eq!(j["param"], "margin");
+    for q in ["down=7", "preset=nowhere", "min=0", "sort=nonsense", "win-prob=0.2..1.5", "quarter=6", "ball-on=%ff", "downn=3", "preset=end-of-game&dn=3"] {
         let r = get(&format!("{base}/api/splits?{q}"));
         assert_eq!(r.status, 400, "{q}: {}", r.body);
         assert!(r.json()["reason"].as_str().is_some_and(|s| !s.is_empty()), "{q}");
@@ -84,7 +84,7 @@ fn column_values(html: &str, col: usize) -> Vec<String> {
 #[test]
 fn page_numbers_equal_the_json_api() {
     let base = demo_server();
-    let q = "preset=late-close&sort=epa&dir=desc";
+    let q = "preset=end-of-game&sort=epa&dir=desc";
     let page = get(&format!("{base}/explore?{q}")).body;
     let json = get(&format!("{base}/api/splits?{q}")).json();
     let rows = json["rows"].as_array().unwrap();
@@ -122,17 +122,17 @@ fn r_cell_text(html: &str, passer: &str, col: usize) -> String {
 #[test]
 fn sorting_orders_rows() {
     let base = demo_server();
-    let j = get(&format!("{base}/api/splits?preset=all&sort=epa&dir=desc")).json();
+    let j = get(&format!("{base}/api/splits?preset=every-snap&sort=epa&dir=desc")).json();
     let idx = j["metrics"].as_array().unwrap().iter().position(|m| m["key"] == "epa").unwrap();
     let est: Vec<f64> = j["rows"].as_array().unwrap().iter().filter_map(|r| r["cells"][idx]["estimate"].as_f64()).collect();
     assert!(est.len() > 5);
     assert!(est.windows(2).all(|w| w[0] >= w[1]), "{est:?}");
-    let j = get(&format!("{base}/api/splits?preset=all&sort=passer&dir=asc")).json();
+    let j = get(&format!("{base}/api/splits?preset=every-snap&sort=passer&dir=asc")).json();
     let names: Vec<String> = j["rows"].as_array().unwrap().iter().map(|r| r["passer"].as_str().unwrap().to_string()).collect();
     let mut sorted = names.clone();
     sorted.sort();
     assert_eq!(names, sorted);
-    let page = get(&format!("{base}/explore?preset=all&sort=epa&dir=asc")).body;
+    let page = get(&format!("{base}/explore?preset=every-snap&sort=epa&dir=asc")).body;
     assert!(page.contains("aria-sort=\"ascending\""));
 }
 
@@ -155,12 +155,12 @@ fn security_headers_and_static_files() {
 fn cutup_export_is_csv_with_safe_cells() {
     let base = demo_server();
     let passer = enc(&busiest_passer(base));
-    let r = get(&format!("{base}/plays.csv?preset=late-close&passer={passer}"));
+    let r = get(&format!("{base}/plays.csv?preset=end-of-game&passer={passer}"));
     assert!(r.header("content-type").unwrap_or("").starts_with("text/csv"));
     let mut lines = r.body.lines();
     assert_eq!(lines.next(), Some("game,season,week,seq,period,clock,offense,defense,score,down_distance,spot,kind,passer,result,epa,wpa"));
     let n = lines.clone().count();
-    let api = get(&format!("{base}/api/plays?preset=late-close&passer={passer}")).json();
+    let api = get(&format!("{base}/api/plays?preset=end-of-game&passer={passer}")).json();
     assert_eq!(n as u64, api["count"].as_u64().unwrap());
     for l in lines {
         for cell in l.split(',') {
@@ -188,7 +188,7 @@ fn markup_from_the_file_is_shown_as_text() {
     write_rows(&out.rows, &path).unwrap();
     let league = open_league(&path);
     let base = spawn(league, None, Some(evil.to_string()), None);
-    for url in [format!("{base}/explore?preset=all&min=1"), format!("{base}/passer?passer={}", enc(evil)), format!("{base}/plays?preset=all&passer={}", enc(evil)), format!("{base}/")] {
+    for url in [format!("{base}/explore?preset=every-snap&min=1"), format!("{base}/passer?passer={}", enc(evil)), format!("{base}/plays?preset=every-snap&passer={}", enc(evil)), format!("{base}/")] {
         let r = get(&url);
         assert_eq!(r.status, 200, "{url}");
         assert!(!r.body.contains(evil), "{url} shows raw markup");
@@ -203,9 +203,9 @@ fn shared_mode_needs_the_token() {
     assert_eq!(get(&format!("{base}/")).status, 401);
     assert_eq!(get(&format!("{base}/api/summary")).status, 401);
     assert_eq!(get(&format!("{base}/?token=wrong")).status, 401);
-    let r = get(&format!("{base}/explore?preset=all&token=abc123"));
+    let r = get(&format!("{base}/explore?preset=every-snap&token=abc123"));
     assert_eq!(r.status, 303);
-    assert_eq!(r.header("location"), Some("/explore?preset=all"));
+    assert_eq!(r.header("location"), Some("/explore?preset=every-snap"));
     let cookie = r.header("set-cookie").unwrap().split(';').next().unwrap().to_string();
     assert_eq!(get_with(&format!("{base}/api/summary"), &[("Cookie", &cookie)]).status, 200);
 }
@@ -217,6 +217,124 @@ fn choosing_our_passer_sets_a_cookie() {
     let r = get(&format!("{base}/choose?team=&passer={}", enc(&passer)));
     assert_eq!(r.status, 303);
     let cookie = r.header("set-cookie").unwrap().split(';').next().unwrap().to_string();
-    let page = get_with(&format!("{base}/explore?preset=late-close"), &[("Cookie", &cookie)]).body;
+    let page = get_with(&format!("{base}/explore?preset=end-of-game"), &[("Cookie", &cookie)]).body;
     assert!(page.contains("class=\"ours\""), "our passer's row is highlighted");
+}
+
+#[test]
+fn unknown_keys_are_refused_everywhere_with_the_nearest() {
+    let base = demo_server();
+    for path in ["/api/splits", "/api/splits.csv", "/explore", "/plays", "/plays.csv", "/api/plays"] {
+        let r = get(&format!("{base}{path}?preset=end-of-game&downn=3"));
+        assert_eq!(r.status, 400, "{path}: {}", &r.body[..r.body.len().min(300)]);
+        assert!(r.body.contains("unknown filter &#39;downn&#39;; did you mean &#39;down&#39;?") || r.body.contains("unknown filter 'downn'; did you mean 'down'?"), "{path}: {}", r.body);
+    }
+    let j = get(&format!("{base}/api/splits?preset=end-of-game&downn=3")).json();
+    assert_eq!(j["param"], "downn");
+    assert_eq!(j["reason"], "unknown filter 'downn'; did you mean 'down'?");
+    // the filter a bare key used to drop silently now filters
+    let all = get(&format!("{base}/api/splits?preset=end-of-game")).json();
+    let third = get(&format!("{base}/api/splits?preset=end-of-game&down=3")).json();
+    assert!(third["league_dropbacks"].as_u64() < all["league_dropbacks"].as_u64());
+}
+
+#[test]
+fn names_match_without_case_and_slips_get_the_nearest() {
+    let base = demo_server();
+    let passer = busiest_passer(base);
+    let exact = get(&format!("{base}/api/plays?preset=end-of-game&passer={}", enc(&passer))).json();
+    let lower = get(&format!("{base}/api/plays?preset=end-of-game&passer={}", enc(&passer.to_lowercase()))).json();
+    assert_eq!(exact["count"], lower["count"]);
+    assert!(exact["count"].as_u64() > Some(0));
+    let slip: String = passer.chars().take(passer.chars().count() - 1).collect();
+    let r = get(&format!("{base}/api/plays?preset=end-of-game&passer={}", enc(&slip)));
+    assert_eq!(r.status, 400);
+    assert_eq!(r.json()["reason"], format!("no passer '{slip}' in this league; did you mean '{passer}'?"));
+    let team = exact["snaps"][0]["offense"].as_str().expect("a team").to_string();
+    let a = get(&format!("{base}/api/splits?preset=end-of-game&team={}", enc(&team))).json();
+    let b = get(&format!("{base}/api/splits?preset=end-of-game&team={}", enc(&team.to_lowercase()))).json();
+    assert_eq!(a["league_dropbacks"], b["league_dropbacks"]);
+    assert!(a["league_dropbacks"].as_u64() > Some(0));
+}
+
+/// Every link on a page with its visible text (`&amp;` undone).
+fn links(html: &str) -> Vec<(String, String)> {
+    html.split("<a href=\"")
+        .skip(1)
+        .map(|rest| {
+            let href = rest.split('"').next().unwrap_or("").replace("&amp;", "&").replace("&#38;", "&");
+            let text = rest.split('>').nth(1).unwrap_or("").split('<').next().unwrap_or("").to_string();
+            (href, text)
+        })
+        .collect()
+}
+
+#[test]
+fn a_count_opens_exactly_the_snaps_it_counts() {
+    let base = demo_server();
+    // (end of game: few enough snaps per passer that the play page shows them all)
+    let page = get(&format!("{base}/explore?preset=end-of-game&min=1")).body;
+    let all = links(&page);
+    // the first passer with interceptions: follow his count
+    let (href, text) = all.iter().find(|(h, t)| h.ends_with("metric=int") && t != "0").expect("an interception count").clone();
+    assert!(href.contains("result=interception"), "{href}");
+    let n: u64 = text.parse().expect("a count");
+    let list = get(&format!("{base}/api{href}")).json();
+    assert_eq!(list["count"].as_u64(), Some(n), "{href}");
+    let snaps = list["snaps"].as_array().expect("snaps");
+    assert!(snaps.iter().all(|s| s["result"].as_str().is_some_and(|r| r.starts_with("intercepted"))));
+    let shown = get(&format!("{base}{href}")).body;
+    assert!(shown.contains(&format!("{n} snaps: exactly the ones counted in Interceptions")), "{shown}");
+    // the same passer's interception rate opens his attempts, the n interceptions marked
+    let passer = href.split("passer=").nth(1).and_then(|p| p.split('&').next()).expect("passer").to_string();
+    let (rate, _) = all.iter().find(|(h, _)| h.ends_with("metric=int_rate") && h.contains(&format!("passer={passer}&"))).expect("his rate").clone();
+    let list = get(&format!("{base}/api{rate}")).json();
+    assert_eq!(list["counted"].as_u64(), Some(n), "{rate}");
+    assert!(list["count"].as_u64() > Some(n));
+    let shown = get(&format!("{base}{rate}")).body;
+    assert!(shown.contains(&format!("the denominator of Interception %; the {n} it counts are marked")), "{shown}");
+    assert_eq!(shown.matches("● counted").count() as u64, n);
+    // sacks and touchdown passes too
+    for (metric, result) in [("sacks", "sack"), ("td", "touchdown-pass")] {
+        let (href, text) = all.iter().find(|(h, t)| h.ends_with(&format!("metric={metric}")) && t != "0").expect(metric).clone();
+        assert!(href.contains(&format!("result={result}")), "{href}");
+        assert_eq!(get(&format!("{base}/api{href}")).json()["count"].as_u64(), text.parse::<u64>().ok(), "{href}");
+    }
+}
+
+#[test]
+fn words_and_units_a_coach_writes() {
+    let base = demo_server();
+    let count = |q: &str| get(&format!("{base}/api/splits?{q}")).json()["league_dropbacks"].as_u64().unwrap_or_else(|| panic!("{q}"));
+    assert_eq!(count("quarter=4&half-left=..2:00"), count("quarter=4&half-left=..120"));
+    assert_eq!(count("ball-on=%2B20..%2B1"), count("ball-on=80..99"));
+    // a `+` typed into the address bar arrives as a space and still means the opponent's side
+    assert_eq!(count("ball-on=+20.."), count("ball-on=80.."));
+    assert_eq!(count("win-prob=20..80%25"), count("win-prob=0.2..0.8"));
+    assert_eq!(count("preset=end-of-game&margin=any"), count("quarter=4,ot&game-left=..7:30"));
+    assert!(count("preset=end-of-game&result=interception") > 0);
+}
+
+#[test]
+fn the_season_follows_a_passer_link_and_the_passer_page_says_which() {
+    let base = demo_server();
+    let season = get(&format!("{base}/api/summary")).json()["seasons"].as_array().and_then(|s| s.last().cloned()).expect("a season").to_string();
+    let page = get(&format!("{base}/explore?preset=end-of-game&season={season}")).body;
+    let (href, name) = links(&page).into_iter().find(|(h, _)| h.starts_with("/passer?")).expect("a passer link");
+    assert!(href.ends_with(&format!("&season={season}")), "{href}");
+    let profile = get(&format!("{base}{href}")).body;
+    assert!(profile.contains(&format!("Seasons {season}</p>")), "season not shown");
+    assert!(profile.contains(&format!("name=\"season\" value=\"{season}\"")), "season box");
+    // a lower-case name opens the same page
+    let lower = get(&format!("{base}/passer?passer={}&season={season}", enc(&name.to_lowercase())));
+    assert_eq!(lower.status, 200);
+    assert!(lower.body.contains(&format!("<h1>{name}")));
+    let all = get(&format!("{base}/passer?passer={}", enc(&name))).body;
+    assert!(all.contains("All seasons ("), "all seasons said");
+    // a season the file lacks is named as such, with what it covers
+    let r = get(&format!("{base}/api/splits?preset=end-of-game&season=1999"));
+    assert_eq!(r.status, 400);
+    let reason = r.json()["reason"].as_str().unwrap_or("").to_string();
+    assert!(reason.starts_with("not in the file; the file covers ") && reason.ends_with(&season), "{reason}");
+    assert_eq!(get(&format!("{base}/explore?preset=end-of-game&season=1999")).status, 400);
 }

@@ -153,7 +153,7 @@ fn provenance() -> Provenance {
 }
 
 fn build(p: &Plays, v: &SnapValues, passer: &str) -> ReportData {
-    ReportData::from_parts(p, v, provenance(), &Preset::LateClose.situation(8), passer, splits::DEFAULT_MIN_DROPBACKS).expect("report")
+    ReportData::from_parts(p, v, provenance(), &Preset::EndOfGame.situation(8), passer, splits::DEFAULT_MIN_DROPBACKS).expect("report")
 }
 
 /// A fresh scratch folder for this test process.
@@ -231,7 +231,7 @@ fn numbers_are_the_split_engines() {
     let d = build(&p, &v, PASSERS[2]);
     // Current season by default.
     assert_eq!(d.seasons, vec![2025]);
-    let s = report::report_situation(&p, &Preset::LateClose.situation(8));
+    let s = report::report_situation(&p, &Preset::EndOfGame.situation(8));
     let t = splits::split_table_for(&p, &v, &s, splits::DEFAULT_MIN_DROPBACKS, Some(PASSERS[2]));
     let row = t.row(PASSERS[2]).expect("row");
     assert_eq!(d.situation, t.situation);
@@ -269,7 +269,7 @@ fn numbers_are_the_split_engines() {
 fn unknown_passer_and_empty_situation_are_errors() {
     let (p, epa, wp, wpa, cp) = league(None);
     let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp };
-    let s = Preset::LateClose.situation(8);
+    let s = Preset::EndOfGame.situation(8);
     let e = ReportData::from_parts(&p, &v, provenance(), &s, "Nobody Here", 20).unwrap_err();
     assert!(matches!(e, ReportError::UnknownPasser(_)));
     assert!(e.to_string().contains("Nobody Here"));
@@ -294,7 +294,7 @@ fn pdf_is_one_page_with_the_numbers_in_its_text() {
         let text = tool("pdftotext", &["-layout", &path, "-"]);
         assert!(text.contains(PASSERS[3]), "{text}");
         assert!(text.contains(&d.team));
-        assert!(text.contains("Late & close (one score = 8); seasons 2025"), "{text}");
+        assert!(text.contains("End of game, one score (one score = 8); seasons 2025"), "{text}");
         for m in &d.metrics {
             assert!(text.contains(m.label), "{}", m.label);
             for s in [&m.value, &m.estimate, &m.interval, &m.league, &m.percentile, &m.signal] {
@@ -341,7 +341,7 @@ fn html_has_the_same_numbers_and_no_inline_code() {
     assert!(html.contains("paper-letter"));
     assert!(report::html(&d, Paper::A4).contains("paper-a4"));
     assert!(html.contains(PASSERS[0]));
-    assert!(html.contains("Late &amp; close (one score = 8); seasons 2025") || html.contains("Late &#38; close (one score = 8); seasons 2025"), "situation missing");
+    assert!(html.contains("End of game, one score (one score = 8); seasons 2025") || html.contains("End of game, one score (one score = 8); seasons 2025"), "situation missing");
     for m in &d.metrics {
         for s in [&m.value, &m.estimate, &m.league, &m.percentile] {
             assert!(html.contains(&format!(">{s}<")), "{} {s}", m.key);
@@ -367,13 +367,13 @@ fn html_has_the_same_numbers_and_no_inline_code() {
 
 mod common;
 
-/// The passer with the most late & close dropbacks in the demo league's
+/// The passer with the most end-of-game dropbacks in the demo league's
 /// current season, and his report.
 fn demo_report(league: &lategame::league::League) -> ReportData {
-    let s = report::report_situation(league.plays(), &Preset::LateClose.situation(8));
+    let s = report::report_situation(league.plays(), &Preset::EndOfGame.situation(8));
     let t = splits::split_table(league.plays(), &league.values(), &s, splits::DEFAULT_MIN_DROPBACKS);
     let passer = t.rows.first().expect("a passer").passer.clone();
-    ReportData::build(league, &Preset::LateClose.situation(8), &passer, splits::DEFAULT_MIN_DROPBACKS).expect("report")
+    ReportData::build(league, &Preset::EndOfGame.situation(8), &passer, splits::DEFAULT_MIN_DROPBACKS).expect("report")
 }
 
 #[test]
@@ -412,7 +412,7 @@ fn demo_pdf_and_html_carry_the_numbers() {
     let d = demo_report(&league);
     let dir = scratch();
     for paper in [Paper::Letter, Paper::A4] {
-        let path = write_pdf(&dir, &format!("demo-{}.pdf", paper.key()), &report::pdf(&league, &Preset::LateClose.situation(8), &d.passer, paper).unwrap());
+        let path = write_pdf(&dir, &format!("demo-{}.pdf", paper.key()), &report::pdf(&league, &Preset::EndOfGame.situation(8), &d.passer, paper).unwrap());
         let info = tool("pdfinfo", &[&path]);
         assert!(info.contains("Pages:           1"), "{info}");
         let text = tool("pdftotext", &["-layout", &path, "-"]);

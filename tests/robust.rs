@@ -23,11 +23,12 @@ impl Gen {
 }
 
 const KEYS: &[&str] = &[
-    "preset", "os", "per", "hs", "gs", "mg", "dn", "tg", "yl", "wp", "to", "dto", "sn", "wk", "site", "tm", "opp", "passer", "min", "sort", "dir", "by",
+    "preset", "one-score", "quarter", "half-left", "game-left", "margin", "down", "to-go", "ball-on", "win-prob", "timeouts", "defense-timeouts", "season",
+    "week", "site", "team", "opponent", "passer", "result", "min", "sort", "dir", "by",
     "view", "metric", "game", "trend", "paper", "token", "x", "",
 ];
 const VALUES: &[&str] = &[
-    "", "0", "1", "3", "-8..8", "9..3", "..", "5..", "..-1", "0.5", "0.2..0.8", "abc", "late-close", "two-minute", "all", "nope", "ot", "4,ot", "1,2,3,4",
+    "", "0", "1", "3", "-8..8", "9..3", "..", "5..", "..-1", "0.5", "0.2..0.8", "abc", "end-of-game", "two-minute-drill", "every-snap", "nope", "any", "2:00", "..7:30", "+20..", "-35..+35", "20..80%", "interception,sack", "first-down", "ot", "4,ot", "1,2,3,4",
     "3,4", "2020", "2020..2021", "99999999999999999999", "-1", "1e308", "NaN", "inf", "%00", "%ff%fe", "<script>", "'\"", "epa", "rating", "passer", "asc",
     "desc", "raw", "est", "projector", "laptop", "home", "away", "letter", "a4", "%2e%2e%2f", "1..1..1", ",,,", "7", "8", "100000", "100001",
 ];

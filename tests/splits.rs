@@ -1,4 +1,4 @@
-//! The split engine on the simulated league: shrunk late-and-close rates
+//! The split engine on the simulated league: shrunk end-of-game rates
 //! beat raw rates against the simulator's truth, filters never leak snaps
 //! outside their window, and the engine's totals agree with a plain count.
 
@@ -28,7 +28,7 @@ fn shrunk_late_and_close_rates_beat_raw_rates_against_the_truth() {
     let (epa, wp, wpa, cp) = zeros(p.len());
     let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp };
     let min = 10;
-    let t = splits::split_table(&p, &v, &Preset::LateClose.situation(8), min);
+    let t = splits::split_table(&p, &v, &Preset::EndOfGame.situation(8), min);
     for (key, pick) in [
         ("comp_pct", (|r: &lategame::sim::TruthRow| r.late_close_complete) as fn(&lategame::sim::TruthRow) -> Option<f64>),
         ("int_rate", |r| r.late_close_interception),
@@ -55,13 +55,13 @@ fn filters_never_return_a_snap_outside_their_window() {
     let (p, _) = league();
     let (epa, wp, wpa, cp) = zeros(p.len());
     let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp };
-    let lc = Preset::LateClose.situation(7);
+    let lc = Preset::EndOfGame.situation(7);
     for s in splits::play_list(&p, &v, &lc, None, None) {
         let i = s.index;
         assert!(p.margin[i].abs() <= 7);
         assert!((p.period[i] == 4 && p.clock[i] <= 450) || p.period[i] >= 5);
     }
-    let q: Vec<(String, String)> = [("preset", "two-minute"), ("dn", "3,4"), ("yl", "50..79"), ("sn", "2021")].iter().map(|(a, b)| (a.to_string(), b.to_string())).collect();
+    let q: Vec<(String, String)> = [("preset", "two-minute-drill"), ("down", "3,4"), ("ball-on", "50..+21"), ("season", "2021")].iter().map(|(a, b)| (a.to_string(), b.to_string())).collect();
     let s = Situation::from_query(&q).unwrap();
     let list = splits::play_list(&p, &v, &s, None, None);
     assert!(!list.is_empty());
@@ -78,7 +78,7 @@ fn totals_agree_with_a_plain_count() {
     let (p, _) = league();
     let (epa, wp, wpa, cp) = zeros(p.len());
     let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp };
-    let t = splits::split_table(&p, &v, &Preset::AllSnaps.situation(8), 1);
+    let t = splits::split_table(&p, &v, &Preset::EverySnap.situation(8), 1);
     let db = metric_index("dropbacks").unwrap();
     let att = metric_index("attempts").unwrap();
     let total: f64 = t.rows.iter().map(|r| r.cells[db].value.unwrap()).sum();
@@ -88,7 +88,7 @@ fn totals_agree_with_a_plain_count() {
     assert_eq!(t.league[att], Some(passes as f64));
     // a passer filter keeps the league baseline of everyone
     let name = t.rows[0].passer.clone();
-    let one = splits::split_table(&p, &v, &Situation { passer: Some(name.clone()), ..Preset::AllSnaps.situation(8) }, 1);
+    let one = splits::split_table(&p, &v, &Situation { passer: Some(name.clone()), ..Preset::EverySnap.situation(8) }, 1);
     assert_eq!(one.rows.len(), 1);
     assert_eq!(one.league, t.league);
     assert_eq!(one.rows[0].cells[db].value, t.rows[0].cells[db].value);

@@ -34,11 +34,7 @@ pub struct Snap {
 
 /// Own 35 → "-35", opponent 20 → "+20", midfield → "50".
 pub fn coach_spot(ball_on: i32) -> String {
-    match ball_on {
-        50 => "50".to_string(),
-        b if b < 50 => format!("-{b}"),
-        b => format!("+{}", 100 - b),
-    }
+    crate::situation::values::show_yard_line(ball_on as f64)
 }
 
 /// "3rd & 7", "1st & goal"; empty on kickoffs and tries.

@@ -22,8 +22,8 @@ fn not_found(what: &str) -> Response {
     (StatusCode::NOT_FOUND, Json(json!({ "error": what }))).into_response()
 }
 
-fn parse(q: &Option<String>) -> Result<Params, Response> {
-    Params::parse(q.as_deref()).map_err(|e| bad_request(&e))
+fn parse(st: &Shared, q: &Option<String>) -> Result<Params, Response> {
+    Params::parse_in(q.as_deref(), st.league().plays()).map_err(|e| bad_request(&e))
 }
 
 pub async fn summary(State(st): State<Shared>) -> Response {
@@ -54,14 +54,14 @@ pub fn split_for(st: &Shared, params: &Params, focus: Option<&str>) -> splits::S
 }
 
 pub async fn splits(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
-    match parse(&q) {
+    match parse(&st, &q) {
         Ok(params) => Json(split_for(&st, &params, None)).into_response(),
         Err(r) => r,
     }
 }
 
 pub async fn splits_csv(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
-    match parse(&q) {
+    match parse(&st, &q) {
         Ok(params) => (
             [(header::CONTENT_TYPE, "text/csv; charset=utf-8"), (header::CONTENT_DISPOSITION, "attachment; filename=\"splits.csv\"")],
             crate::export::split_csv(&split_for(&st, &params, None)),
@@ -72,7 +72,7 @@ pub async fn splits_csv(State(st): State<Shared>, RawQuery(q): RawQuery) -> Resp
 }
 
 pub async fn profile(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
-    let params = match parse(&q) {
+    let params = match parse(&st, &q) {
         Ok(p) => p,
         Err(r) => return r,
     };
@@ -89,18 +89,33 @@ pub async fn profile(State(st): State<Shared>, RawQuery(q): RawQuery) -> Respons
 }
 
 pub async fn plays(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
-    let params = match parse(&q) {
+    let params = match parse(&st, &q) {
         Ok(p) => p,
         Err(r) => return r,
     };
     let lg = st.league();
     let metric = params.metric.as_deref().and_then(metric_index).map(|j| &METRICS[j]);
     let snaps = splits::play_list(lg.plays(), &lg.values(), &params.situation, params.situation.passer.as_deref(), metric);
-    Json(json!({ "situation": params.situation.describe(), "count": snaps.len(), "snaps": snaps })).into_response()
+    let counted = counted(st.as_ref(), &params, &snaps);
+    let n_counted = counted.as_ref().map(|c| c.iter().filter(|c| **c).count());
+    Json(json!({ "situation": params.situation.describe(), "count": snaps.len(), "counted": n_counted, "counted_snaps": counted, "snaps": snaps })).into_response()
+}
+
+/// For a list opened from a rate or a count of events (`metric=`): does the
+/// metric count each snap (the rate's successes, the count's events)? None
+/// for other metrics (totals of yards, averages) and without one.
+pub fn counted(st: &super::AppState, params: &Params, snaps: &[splits::Snap]) -> Option<Vec<bool>> {
+    let m = &METRICS[params.metric.as_deref().and_then(metric_index)?];
+    if m.stat != splits::Stat::Rate && crate::situation::PlayResult::counted_by(m.key).is_none() {
+        return None;
+    }
+    let lg = st.league();
+    let v = lg.values();
+    Some(snaps.iter().map(|s| splits::metrics::value(lg.plays(), &v, m, s.index) > 0.0).collect())
 }
 
 pub async fn game(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
-    let params = match parse(&q) {
+    let params = match parse(&st, &q) {
         Ok(p) => p,
         Err(r) => return r,
     };

@@ -7,7 +7,8 @@ use super::api::split_for;
 use super::query::{self, to_query_string, Params};
 use super::Shared;
 use crate::charts::{self, DotRow, Marker, Series};
-use crate::situation::{Preset, Situation, SituationError, PARAMS};
+use crate::situation::params::Field;
+use crate::situation::{PlayResult, Preset, Situation, SituationError, PARAMS};
 use crate::splits::{self, metric_index, MetricInfo, SortBy, Stat, METRICS};
 use askama::Template;
 use axum::extract::{RawQuery, State};
@@ -26,6 +27,8 @@ pub struct Chrome {
     pub our_team: Option<String>,
     pub our_passer: Option<String>,
     pub our_query: String,
+    /// The preset the menu's links open on.
+    pub default_preset: &'static str,
 }
 
 const TEAM_COOKIE: &str = "lg_team";
@@ -58,6 +61,7 @@ fn chrome(st: &Shared, headers: &HeaderMap, params: Option<&Params>, title: Stri
         our_team,
         our_passer,
         our_query,
+        default_preset: Preset::DEFAULT.key(),
     }
 }
 
@@ -263,6 +267,7 @@ pub struct RowView {
 struct ExplorePage {
     chrome: Chrome,
     presets: Vec<PresetLink>,
+    preset_options: Vec<(&'static str, &'static str, bool)>,
     preset_value: String,
     os_value: String,
     site_value: String,
@@ -282,23 +287,6 @@ struct ExplorePage {
     sort_note: String,
 }
 
-const FORM_FIELDS: &[(&str, &str)] = &[
-    ("per", "Periods"),
-    ("hs", "Secs left in half"),
-    ("gs", "Secs left in regulation"),
-    ("mg", "Margin (offense)"),
-    ("dn", "Downs"),
-    ("tg", "To go"),
-    ("yl", "Ball on (own goal = 0)"),
-    ("wp", "Win prob."),
-    ("to", "Offense timeouts"),
-    ("dto", "Defense timeouts"),
-    ("sn", "Seasons"),
-    ("wk", "Weeks"),
-    ("tm", "Offense team"),
-    ("opp", "Opponent"),
-];
-
 /// The columns shown: all metrics on a laptop, the projector set on a
 /// projector.
 fn shown_metrics(projector: bool) -> Vec<usize> {
@@ -310,20 +298,49 @@ fn shown_metrics(projector: bool) -> Vec<usize> {
         .collect()
 }
 
-fn placeholder(s: &Situation, key: &str) -> String {
-    s.to_query_full().into_iter().find(|(k, _)| k == key).map(|(_, v)| v).unwrap_or_else(|| "any".into())
+/// A passer page link that keeps the seasons and the view.
+pub fn passer_query(passer: &str, params: &Params) -> String {
+    let mut q = vec![("passer".to_string(), passer.to_string())];
+    if let Some(s) = params.situation.show(Field::Seasons) {
+        q.push(("season".into(), s));
+    }
+    if params.projector {
+        q.push(("view".into(), "projector".into()));
+    }
+    to_query_string(&q)
+}
+
+/// Does the query ask for a situation (a preset or any filter), even with
+/// empty boxes? A bare page opens on the default preset.
+pub fn asks_situation(raw: &[(String, String)]) -> bool {
+    raw.iter().any(|(k, _)| crate::situation::params::spec(k).is_some_and(|s| s.field != Field::Page))
+}
+
+/// The link behind one number: a count opens exactly the snaps it counts
+/// (`result=`), anything else its denominator (`metric=`), where the play
+/// list marks the counted snaps of a rate.
+pub fn number_query(situation: &Situation, passer: &str, metric: &str) -> Vec<(String, String)> {
+    let mut s = Situation { passer: Some(passer.to_string()), ..situation.clone() };
+    if let Some(res) = PlayResult::counted_by(metric) {
+        if s.results.as_ref().is_none_or(|rs| rs.contains(&res)) {
+            s.results = Some(vec![res]);
+        }
+    }
+    let mut q = s.to_query();
+    q.push(("metric".into(), metric.to_string()));
+    q
 }
 
 pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
-    let params = match Params::parse(q.as_deref()) {
+    let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
-        Err(e) => return bad_query(&st, &headers, &e, "/explore?preset=late-close"),
+        Err(e) => return bad_query(&st, &headers, &e, &format!("/explore?preset={}", Preset::DEFAULT.key())),
     };
     let mut params = params;
-    if params.situation.preset.is_none() && !params.raw.iter().any(|(k, _)| PARAMS.iter().any(|(p, _)| p == k)) {
-        // A bare /explore opens on late & close.
-        params.situation = Preset::LateClose.situation(params.situation.one_score);
-        params.raw.push(("preset".into(), "late-close".into()));
+    if !asks_situation(&params.raw) {
+        // A bare /explore opens on the default preset.
+        params.situation = Preset::DEFAULT.situation(params.situation.one_score);
+        params.raw.push(("preset".into(), Preset::DEFAULT.key().into()));
     }
     let ch = chrome(&st, &headers, Some(&params), "Situation explorer".into(), "explore", "/explore");
     let table = split_for(&st, &params, ch.our_passer.as_deref());
@@ -332,28 +349,25 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     let presets = Preset::ALL
         .iter()
         .map(|p| {
-            let mut q = vec![("preset".to_string(), p.key().to_string())];
-            if params.situation.one_score != 8 {
-                q.push(("os".into(), params.situation.one_score.to_string()));
-            }
-            if let Some(s) = &params.situation.seasons {
-                q.push(("sn".into(), s.iter().map(|x| x.to_string()).collect::<Vec<_>>().join(",")));
-            }
+            let kept = Situation { seasons: params.situation.seasons.clone(), ..p.situation(params.situation.one_score) };
+            let mut q = kept.to_query();
             if params.projector {
                 q.push(("view".into(), "projector".into()));
             }
             PresetLink { label: p.label(), href: format!("/explore{}", to_query_string(&q)), active: current_preset == Some(*p) }
         })
         .collect();
-    let raw_get = |k: &str| params.raw.iter().rev().find(|(p, _)| p == k).map(|(_, v)| v.clone()).unwrap_or_default();
-    let fields = FORM_FIELDS
+    let own_get = |k: &str| sq.iter().find(|(p, _)| p == k).map(|(_, v)| v.clone()).unwrap_or_default();
+    let base = params.situation.base();
+    let fields = PARAMS
         .iter()
-        .map(|(k, label)| FormField {
-            key: k,
-            label,
-            value: raw_get(k),
-            placeholder: placeholder(&params.situation, k),
-            help: PARAMS.iter().find(|(p, _)| p == k).map(|(_, h)| *h).unwrap_or(""),
+        .filter(|spec| spec.form)
+        .map(|spec| FormField {
+            key: spec.key,
+            label: spec.label,
+            value: own_get(spec.key),
+            placeholder: base.show(spec.field).unwrap_or_else(|| "any".into()),
+            help: spec.help,
         })
         .collect();
     let shown = shown_metrics(params.projector);
@@ -383,15 +397,6 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     }
     let league = shown.iter().map(|&j| fmt(table.league[j], METRICS[j].decimals)).collect();
     let (our_team, our_passer) = (ch.our_team.clone(), ch.our_passer.clone());
-    let with_passer = |passer: &str, metric: Option<&str>| {
-        let mut q = sq.clone();
-        q.retain(|(k, _)| k != "passer");
-        q.push(("passer".into(), passer.to_string()));
-        if let Some(m) = metric {
-            q.push(("metric".into(), m.to_string()));
-        }
-        to_query_string(&q)
-    };
     let rows = table
         .rows
         .iter()
@@ -400,7 +405,7 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
             passer: r.passer.clone(),
             team: r.team.clone(),
             ours: our_passer.as_deref() == Some(r.passer.as_str()) || (our_passer.is_none() && our_team.as_deref() == Some(r.team.as_str())),
-            profile_href: format!("/passer{}", to_query_string(&[("passer".to_string(), r.passer.clone())])),
+            profile_href: format!("/passer{}", passer_query(&r.passer, &params)),
             cells: shown
                 .iter()
                 .map(|&j| {
@@ -423,7 +428,7 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                         sub,
                         signal,
                         sort: sort_value(sortv),
-                        href: format!("/plays{}", with_passer(&r.passer, Some(m.key))),
+                        href: format!("/plays{}", to_query_string(&number_query(&params.situation, &r.passer, m.key))),
                         title: format!("{} {}; pct {}", c.n, m.unit.label(), fmt(c.percentile, 0)),
                     }
                 })
@@ -441,9 +446,10 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     };
     let page = ExplorePage {
         presets,
+        preset_options: Preset::ALL.iter().map(|p| (p.key(), p.label(), current_preset == Some(*p))).collect(),
         preset_value: current_preset.map(|p| p.key().to_string()).unwrap_or_default(),
         os_value: params.situation.one_score.to_string(),
-        site_value: raw_get("site"),
+        site_value: own_get("site"),
         fields,
         min: params.min_dropbacks,
         by_raw: params.sort_by == SortBy::Value,
@@ -495,6 +501,9 @@ struct ProfilePage {
     passer: String,
     team: String,
     passers: Vec<(String, bool)>,
+    /// Which seasons the page shows, in words, and the season box's value.
+    seasons_note: String,
+    season_value: String,
     charts: Vec<(String, String)>,
     trend_chart: String,
     trend_label: String,
@@ -510,14 +519,14 @@ struct ProfilePage {
 
 /// The situation of the season trend (default late & close).
 pub fn trend_situation(params: &Params) -> Situation {
-    let preset = params.trend.as_deref().and_then(Preset::parse).unwrap_or(Preset::LateClose);
+    let preset = params.trend.as_deref().and_then(Preset::parse).unwrap_or(Preset::DEFAULT);
     preset.situation(params.situation.one_score)
 }
 
 const PROFILE_KEYS: &[&str] = &["epa", "success", "cpoe", "rating", "anya", "sack_rate", "int_rate", "wpa"];
 
 pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
-    let params = match Params::parse(q.as_deref()) {
+    let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
         Err(e) => return bad_query(&st, &headers, &e, "/passer"),
     };
@@ -631,6 +640,11 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         passer: name.clone(),
         team: prof.team.clone().unwrap_or_default(),
         passers: all,
+        seasons_note: match &params.situation.seasons {
+            Some(s) => format!("Seasons {}", seasons_text(s)),
+            None => format!("All seasons ({})", seasons_text(&p.seasons())),
+        },
+        season_value: params.situation.show(Field::Seasons).unwrap_or_default(),
         charts,
         trend_chart,
         trend_label: prof.trend_situation.clone(),
@@ -640,7 +654,7 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         decision_heads: heads(&decision_keys),
         decision_rows: build_rows(&decision_keys),
         api_href: format!("/api/profile{}", params.with(&[("passer", Some(&name)), ("view", None)])),
-        report_href: format!("/report{}", to_query_string(&[("preset".into(), "late-close".into()), ("passer".into(), name.clone())])),
+        report_href: format!("/report{}", to_query_string(&Situation { passer: Some(name.clone()), seasons: params.situation.seasons.clone(), ..Preset::DEFAULT.situation(params.situation.one_score) }.to_query())),
         games,
         chrome: ch,
     };
@@ -665,6 +679,8 @@ pub struct SnapView {
     pub wpa: String,
     pub epa_sort: String,
     pub wpa_sort: String,
+    /// Counted by the number the list was opened from (rates mark these).
+    pub counted: bool,
 }
 
 #[derive(Template)]
@@ -674,6 +690,9 @@ struct PlaysPage {
     description: String,
     count: usize,
     shown: usize,
+    /// What the list is, against the number it came from.
+    note: String,
+    marking: bool,
     snaps: Vec<SnapView>,
     csv_href: String,
     api_href: String,
@@ -702,6 +721,7 @@ fn snap_view(s: &splits::Snap) -> SnapView {
         wpa: fmt(Some(s.wpa), 3),
         epa_sort: sort_value(Some(s.epa)),
         wpa_sort: sort_value(Some(s.wpa)),
+        counted: false,
     }
 }
 
@@ -711,32 +731,62 @@ fn play_list_for(st: &Shared, params: &Params) -> Vec<splits::Snap> {
     splits::play_list(lg.plays(), &lg.values(), &params.situation, params.situation.passer.as_deref(), metric)
 }
 
+/// What a play list opened from a number shows: exactly the counted snaps,
+/// or the denominator with the counted ones marked, or every snap of a mean.
+struct ListNote {
+    text: String,
+    /// Mark the snaps the metric counts.
+    marking: bool,
+}
+
+fn list_note(params: &Params, snaps: &[splits::Snap], counted: &[bool]) -> ListNote {
+    let Some(m) = params.metric.as_deref().and_then(metric_index).map(|j| &METRICS[j]) else {
+        return ListNote { text: format!("{} dropbacks", snaps.len()), marking: false };
+    };
+    let unit = m.unit.label();
+    let exact = PlayResult::counted_by(m.key).is_some_and(|r| params.situation.results.as_deref() == Some(&[r][..]));
+    let n_counted = counted.iter().filter(|c| **c).count();
+    match m.stat {
+        Stat::Count if exact => ListNote { text: format!("{} snaps: exactly the ones counted in {}", snaps.len(), m.label), marking: false },
+        Stat::Count if PlayResult::counted_by(m.key).is_some() => ListNote {
+            text: format!("{} {unit}; the {n_counted} counted in {} are marked ● (sort on Counted to list them first)", snaps.len(), m.label),
+            marking: true,
+        },
+        Stat::Rate => ListNote {
+            text: format!("{} {unit}: the denominator of {}; the {n_counted} it counts are marked ● (sort on Counted to list them first)", snaps.len(), m.label),
+            marking: true,
+        },
+        Stat::Count => ListNote { text: format!("{} {unit}: every one adds to {}", snaps.len(), m.label), marking: false },
+        Stat::Mean => ListNote { text: format!("{} {unit}: {} is the average over these", snaps.len(), m.label), marking: false },
+    }
+}
+
 pub async fn plays(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
-    let params = match Params::parse(q.as_deref()) {
+    let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
         Err(e) => return bad_query(&st, &headers, &e, "/explore"),
     };
     let snaps = play_list_for(&st, &params);
-    let mut description = params.situation.describe();
-    if let Some(m) = params.metric.as_deref().and_then(metric_index) {
-        description.push_str(&format!(" — the {} behind {}", METRICS[m].unit.label(), METRICS[m].label));
-    }
+    let counted = super::api::counted(st.as_ref(), &params, &snaps).unwrap_or_else(|| vec![false; snaps.len()]);
+    let note = list_note(&params, &snaps, &counted);
     let page = PlaysPage {
         chrome: chrome(&st, &headers, Some(&params), "Snaps behind the number".into(), "plays", "/plays"),
-        description,
+        description: params.situation.describe(),
         count: snaps.len(),
         shown: snaps.len().min(PLAY_PAGE_LIMIT),
-        snaps: snaps.iter().take(PLAY_PAGE_LIMIT).map(snap_view).collect(),
+        note: note.text,
+        marking: note.marking,
+        snaps: snaps.iter().zip(&counted).take(PLAY_PAGE_LIMIT).map(|(s, c)| SnapView { counted: *c, ..snap_view(s) }).collect(),
         csv_href: format!("/plays.csv{}", params.with(&[("view", None)])),
         api_href: format!("/api/plays{}", params.with(&[("view", None)])),
-        back_href: format!("/explore{}", to_query_string(&Situation { passer: None, ..params.situation.clone() }.to_query())),
+        back_href: format!("/explore{}", to_query_string(&Situation { passer: None, results: None, ..params.situation.clone() }.to_query())),
     };
     html(&page)
 }
 
 /// The cut-up export for the video staff.
 pub async fn plays_csv(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
-    let params = match Params::parse(q.as_deref()) {
+    let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
         Err(e) => return bad_query(&st, &headers, &e, "/explore"),
     };
@@ -762,7 +812,7 @@ struct GamePage {
 }
 
 pub async fn game(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
-    let params = match Params::parse(q.as_deref()) {
+    let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
         Err(e) => return bad_query(&st, &headers, &e, "/"),
     };
@@ -871,14 +921,14 @@ pub async fn calibration(State(st): State<Shared>, headers: HeaderMap, RawQuery(
 /// The report's data for a request: the situation, our passer (or
 /// `passer=`), the paper size.
 fn report_data(st: &Shared, headers: &HeaderMap, q: Option<&str>) -> Result<(crate::report::ReportData, crate::report::Paper), Response> {
-    let params = Params::parse(q).map_err(|e| bad_query(st, headers, &e, "/report?preset=late-close"))?;
+    let params = Params::parse_in(q, st.league().plays()).map_err(|e| bad_query(st, headers, &e, &format!("/report?preset={}", Preset::DEFAULT.key())))?;
     let (_, our_passer) = ours(st, headers);
     let Some(passer) = params.situation.passer.clone().or(our_passer) else {
         return Err(error_page(st, headers, StatusCode::BAD_REQUEST, "Which passer?", "passer=: name the report's passer, or choose our passer on the home page.".into(), "/"));
     };
     let mut situation = params.situation.clone();
-    if situation.preset.is_none() && !params.raw.iter().any(|(k, _)| PARAMS.iter().any(|(p, _)| p == k && *p != "passer")) {
-        situation = Situation { passer: situation.passer.clone(), ..Preset::LateClose.situation(situation.one_score) };
+    if !asks_situation(&params.raw.iter().filter(|(k, _)| k != "passer").cloned().collect::<Vec<_>>()) {
+        situation = Situation { passer: situation.passer.clone(), ..Preset::DEFAULT.situation(situation.one_score) };
     }
     let paper = params.paper.as_deref().and_then(crate::report::Paper::parse).unwrap_or(crate::report::Paper::Letter);
     let lg = st.league();

@@ -2,23 +2,17 @@
 //! (minimum dropbacks, sort, projector view, subject passer, metric, game),
 //! each checked with a reason a coach can read.
 
+use crate::plays::Plays;
+use crate::situation::params::{spec_of, Field};
+use crate::situation::values::nearest;
 use crate::situation::{Situation, SituationError};
 use crate::splits::{metric_index, SortBy, DEFAULT_MIN_DROPBACKS};
 use axum::http::HeaderMap;
 
-/// Decoded `key=value` pairs (`+` and percent escapes undone).
+/// Decoded `key=value` pairs (`+` and percent escapes undone), read the
+/// same way as the CLI's `--where`.
 pub fn pairs(query: Option<&str>) -> Vec<(String, String)> {
-    let Some(q) = query else { return Vec::new() };
-    serde_urlencoded::from_str::<Vec<(String, String)>>(q).unwrap_or_else(|_| {
-        // Undecodable input: keep what splits cleanly, raw.
-        q.split('&')
-            .filter(|kv| !kv.is_empty())
-            .map(|kv| {
-                let (k, v) = kv.split_once('=').unwrap_or((kv, ""));
-                (k.to_string(), v.to_string())
-            })
-            .collect()
-    })
+    query.map(crate::situation::decode_pairs).unwrap_or_default()
 }
 
 /// `?a=1&b=2` (empty when there are no pairs), percent-encoded.
@@ -112,7 +106,7 @@ impl Params {
             None => None,
             Some(v) if v.is_empty() => None,
             Some(v) if crate::situation::Preset::parse(&v).is_some() => Some(v),
-            Some(v) => return Err(bad("trend", &v, "unknown preset")),
+            Some(v) => return Err(bad("trend", &v, &format!("unknown preset; expected one of {}", crate::situation::Preset::keys()))),
         };
         let paper = match get("paper").as_deref() {
             None | Some("") => None,
@@ -134,6 +128,13 @@ impl Params {
         })
     }
 
+    /// Parse, then spell team codes and passer names as the league does.
+    pub fn parse_in(query: Option<&str>, plays: &Plays) -> Result<Params, SituationError> {
+        let mut p = Params::parse(query)?;
+        resolve_names(plays, &mut p.situation)?;
+        Ok(p)
+    }
+
     /// The situation's own query (no page parameters).
     pub fn situation_query(&self) -> Vec<(String, String)> {
         self.situation.to_query()
@@ -149,4 +150,49 @@ impl Params {
         }
         to_query_string(&q)
     }
+}
+
+/// Team codes and passer names as the league spells them, matched without
+/// regard to case; a name the league lacks is refused with the nearest one,
+/// and seasons the file lacks with the seasons it covers.
+pub fn resolve_names(plays: &Plays, s: &mut Situation) -> Result<(), SituationError> {
+    resolve(Field::Team, &mut s.offense, &plays.teams, "team")?;
+    resolve(Field::Opponent, &mut s.opponent, &plays.teams, "team")?;
+    resolve(Field::Passer, &mut s.passer, &plays.passers, "passer")?;
+    check_seasons(plays, s)
+}
+
+/// A season list with no season of the file in it is refused with the
+/// seasons the file covers (an empty table would say "lower the minimum").
+fn check_seasons(plays: &Plays, s: &Situation) -> Result<(), SituationError> {
+    let Some(asked) = &s.seasons else { return Ok(()) };
+    let have = plays.seasons();
+    if have.is_empty() || asked.iter().any(|x| have.contains(x)) {
+        return Ok(());
+    }
+    let covers = match (have.first(), have.last()) {
+        (Some(a), Some(b)) if a != b && have.len() == (b - a + 1) as usize => format!("{a}-{b}"),
+        _ => have.iter().map(|x| x.to_string()).collect::<Vec<_>>().join(", "),
+    };
+    let key = spec_of(Field::Seasons).map(|s| s.key).unwrap_or("season");
+    let value = s.show(Field::Seasons).unwrap_or_default();
+    Err(bad(key, &value, &format!("not in the file; the file covers {covers}")))
+}
+
+fn resolve(field: Field, name: &mut Option<String>, known: &[String], what: &str) -> Result<(), SituationError> {
+    let Some(n) = name.as_deref() else { return Ok(()) };
+    if known.iter().any(|k| k == n) {
+        return Ok(());
+    }
+    let lower = n.to_lowercase();
+    if let Some(k) = known.iter().find(|k| k.to_lowercase() == lower) {
+        *name = Some(k.clone());
+        return Ok(());
+    }
+    let key = spec_of(field).map(|s| s.key).unwrap_or(what);
+    let reason = match nearest(n, known.iter().map(String::as_str)) {
+        Some(k) => format!("no {what} '{n}' in this league; did you mean '{k}'?"),
+        None => format!("no {what} '{n}' in this league (the home page lists them)"),
+    };
+    Err(bad(key, n, &reason))
 }

@@ -1,7 +1,8 @@
 // Real-browser check of the situation explorer, driven by tests/browser.rs:
 // load the explorer in headless chromium, click a column heading, check the
 // rows are re-sorted in place with aria-sort updated and no console errors,
-// and save screenshots of each page in laptop and projector sizes.
+// submit the filter form with a preset and a season (the preset's rows come
+// back), and save screenshots of each page in laptop and projector sizes.
 // usage: node explore.mjs BASE_URL SHOT_DIR PASSER
 import { chromium } from "playwright-core";
 
@@ -19,7 +20,7 @@ try {
   const page = await browser.newPage({ viewport: { width: 1366, height: 768 } });
   page.on("console", (m) => { if (m.type() === "error") errors.push(m.text()); });
   page.on("pageerror", (e) => errors.push(String(e)));
-  await page.goto(base + "/explore?preset=all", { waitUntil: "load" });
+  await page.goto(base + "/explore?preset=every-snap", { waitUntil: "load" });
   const header = page.locator('#splits thead th[data-key="epa"]');
   await header.click();
   const state = await page.evaluate(() => {
@@ -43,14 +44,40 @@ try {
   const aria3 = await page.locator('#splits thead th[data-key="rating"]').getAttribute("aria-sort");
   if (aria3 !== "descending") fail("keyboard sort gave aria-sort " + aria3);
 
+  // The filter form keeps the preset: choose one, type a season, press Show
+  // (the empty boxes are sent too) and get the preset's rows for that season.
+  const summary = await (await page.request.get(base + "/api/summary")).json();
+  const season = String(summary.seasons[summary.seasons.length - 1]);
+  await page.goto(base + "/explore?preset=every-snap", { waitUntil: "load" });
+  await page.selectOption("#f-preset", "end-of-game");
+  await page.fill("#f-season", season);
+  await Promise.all([page.waitForURL(/season=/), page.click(".filter-form button[type=submit]")]);
+  const sent = new URL(page.url()).searchParams;
+  if (sent.get("quarter") !== "" || sent.get("margin") !== "") fail("the form did not send its empty boxes: " + page.url());
+  const api = await (await page.request.get(base + "/api/splits?preset=end-of-game&season=" + season)).json();
+  const want = api.rows.filter((r) => r.qualified || r.passer === passer).map((r) => r.passer + " " + r.dropbacks);
+  const got = await page.evaluate(() => {
+    const th = document.querySelector('#splits thead th[data-key="dropbacks"]');
+    const idx = Array.from(th.parentNode.children).indexOf(th);
+    return {
+      rows: Array.from(document.querySelectorAll("#splits tbody tr")).map((r) => r.children[0].getAttribute("data-sort") + " " + r.children[idx].getAttribute("data-sort")),
+      heading: document.querySelector(".situation h2").textContent,
+      chosen: document.querySelector("#f-preset").value,
+    };
+  });
+  if (got.rows.length === 0 || JSON.stringify(got.rows) !== JSON.stringify(want)) fail("form rows differ from the preset's: " + JSON.stringify(got.rows.slice(0, 3)) + " vs " + JSON.stringify(want.slice(0, 3)) + " (" + got.rows.length + " vs " + want.length + ")");
+  if (!got.heading.startsWith("End of game") || !got.heading.includes("seasons " + season)) fail("heading after the form: " + got.heading);
+  if (got.chosen !== "end-of-game") fail("preset after the form: " + got.chosen);
+  console.log("form with preset end-of-game and season " + season + ": " + got.rows.length + " passers, league " + api.league_dropbacks + " dropbacks");
+
   const enc = encodeURIComponent(passer);
   const pages = [
     ["home", "/"],
-    ["explore", "/explore?preset=late-close"],
+    ["explore", "/explore?preset=end-of-game"],
     ["profile", "/passer?passer=" + enc],
-    ["plays", "/plays?preset=late-close&passer=" + enc],
+    ["plays", "/plays?preset=end-of-game&passer=" + enc],
     ["calibration", "/calibration"],
-    ["report", "/report?preset=late-close&passer=" + enc],
+    ["report", "/report?preset=end-of-game&passer=" + enc],
   ];
   for (const [size, w, h, view] of [["laptop", 1366, 768, ""], ["projector", 1920, 1080, "view=projector"]]) {
     await page.setViewportSize({ width: w, height: h });
