@@ -41,9 +41,6 @@ pub const KEY_MARGINS: [f64; 3] = [3.0, 8.0, 16.0];
 const KILL_FADE: f64 = 120.0;
 /// Length of an overtime period the time term is scaled by (seconds).
 const OT_SECS: f64 = 600.0;
-/// How much more a snap of the late game (final 10:00 of regulation or
-/// overtime) weighs in the full model's fit than any other snap.
-pub const LATE_WEIGHT: f64 = 3.0;
 
 pub const FULL_FEATURES: [&str; 36] = [
     "intercept",
@@ -180,12 +177,6 @@ impl Situation {
             def_timeouts: self.def_timeouts.round() as i32,
         }
     }
-
-    /// In the late game the fit weighs more: the final 10:00 of regulation
-    /// or overtime.
-    pub fn is_late(&self) -> bool {
-        self.overtime || self.secs_game <= LATE_SECS
-    }
 }
 
 /// Fill the features of `kind` for `s` into `out`; `rules` place the
@@ -294,21 +285,13 @@ pub fn fit(
         p: names.len(),
         f: |i: usize, out: &mut [f64]| features(kind, &Situation::of_snap(plays, ep, i), &rules, out),
     };
-    let weights: Option<Vec<f64>> = (kind == WpKind::Full).then(|| {
-        rows.iter()
-            .map(|&i| {
-                if Situation::of_snap(plays, ep, i as usize).is_late() {
-                    LATE_WEIGHT
-                } else {
-                    1.0
-                }
-            })
-            .collect()
-    });
+    // The late game is shaped by interactions, not weights: on the demo
+    // league, weighing the final 10:00 and overtime 3x moved the held-out
+    // late-and-close Brier gain over the baseline from 10.5% to 10.4%.
     let fit = logit::fit_from(
         &design,
         Labels::Binary(&y),
-        weights.as_deref(),
+        None,
         opts,
         init.map(|m| &m.fit),
     )
