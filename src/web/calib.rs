@@ -4,6 +4,7 @@
 
 use crate::models::strata::{Banded, EpGroup, StratumBin, StratumScore};
 use crate::models::{Calibration, FitReport, ModelReport, Plan};
+use crate::playfile::group;
 
 /// One stratum as the page shows it.
 pub struct StratumView {
@@ -61,7 +62,7 @@ pub fn headline(c: &Calibration) -> String {
         pct(h.observed.value),
         pct(h.observed.lo),
         pct(h.observed.hi),
-        h.n
+        group(h.n)
     )
 }
 
@@ -70,7 +71,7 @@ pub fn summary(c: &Calibration) -> String {
     let what = if c.plan == Plan::LastGames { "Held out (one season in the file)" } else { "Held out" };
     format!(
         "{what} {} ({} snaps in {} games): win-probability Brier score {:.4} against {:.4} for a margin-and-time model and {:.4} for a coin flip.",
-        c.holdout, c.test_snaps, c.test_games, c.wp.brier, c.baseline.brier, c.constant.brier
+        c.holdout, group(c.test_snaps), group(c.test_games), c.wp.brier, c.baseline.brier, c.constant.brier
     )
 }
 
@@ -100,8 +101,8 @@ fn stratum_view(s: &StratumScore) -> StratumView {
     } else {
         format!(
             "{} held-out snaps in {} games. Brier score {:.4} (90% band {}) against {:.4} ({}) for margin and time only: {:.1}% lower (band {:.1}% to {:.1}%).",
-            s.wp.n,
-            s.games,
+            group(s.wp.n),
+            group(s.games),
             s.wp_brier.value,
             band(&s.wp_brier, 4),
             s.baseline_brier.value,
@@ -118,7 +119,7 @@ fn stratum_view(s: &StratumScore) -> StratumView {
         .map(|(b, base)| {
             vec![
                 format!("{:.2}–{:.2}", b.lo, b.hi),
-                b.n.to_string(),
+                group(b.n),
                 format!("{:.3}", b.mean_predicted),
                 format!("{:.3}", b.observed.value),
                 band(&b.observed, 3),
@@ -136,7 +137,7 @@ fn ep_group_rows(groups: &[EpGroup]) -> Vec<Vec<String>> {
         .map(|g| {
             vec![
                 g.label.clone(),
-                g.n.to_string(),
+                group(g.n),
                 format!("{:+.2}", g.mean_predicted),
                 format!("{:+.2}", g.mean_actual.value),
                 format!("{:+.2} to {:+.2}", g.mean_actual.lo, g.mean_actual.hi),
@@ -175,7 +176,7 @@ pub fn view(c: &Calibration) -> CalibrationView {
     ];
     CalibrationView {
         headline: headline(c),
-        holdout: format!("Every number below is out of sample: held out {}, {} snaps in {} games.", c.holdout, c.test_snaps, c.test_games),
+        holdout: format!("Every number below is out of sample: held out {}, {} snaps in {} games.", c.holdout, group(c.test_snaps), group(c.test_games)),
         title: "Late and close, held out: predicted vs observed win share (five equal-count bins)".into(),
         bins,
         strata: c.strata.iter().map(stratum_view).collect(),
@@ -187,5 +188,26 @@ pub fn view(c: &Calibration) -> CalibrationView {
             EpTable { title: "By clock and score".into(), rows: ep_group_rows(&c.ep_by_clock) },
         ],
         scores,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::models::{calibrate, testkit};
+
+    #[test]
+    fn the_page_says_what_it_held_out_and_opens_with_a_plain_sentence() {
+        let c = calibrate(&testkit::league(300, 3, 5)).expect("calibrate");
+        let v = view(&c);
+        assert!(v.headline.starts_with("In the last 7:30 of close games") || v.headline.starts_with("No held-out snap"), "{}", v.headline);
+        assert!(v.holdout.contains("each of the 3 seasons in turn"), "{}", v.holdout);
+        assert_eq!(v.strata.len(), 3);
+        assert!(v.strata.iter().all(|s| s.rows.len() == 5));
+        assert_eq!(v.ep_groups.len(), 3);
+        let one = calibrate(&testkit::league(60, 1, 5)).expect("one season");
+        let v = view(&one);
+        assert!(v.holdout.contains("the last 12 of the 60 games") && v.holdout.contains("no season can be held out"), "{}", v.holdout);
+        assert!(!v.holdout.contains("in-sample") && !summary(&one).contains("in-sample"));
     }
 }
