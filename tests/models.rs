@@ -184,6 +184,11 @@ fn pregame_gap(d: &Demo, sigma: f64) -> f64 {
                 line: Some(line),
                 kickoff: true,
                 is_try: false,
+                period: 1,
+                down: 0,
+                ball_on: 35,
+                ot_first: false,
+                ot_both: false,
             };
             side[k] = m.wp.situation(&s);
         }
@@ -263,6 +268,11 @@ fn mid(margin: f64, secs_game: f64, ep: f64) -> Situation {
         line: Some(0.0),
         kickoff: false,
         is_try: false,
+        period: (4 - (secs_game as i32 - 1).max(0) / 900).clamp(1, 4),
+        down: 1,
+        ball_on: 25,
+        ot_first: false,
+        ot_both: false,
     }
 }
 
@@ -315,89 +325,77 @@ fn touchback_kickoffs_move_wp_little() {
     assert!(mean < 0.01, "mean |WPA| on touchback kickoffs {mean:.4}");
 }
 
-/// Held out the most recent season: a Brier score and log loss better than
-/// the margin-and-time baseline and than ½. Its deciles are printed, not
-/// checked: one season is 272 games and its deciles move by ±0.03-0.05 from
-/// season to season, so the ±0.03 decile check runs on the pooled
-/// leave-one-season-out predictions (`leave_one_season_out_is_calibrated`).
+/// Held out (each season in turn by default): a Brier score and log loss
+/// better than the margin-and-time baseline and than ½, in every season.
 #[test]
-fn held_out_season_is_calibrated() {
+fn held_out_seasons_are_calibrated() {
     let Some(d) = demo() else { return };
     let c = &d.scored.calibration;
     eprintln!(
         "held out {}: {} snaps; Brier {:.4} (baseline {:.4}, constant {:.4}); log loss {:.4} (baseline {:.4}, constant {:.4})",
         c.holdout, c.test_snaps, c.wp.brier, c.baseline.brier, c.constant.brier, c.wp.log_loss, c.baseline.log_loss, c.constant.log_loss
     );
-    for (b, base) in c.reliability.iter().zip(&c.baseline_reliability) {
-        eprintln!(
-            "  WP {:.1}-{:.1}: n {:>6}, predicted {:.3}, observed {:.3}   baseline: n {:>6}, predicted {:.3}, observed {:.3}",
-            b.lo, b.hi, b.n, b.mean_predicted, b.observed, base.n, base.mean_predicted, base.observed
-        );
+    assert_eq!(c.plan, models::Plan::LeaveOneSeasonOut, "the demo league has several seasons");
+    assert_eq!(c.test_snaps, d.scored.plays.len());
+    for s in &c.by_season {
+        eprintln!("  season {}: Brier {:.4} (baseline {:.4})", s.season, s.wp.brier, s.baseline.brier);
+        assert!(s.wp.brier < s.baseline.brier, "season {}", s.season);
     }
     for b in &c.ep_bins {
+        eprintln!("  EP {:?}..{:?}: n {:>6}, predicted {:+.2}, actual {:+.2}", b.lo, b.hi, b.n, b.mean_predicted, b.mean_actual);
+    }
+    for g in c.ep_by_down.iter().chain(&c.ep_by_zone).chain(&c.ep_by_clock) {
         eprintln!(
-            "  EP {:?}..{:?}: n {:>6}, predicted {:+.2}, actual {:+.2}",
-            b.lo, b.hi, b.n, b.mean_predicted, b.mean_actual
+            "  EP {:<32} n {:>6}: predicted {:+.2}, actual {:+.2} [{:+.2}, {:+.2}]",
+            g.label, g.n, g.mean_predicted, g.mean_actual.value, g.mean_actual.lo, g.mean_actual.hi
         );
     }
     if let Some(cp) = &c.cp {
-        eprintln!(
-            "  completion: n {}, Brier {:.4}, log loss {:.4}",
-            cp.n, cp.brier, cp.log_loss
-        );
+        eprintln!("  completion: n {}, Brier {:.4}, log loss {:.4}", cp.n, cp.brier, cp.log_loss);
     }
-    assert!(
-        c.holdout_season.is_some(),
-        "the demo league should span several seasons"
-    );
-    assert!(
-        c.wp.brier < c.baseline.brier,
-        "Brier {:.4} does not beat the baseline {:.4}",
-        c.wp.brier,
-        c.baseline.brier
-    );
+    assert!(c.wp.brier < c.baseline.brier);
     assert!(c.wp.brier < c.constant.brier);
     assert!(c.wp.log_loss < c.baseline.log_loss);
-}
-
-/// Leave one season out, for every season: every pooled WP decile with at
-/// least 1,000 snaps within ±0.03 of the observed win share, and the full
-/// model beats the baseline's Brier score in every season.
-#[test]
-fn leave_one_season_out_is_calibrated() {
-    let Some(d) = demo() else { return };
-    let c = models::calibrate_with(
-        &d.scored.plays,
-        &models::CalibOptions {
-            leave_one_season_out: true,
-        },
-    )
-    .expect("calibrate");
-    for s in &c.by_season {
-        eprintln!(
-            "  season {}: Brier {:.4} (baseline {:.4})",
-            s.season, s.wp.brier, s.baseline.brier
-        );
-        assert!(s.wp.brier < s.baseline.brier, "season {}", s.season);
-    }
-    for b in &c.pooled_reliability {
-        eprintln!(
-            "  pooled WP {:.1}-{:.1}: n {:>7}, predicted {:.3}, observed {:.3}",
-            b.lo, b.hi, b.n, b.mean_predicted, b.observed
-        );
-    }
-    assert!(!c.pooled_reliability.is_empty());
-    for b in c.pooled_reliability.iter().filter(|b| b.n >= 1000) {
+    // Every pooled WP decile with at least 1,000 snaps within ±0.03.
+    for b in c.reliability.iter().filter(|b| b.n >= 1000) {
+        eprintln!("  WP {:.1}-{:.1}: n {:>7}, predicted {:.3}, observed {:.3}", b.lo, b.hi, b.n, b.mean_predicted, b.observed);
         assert!(
             (b.mean_predicted - b.observed).abs() <= 0.03,
-            "pooled WP bin {:.1}-{:.1}: predicted {:.3}, observed {:.3} (n {})",
-            b.lo,
-            b.hi,
-            b.mean_predicted,
-            b.observed,
-            b.n
+            "WP bin {:.1}-{:.1}: predicted {:.3}, observed {:.3} (n {})",
+            b.lo, b.hi, b.mean_predicted, b.observed, b.n
         );
     }
+}
+
+/// The late and close stratum (final 450 s of the 4th period or overtime,
+/// within 8), every season held out in turn: each of five equal-count WP
+/// bins within 0.04 of the observed win share (the project's own target).
+/// The target for the Brier score is 12% below the margin-and-time
+/// baseline's; it is NOT met: 10.5% on the bundled file (band 8.8-12.1%), so
+/// this checks 8% to catch regressions and prints the figure.
+#[test]
+fn late_and_close_is_calibrated() {
+    let Some(d) = demo() else { return };
+    let c = &d.scored.calibration;
+    for s in &c.strata {
+        eprintln!(
+            "{}: {} snaps in {} games; Brier {:.4} [{:.4}, {:.4}] vs baseline {:.4} [{:.4}, {:.4}]; gain {:.1}% [{:.1}%, {:.1}%]",
+            s.label, s.wp.n, s.games, s.wp_brier.value, s.wp_brier.lo, s.wp_brier.hi, s.baseline_brier.value,
+            s.baseline_brier.lo, s.baseline_brier.hi, 100.0 * s.brier_gain.value, 100.0 * s.brier_gain.lo, 100.0 * s.brier_gain.hi
+        );
+        for (b, base) in s.bins.iter().zip(&s.baseline_bins) {
+            eprintln!(
+                "  WP {:.3}-{:.3}: n {:>5}, predicted {:.3}, observed {:.3} [{:.3}, {:.3}]   baseline predicted {:.3}, observed {:.3}",
+                b.lo, b.hi, b.n, b.mean_predicted, b.observed.value, b.observed.lo, b.observed.hi, base.mean_predicted, base.observed.value
+            );
+        }
+    }
+    let late = c.strata.iter().find(|s| s.stratum == models::strata::WpStratum::LateClose).expect("late and close");
+    let worst = late.bins.iter().map(|b| (b.mean_predicted - b.observed.value).abs()).fold(0.0, f64::max);
+    let gain = late.brier_gain.value;
+    eprintln!("late and close: worst bin gap {worst:.3}, Brier {:.1}% below the baseline", 100.0 * gain);
+    assert!(worst <= 0.04, "worst late-and-close bin is {worst:.3} from the observed share");
+    assert!(gain >= 0.08, "late-and-close Brier only {:.1}% below the baseline", 100.0 * gain);
 }
 
 /// From the home side, WP before the first snap plus every snap's WPA ends
@@ -461,5 +459,113 @@ fn scored_frame_has_every_column() {
     }
     for c in ["ep_before", "epa", "wp_before", "wpa", "completion_prob"] {
         assert!(df.column(c).is_ok(), "missing {c}");
+    }
+}
+
+/// A touchdown earns 6 + the expected try that follows it, minus EP before:
+/// positive whenever EP before is below that. Over every drive, EPA adds up
+/// to the drive's points, the handoff and the kickoff term (`ep::DriveTerms`).
+#[test]
+fn touchdowns_and_drives_add_up() {
+    let Some(d) = demo() else { return };
+    let p = &d.scored.plays;
+    let s = &d.scored.scores;
+    let t = d.scored.models.ep.try_mean;
+    let (mut tds, mut safeties) = (0, 0);
+    for i in 0..p.len() {
+        if p.points[i].abs() == 6 {
+            tds += 1;
+            let try_follows = i + 1 < p.len() && p.game[i + 1] == p.game[i] && p.kind[i + 1].is_try();
+            let value = 6.0 + if try_follows { t } else { 0.0 };
+            let want = value * p.points[i].signum() as f64 - s.ep[i];
+            assert!((s.epa[i] - want).abs() < 1e-9, "touchdown at snap {i}: EPA {:.3}, want {want:.3}", s.epa[i]);
+            if p.points[i] > 0 && s.ep[i] < value {
+                assert!(s.epa[i] > 0.0, "touchdown at snap {i}: EP {:.2}, EPA {:.2}", s.ep[i], s.epa[i]);
+            }
+            // The mirror: a defensive touchdown is a loss to the offense.
+            if p.points[i] < 0 && -s.ep[i] < value {
+                assert!(s.epa[i] < 0.0, "defensive touchdown at snap {i}: EP {:.2}, EPA {:.2}", s.ep[i], s.epa[i]);
+            }
+        }
+        if models::ep::is_safety(p, i) {
+            safeties += 1;
+        }
+    }
+    let mut start = 0;
+    let mut drives = 0;
+    for i in 1..=p.len() {
+        if i == p.len() || p.game[i] != p.game[start] || p.drive[i] != p.drive[start] {
+            let terms = models::ep::DriveTerms::of(p, &s.ep, start, i);
+            let sum: f64 = s.epa[start..i].iter().sum();
+            assert!((sum - terms.total()).abs() < 1e-9, "drive at snap {start}: EPA {sum:.4}, terms {terms:?}");
+            drives += 1;
+            start = i;
+        }
+    }
+    let td_passes: Vec<f64> = (0..p.len()).filter(|&i| p.points[i] == 6 && p.kind[i] == Kind::Pass).map(|i| s.epa[i]).collect();
+    let bad = td_passes.iter().filter(|&&e| e <= 0.0).count();
+    eprintln!(
+        "{tds} touchdowns, {safeties} safeties, {drives} drives; touchdown passes {}: mean EPA {:.2}, {bad} with EPA <= 0",
+        td_passes.len(),
+        td_passes.iter().sum::<f64>() / td_passes.len().max(1) as f64
+    );
+    assert!(tds > 1000 && drives > 10_000);
+}
+
+/// Kneel-out states (the leader has the ball and can kneel out the clock,
+/// from the clock rules): WP 1 and, in the demo league, every one was won.
+#[test]
+fn kneel_out_states_are_won() {
+    let Some(d) = demo() else { return };
+    let p = &d.scored.plays;
+    let s = &d.scored.scores;
+    let wp = &d.scored.models.wp;
+    eprintln!("clock rules read from the file: {:?}", wp.clock);
+    let mut n = 0;
+    for i in 0..p.len() {
+        let st = Situation::of_snap(p, &s.ep, i);
+        if wp.clock.kneel_out(&st.kill_state()) {
+            n += 1;
+            assert!(s.wp[i] >= 0.995, "snap {i}: WP {}", s.wp[i]);
+            assert_eq!(p.offense_result(i), 1.0, "snap {i} was a kneel-out state but the leader did not win");
+        }
+    }
+    eprintln!("{n} kneel-out snaps");
+    assert!(n > 500, "only {n} kneel-out snaps");
+}
+
+mod monotone {
+    use super::*;
+    use proptest::prelude::*;
+
+    proptest! {
+        #![proptest_config(ProptestConfig { cases: 400, ..ProptestConfig::default() })]
+        /// At a fixed time, down, distance, field position and timeouts,
+        /// WP never falls as the margin grows (regulation and overtime).
+        #[test]
+        fn wp_is_monotone_in_margin(
+            secs in 1i32..3600, ot in any::<bool>(), down in 1i32..=4, to_go in 1i32..=15,
+            ball_on in 1i32..=99, off_to in 0i32..=3, def_to in 0i32..=3, first in any::<bool>(),
+        ) {
+            let Some(d) = demo() else { return Ok(()) };
+            let m = &d.scored.models;
+            let to_go = to_go.min(100 - ball_on);
+            let secs_half = if ot { secs % 600 } else { secs % 1800 };
+            let ep = m.ep.situation(down, to_go, ball_on, secs_half);
+            let (secs_game, period) = if ot { ((secs % 600) as f64, 5) } else { (secs as f64, (4 - (secs - 1) / 900).clamp(1, 4)) };
+            let mut last = 0.0;
+            for margin in -30..=30 {
+                let s = Situation {
+                    margin: margin as f64, secs_game, overtime: ot, ep,
+                    off_timeouts: off_to.min(if ot { 2 } else { 3 }) as f64,
+                    def_timeouts: def_to.min(if ot { 2 } else { 3 }) as f64,
+                    off_home: true, line: Some(0.0), kickoff: false, is_try: false,
+                    period, down, ball_on, ot_first: ot && first, ot_both: ot && !first,
+                };
+                let w = m.wp.situation(&s);
+                prop_assert!(w >= last - 1e-12, "margin {margin}: WP {w} < {last} at {s:?}");
+                last = w;
+            }
+        }
     }
 }

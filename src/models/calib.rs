@@ -1,7 +1,9 @@
-//! Calibration and trust: refit on all but the held-out (most recent) season,
-//! then score that season: WP Brier score and log loss against the
-//! margin-and-time baseline and a constant ½, reliability tables, EP by bin.
+//! Calibration and trust: refit with seasons (or, in a one-season file, the
+//! last games) held out and score them: WP Brier score and log loss against
+//! the margin-and-time baseline and a constant ½, reliability tables, EP by
+//! bin, and the strata of `strata`.
 
+use super::strata::{ep_groups, stratum_score, wp_window, EpGroup, Pred, StratumBin, StratumScore, WpStratum};
 use super::wp::P_EPS;
 use super::{fit_rows_from, Models};
 use crate::plays::Plays;
@@ -49,11 +51,26 @@ pub struct SeasonScore {
     pub baseline: ProbScore,
 }
 
+/// How snaps were held out.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Plan {
+    /// Each season in turn, fit on the others (the default with >= 3 seasons).
+    LeaveOneSeasonOut,
+    /// The most recent season, fit on the others (the default with 2).
+    LastSeason,
+    /// One season: its last fifth of games, fit on the earlier games.
+    LastGames,
+}
+
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct Calibration {
+    pub plan: Plan,
     /// What was held out, in words.
     pub holdout: String,
+    /// The held-out season under `Plan::LastSeason`.
     pub holdout_season: Option<i32>,
+    /// Snaps the (last) fit was trained on and snaps predicted out of sample.
     pub train_snaps: usize,
     pub test_snaps: usize,
     pub test_games: usize,
@@ -65,18 +82,25 @@ pub struct Calibration {
     pub ep_bins: Vec<EpBin>,
     /// Completion model on held-out passes with air yards, if any.
     pub cp: Option<ProbScore>,
-    /// Leave-one-season-out scores; empty unless asked for.
+    /// Scores of each held-out season (leave-one-season-out; else empty).
     pub by_season: Vec<SeasonScore>,
-    /// Reliability of the full model over every leave-one-season-out
-    /// prediction pooled; empty unless asked for.
-    pub pooled_reliability: Vec<ReliabilityBin>,
+    /// Late and close, the final 2:00 of a half, overtime.
+    pub strata: Vec<StratumScore>,
+    pub ep_by_down: Vec<EpGroup>,
+    pub ep_by_zone: Vec<EpGroup>,
+    /// The final 2:00 of a half, the four-minute offense, the rest.
+    pub ep_by_clock: Vec<EpGroup>,
+    /// Late and close snaps the model gave 25-35%, and how often those
+    /// teams won: the page's opening sentence.
+    pub headline: StratumBin,
 }
 
 /// Options for `calibrate_with`.
 #[derive(Debug, Clone, Copy, Default)]
 pub struct CalibOptions {
-    /// Also refit once per season with that season held out.
-    pub leave_one_season_out: bool,
+    /// `None`: leave one season out with >= 3 seasons, the last season with
+    /// 2, the last fifth of games with 1.
+    pub plan: Option<Plan>,
 }
 
 pub fn prob_score(pred: &[f64], actual: &[f64]) -> ProbScore {
@@ -149,108 +173,103 @@ pub fn ep_bins(pred: &[f64], actual: &[f64]) -> Vec<EpBin> {
         .collect()
 }
 
-/// Split snaps into (train, test) rows: the most recent season held out, or
-/// with a single season its last fifth of games.
-fn split(plays: &Plays) -> anyhow::Result<(Vec<u32>, Vec<u32>, String, Option<i32>, usize)> {
+/// One fit's train and test rows, and the season it held out (if one).
+struct Fold {
+    train: Vec<u32>,
+    test: Vec<u32>,
+    season: Option<i32>,
+}
+
+/// The folds of a plan and the words for what they hold out.
+fn folds(plays: &Plays, plan: Option<Plan>) -> anyhow::Result<(Plan, Vec<Fold>, String)> {
     let seasons = plays.seasons();
     let Some(&last) = seasons.last() else {
         anyhow::bail!("calibration needs at least one game; the league is empty");
     };
-    if seasons.len() >= 2 {
-        let (mut train, mut test) = (Vec::new(), Vec::new());
-        for i in 0..plays.len() {
-            if plays.season[i] == last {
-                test.push(i as u32);
-            } else {
-                train.push(i as u32);
-            }
-        }
-        let games = plays.games.iter().filter(|g| g.season == last).count();
-        Ok((
-            train,
-            test,
+    let plan = match plan {
+        Some(Plan::LeaveOneSeasonOut | Plan::LastSeason) if seasons.len() < 2 => Plan::LastGames,
+        Some(p) => p,
+        None if seasons.len() >= 3 => Plan::LeaveOneSeasonOut,
+        None if seasons.len() == 2 => Plan::LastSeason,
+        None => Plan::LastGames,
+    };
+    let season_fold = |s: i32| {
+        let (test, train): (Vec<u32>, Vec<u32>) =
+            (0..plays.len() as u32).partition(|&i| plays.season[i as usize] == s);
+        Fold { train, test, season: Some(s) }
+    };
+    Ok(match plan {
+        Plan::LeaveOneSeasonOut => (
+            plan,
+            seasons.iter().map(|&s| season_fold(s)).collect(),
             format!(
-                "season {last} (fit on the {} earlier seasons)",
+                "each of the {} seasons in turn ({}-{}), predicted by models fit on the other {}",
+                seasons.len(),
+                seasons[0],
+                last,
                 seasons.len() - 1
             ),
-            Some(last),
-            games,
-        ))
-    } else {
-        let ng = plays.games.len();
-        let cut = ng - (ng / 5).max(1);
-        if cut == 0 {
-            anyhow::bail!("calibration needs at least two games; the league has {ng}");
-        }
-        let at = plays.games[cut].start;
-        let train = (0..at as u32).collect();
-        let test = (at as u32..plays.len() as u32).collect();
-        Ok((
-            train,
-            test,
-            format!("the last {} of {ng} games of season {last}", ng - cut),
-            None,
-            ng - cut,
-        ))
-    }
-}
-
-struct HeldOut {
-    wp: ProbScore,
-    baseline: ProbScore,
-    wp_pred: Vec<f64>,
-    base_pred: Vec<f64>,
-    actual: Vec<f64>,
-    ep_pred: Vec<f64>,
-    ep_actual: Vec<f64>,
-    cp: Option<ProbScore>,
-}
-
-fn held_out(
-    plays: &Plays,
-    train: &[u32],
-    test: &[u32],
-    init: Option<&Models>,
-) -> anyhow::Result<HeldOut> {
-    let models: Models = fit_rows_from(plays, train, init)?;
-    let ep = models.ep.score_all(plays);
-    let (mut wp_pred, mut base_pred, mut actual) = (Vec::new(), Vec::new(), Vec::new());
-    let (mut ep_pred, mut ep_actual) = (Vec::new(), Vec::new());
-    let (mut cp_pred, mut cp_actual) = (Vec::new(), Vec::new());
-    for &i in test {
-        let i = i as usize;
-        let s = super::wp::Situation::of_snap(plays, &ep, i);
-        wp_pred.push(models.wp.situation(&s));
-        base_pred.push(models.baseline.situation(&s));
-        actual.push(plays.offense_result(i));
-        if plays.down[i] > 0 {
-            ep_pred.push(ep[i]);
-            ep_actual.push(plays.next_score[i].points(models.ep.td_value));
-        }
-    }
-    if let Some(cp) = &models.cp {
-        let all = cp.score_all(plays);
-        for &i in test {
-            let i = i as usize;
-            if all[i].is_finite() {
-                cp_pred.push(all[i]);
-                cp_actual.push(plays.complete[i] as i32 as f64);
+        ),
+        Plan::LastSeason => (
+            plan,
+            vec![season_fold(last)],
+            format!("season {last}, predicted by models fit on the {} earlier seasons", seasons.len() - 1),
+        ),
+        Plan::LastGames => {
+            let ng = plays.games.len();
+            let cut = ng - (ng / 5).max(1);
+            if cut == 0 {
+                anyhow::bail!("calibration needs at least two games; the league has {ng}");
             }
+            let at = plays.games[cut].start as u32;
+            (
+                plan,
+                vec![Fold {
+                    train: (0..at).collect(),
+                    test: (at..plays.len() as u32).collect(),
+                    season: None,
+                }],
+                format!(
+                    "the last {} of the {ng} games of season {last} (in file order), predicted by models fit on its first {cut} games; the file has one season, so no season can be held out",
+                    ng - cut
+                ),
+            )
         }
-    }
-    Ok(HeldOut {
-        wp: prob_score(&wp_pred, &actual),
-        baseline: prob_score(&base_pred, &actual),
-        wp_pred,
-        base_pred,
-        actual,
-        ep_pred,
-        ep_actual,
-        cp: (!cp_pred.is_empty()).then(|| prob_score(&cp_pred, &cp_actual)),
     })
 }
 
-/// Hold out the most recent season, fit on the rest, score the held-out snaps.
+/// Out-of-sample predictions of one fold.
+fn predict(plays: &Plays, fold: &Fold, init: Option<&Models>, out: &mut Vec<Pred>, cp: &mut (Vec<f64>, Vec<f64>)) -> anyhow::Result<()> {
+    let models: Models = fit_rows_from(plays, &fold.train, init)?;
+    let ep = models.ep.score_all(plays);
+    for &i in &fold.test {
+        let i = i as usize;
+        let s = super::wp::Situation::of_snap(plays, &ep, i);
+        let has_down = plays.down[i] > 0;
+        out.push(Pred {
+            snap: i as u32,
+            game: plays.game[i],
+            wp: models.wp.situation(&s),
+            base: models.baseline.situation(&s),
+            actual: plays.offense_result(i),
+            ep: if has_down { ep[i] } else { f64::NAN },
+            ep_actual: if has_down { plays.next_score[i].points(models.ep.td_value) } else { f64::NAN },
+        });
+    }
+    if let Some(m) = &models.cp {
+        let all = m.score_all(plays);
+        for &i in &fold.test {
+            let i = i as usize;
+            if all[i].is_finite() {
+                cp.0.push(all[i]);
+                cp.1.push(plays.complete[i] as i32 as f64);
+            }
+        }
+    }
+    Ok(())
+}
+
+/// Hold out snaps as the plan says, fit on the rest, score the held-out snaps.
 pub fn calibrate_with(plays: &Plays, opts: &CalibOptions) -> anyhow::Result<Calibration> {
     calibrate_from(plays, opts, None)
 }
@@ -262,48 +281,52 @@ pub fn calibrate_from(
     opts: &CalibOptions,
     init: Option<&Models>,
 ) -> anyhow::Result<Calibration> {
-    let (train, test, holdout, holdout_season, test_games) = split(plays)?;
-    let h = held_out(plays, &train, &test, init)?;
-    let half = vec![0.5; h.actual.len()];
+    let (plan, folds, holdout) = folds(plays, opts.plan)?;
+    let mut preds = Vec::new();
+    let mut cp = (Vec::new(), Vec::new());
     let mut by_season = Vec::new();
-    let (mut pooled_pred, mut pooled_actual) = (Vec::new(), Vec::new());
-    if opts.leave_one_season_out {
-        let seasons = plays.seasons();
-        if seasons.len() >= 2 {
-            for s in seasons {
-                let (tr, te): (Vec<u32>, Vec<u32>) =
-                    (0..plays.len() as u32).partition(|&i| plays.season[i as usize] != s);
-                let r = held_out(plays, &tr, &te, init)?;
-                pooled_pred.extend_from_slice(&r.wp_pred);
-                pooled_actual.extend_from_slice(&r.actual);
-                by_season.push(SeasonScore {
-                    season: s,
-                    wp: r.wp,
-                    baseline: r.baseline,
-                });
-            }
+    for f in &folds {
+        let from = preds.len();
+        predict(plays, f, init, &mut preds, &mut cp)?;
+        if let (Plan::LeaveOneSeasonOut, Some(season)) = (plan, f.season) {
+            let p = &preds[from..];
+            let actual: Vec<f64> = p.iter().map(|x| x.actual).collect();
+            by_season.push(SeasonScore {
+                season,
+                wp: prob_score(&p.iter().map(|x| x.wp).collect::<Vec<_>>(), &actual),
+                baseline: prob_score(&p.iter().map(|x| x.base).collect::<Vec<_>>(), &actual),
+            });
         }
     }
-    let pooled_reliability = if pooled_pred.is_empty() {
-        Vec::new()
-    } else {
-        reliability(&pooled_pred, &pooled_actual)
-    };
+    let wp: Vec<f64> = preds.iter().map(|x| x.wp).collect();
+    let base: Vec<f64> = preds.iter().map(|x| x.base).collect();
+    let actual: Vec<f64> = preds.iter().map(|x| x.actual).collect();
+    let (ep_pred, ep_actual): (Vec<f64>, Vec<f64>) =
+        preds.iter().filter(|x| x.ep.is_finite()).map(|x| (x.ep, x.ep_actual)).unzip();
+    let mut games: Vec<u32> = preds.iter().map(|x| x.game).collect();
+    games.dedup();
+    let (ep_by_down, ep_by_zone, ep_by_clock) = ep_groups(plays, &preds);
+    let last = folds.last().map_or(0, |f| f.train.len());
     Ok(Calibration {
+        plan,
         holdout,
-        holdout_season,
-        train_snaps: train.len(),
-        test_snaps: test.len(),
-        test_games,
-        constant: prob_score(&half, &h.actual),
-        reliability: reliability(&h.wp_pred, &h.actual),
-        baseline_reliability: reliability(&h.base_pred, &h.actual),
-        ep_bins: ep_bins(&h.ep_pred, &h.ep_actual),
-        wp: h.wp,
-        baseline: h.baseline,
-        cp: h.cp,
+        holdout_season: (plan == Plan::LastSeason).then(|| folds[0].season).flatten(),
+        train_snaps: last,
+        test_snaps: preds.len(),
+        test_games: games.len(),
+        constant: prob_score(&vec![0.5; actual.len()], &actual),
+        reliability: reliability(&wp, &actual),
+        baseline_reliability: reliability(&base, &actual),
+        ep_bins: ep_bins(&ep_pred, &ep_actual),
+        wp: prob_score(&wp, &actual),
+        baseline: prob_score(&base, &actual),
+        cp: (!cp.0.is_empty()).then(|| prob_score(&cp.0, &cp.1)),
         by_season,
-        pooled_reliability,
+        strata: WpStratum::ALL.iter().map(|&s| stratum_score(s, plays, &preds)).collect(),
+        ep_by_down,
+        ep_by_zone,
+        ep_by_clock,
+        headline: wp_window(WpStratum::LateClose, plays, &preds, 0.25, 0.35),
     })
 }
 

@@ -1,6 +1,7 @@
 //! Expected points: a multinomial logistic model of the next score in the
 //! half (Yurko, Ventura & Horowitz 2019), EP = sum of class probability times
-//! class points; kickoff and try values; EPA per snap.
+//! class points; kickoff, free-kick and try values; EPA per snap, with
+//! touchdowns, tries and safeties credited in full.
 
 use super::logit::{self, FitOptions, FnDesign, Labels};
 use crate::playfile::Kind;
@@ -54,7 +55,8 @@ pub struct EpModel {
     pub td_value: f64,
     /// Mean points of all tries in the file.
     pub try_mean: f64,
-    /// Mean points of extra-point and two-point tries: a try snap's EP.
+    /// Mean points of extra-point and two-point tries (for reference; a
+    /// try snap's EP is `try_mean`, the value its touchdown was credited).
     pub xp_mean: f64,
     pub two_mean: f64,
     /// Mean next-score value over kickoffs from the side of the team the file
@@ -67,34 +69,49 @@ pub struct EpModel {
     /// kickoff EPA averages zero and kickoff EP fades as the half runs out.
     pub kickoff_a: f64,
     pub kickoff_b: f64,
+    /// Added to `kickoff` for a free kick after a safety (kicked from
+    /// deeper): the mean of what free kicks were worth to the kicking team
+    /// minus the kickoff fit, over the free kicks among the rows (0 when
+    /// there were none).
+    #[serde(default)]
+    pub free_kick_shift: f64,
 }
 
-/// What a kickoff was worth to the kicking team: its points if it scored,
-/// else the EP of the next snap in the half from the kicking team's side
-/// (0 when the half ends).
+/// A safety: a snap other than a try that scored two points for either side.
+pub fn is_safety(plays: &Plays, i: usize) -> bool {
+    plays.points[i].abs() == 2 && !plays.kind[i].is_try()
+}
+
+/// A free kick: a kickoff right after a safety in the same game.
+pub fn is_free_kick(plays: &Plays, i: usize) -> bool {
+    plays.kind[i] == Kind::Kickoff && i > 0 && plays.game[i - 1] == plays.game[i] && is_safety(plays, i - 1)
+}
+
+/// What a kickoff was worth to the kicking team, as EPA will credit it:
+/// its points plus the EP of the next snap in the half from the kicking
+/// team's side (a try after a return touchdown counts `try_mean`; 0 when
+/// the half ends or another kickoff follows).
 fn kickoff_target(model: &EpModel, plays: &Plays, i: usize) -> f64 {
-    if plays.points[i] != 0 {
-        return plays.points[i] as f64;
-    }
+    let points = plays.points[i] as f64;
     let j = i + 1;
     if j >= plays.len()
         || plays.game[j] != plays.game[i]
         || plays.half(j) != plays.half(i)
-        || plays.down[j] == 0
+        || plays.kind[j] == Kind::Kickoff
     {
-        return 0.0;
+        return points;
     }
-    let ep = model.situation(
-        plays.down[j],
-        plays.to_go[j],
-        plays.ball_on[j],
-        plays.secs_half[j],
-    );
-    if plays.offense[j] == plays.offense[i] {
-        ep
+    let ep = if plays.kind[j].is_try() {
+        model.try_mean
     } else {
-        -ep
-    }
+        model.situation(plays.down[j], plays.to_go[j], plays.ball_on[j], plays.secs_half[j])
+    };
+    points
+        + if plays.offense[j] == plays.offense[i] {
+            ep
+        } else {
+            -ep
+        }
 }
 
 /// Field position (own yard line) of the reference snap for kickoff EP.
@@ -205,6 +222,7 @@ pub fn fit(
         kickoff_ep: 0.0,
         kickoff_a: 0.0,
         kickoff_b: 0.0,
+        free_kick_shift: 0.0,
     };
     // Kickoffs: least squares of the next-score value on the reference EP.
     let (mut xs, mut ys) = (Vec::new(), Vec::new());
@@ -229,6 +247,17 @@ pub fn fit(
             / n;
         model.kickoff_b = b;
         model.kickoff_a = my - b * mx;
+        let (mut fs, mut fnn) = (0.0, 0usize);
+        for &i in rows {
+            let i = i as usize;
+            if is_free_kick(plays, i) {
+                fs += kickoff_target(&model, plays, i) - model.kickoff(plays.secs_half[i]);
+                fnn += 1;
+            }
+        }
+        if fnn > 0 {
+            model.free_kick_shift = fs / fnn as f64;
+        }
     }
     Ok(model)
 }
@@ -251,12 +280,18 @@ impl EpModel {
         self.kickoff_a + self.kickoff_b * self.situation(1, 10, KICKOFF_REF_SPOT, secs_half)
     }
 
-    /// EP before snap `i`, from its offense's side.
+    /// EP of a free kick after a safety, from the kicking team's side.
+    pub fn free_kick(&self, secs_half: i32) -> f64 {
+        self.kickoff(secs_half) + self.free_kick_shift
+    }
+
+    /// EP before snap `i`, from its offense's side. A try's EP is the mean
+    /// try, the value its touchdown was credited with (see `epa`).
     pub fn snap(&self, plays: &Plays, i: usize) -> f64 {
         match plays.kind[i] {
+            Kind::Kickoff if is_free_kick(plays, i) => self.free_kick(plays.secs_half[i]),
             Kind::Kickoff => self.kickoff(plays.secs_half[i]),
-            Kind::ExtraPoint => self.xp_mean,
-            Kind::TwoPoint => self.two_mean,
+            Kind::ExtraPoint | Kind::TwoPoint => self.try_mean,
             _ => self.situation(
                 plays.down[i],
                 plays.to_go[i],
@@ -272,34 +307,75 @@ impl EpModel {
     }
 }
 
-/// EPA per snap from the EP before every snap.
-///
-/// Convention: a snap that scores (`points != 0`) earns its points as scored
-/// minus EP before (a touchdown counts +6, not the touchdown value); the try
-/// that follows earns its own points minus the league mean for its kind. A
-/// try always ends with EP after = 0. Otherwise EP after is the next snap's
-/// EP in the same game and half (negated when the offense changes), and 0
-/// when the half or game ends.
+/// EP after snap `i` from its offense's side, as EPA credits it: the next
+/// snap's EP in the same game and half (negated when the offense changes),
+/// so a touchdown gains the try that follows (`try_mean`; nothing when no
+/// try follows, as after an overtime touchdown), a defensive touchdown loses
+/// it, and a safety carries the free kick that follows. Zero at the end of a
+/// half or game, after a try, and before a kickoff that follows a score
+/// other than a safety: the kicking team's kickoff value is not credited to
+/// its score (the *kickoff term* of `drive_identity`).
+pub fn ep_after(plays: &Plays, ep: &[f64], i: usize) -> f64 {
+    let j = i + 1;
+    if j >= plays.len()
+        || plays.game[j] != plays.game[i]
+        || plays.half(j) != plays.half(i)
+        || plays.kind[i].is_try()
+        || (plays.kind[j] == Kind::Kickoff && !is_safety(plays, i))
+    {
+        return 0.0;
+    }
+    if plays.offense[j] == plays.offense[i] {
+        ep[j]
+    } else {
+        -ep[j]
+    }
+}
+
+/// EPA per snap from the EP before every snap: points scored on the snap
+/// (offense's side) plus `ep_after` minus EP before. So a touchdown earns
+/// 6 + the expected try − EP before, the try its points − the expected try,
+/// a pick-six −6 − the expected try − EP before, and a safety −2 + the free
+/// kick's value to the conceding (kicking) team − EP before.
 pub fn epa(plays: &Plays, ep: &[f64]) -> Vec<f64> {
-    let n = plays.len();
-    (0..n)
-        .map(|i| {
-            if plays.points[i] != 0 || plays.kind[i].is_try() {
-                return plays.points[i] as f64 - ep[i];
-            }
-            let after = if i + 1 < n
-                && plays.game[i + 1] == plays.game[i]
-                && plays.half(i + 1) == plays.half(i)
-            {
-                if plays.offense[i + 1] == plays.offense[i] {
-                    ep[i + 1]
-                } else {
-                    -ep[i + 1]
-                }
-            } else {
-                0.0
-            };
-            after - ep[i]
-        })
+    (0..plays.len())
+        .map(|i| plays.points[i] as f64 + ep_after(plays, ep, i) - ep[i])
         .collect()
+}
+
+/// The terms of a drive (snaps `start..end` with one offense, from
+/// `Plays::drive`) that make its EPA add up:
+/// `Σ EPA = points + handoff − kickoff − EP at start`, where `points` are
+/// the drive's points from its offense's side (its own tries included),
+/// `handoff` is `ep_after` of its last snap (what it leaves the next
+/// offense, negated; 0 at a half's end) and `kickoff` the EP of each
+/// kickoff inside the drive that follows a score other than a safety (a
+/// kickoff after a safety, the free kick, is credited to the safety).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct DriveTerms {
+    pub points: f64,
+    pub handoff: f64,
+    pub kickoff: f64,
+    pub ep_start: f64,
+}
+
+impl DriveTerms {
+    pub fn of(plays: &Plays, ep: &[f64], start: usize, end: usize) -> DriveTerms {
+        let points = (start..end).map(|i| plays.points[i] as f64).sum();
+        let kickoff = (start + 1..end)
+            .filter(|&k| plays.kind[k] == Kind::Kickoff && !is_safety(plays, k - 1))
+            .map(|k| ep[k])
+            .sum();
+        DriveTerms {
+            points,
+            handoff: ep_after(plays, ep, end - 1),
+            kickoff,
+            ep_start: ep[start],
+        }
+    }
+
+    /// What the drive's EPA should add up to.
+    pub fn total(&self) -> f64 {
+        self.points + self.handoff - self.kickoff - self.ep_start
+    }
 }

@@ -4,14 +4,16 @@
 
 pub mod cache;
 pub mod calib;
+pub mod clock;
 pub mod cp;
 pub mod ep;
 pub mod logit;
+pub mod strata;
 #[cfg(test)]
 pub(crate) mod testkit;
 pub mod wp;
 
-pub use calib::{calibrate_with, CalibOptions, Calibration};
+pub use calib::{calibrate_with, CalibOptions, Calibration, Plan};
 pub use logit::FitStats as ModelReport;
 
 use crate::playfile::{rows_frame, PlayRow};
@@ -21,7 +23,7 @@ use polars::prelude::{Column, DataFrame};
 use serde::{Deserialize, Serialize};
 
 /// Bumped whenever features, labels or conventions change; part of the cache key.
-pub const MODEL_VERSION: &str = "lategame-models-3";
+pub const MODEL_VERSION: &str = "lategame-models-4";
 
 /// Everything fitted from one league.
 #[derive(Debug, Serialize, Deserialize, Clone, PartialEq)]
@@ -154,8 +156,8 @@ impl Models {
     }
 }
 
-/// Hold out the most recent season and measure how well models fit on the
-/// rest predict it (see `calib`).
+/// Hold out seasons (see `calib::Plan`) and measure how well models fit on
+/// the rest predict them.
 pub fn calibrate(plays: &Plays) -> anyhow::Result<Calibration> {
     calibrate_with(plays, &CalibOptions::default())
 }
@@ -295,23 +297,71 @@ mod tests {
         let plays = small();
         let models = fit(&plays).expect("fit");
         let s = models.score(&plays);
-        for i in 0..plays.len() - 1 {
-            if plays.points[i] != 0 || plays.kind[i].is_try() {
-                assert!((s.epa[i] - (plays.points[i] as f64 - s.ep[i])).abs() < 1e-12);
-            } else if plays.game[i + 1] == plays.game[i] && plays.half(i + 1) == plays.half(i) {
+        let try_mean = models.ep.try_mean;
+        for i in 0..plays.len() {
+            let same_half = i + 1 < plays.len()
+                && plays.game[i + 1] == plays.game[i]
+                && plays.half(i + 1) == plays.half(i);
+            let next_try = same_half && plays.kind[i + 1].is_try();
+            if plays.kind[i].is_try() {
+                assert_eq!(s.ep[i], try_mean);
+                assert!((s.epa[i] - (plays.points[i] as f64 - try_mean)).abs() < 1e-12);
+            } else if plays.points[i] >= 6 {
+                // A touchdown earns 6 + the expected try (when one follows).
+                let want = 6.0 + if next_try { try_mean } else { 0.0 } - s.ep[i];
+                assert!((s.epa[i] - want).abs() < 1e-12, "snap {i}");
+            } else if plays.points[i] == 3 {
+                assert!((s.epa[i] - (3.0 - s.ep[i])).abs() < 1e-12);
+            } else if plays.points[i] == 0 && same_half && plays.kind[i + 1] != Kind::Kickoff {
                 let after = if plays.offense[i + 1] == plays.offense[i] {
                     s.ep[i + 1]
                 } else {
                     -s.ep[i + 1]
                 };
                 assert!((s.epa[i] - (after - s.ep[i])).abs() < 1e-12);
-            } else {
-                assert!((s.epa[i] + s.ep[i]).abs() < 1e-12);
+            } else if !same_half {
+                assert!((s.epa[i] - (plays.points[i] as f64 - s.ep[i])).abs() < 1e-12);
             }
         }
-        assert!((0..plays.len())
-            .all(|i| plays.kind[i] != Kind::Kickoff
-                || s.ep[i] == models.ep.kickoff(plays.secs_half[i])));
+        // Every drive adds up to its points, the handoff and the kickoff term.
+        let mut start = 0;
+        for i in 1..=plays.len() {
+            if i == plays.len() || plays.game[i] != plays.game[start] || plays.drive[i] != plays.drive[start] {
+                let t = ep::DriveTerms::of(&plays, &s.ep, start, i);
+                let sum: f64 = s.epa[start..i].iter().sum();
+                assert!((sum - t.total()).abs() < 1e-9, "drive at {start}: {sum} vs {t:?}");
+                start = i;
+            }
+        }
+        assert!((0..plays.len()).all(|i| plays.kind[i] != Kind::Kickoff
+            || ep::is_free_kick(&plays, i)
+            || s.ep[i] == models.ep.kickoff(plays.secs_half[i])));
+    }
+
+    /// Touchdown + try (+ kickoff) and safety + free kick sequences,
+    /// checked against the values worked from the EP before each snap.
+    #[test]
+    fn touchdowns_tries_and_safeties_by_hand() {
+        let plays = small();
+        let models = fit(&plays).expect("fit");
+        let s = models.score(&plays);
+        let t = models.ep.try_mean;
+        let mut seen = false;
+        for i in 0..plays.len().saturating_sub(2) {
+            if plays.points[i] == 6 && plays.kind[i + 1].is_try() && plays.kind[i + 2] == Kind::Kickoff {
+                // TD + try + kickoff: 6 + try points − EP before, kickoff aside.
+                let sum = s.epa[i] + s.epa[i + 1];
+                let want = 6.0 + plays.points[i + 1] as f64 - s.ep[i];
+                assert!((sum - want).abs() < 1e-12);
+                assert!(s.ep[i] >= 6.0 + t || s.epa[i] > 0.0);
+                seen = true;
+            }
+            if ep::is_safety(&plays, i) && ep::is_free_kick(&plays, i + 1) {
+                let fk = models.ep.free_kick(plays.secs_half[i + 1]);
+                assert!((s.epa[i] - (-2.0 + fk - s.ep[i])).abs() < 1e-12);
+            }
+        }
+        assert!(seen, "no touchdown with a try in the synthetic league");
     }
 
     #[test]
@@ -370,20 +420,36 @@ mod tests {
     }
 
     #[test]
-    fn calibration_holds_out_the_last_season() {
+    fn calibration_holds_out_every_season() {
         let plays = small();
         let c = calibrate(&plays).expect("calibrate");
-        assert_eq!(c.holdout_season, Some(2002));
-        assert_eq!(c.train_snaps + c.test_snaps, plays.len());
-        assert_eq!(
-            c.reliability.iter().map(|b| b.n).sum::<usize>(),
-            c.test_snaps
-        );
+        assert_eq!(c.plan, Plan::LeaveOneSeasonOut);
+        assert_eq!(c.by_season.len(), 3);
+        assert_eq!(c.test_snaps, plays.len());
+        assert_eq!(c.reliability.iter().map(|b| b.n).sum::<usize>(), c.test_snaps);
         assert!(c.wp.brier < c.constant.brier);
+        assert_eq!(c.strata.len(), 3);
+        let late = &c.strata[0];
+        assert_eq!(late.bins.iter().map(|b| b.n).sum::<usize>(), late.wp.n);
+        for b in &late.bins {
+            assert!(b.observed.lo <= b.observed.value && b.observed.value <= b.observed.hi);
+        }
+        assert!(late.brier_gain.lo <= late.brier_gain.value && late.brier_gain.value <= late.brier_gain.hi);
+        assert_eq!(c.ep_by_down.len(), 4);
+        assert_eq!(c.ep_by_zone.iter().map(|g| g.n).sum::<usize>(), (0..plays.len()).filter(|&i| plays.down[i] > 0).count());
         let json = serde_json::to_string(&c).expect("json");
         let back: Calibration = serde_json::from_str(&json).expect("parse");
         assert_eq!(back.reliability.len(), c.reliability.len());
         assert!((back.wp.brier - c.wp.brier).abs() < 1e-12);
+        let last = calibrate_with(&plays, &CalibOptions { plan: Some(Plan::LastSeason) }).expect("last");
+        assert_eq!(last.holdout_season, Some(2002));
+        assert_eq!(last.train_snaps + last.test_snaps, plays.len());
+        // One season: the last fifth of games, said plainly.
+        let one = testkit::league(60, 1, 9);
+        let c = calibrate(&one).expect("one season");
+        assert_eq!(c.plan, Plan::LastGames);
+        assert!(c.holdout.starts_with("the last 12 of the 60 games"), "{}", c.holdout);
+        assert_eq!(c.test_games, 12);
     }
 
     /// Timing on a league of about 1.2M snaps: run with

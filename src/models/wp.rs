@@ -1,7 +1,11 @@
 //! Win probability: a logistic model of the offense winning (ties count ½)
 //! built on Stern's (1991) margin-over-root-time term, EP, timeouts, home
-//! field and the pregame line; a margin-and-time baseline; WPA per snap.
+//! field and the pregame line, with late-game terms (key margins against
+//! time left, possession with time and timeouts), overtime as its own
+//! regime, and clock-kill states set to 1 from the clock rules; a
+//! margin-and-time baseline; WPA per snap.
 
+use super::clock::{ClockRules, KillState};
 use super::logit::{self, FitOptions, FnDesign, Labels};
 use crate::playfile::Kind;
 use crate::plays::Plays;
@@ -27,7 +31,18 @@ pub enum WpKind {
     Baseline,
 }
 
-pub const FULL_FEATURES: [&str; 19] = [
+/// Seconds of the late-game window the key-margin terms work in (the final
+/// 10:00 of regulation) and of the final stretch (3:00).
+const LATE_SECS: f64 = 600.0;
+const FINAL_SECS: f64 = 180.0;
+/// Key margins: a field goal, one score, two scores.
+pub const KEY_MARGINS: [f64; 3] = [3.0, 8.0, 16.0];
+/// Seconds over the burnable time over which `kill_near` fades to 0.
+const KILL_FADE: f64 = 120.0;
+/// Length of an overtime period the time term is scaled by (seconds).
+const OT_SECS: f64 = 600.0;
+
+pub const FULL_FEATURES: [&str; 36] = [
     "intercept",
     "margin",
     "ep",
@@ -47,6 +62,23 @@ pub const FULL_FEATURES: [&str; 19] = [
     "kickoff_time_left",
     "try",
     "stern_margin_ep_line_time",
+    "late_margin3",
+    "late_margin8",
+    "late_margin16",
+    "final_margin3",
+    "final_margin8",
+    "final_margin16",
+    "late_ep",
+    "final_ep",
+    "late_def_timeouts_lead",
+    "late_off_timeouts_trail",
+    "kill_near",
+    "ot_margin3",
+    "ot_ep",
+    "ot_first_possession",
+    "ot_both_had_ball",
+    "ot_time_left",
+    "ot_first_possession_ep",
 ];
 
 pub const BASELINE_FEATURES: [&str; 4] = ["intercept", "margin", "stern_margin", "time_left"];
@@ -77,11 +109,44 @@ pub struct Situation {
     pub kickoff: bool,
     /// An extra-point or two-point try.
     pub is_try: bool,
+    /// Period (5 and up: overtime).
+    pub period: i32,
+    /// 0 on kickoffs and tries.
+    pub down: i32,
+    pub ball_on: i32,
+    /// Overtime, first possession: the defense has not had the ball yet in
+    /// this period.
+    pub ot_first: bool,
+    /// Overtime: both teams have had a possession before this one.
+    pub ot_both: bool,
+}
+
+/// (first possession, both had the ball) in the overtime period of snap
+/// `i`, from the snaps of that period before it; (false, false) in
+/// regulation.
+fn ot_possessions(plays: &Plays, i: usize) -> (bool, bool) {
+    if !plays.is_overtime(i) {
+        return (false, false);
+    }
+    let (mut def_had, mut off_before) = (false, false);
+    let mut j = i;
+    while j > 0 && plays.game[j - 1] == plays.game[i] && plays.period[j - 1] == plays.period[i] {
+        j -= 1;
+        if plays.down[j] > 0 {
+            if plays.offense[j] == plays.defense[i] {
+                def_had = true;
+            } else if plays.drive[j] != plays.drive[i] {
+                off_before = true;
+            }
+        }
+    }
+    (!def_had, def_had && off_before)
 }
 
 impl Situation {
     pub fn of_snap(plays: &Plays, ep: &[f64], i: usize) -> Situation {
         let g = &plays.games[plays.game[i] as usize];
+        let (ot_first, ot_both) = ot_possessions(plays, i);
         Situation {
             margin: plays.margin[i] as f64,
             secs_game: plays.secs_game[i].max(0) as f64,
@@ -93,12 +158,30 @@ impl Situation {
             line: g.home_line.map(|l| if plays.off_home[i] { l } else { -l }),
             kickoff: plays.kind[i] == Kind::Kickoff,
             is_try: plays.kind[i].is_try(),
+            period: plays.period[i],
+            down: plays.down[i],
+            ball_on: plays.ball_on[i],
+            ot_first,
+            ot_both,
+        }
+    }
+
+    /// The clock-kill facts of this situation.
+    pub fn kill_state(&self) -> KillState {
+        KillState {
+            period: self.period,
+            clock: self.secs_game.round() as i32,
+            down: self.down,
+            margin: self.margin.round() as i32,
+            ball_on: self.ball_on,
+            def_timeouts: self.def_timeouts.round() as i32,
         }
     }
 }
 
-/// Fill the features of `kind` for `s` into `out`.
-pub fn features(kind: WpKind, s: &Situation, out: &mut [f64]) {
+/// Fill the features of `kind` for `s` into `out`; `rules` place the
+/// situation against the clock-kill line (`kill_near`).
+pub fn features(kind: WpKind, s: &Situation, rules: &ClockRules, out: &mut [f64]) {
     let frac = (s.secs_game / GAME_SECS).clamp(0.0, 1.0);
     let root = (frac + ROOT_TIME_OFFSET).sqrt();
     let m = s.margin / MARGIN_SCALE;
@@ -137,6 +220,35 @@ pub fn features(kind: WpKind, s: &Situation, out: &mut [f64]) {
             // Lets the weight of the Stern term change with time left: early
             // in the game a margin or a line says less than late.
             out[18] = out[4] * frac;
+            // The late game: each key margin (a clamp at ±k, so monotone in
+            // the margin) against the final 10:00 and the final 3:00.
+            let reg = !s.overtime as i32 as f64;
+            let late10 = reg * (1.0 - s.secs_game / LATE_SECS).max(0.0);
+            let late3 = reg * (1.0 - s.secs_game / FINAL_SECS).max(0.0);
+            for (k, key) in KEY_MARGINS.iter().enumerate() {
+                let c = s.margin.clamp(-key, *key) / key;
+                out[19 + k] = c * late10;
+                out[22 + k] = c * late3;
+            }
+            // Possession: the ball's worth and the timeouts that matter to
+            // each side as time runs out.
+            out[25] = s.ep / 7.0 * late10;
+            out[26] = s.ep / 7.0 * late3;
+            let lead = (s.margin > 0.0) as i32 as f64;
+            out[27] = s.def_timeouts / 3.0 * late10 * lead;
+            out[28] = s.off_timeouts / 3.0 * late10 * (1.0 - lead);
+            out[29] = match rules.excess(&s.kill_state()) {
+                Some(e) => (1.0 - e.max(0.0) / KILL_FADE).max(0.0),
+                None => 0.0,
+            };
+            // Overtime as its own regime.
+            let ot = s.overtime as i32 as f64;
+            out[30] = ot * s.margin.clamp(-3.0, 3.0) / 3.0;
+            out[31] = ot * s.ep / 7.0;
+            out[32] = ot * s.ot_first as i32 as f64;
+            out[33] = ot * s.ot_both as i32 as f64;
+            out[34] = ot * (s.secs_game / OT_SECS).min(1.0);
+            out[35] = out[31] * s.ot_first as i32 as f64;
         }
     }
 }
@@ -147,6 +259,10 @@ pub struct WpModel {
     pub kind: WpKind,
     pub features: Vec<String>,
     pub fit: logit::Fit,
+    /// The clock as the file implies it; the full model's clock-kill
+    /// states have WP 1 (the baseline ignores them).
+    #[serde(default)]
+    pub clock: ClockRules,
 }
 
 /// Fit on `rows` (indices into `plays`) with `ep` the EP before every snap.
@@ -163,11 +279,15 @@ pub fn fit(
         .iter()
         .map(|&i| plays.offense_result(i as usize))
         .collect();
+    let rules = ClockRules::from_plays(plays, rows);
     let design = FnDesign {
         rows,
         p: names.len(),
-        f: |i: usize, out: &mut [f64]| features(kind, &Situation::of_snap(plays, ep, i), out),
+        f: |i: usize, out: &mut [f64]| features(kind, &Situation::of_snap(plays, ep, i), &rules, out),
     };
+    // The late game is shaped by interactions, not weights: on the demo
+    // league, weighing the final 10:00 and overtime 3x moved the held-out
+    // late-and-close Brier gain over the baseline from 10.5% to 10.4%.
     let fit = logit::fit_from(
         &design,
         Labels::Binary(&y),
@@ -185,14 +305,19 @@ pub fn fit(
         kind,
         features: names.iter().map(|s| s.to_string()).collect(),
         fit,
+        clock: rules,
     })
 }
 
 impl WpModel {
+    /// The offense's WP: 1 in a clock-kill state (full model), else the fit.
     pub fn situation(&self, s: &Situation) -> f64 {
+        if self.kind == WpKind::Full && self.clock.kneel_out(&s.kill_state()) {
+            return 1.0;
+        }
         let mut x = [0.0; FULL_FEATURES.len()];
         let p = self.features.len();
-        features(self.kind, s, &mut x[..p]);
+        features(self.kind, s, &self.clock, &mut x[..p]);
         self.fit.prob(&x[..p])
     }
 

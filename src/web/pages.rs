@@ -889,11 +889,8 @@ struct CalibrationPage {
     chrome: Chrome,
     fingerprint: String,
     model_version: &'static str,
-    summary: String,
+    view: super::calib::CalibrationView,
     chart: String,
-    wp_rows: Vec<Vec<String>>,
-    ep_rows: Vec<Vec<String>>,
-    scores: Vec<Vec<String>>,
     fit_lines: Vec<String>,
 }
 
@@ -906,11 +903,8 @@ pub async fn calibration(State(st): State<Shared>, headers: HeaderMap, RawQuery(
         chrome: chrome(&st, &headers, params.as_ref(), "Model calibration".into(), "calibration", "/calibration"),
         fingerprint: lg.scored.fingerprint.clone(),
         model_version: crate::models::MODEL_VERSION,
-        summary: super::calib::summary(&lg.scored.calibration),
+        view,
         chart,
-        wp_rows: view.wp_rows,
-        ep_rows: view.ep_rows,
-        scores: view.scores,
         fit_lines: super::calib::fit_lines(&lg.scored.models.report),
     };
     html(&page)
