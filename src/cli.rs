@@ -111,6 +111,9 @@ pub struct ServeArgs {
     /// Allow binding beyond loopback; every request then needs the access token printed at start.
     #[arg(long)]
     pub share: bool,
+    /// Folder for the staff's film notes and cut-up lists (default: LATEGAME_DATA_DIR, else the user's data directory).
+    #[arg(long)]
+    pub data_dir: Option<PathBuf>,
 }
 
 #[derive(Clone, Copy, ValueEnum)]
@@ -165,6 +168,7 @@ fn run(cli: Cli) -> Result<ExitCode> {
         team: None,
         passer: None,
         share: false,
+        data_dir: None,
     }));
     match cmd {
         Cmd::Serve(mut args) => {

@@ -34,9 +34,23 @@ fn num(v: f64, decimals: usize) -> String {
 
 /// The cut-up: one row per snap for the video staff.
 pub fn cutup_csv(snaps: &[Snap]) -> String {
-    let mut out = line(&["game", "season", "week", "seq", "period", "clock", "offense", "defense", "score", "down_distance", "spot", "kind", "passer", "result", "epa", "wpa"].map(String::from));
-    for s in snaps {
-        out.push_str(&line(&[
+    cutup_rows(snaps, None)
+}
+
+/// A saved cut-up list: the cut-up with the staff's notes on each snap
+/// (`notes[k]` belongs to `snaps[k]`).
+pub fn cutup_csv_with_notes(snaps: &[Snap], notes: &[String]) -> String {
+    cutup_rows(snaps, Some(notes))
+}
+
+fn cutup_rows(snaps: &[Snap], notes: Option<&[String]>) -> String {
+    let mut head = ["game", "season", "week", "seq", "period", "clock", "offense", "defense", "score", "down_distance", "spot", "kind", "passer", "result", "epa", "wpa"].map(String::from).to_vec();
+    if notes.is_some() {
+        head.push("notes".into());
+    }
+    let mut out = line(&head);
+    for (k, s) in snaps.iter().enumerate() {
+        let mut cells = vec![
             s.game.clone(),
             s.season.to_string(),
             s.week.to_string(),
@@ -53,7 +67,11 @@ pub fn cutup_csv(snaps: &[Snap]) -> String {
             s.result.clone(),
             num(s.epa, 3),
             num(s.wpa, 4),
-        ]));
+        ];
+        if let Some(n) = notes {
+            cells.push(n.get(k).cloned().unwrap_or_default());
+        }
+        out.push_str(&line(&cells));
     }
     out
 }

@@ -9,6 +9,7 @@ pub mod export;
 pub mod fuzz_props;
 pub mod league;
 pub mod models;
+pub mod notes;
 pub mod playfile;
 pub mod plays;
 pub mod report;

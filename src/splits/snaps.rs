@@ -89,7 +89,8 @@ pub fn result_text(p: &Plays, i: usize) -> String {
     s
 }
 
-fn snap(p: &Plays, v: &SnapValues, i: usize) -> Snap {
+/// One snap, written the way a coach reads it.
+pub fn snap_at(p: &Plays, v: &SnapValues, i: usize) -> Snap {
     let g = &p.games[p.game[i] as usize];
     Snap {
         index: i,
@@ -127,14 +128,14 @@ pub fn play_list(p: &Plays, v: &SnapValues, s: &Situation, passer: Option<&str>,
         .filter(|&i| p.dropback[i] && who.is_none_or(|w| p.passer[i] == w))
         .filter(|&i| metric.is_none_or(|m| in_unit(p, v, m.unit, i)))
         .filter(|&i| s.matches(p, v.wp, i))
-        .map(|i| snap(p, v, i))
+        .map(|i| snap_at(p, v, i))
         .collect()
 }
 
 /// Every snap of one game, in order (for the game-flow page).
 pub fn game_snaps(p: &Plays, v: &SnapValues, game: usize) -> Vec<Snap> {
     let g = &p.games[game];
-    (g.start..g.end).map(|i| snap(p, v, i)).collect()
+    (g.start..g.end).map(|i| snap_at(p, v, i)).collect()
 }
 
 #[cfg(test)]

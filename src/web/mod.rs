@@ -5,6 +5,8 @@
 mod api;
 mod assets;
 mod calib;
+mod guard;
+mod notes;
 mod pages;
 pub mod query;
 
@@ -17,6 +19,7 @@ use axum::http::{header, HeaderValue, StatusCode};
 use axum::middleware::{self, Next};
 use axum::response::{IntoResponse, Response};
 use axum::routing::{get, post};
+use crate::notes::NoteStore;
 use axum::Router;
 use std::net::SocketAddr;
 use std::path::PathBuf;
@@ -44,6 +47,9 @@ pub struct AppState {
     /// Split tables already computed for this league, by view (the league
     /// never changes until a reload, which empties it).
     splits_cache: std::sync::Mutex<std::collections::HashMap<String, Arc<crate::splits::SplitTable>>>,
+    /// The staff's film notes and cut-up lists (None when the database
+    /// could not be opened; the rest of the server still works).
+    notes: Option<Arc<NoteStore>>,
 }
 
 /// How many split tables the cache keeps before it starts over.
@@ -60,7 +66,18 @@ impl AppState {
             token,
             reload_note: RwLock::new(None),
             splits_cache: std::sync::Mutex::new(std::collections::HashMap::new()),
+            notes: None,
         }
+    }
+
+    /// Serve notes and cut-up lists from this database.
+    pub fn with_notes(mut self, store: NoteStore) -> AppState {
+        self.notes = Some(Arc::new(store));
+        self
+    }
+
+    pub fn notes(&self) -> Option<Arc<NoteStore>> {
+        self.notes.clone()
     }
 
     /// The league as loaded now (a reload swaps it; requests in flight keep
@@ -147,8 +164,14 @@ pub fn router(state: Shared) -> Router {
         .route("/api/plays", get(api::plays))
         .route("/api/game", get(api::game))
         .route("/api/calibration", get(api::calibration))
+        .route("/api/notes", get(notes::list_notes).post(notes::create_note))
+        .route("/api/notes/{id}", get(notes::get_note).patch(notes::update_note).delete(notes::delete_note))
+        .route("/api/cutups", get(notes::list_cutups).post(notes::create_cutup))
+        .route("/api/cutups/{id}", get(notes::get_cutup).patch(notes::update_cutup).delete(notes::delete_cutup))
+        .route("/api/cutups/{id}/csv", get(notes::cutup_csv))
         .route("/static/{file}", get(assets::serve))
         .fallback(pages::not_found)
+        .layer(middleware::from_fn(guard::same_origin))
         .layer(middleware::from_fn_with_state(state.clone(), require_token))
         .layer(RequestBodyLimitLayer::new(16 * 1024))
         .layer(TimeoutLayer::with_status_code(StatusCode::SERVICE_UNAVAILABLE, Duration::from_secs(20)))
@@ -202,7 +225,16 @@ pub fn serve_blocking(league: League, args: &ServeArgs) -> Result<()> {
         anyhow::bail!("--bind {addr}: not a loopback address; add --share to serve other machines (with an access token)");
     }
     let token = if args.share { Some(new_token()?) } else { None };
-    let state = Arc::new(AppState::new(league, args.lenient, args.team.clone(), args.passer.clone(), token.clone()));
+    let mut state = AppState::new(league, args.lenient, args.team.clone(), args.passer.clone(), token.clone());
+    let data_dir = args.data_dir.clone().unwrap_or_else(crate::notes::default_data_dir);
+    match NoteStore::open(&crate::notes::database_path(&data_dir)) {
+        Ok(store) => {
+            tracing::info!("film notes and cut-up lists in {}", store.path().display());
+            state = state.with_notes(store);
+        }
+        Err(e) => tracing::warn!("notes are off: {e}"),
+    }
+    let state = Arc::new(state);
     let rt = tokio::runtime::Builder::new_multi_thread().enable_all().build()?;
     rt.block_on(async move {
         let listener = tokio::net::TcpListener::bind(addr).await.with_context(|| format!("binding {addr}"))?;
