@@ -6,6 +6,7 @@ mod api;
 mod assets;
 mod calib;
 mod guard;
+mod meeting;
 mod notes;
 mod pages;
 pub mod query;
@@ -29,6 +30,7 @@ use tower_http::limit::RequestBodyLimitLayer;
 use tower_http::set_header::SetResponseHeaderLayer;
 use tower_http::timeout::TimeoutLayer;
 
+pub use meeting::screens as meeting_screens;
 pub use query::Params;
 
 /// What every handler sees.
@@ -164,6 +166,7 @@ pub fn router(state: Shared) -> Router {
         .route("/api/plays", get(api::plays))
         .route("/api/game", get(api::game))
         .route("/api/calibration", get(api::calibration))
+        .route("/meeting", get(meeting::meeting))
         .route("/api/notes", get(notes::list_notes).post(notes::create_note))
         .route("/api/notes/{id}", get(notes::get_note).patch(notes::update_note).delete(notes::delete_note))
         .route("/api/cutups", get(notes::list_cutups).post(notes::create_cutup))
