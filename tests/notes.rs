@@ -132,6 +132,16 @@ fn notes_and_lists_through_the_api() {
     assert!(lines[1].ends_with(",late INT: stared down the hook"), "{}", lines[1]);
     assert!(lines[2].ends_with(','), "no note on the second snap: {}", lines[2]);
 
+    // The lists page shows the list and escapes what the staff typed.
+    let page = get(&format!("{base}/cutups"));
+    assert_eq!(page.status, 200);
+    assert!(page.body.contains("Late-game INTs to review"));
+    let r = send("PATCH", &format!("{base}/api/notes/{id}"), Some(&json!({"text": "<script>x</script> stared down the hook"})), &[]);
+    assert_eq!(r.status, 200);
+    let page = get(&format!("{base}/cutups"));
+    assert!(page.body.contains("&lt;script&gt;x&lt;/script&gt; stared down the hook") || page.body.contains("&#60;script&#62;x&#60;/script&#62; stared down the hook"), "typed text is escaped");
+    assert!(!page.body.contains("<script>x</script>"));
+
     assert_eq!(send("DELETE", &format!("{base}/api/cutups/{lid}"), None, &[]).status, 204);
     assert_eq!(get(&format!("{base}/api/cutups/{lid}")).status, 404);
     assert_eq!(send("DELETE", &format!("{base}/api/notes/{id}"), None, &[]).status, 204);
@@ -199,4 +209,78 @@ fn a_note_survives_sigkill_right_after_the_post_returns() {
     assert_eq!(notes["notes"][0]["seq"], seq);
     assert_eq!(lists["lists"][0]["name"], "Protection");
     assert_eq!(lists["lists"][0]["snaps"][0]["seq"], seq);
+}
+
+/// EPA percentile of a snap among the league's scrimmage snaps in the same
+/// down, distance band and field zone, counted here by brute force.
+fn epa_pct_by_hand(p: &lategame::plays::Plays, epa: &[f64], i: usize) -> f64 {
+    use lategame::playfile::Kind;
+    let band = |d: i32| match d { ..=2 => 0, 3..=6 => 1, 7..=10 => 2, _ => 3 };
+    let zone = |b: i32| match b { ..=20 => 0, 21..=50 => 1, 51..=79 => 2, _ => 3 };
+    let same = |j: usize| {
+        matches!(p.kind[j], Kind::Pass | Kind::Sack | Kind::Scramble | Kind::Run | Kind::Kneel | Kind::Spike)
+            && (1..=4).contains(&p.down[j])
+            && p.down[j] == p.down[i]
+            && band(p.to_go[j]) == band(p.to_go[i])
+            && zone(p.ball_on[j]) == zone(p.ball_on[i])
+            && epa[j].is_finite()
+    };
+    let (mut n, mut below, mut tied) = (0.0, 0.0, 0.0);
+    for j in (0..p.len()).filter(|&j| same(j)) {
+        n += 1.0;
+        if epa[j] < epa[i] {
+            below += 1.0;
+        } else if epa[j] == epa[i] {
+            tied += 1.0;
+        }
+    }
+    100.0 * (below + 0.5 * tied) / n
+}
+
+#[test]
+fn game_review_places_each_snap_in_the_leagues_distribution() {
+    let league = demo_league();
+    // A game that reached the last minutes within one score.
+    let p = league.plays();
+    let epa = league.scored.scores.epa.clone();
+    let gi = (0..p.games.len())
+        .find(|&g| {
+            let gm = &p.games[g];
+            (gm.start..gm.end).any(|i| p.period[i] == 4 && p.clock[i] < 300 && p.margin[i].abs() <= 8 && p.dropback[i])
+        })
+        .expect("a close game");
+    let key = p.games[gi].key.clone();
+    let home = p.teams[p.games[gi].home as usize].clone();
+    let away = p.teams[p.games[gi].away as usize].clone();
+    let expected: Vec<(i32, f64)> = {
+        let g = &p.games[gi];
+        (g.start..g.end).map(|i| (p.seq[i], epa_pct_by_hand(p, &epa, i))).collect()
+    };
+    let base = spawn(league, None, None, None);
+    let r = get(&format!("{base}/api/review?game={}&tm={}", enc(&key), enc(&away)));
+    assert_eq!(r.status, 200, "{}", r.body);
+    let j = r.json();
+    assert_eq!(j["team"], away.as_str());
+    assert_eq!(j["opponent"], home.as_str());
+    let mut checked = 0;
+    for sec in j["sections"].as_array().unwrap() {
+        for s in sec["snaps"].as_array().unwrap() {
+            assert_eq!(s["offense"], away.as_str(), "only the team's own snaps");
+            let seq = s["seq"].as_i64().unwrap() as i32;
+            let want = expected.iter().find(|(q, _)| *q == seq).unwrap().1;
+            if let Some(got) = s["epa_pct"].as_f64() {
+                assert!((got - want).abs() < 1e-9, "seq {seq}: {got} vs {want}");
+                checked += 1;
+            }
+        }
+    }
+    assert!(checked > 0, "the close game has late snaps for {away}");
+    let path = j["wp_path"].as_array().unwrap();
+    let last = path.last().unwrap()[1].as_f64().unwrap();
+    assert!(last == 0.0 || last == 0.5 || last == 1.0, "ends at the result from the team's side");
+    let page = get(&format!("{base}/review?game={}&tm={}", enc(&key), enc(&away)));
+    assert_eq!(page.status, 200);
+    assert!(page.body.contains("data-game="));
+    assert_eq!(get(&format!("{base}/review?game=nope")).status, 404);
+    assert_eq!(get(&format!("{base}/api/review")).status, 400);
 }

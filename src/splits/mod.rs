@@ -5,6 +5,7 @@
 //! Pages, JSON, CSV and the PDF report are all views of these values.
 
 pub mod metrics;
+pub mod review;
 mod snaps;
 
 pub use metrics::{metric_index, MetricDef, SnapValues, Stat, Unit, METRICS};

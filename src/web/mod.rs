@@ -5,6 +5,7 @@
 mod api;
 mod assets;
 mod calib;
+mod film;
 mod guard;
 mod meeting;
 mod notes;
@@ -167,6 +168,9 @@ pub fn router(state: Shared) -> Router {
         .route("/api/game", get(api::game))
         .route("/api/calibration", get(api::calibration))
         .route("/meeting", get(meeting::meeting))
+        .route("/review", get(film::review))
+        .route("/api/review", get(film::review_json))
+        .route("/cutups", get(film::cutups))
         .route("/api/notes", get(notes::list_notes).post(notes::create_note))
         .route("/api/notes/{id}", get(notes::get_note).patch(notes::update_note).delete(notes::delete_note))
         .route("/api/cutups", get(notes::list_cutups).post(notes::create_cutup))
