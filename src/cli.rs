@@ -13,7 +13,7 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 
 /// Our team and passer in the bundled demo league.
-pub const DEMO_TEAM: &str = "BRF";
+pub const DEMO_TEAM: &str = "BEK";
 pub const DEMO_PASSER: &str = "Wendell Jastennox";
 
 #[derive(Parser)]
@@ -287,21 +287,23 @@ fn text_table(t: &splits::SplitTable) -> String {
     let idx: Vec<usize> = keys.iter().filter_map(|k| splits::metric_index(k)).collect();
     let mut s = format!("{} — seasons {:?}, min {} dropbacks\n", t.situation, t.seasons, t.min_dropbacks);
     s.push_str(&format!("{:<22} {:<5}", "passer", "team"));
+    // each column as wide as its heading, at least 8
+    let width = |j: usize| METRICS[j].short.chars().count().max(8);
     for &j in &idx {
-        s.push_str(&format!(" {:>8}", METRICS[j].short));
+        s.push_str(&format!(" {:>w$}", METRICS[j].short, w = width(j)));
     }
     s.push('\n');
     let fmt = |v: Option<f64>, j: usize| v.map(|x| format!("{:.*}", METRICS[j].decimals, x)).unwrap_or_else(|| "-".into());
     s.push_str(&format!("{:<22} {:<5}", "LEAGUE", ""));
     for &j in &idx {
-        s.push_str(&format!(" {:>8}", fmt(t.league[j], j)));
+        s.push_str(&format!(" {:>w$}", fmt(t.league[j], j), w = width(j)));
     }
     s.push('\n');
     for r in t.qualified() {
         let name: String = r.passer.chars().take(22).collect();
         s.push_str(&format!("{:<22} {:<5}", name, r.team));
         for &j in &idx {
-            s.push_str(&format!(" {:>8}", fmt(r.cells[j].value, j)));
+            s.push_str(&format!(" {:>w$}", fmt(r.cells[j].value, j), w = width(j)));
         }
         s.push('\n');
     }

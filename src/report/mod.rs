@@ -64,7 +64,7 @@ pub const KEY_METRICS: [&str; 8] = ["epa", "success", "cpoe", "rating", "anya", 
 /// The reading notes printed at the foot of the page (HTML and PDF).
 pub const FOOTNOTES: [&str; 2] = [
     "Estimate: our number pulled toward the league by as much as it could be luck (empirical Bayes); 90% range: where his true level likely sits. League: every passer in the same situation and seasons.",
-    "Pct: percentile among qualified passers, 100 = best (for sack % and interception %, low is good). Signal: how much of the estimate rests on his own snaps rather than the league. WPA: change in win probability on the snap.",
+    "Pct: percentile among qualified passers, 100 = best (for sacked % and INT %, low is good). Signal: how much of the estimate rests on his own snaps rather than the league. WPA: change in win probability on the snap.",
 ];
 
 /// Where the numbers come from: stamped in the header.
@@ -102,7 +102,7 @@ pub struct KeyMetric {
 #[derive(Debug, Clone)]
 pub struct SnapLine {
     pub snap: Snap,
-    /// "W7 @ KBY"; "'24 W7 @ KBY" when the report spans several seasons.
+    /// "W7 @ KRV"; "'24 W7 @ KRV" when the report spans several seasons.
     pub game: String,
     /// "Q4 2:13", "OT 6:40".
     pub when: String,
@@ -306,14 +306,8 @@ fn key_metric(j: usize, c: &Cell) -> KeyMetric {
 }
 
 fn row_chart(m: &KeyMetric) -> Figure {
-    // Short enough for the chart's label gutter; the table has full names.
-    let name = match m.key {
-        "success" => "Success rate",
-        "cpoe" => "CPOE",
-        "anya" => "ANY/A",
-        "int_rate" => "Int %",
-        _ => m.label,
-    };
+    // The column heading fits the chart's label gutter; the table has the full names.
+    let name = m.short;
     let label = if m.higher_is_better { name.to_string() } else { format!("{name} (low = good)") };
     let row = DotRow {
         label,

@@ -4,6 +4,7 @@
 
 use super::{Paper, ReportData, ReportError, SnapLine, FOOTNOTES};
 use crate::charts::{Anchor, Figure, Shape};
+use crate::palette::{Rgb, AXIS, ESTIMATE, GAIN, GREY, GRID, INK, LEAGUE, LOSS, RANGE, RULE, STRIPE};
 use krilla::color::rgb;
 use krilla::geom::{Path, PathBuilder, Point, Rect};
 use krilla::metadata::{DateTime, Metadata};
@@ -19,19 +20,8 @@ use skrifa::{FontRef, MetadataProvider};
 static REGULAR: &[u8] = include_bytes!("../../assets/fonts/DejaVuSans.ttf");
 static BOLD: &[u8] = include_bytes!("../../assets/fonts/DejaVuSans-Bold.ttf");
 
-type Rgb = (u8, u8, u8);
-const INK: Rgb = (0x1f, 0x1f, 0x1f);
-const GREY: Rgb = (0x5f, 0x5f, 0x5f);
-const RULE: Rgb = (0xbb, 0xbb, 0xbb);
-const STRIPE: Rgb = (0xf1, 0xf3, 0xf6);
-/// Chart colours; static/report.css gives the SVG the same ones.
-const NAVY: Rgb = (0x1b, 0x3a, 0x5c);
-const RANGE: Rgb = (0x7a, 0x9c, 0xc6);
-const LEAGUE: Rgb = (0xd9, 0x5f, 0x02);
-const POS: Rgb = (0x21, 0x66, 0xac);
-const NEG: Rgb = (0xb2, 0x18, 0x2b);
-const AXIS: Rgb = (0x44, 0x44, 0x44);
-const GRID: Rgb = (0xe0, 0xe0, 0xe0);
+/// The fill of the hollow raw-value dot.
+const WHITE: Rgb = Rgb(0xff, 0xff, 0xff);
 
 /// A font for drawing (krilla) and for measuring (skrifa).
 struct Face {
@@ -148,11 +138,11 @@ fn look(class: &str) -> (Option<Rgb>, Option<(Rgb, f32)>, bool) {
         "grid" => (None, Some((GRID, 1.0)), false),
         "league" => (None, Some((LEAGUE, 2.5)), false),
         "interval" => (None, Some((RANGE, 5.0)), true),
-        "estimate" => (Some(NAVY), None, false),
-        "raw" => (Some((0xff, 0xff, 0xff)), Some((NAVY, 1.5)), false),
-        "pos" => (Some(POS), None, false),
-        "neg" => (Some(NEG), None, false),
-        "passer" => (None, Some((NAVY, 2.0)), false),
+        "estimate" => (Some(ESTIMATE), None, false),
+        "raw" => (Some(WHITE), Some((ESTIMATE, 1.5)), false),
+        "pos" => (Some(GAIN), None, false),
+        "neg" => (Some(LOSS), None, false),
+        "passer" => (None, Some((ESTIMATE, 2.0)), false),
         _ => (None, Some((AXIS, 1.0)), false),
     }
 }

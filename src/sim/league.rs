@@ -3,7 +3,7 @@
 //! retirements, releases, rookies, signings) and the weekly schedule.
 
 use super::draw::{chance, int_in, normal, shuffle, unit, SimRng};
-use super::names::{NameMaker, CLUBS};
+use super::names::{clubs, NameMaker};
 use serde::Serialize;
 
 pub(crate) const TEAMS: usize = 32;
@@ -77,8 +77,8 @@ pub(crate) struct Passer {
 
 pub(crate) struct Team {
     pub code: &'static str,
-    pub city: &'static str,
-    pub nickname: &'static str,
+    pub city: String,
+    pub nickname: String,
     /// Multiplier on the league's home boost (around 1).
     pub home_edge: f64,
     pub strength: TeamStrength,
@@ -98,9 +98,9 @@ pub(crate) struct League {
 impl League {
     pub(crate) fn new(mut rng: SimRng, first_season: i32) -> League {
         let mut names = NameMaker::new();
-        let mut teams: Vec<Team> = CLUBS
-            .iter()
-            .map(|&(code, city, nickname)| Team {
+        let mut teams: Vec<Team> = clubs()
+            .into_iter()
+            .map(|(code, city, nickname)| Team {
                 code,
                 city,
                 nickname,

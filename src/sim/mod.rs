@@ -13,6 +13,7 @@ mod tests;
 
 pub use game::{KICK_TRY_SPOT, TWO_POINT_SPOT};
 pub use league::{PasserSkills, TeamStrength};
+pub use names::LEAGUE_NAME;
 pub use truth::{write_truth, TruthRow};
 
 use crate::playfile::PlayRow;
@@ -69,6 +70,8 @@ pub struct PasserInfo {
 
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct LeagueInfo {
+    /// The league's invented name (`LEAGUE_NAME`).
+    pub name: &'static str,
     pub teams: Vec<TeamInfo>,
     pub team_seasons: Vec<TeamSeasonInfo>,
     pub passers: Vec<PasserInfo>,
@@ -77,7 +80,8 @@ pub struct LeagueInfo {
 #[derive(Debug, Clone, PartialEq)]
 pub struct SimOutput {
     /// Sorted by game key, then `seq` (from 1). Conventions of the simulated file:
-    /// - game key `season-week-AWAY-HOME`, e.g. `2021-05-HRM-KBY` (week two digits);
+    /// - game key `{season}w{week}g{number}` with two-digit week and game
+    ///   number, e.g. `2021w05g03`: the week's third game (`game_key`);
     /// - kickoffs: the kicking team is the offense, `ball_on` is the kicking
     ///   spot (35; 20 for the free kick after a safety), `touchback` true or false,
     ///   a return touchdown is `points` −6;
@@ -93,6 +97,12 @@ pub struct SimOutput {
     pub rows: Vec<PlayRow>,
     pub truth: Vec<TruthRow>,
     pub league: LeagueInfo,
+}
+
+/// The key of game `number` (from 1) of `week` in `season`, e.g. `2021w05g03`.
+/// Keys sort in the order the games are played.
+pub fn game_key(season: i32, week: i32, number: i32) -> String {
+    format!("{season}w{week:02}g{number:02}")
 }
 
 /// Games per season.
@@ -194,12 +204,11 @@ pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Opti
         for (w, week_games) in schedule.iter().enumerate() {
             let week = w as i32 + 1;
             let global_week = s * WEEKS + w as i32;
-            let mut games: Vec<(String, usize, usize)> = week_games
-                .iter()
-                .map(|&(h, a)| (format!("{season}-{week:02}-{}-{}", league.teams[a].code, league.teams[h].code), h, a))
-                .collect();
-            games.sort();
-            for (key, h, a) in games {
+            // The week's games in the order of the visiting clubs' codes.
+            let mut games: Vec<(usize, usize)> = week_games.clone();
+            games.sort_by_key(|&(_, a)| league.teams[a].code);
+            for (number, (h, a)) in games.into_iter().enumerate() {
+                let key = game_key(season, week, number as i32 + 1);
                 let qh = league.dress(h, global_week);
                 let qa = league.dress(a, global_week);
                 if w == 0 {
@@ -262,10 +271,10 @@ pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Opti
         .iter()
         .map(|t| TeamInfo {
             code: t.code.to_string(),
-            city: t.city.to_string(),
-            nickname: t.nickname.to_string(),
+            city: t.city.clone(),
+            nickname: t.nickname.clone(),
             home_points: t.home_edge * LINE_WEIGHTS[FEATURES - 1],
         })
         .collect();
-    SimOutput { rows, truth, league: LeagueInfo { teams, team_seasons, passers } }
+    SimOutput { rows, truth, league: LeagueInfo { name: LEAGUE_NAME, teams, team_seasons, passers } }
 }

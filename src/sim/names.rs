@@ -1,45 +1,49 @@
-//! Invented names for the demo league: the 32 clubs (made-up places and
-//! nicknames, three-letter codes) and the passer-name generator (ordinary
-//! first names, surnames built from syllables no real player carries).
+//! Invented names for the demo league: its name, the 32 clubs (places and
+//! nicknames built from syllables, three-letter codes taken from the places)
+//! and the passer-name generator (ordinary first names, surnames built from
+//! syllables no real player carries).
 
 use super::draw::{int_in, SimRng};
 use std::collections::HashSet;
 
-/// (code, place, nickname). Every place is invented.
-pub(crate) const CLUBS: [(&str, &str, &str); 32] = [
-    ("SLM", "Saltmarsh", "Herons"),
-    ("KBY", "Kestrel Bay", "Gulls"),
-    ("IRF", "Ironford", "Foundrymen"),
-    ("DSK", "Duskwater", "Lanterns"),
-    ("MRP", "Marrow Point", "Wreckers"),
-    ("FNH", "Fenwick Hollow", "Owls"),
-    ("LKV", "Larkspur Vale", "Stags"),
-    ("QRF", "Quarry Flats", "Masons"),
-    ("RDH", "Redfern Harbor", "Pilots"),
-    ("SVP", "Silverpine", "Lumberjacks"),
-    ("BRF", "Brindle Falls", "Millers"),
-    ("ASH", "Ashcombe", "Wardens"),
-    ("NGL", "Northgale", "Comets"),
-    ("CPH", "Copperhill", "Prospectors"),
-    ("WDX", "Windle Cross", "Drovers"),
-    ("HRM", "Harrow Mere", "Anglers"),
-    ("TMR", "Tamsin Ridge", "Harriers"),
-    ("OKR", "Oakreach", "Crofters"),
-    ("GLM", "Glimmerton", "Tinkers"),
-    ("CDL", "Cinder Lake", "Otters"),
-    ("PAV", "Port Averly", "Ferrymen"),
-    ("MSG", "Mossgrave", "Badgers"),
-    ("GWK", "Greywick", "Sentinels"),
-    ("EMJ", "Emberly Junction", "Stokers"),
-    ("STM", "Stonemere", "Quarrymen"),
-    ("VLC", "Veldt Crossing", "Marauders"),
-    ("HLS", "Halloway Sound", "Cormorants"),
-    ("BRW", "Bramblewood", "Thunderheads"),
-    ("LNT", "Lanternfield", "Beacons"),
-    ("CRW", "Crowhollow", "Ridgebacks"),
-    ("TWN", "Twinmoor", "Tanners"),
-    ("ULV", "Ulverby", "Glassblowers"),
+/// The league's name.
+pub const LEAGUE_NAME: &str = "Vardessa League";
+
+/// Club `j`'s place is `PLACE_HEAD[j]` + `PLACE_TAIL[j % 8]`, its nickname
+/// `NICK_HEAD[j]` + `NICK_TAIL[(3j + 1) % 8]`: syllables chosen so that no
+/// place or nickname is a real one.
+const PLACE_HEAD: [&str; 32] = [
+    "Sevr", "Korv", "Isk", "Dulv", "Mezz", "Farr", "Lenv", "Quesk", "Ryv", "Sylk", "Bresk", "Aldr", "Nevk", "Cresk",
+    "Wexl", "Hext", "Tesk", "Orb", "Gald", "Cael", "Pyv", "Myrn", "Gresk", "Ekkel", "Sorv", "Vyr", "Hevk", "Brenv",
+    "Lysk", "Cyrv", "Tarv", "Ursk",
 ];
+const PLACE_TAIL: [&str; 8] = ["ossa", "ennick", "avel", "ithen", "orrow", "anthe", "eyne", "ovar"];
+const NICK_HEAD: [&str; 32] = [
+    "Zemb", "Quorv", "Thess", "Vrel", "Skel", "Brov", "Dral", "Mirr", "Grell", "Yast", "Glim", "Porr", "Tresk", "Varn",
+    "Hob", "Lusk", "Fenn", "Crov", "Sarr", "Tamm", "Gorm", "Jask", "Nell", "Rusk", "Zorr", "Murr", "Tarr", "Vess",
+    "Brisk", "Cald", "Hesp", "Plov",
+];
+const NICK_TAIL: [&str; 8] = ["als", "ins", "aks", "ettes", "ords", "ikes", "ums", "ayers"];
+
+/// Each club's three-letter code: three letters of its place, in order,
+/// starting with the first. Picked by hand so that no code is a familiar
+/// abbreviation. A week's games are numbered in the order of the visiting
+/// clubs' codes.
+const CODES: [&str; 32] = [
+    "SEV", "KRV", "IKV", "DUV", "MRW", "FRH", "LVY", "QEK", "RYV", "SYK", "BEK", "ALD", "NVK", "CKN", "WXN", "HXV",
+    "TEK", "OBK", "GDV", "CEH", "PYV", "MYN", "GKY", "EKV", "SOR", "VYR", "HEK", "BNV", "LYK", "CYV", "TYN", "UKV",
+];
+
+/// The 32 clubs as (code, place, nickname), in club order.
+pub(crate) fn clubs() -> Vec<(&'static str, String, String)> {
+    (0..CODES.len())
+        .map(|j| {
+            let place = format!("{}{}", PLACE_HEAD[j], PLACE_TAIL[j % PLACE_TAIL.len()]);
+            let nickname = format!("{}{}", NICK_HEAD[j], NICK_TAIL[(3 * j + 1) % NICK_TAIL.len()]);
+            (CODES[j], place, nickname)
+        })
+        .collect()
+}
 
 const FIRST: [&str; 60] = [
     "Tobin", "Marek", "Cale", "Dorian", "Ansel", "Bram", "Cyrus", "Dex", "Emmett", "Falk",
@@ -94,5 +98,30 @@ fn roman(n: u32) -> &'static str {
         3 => "III",
         4 => "IV",
         _ => "V",
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn clubs_are_distinct_and_codes_come_from_places() {
+        let clubs = clubs();
+        assert_eq!(clubs.len(), 32);
+        let codes: HashSet<&str> = clubs.iter().map(|c| c.0).collect();
+        let places: HashSet<&str> = clubs.iter().map(|c| c.1.as_str()).collect();
+        let nicknames: HashSet<&str> = clubs.iter().map(|c| c.2.as_str()).collect();
+        assert_eq!((codes.len(), places.len(), nicknames.len()), (32, 32, 32));
+        for (code, place, _) in &clubs {
+            assert!(code.len() == 3 && code.chars().all(|c| c.is_ascii_uppercase()), "{code}");
+            assert!(place.starts_with(&code[..1]), "{code} {place}");
+            // the code's letters appear in the place in order
+            let mut rest = place.to_ascii_uppercase();
+            for c in code.chars() {
+                let at = rest.find(c).unwrap_or_else(|| panic!("{code} is not spelt from {place}"));
+                rest = rest[at + 1..].to_string();
+            }
+        }
     }
 }

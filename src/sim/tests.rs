@@ -169,6 +169,10 @@ fn sim_rows_keep_the_invariants() {
         let end = (start..rows.len()).find(|&i| &rows[i].game != key).unwrap_or(rows.len());
         let g = &rows[start..end];
         check_game(g);
+        // `{season}w{week:02}g{number:02}`, numbered from 1 within the week
+        let number: i32 = key[8..].parse().unwrap_or(0);
+        assert_eq!(*key, game_key(g[0].season, g[0].week, number), "game key {key}");
+        assert!((1..=16).contains(&number), "game key {key}");
         *team_games.entry(g[0].home.as_str()).or_default() += 1;
         *team_games.entry(g[0].away.as_str()).or_default() += 1;
         start = end;

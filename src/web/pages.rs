@@ -554,7 +554,7 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                     }
                 })
                 .collect();
-            let unit = if m.scale == 100.0 { " (%)" } else { "" };
+            let unit = if m.scale == 100.0 && !m.label.contains('%') { " (%)" } else { "" };
             (
                 format!("{}{unit}", m.label),
                 charts::dot_interval(&format!("{} — {name} by situation (dot: estimate, bar: 90% interval, tick: league)", m.label), &rows, width).to_svg(),
