@@ -43,6 +43,23 @@ fn send(method: &str, url: &str, body: Option<&Value>, headers: &[(&str, &str)])
     Reply { status, body: resp.into_string().unwrap_or_default(), headers }
 }
 
+/// The text of a PDF the server answers (pdftotext from poppler-utils).
+fn pdf_text(url: &str) -> String {
+    let resp = ureq::get(url).call().unwrap_or_else(|e| panic!("GET {url}: {e}"));
+    assert_eq!(resp.header("content-type"), Some("application/pdf"));
+    let mut bytes = Vec::new();
+    std::io::Read::read_to_end(&mut resp.into_reader(), &mut bytes).expect("PDF body");
+    assert!(bytes.starts_with(b"%PDF"), "not a PDF");
+    let dir = scratch_dir("pdf");
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("list.pdf");
+    std::fs::write(&path, &bytes).unwrap();
+    let pages = Command::new("pdfinfo").arg(&path).output().expect("pdfinfo (poppler-utils) runs");
+    assert!(String::from_utf8_lossy(&pages.stdout).lines().any(|l| l.starts_with("Pages:") && l.trim_end().ends_with(" 1")), "one page");
+    let out = Command::new("pdftotext").arg(&path).arg("-").output().expect("pdftotext (poppler-utils) runs");
+    String::from_utf8_lossy(&out.stdout).into_owned()
+}
+
 /// A server with notes in a fresh folder; also returns three real snaps
 /// (game key, seq) of the demo league.
 fn server_with_notes() -> (String, Vec<(String, i32)>) {
@@ -131,6 +148,14 @@ fn notes_and_lists_through_the_api() {
     assert_eq!(lines[2].split(',').nth(seq_col).unwrap(), snaps[2].1.to_string());
     assert!(lines[1].ends_with(",late INT: stared down the hook"), "{}", lines[1]);
     assert!(lines[2].ends_with(','), "no note on the second snap: {}", lines[2]);
+
+    // The one-page sheet holds the list's name, its snaps and the note.
+    let text = pdf_text(&format!("{base}/api/cutups/{lid}/pdf"));
+    assert!(text.contains("Late-game INTs to review"), "{text}");
+    let has = |seq: i32| text.split_whitespace().any(|w| w == format!("#{seq}"));
+    assert!(has(s0) && has(snaps[2].1), "{text}");
+    assert!(!has(snaps[1].1), "the removed snap is gone: {text}");
+    assert!(text.contains("stared down the hook"), "{text}");
 
     // The lists page shows the list and escapes what the staff typed.
     let page = get(&format!("{base}/cutups"));

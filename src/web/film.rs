@@ -153,6 +153,7 @@ pub struct ListView {
     pub id: i64,
     pub name: String,
     pub csv_href: String,
+    pub pdf_href: String,
     pub delete_url: String,
     pub rows: Vec<ListRow>,
     pub unplaced: usize,
@@ -203,7 +204,7 @@ pub fn lists_view(p: &crate::plays::Plays, v: &crate::splits::SnapValues, lists:
                     }
                 })
                 .collect();
-            ListView { id: l.id, name: l.name, csv_href: format!("/api/cutups/{}/csv", l.id), delete_url: format!("/api/cutups/{}", l.id), rows, unplaced: lost }
+            ListView { id: l.id, name: l.name, csv_href: format!("/api/cutups/{}/csv", l.id), pdf_href: format!("/api/cutups/{}/pdf", l.id), delete_url: format!("/api/cutups/{}", l.id), rows, unplaced: lost }
         })
         .collect()
 }

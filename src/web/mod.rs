@@ -176,6 +176,7 @@ pub fn router(state: Shared) -> Router {
         .route("/api/cutups", get(notes::list_cutups).post(notes::create_cutup))
         .route("/api/cutups/{id}", get(notes::get_cutup).patch(notes::update_cutup).delete(notes::delete_cutup))
         .route("/api/cutups/{id}/csv", get(notes::cutup_csv))
+        .route("/api/cutups/{id}/pdf", get(notes::cutup_pdf))
         .route("/static/{file}", get(assets::serve))
         .fallback(pages::not_found)
         .layer(middleware::from_fn(guard::same_origin))

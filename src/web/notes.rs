@@ -317,3 +317,40 @@ pub async fn cutup_csv(State(st): State<Shared>, Path(raw): Path<String>) -> Res
     let disposition = format!("attachment; filename=\"cutup-{}.csv\"", name.trim_matches('-'));
     ([(header::CONTENT_TYPE, "text/csv; charset=utf-8".to_string()), (header::CONTENT_DISPOSITION, disposition)], crate::export::cutup_csv_with_notes(&snaps, &notes)).into_response()
 }
+
+/// The list as a one-page sheet (PDF) for the video staff.
+pub async fn cutup_pdf(State(st): State<Shared>, Path(raw): Path<String>) -> Response {
+    use crate::report::{render_list_pdf, ListSheet, ListSheetRow, Paper};
+    let list = match one_list(&st, &raw).await {
+        Ok(l) => l,
+        Err(r) => return r,
+    };
+    let rows: Vec<ListSheetRow> = list
+        .snaps
+        .iter()
+        .map(|s| ListSheetRow {
+            game: format!("{} #{}", s.snap.game, s.snap.seq),
+            quarter: super::meeting::quarter(s.snap.period),
+            clock: s.snap.clock.clone(),
+            down_distance: s.snap.down_distance.clone(),
+            spot: s.snap.spot.clone(),
+            passer: s.snap.passer.clone().unwrap_or_default(),
+            result: s.snap.result.clone(),
+            note: s.notes.join(" | "),
+        })
+        .collect();
+    let mut subtitle = format!("{} snaps · list last changed {}", rows.len(), list.updated_at.replace('T', " ").trim_end_matches('Z'));
+    if let Some(t) = &list.unplaced_text {
+        subtitle.push_str(&format!(" · {t}"));
+    }
+    let sheet = ListSheet { title: list.name.clone(), subtitle, rows };
+    match tokio::task::spawn_blocking(move || render_list_pdf(&sheet, Paper::Letter)).await {
+        Ok(Ok(bytes)) => {
+            let name: String = list.name.chars().map(|c| if c.is_ascii_alphanumeric() { c.to_ascii_lowercase() } else { '-' }).collect();
+            let disposition = format!("inline; filename=\"cutup-{}.pdf\"", name.trim_matches('-'));
+            ([(header::CONTENT_TYPE, "application/pdf".to_string()), (header::CONTENT_DISPOSITION, disposition)], bytes).into_response()
+        }
+        Ok(Err(e)) => refuse(StatusCode::INTERNAL_SERVER_ERROR, e.to_string()),
+        Err(e) => refuse(StatusCode::INTERNAL_SERVER_ERROR, format!("PDF task failed: {e}")),
+    }
+}
