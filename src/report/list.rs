@@ -10,15 +10,10 @@ pub struct ListSheet {
     pub rows: Vec<ListSheetRow>,
 }
 
+/// One snap of the list and the staff's notes on it.
 #[derive(Debug, Clone)]
 pub struct ListSheetRow {
-    pub game: String,
-    pub quarter: String,
-    pub clock: String,
-    pub down_distance: String,
-    pub spot: String,
-    pub passer: String,
-    pub result: String,
+    pub snap: crate::splits::Snap,
     pub note: String,
 }
 

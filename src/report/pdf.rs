@@ -379,7 +379,10 @@ fn draw_list(pen: &mut Pen, sheet: &ListSheet, pw: f32, ph: f32) {
             pen.rect(x, y - SNAP_ROW + 3.0, w, h, STRIPE);
         }
         let num = (k + 1).to_string();
-        let cells = [num.as_str(), &r.game, &r.quarter, &r.clock, &r.down_distance, &r.spot, &r.passer, &r.result];
+        let s = &r.snap;
+        let game = format!("{} #{}", s.game, s.seq);
+        let passer = s.passer.clone().unwrap_or_default();
+        let cells = [num.as_str(), &game, &s.quarter, &s.clock, &s.down_distance, &s.spot, &passer, &s.result];
         pen.row(x, y, &widths[..8], &aligns[..8], &cells, size, false, INK);
         for (j, line) in lines.iter().enumerate() {
             pen.text(note_x + 3.0, y + SNAP_ROW * j as f32, size, false, INK, line, note_w - 6.0, Align::Left);

@@ -9,7 +9,7 @@ pub mod review;
 mod snaps;
 
 pub use metrics::{metric_index, MetricDef, SnapValues, Stat, Unit, METRICS};
-pub use snaps::{coach_spot, down_distance, game_snaps, play_list, result_text, snap_at, Snap};
+pub use snaps::{coach_spot, down_distance, game_snaps, play_list, quarter, result_text, snap_at, Snap};
 
 use crate::plays::{Plays, NO_PASSER};
 use crate::situation::{Preset, Situation};

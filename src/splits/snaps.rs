@@ -16,6 +16,8 @@ pub struct Snap {
     pub week: i32,
     pub seq: i32,
     pub period: i32,
+    /// "Q4", "OT" (a second overtime "OT2").
+    pub quarter: String,
     pub clock: String,
     pub offense: String,
     pub defense: String,
@@ -30,6 +32,15 @@ pub struct Snap {
     pub epa: f64,
     pub wp: f64,
     pub wpa: f64,
+}
+
+/// "Q4", "OT" (a second overtime "OT2").
+pub fn quarter(period: i32) -> String {
+    match period {
+        p if p <= 4 => format!("Q{p}"),
+        5 => "OT".to_string(),
+        p => format!("OT{}", p - 4),
+    }
 }
 
 /// Own 35 → "-35", opponent 20 → "+20", midfield → "50".
@@ -99,6 +110,7 @@ pub fn snap_at(p: &Plays, v: &SnapValues, i: usize) -> Snap {
         week: p.week[i],
         seq: p.seq[i],
         period: p.period[i],
+        quarter: quarter(p.period[i]),
         clock: format_clock(p.clock[i]),
         offense: p.teams[p.offense[i] as usize].clone(),
         defense: p.teams[p.defense[i] as usize].clone(),
@@ -149,6 +161,13 @@ mod tests {
         assert_eq!(coach_spot(50), "50");
         assert_eq!(coach_spot(1), "-1");
         assert_eq!(coach_spot(99), "+1");
+    }
+
+    #[test]
+    fn quarters_spell_overtime() {
+        assert_eq!(quarter(4), "Q4");
+        assert_eq!(quarter(5), "OT");
+        assert_eq!(quarter(6), "OT2");
     }
 
     #[test]

@@ -3,29 +3,22 @@
 //! and the staff's saved cut-up lists. Pure view builders; the handlers
 //! gather the engine's values off the async threads.
 
-use super::meeting::quarter;
 use super::pages::{bad_query, chrome, error_page, html, Chrome};
 use super::query::{to_query_string, Params};
 use super::Shared;
 use crate::charts::{self, Series};
 use crate::notes::{self, Cutup, Note, SnapKey};
 use crate::splits::review::{game_review, GameReview, ReviewSnap};
-use crate::splits::snap_at;
+use crate::splits::{snap_at, Snap};
 use askama::Template;
 use axum::extract::{RawQuery, State};
 use axum::http::{HeaderMap, StatusCode};
 use axum::response::Response;
 
-/// A snap row of the review, as text.
+/// A snap row of the review: the snap's own words and its numbers as text.
 pub struct ReviewRow {
-    pub game: String,
-    pub seq: i32,
-    pub quarter: String,
-    pub clock: String,
-    pub down_distance: String,
-    pub spot: String,
+    pub snap: Snap,
     pub passer: String,
-    pub result: String,
     pub epa: String,
     pub epa_pct: String,
     pub wpa: String,
@@ -56,14 +49,8 @@ fn pct_text(v: Option<f64>) -> String {
 fn row(r: &ReviewSnap) -> ReviewRow {
     let s = &r.snap;
     ReviewRow {
-        game: s.game.clone(),
-        seq: s.seq,
-        quarter: quarter(s.period),
-        clock: s.clock.clone(),
-        down_distance: s.down_distance.clone(),
-        spot: s.spot.clone(),
+        snap: s.clone(),
         passer: s.passer.clone().unwrap_or_default(),
-        result: s.result.clone(),
         epa: if s.epa.is_finite() { format!("{:+.2}", s.epa) } else { "–".into() },
         epa_pct: pct_text(r.epa_pct),
         wpa: if s.wpa.is_finite() { format!("{:+.1}%", s.wpa * 100.0) } else { "–".into() },
@@ -160,15 +147,8 @@ pub struct ListView {
 }
 
 pub struct ListRow {
-    pub game: String,
-    pub seq: i32,
-    pub quarter: String,
-    pub clock: String,
-    pub teams: String,
-    pub down_distance: String,
-    pub spot: String,
+    pub snap: Snap,
     pub passer: String,
-    pub result: String,
     pub notes: String,
 }
 
@@ -191,15 +171,8 @@ pub fn lists_view(p: &crate::plays::Plays, v: &crate::splits::SnapValues, lists:
                 .map(|(k, i)| {
                     let s = snap_at(p, v, i);
                     ListRow {
-                        game: s.game.clone(),
-                        seq: s.seq,
-                        quarter: quarter(s.period),
-                        clock: s.clock.clone(),
-                        teams: format!("{} vs {}", s.offense, s.defense),
-                        down_distance: s.down_distance.clone(),
-                        spot: s.spot.clone(),
                         passer: s.passer.clone().unwrap_or_default(),
-                        result: s.result.clone(),
+                        snap: s,
                         notes: all_notes.iter().filter(|n| n.game == k.game && n.seq == k.seq).map(|n| n.text.as_str()).collect::<Vec<_>>().join(" | "),
                     }
                 })

@@ -44,15 +44,10 @@ pub struct MetricPanel {
     pub normal_pct: Option<String>,
 }
 
-/// A snap as the video operator cues it.
+/// A snap as the video operator cues it (game, quarter, clock, down and
+/// distance, spot are the snap's own words) with its swing.
 pub struct CueSnap {
-    pub game: String,
-    pub seq: i32,
-    pub quarter: String,
-    pub clock: String,
-    pub down_distance: String,
-    pub spot: String,
-    pub result: String,
+    pub snap: Snap,
     pub wpa: String,
 }
 
@@ -77,15 +72,6 @@ pub struct MeetingView {
 /// The screens, in order: every preset but "all snaps" (his normal).
 pub fn screens() -> Vec<Preset> {
     Preset::ALL.iter().copied().filter(|p| *p != Preset::AllSnaps).collect()
-}
-
-/// "Q4", "OT" (a second overtime "OT2").
-pub fn quarter(period: i32) -> String {
-    match period {
-        p if p <= 4 => format!("Q{p}"),
-        5 => "OT".to_string(),
-        p => format!("OT{}", p - 4),
-    }
 }
 
 fn shown(m: &MetricInfo, v: Option<f64>) -> String {
@@ -160,16 +146,7 @@ fn panel(m: &MetricInfo, cell: &Cell, league: Option<f64>, normal: Option<f64>) 
 }
 
 fn cue(s: &Snap) -> CueSnap {
-    CueSnap {
-        game: s.game.clone(),
-        seq: s.seq,
-        quarter: quarter(s.period),
-        clock: s.clock.clone(),
-        down_distance: s.down_distance.clone(),
-        spot: s.spot.clone(),
-        result: s.result.clone(),
-        wpa: if s.wpa.is_finite() { format!("{:+.1} pts of WP", s.wpa * 100.0) } else { "–".into() },
-    }
+    CueSnap { snap: s.clone(), wpa: if s.wpa.is_finite() { format!("{:+.1} pts of WP", s.wpa * 100.0) } else { "–".into() } }
 }
 
 /// Links to a screen: the passer, the seasons and the position.
@@ -294,13 +271,6 @@ pub async fn meeting(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn quarters_spell_overtime() {
-        assert_eq!(quarter(4), "Q4");
-        assert_eq!(quarter(5), "OT");
-        assert_eq!(quarter(6), "OT2");
-    }
 
     #[test]
     fn verdicts_follow_the_interval_and_direction() {

@@ -328,16 +328,7 @@ pub async fn cutup_pdf(State(st): State<Shared>, Path(raw): Path<String>) -> Res
     let rows: Vec<ListSheetRow> = list
         .snaps
         .iter()
-        .map(|s| ListSheetRow {
-            game: format!("{} #{}", s.snap.game, s.snap.seq),
-            quarter: super::meeting::quarter(s.snap.period),
-            clock: s.snap.clock.clone(),
-            down_distance: s.snap.down_distance.clone(),
-            spot: s.snap.spot.clone(),
-            passer: s.snap.passer.clone().unwrap_or_default(),
-            result: s.snap.result.clone(),
-            note: s.notes.join(" | "),
-        })
+        .map(|s| ListSheetRow { snap: s.snap.clone(), note: s.notes.join(" | ") })
         .collect();
     let mut subtitle = format!("{} snaps · list last changed {}", rows.len(), list.updated_at.replace('T', " ").trim_end_matches('Z'));
     if let Some(t) = &list.unplaced_text {
