@@ -6,7 +6,7 @@
 //! start from the cache → one split (p50/p99) → the same split in pandas →
 //! a plain single pass (the floor) → explorer page render → PDF report.
 
-use lategame::league::League;
+use lategame::league::{League, LeagueConfig};
 use lategame::playfile::{self, LoadOptions};
 use lategame::situation::Preset;
 use lategame::splits;
@@ -41,8 +41,7 @@ fn main() -> anyhow::Result<()> {
     let seasons: u32 = std::env::var("LATEGAME_BENCH_SEASONS").ok().and_then(|s| s.parse().ok()).unwrap_or(25);
     let dir = std::env::temp_dir().join(format!("lategame-bench-{}", std::process::id()));
     std::fs::create_dir_all(&dir)?;
-    // SAFETY: single-threaded at this point.
-    unsafe { std::env::set_var("LATEGAME_CACHE_DIR", dir.join("cache")) };
+    let league_cfg = LeagueConfig { cache_dir: Some(dir.join("cache")), ..LeagueConfig::new(dir.join("league.parquet")) };
     println!("lategame benchmark: {seasons} simulated seasons on {} cores", std::thread::available_parallelism().map(|n| n.get()).unwrap_or(1));
 
     let t = Instant::now();
@@ -59,11 +58,11 @@ fn main() -> anyhow::Result<()> {
     println!("load + validate          {:>9.2} s", t.elapsed().as_secs_f64());
     let fp = loaded.fingerprint.clone();
     let t = Instant::now();
-    let scored = lategame::models::fit_and_score(loaded.plays, &fp, true)?;
+    let scored = lategame::models::fit_and_score_in(loaded.plays, &fp, true, league_cfg.cache_dir.as_deref())?;
     println!("fit EP+WP+CP, calibrate, score (cold) {:>6.2} s", t.elapsed().as_secs_f64());
     drop(scored);
     let t = Instant::now();
-    let league = League::open(&path, &LoadOptions::default(), false)?;
+    let league = League::open_with(&league_cfg)?;
     println!("warm start (load + cached models + score) {:>5.2} s   (from cache: {})", t.elapsed().as_secs_f64(), league.scored.from_cache);
 
     let s = Preset::LateClose.situation(8);
@@ -110,9 +109,9 @@ fn main() -> anyhow::Result<()> {
         Err(e) => println!("pandas: python3 not runnable: {e}"),
     }
 
-    let state = std::sync::Arc::new(lategame::web::AppState::new(league, false, None, None, None));
+    let app = lategame::web::App::new(league, lategame::web::AppConfig::new(league_cfg));
     let rt = tokio::runtime::Builder::new_current_thread().enable_all().build()?;
-    let router = lategame::web::router(state.clone());
+    let (state, router) = (app.state, app.router);
     let render = |uri: String| {
         rt.block_on(async {
             use tower::ServiceExt;

@@ -2,10 +2,11 @@
 //! `report`. Parses arguments with clap, sets up logging and progress bars,
 //! and calls the library; no logic of its own.
 
-use crate::league::{demo_path, League};
+use crate::league::{demo_path, League, LeagueConfig};
 use crate::playfile::{self, LoadOptions};
 use crate::situation::{Preset, Situation};
 use crate::splits::{self, METRICS};
+use crate::web::{AppConfig, ServeConfig};
 use anyhow::{Context, Result};
 use clap::{Parser, Subcommand, ValueEnum};
 use indicatif::{ProgressBar, ProgressStyle};
@@ -116,6 +117,28 @@ pub struct ServeArgs {
     pub data_dir: Option<PathBuf>,
 }
 
+impl ServeArgs {
+    /// The server's own configuration from these flags (models cached in
+    /// the user's cache folder).
+    fn config(&self) -> ServeConfig {
+        let league = LeagueConfig {
+            load: LoadOptions { lenient: self.lenient },
+            refit: self.refit,
+            ..LeagueConfig::new(self.file.clone().unwrap_or_else(demo_path))
+        };
+        ServeConfig {
+            app: AppConfig {
+                team: self.team.clone(),
+                passer: self.passer.clone(),
+                data_dir: Some(self.data_dir.clone().unwrap_or_else(crate::notes::default_data_dir)),
+                ..AppConfig::new(league)
+            },
+            bind: self.bind.clone(),
+            share: self.share,
+        }
+    }
+}
+
 #[derive(Clone, Copy, ValueEnum)]
 enum Format {
     Table,
@@ -148,9 +171,13 @@ fn spinner(msg: &str) -> ProgressBar {
 
 /// Load, fit and score with a spinner.
 pub fn open_league(file: Option<PathBuf>, lenient: bool, refit: bool) -> Result<League> {
-    let path = file.unwrap_or_else(demo_path);
-    let pb = spinner(&format!("loading {} and fitting models", path.display()));
-    let league = League::open(&path, &LoadOptions { lenient }, refit);
+    let cfg = LeagueConfig { load: LoadOptions { lenient }, refit, ..LeagueConfig::new(file.unwrap_or_else(demo_path)) };
+    open_configured(&cfg)
+}
+
+fn open_configured(cfg: &LeagueConfig) -> Result<League> {
+    let pb = spinner(&format!("loading {} and fitting models", cfg.path.display()));
+    let league = League::open_with(cfg);
     pb.finish_and_clear();
     let league = league?;
     if league.report.has_errors() {
@@ -171,15 +198,16 @@ fn run(cli: Cli) -> Result<ExitCode> {
         data_dir: None,
     }));
     match cmd {
-        Cmd::Serve(mut args) => {
+        Cmd::Serve(args) => {
             let demo = args.file.is_none();
-            let league = open_league(args.file.clone(), args.lenient, args.refit)?;
-            if demo && args.team.is_none() && args.passer.is_none() {
+            let mut cfg = args.config();
+            let league = open_configured(&cfg.app.league)?;
+            if demo && cfg.app.team.is_none() && cfg.app.passer.is_none() {
                 // The bundled demo's scenario (demo-data/README.md).
-                args.team = Some(DEMO_TEAM.to_string());
-                args.passer = league.plays().passer_index(DEMO_PASSER).map(|_| DEMO_PASSER.to_string());
+                cfg.app.team = Some(DEMO_TEAM.to_string());
+                cfg.app.passer = league.plays().passer_index(DEMO_PASSER).map(|_| DEMO_PASSER.to_string());
             }
-            crate::web::serve_blocking(league, &args)?;
+            crate::web::serve_blocking(league, cfg)?;
             Ok(ExitCode::SUCCESS)
         }
         Cmd::Check { file } => {

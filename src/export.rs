@@ -2,26 +2,53 @@
 //! Every text cell that a spreadsheet could take for a formula is
 //! neutralised.
 
-use crate::splits::{Snap, SplitTable, METRICS};
+use crate::splits::{Snap, SplitTable, Stat, METRICS};
+use std::borrow::Cow;
 
-/// A cell safe to open in a spreadsheet: text beginning with `=`, `+`,
-/// `-`, `@` (or a tab / carriage return) gets a leading `'`, unless the
+/// Text a spreadsheet could take for a formula (beginning with `=`, `+`,
+/// `-`, `@`, a tab or a carriage return) gets a leading `'`, unless the
 /// whole cell is a plain number such as `-0.52` or `+20`.
-pub fn safe_cell(s: &str) -> String {
+fn neutralise(s: &str) -> Cow<'_, str> {
     let risky = s.starts_with(['=', '+', '-', '@', '\t', '\r']);
-    let numeric = s.parse::<f64>().is_ok();
-    let s = if risky && !numeric { format!("'{s}") } else { s.to_string() };
-    if s.contains([',', '"', '\n', '\r']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
+    if risky && s.parse::<f64>().is_err() {
+        Cow::Owned(format!("'{s}"))
     } else {
-        s
+        Cow::Borrowed(s)
     }
 }
 
-fn line(cells: &[String]) -> String {
-    let mut s = cells.iter().map(|c| safe_cell(c)).collect::<Vec<_>>().join(",");
-    s.push('\n');
-    s
+/// Rows written with the `csv` crate, every cell neutralised.
+struct CsvText(csv::Writer<Vec<u8>>);
+
+impl CsvText {
+    fn new() -> CsvText {
+        // Flexible: a record of any length is accepted, so writing to memory
+        // cannot fail.
+        CsvText(csv::WriterBuilder::new().flexible(true).from_writer(Vec::new()))
+    }
+    fn row<S: AsRef<str>>(&mut self, cells: &[S]) {
+        let written = self.0.write_record(cells.iter().map(|c| neutralise(c.as_ref()).into_owned()));
+        debug_assert!(written.is_ok(), "writing CSV to memory: {written:?}");
+    }
+    fn finish(self) -> String {
+        // Flushing into memory cannot fail.
+        let bytes = self.0.into_inner().unwrap_or_default();
+        // Every cell went in as UTF-8 text, so the output is UTF-8.
+        String::from_utf8(bytes).unwrap_or_else(|e| String::from_utf8_lossy(e.as_bytes()).into_owned())
+    }
+}
+
+/// One cell as it appears in our CSV files: neutralised (see `neutralise`)
+/// and quoted when it holds a comma, a quote or a line break.
+pub fn safe_cell(s: &str) -> String {
+    if s.is_empty() {
+        return String::new();
+    }
+    let mut out = CsvText::new();
+    out.row(&[s]);
+    let mut text = out.finish();
+    text.pop(); // the record's line break
+    text
 }
 
 fn num(v: f64, decimals: usize) -> String {
@@ -32,7 +59,8 @@ fn num(v: f64, decimals: usize) -> String {
     }
 }
 
-/// The cut-up: one row per snap for the video staff.
+/// The cut-up: one row per snap for the video staff, each thing the video
+/// operator cues by in its own column.
 pub fn cutup_csv(snaps: &[Snap]) -> String {
     cutup_rows(snaps, None)
 }
@@ -43,37 +71,49 @@ pub fn cutup_csv_with_notes(snaps: &[Snap], notes: &[String]) -> String {
     cutup_rows(snaps, Some(notes))
 }
 
+/// The cut-up's column names, in order (without the notes column).
+pub const CUTUP_COLUMNS: [&str; 20] = [
+    "game", "season", "week", "seq", "quarter", "clock", "offense", "defense", "score", "down", "to_go", "yard_line", "drive", "play_in_drive", "kind",
+    "passer", "result", "epa", "wpa", "down_distance",
+];
+
 fn cutup_rows(snaps: &[Snap], notes: Option<&[String]>) -> String {
-    let mut head = ["game", "season", "week", "seq", "period", "clock", "offense", "defense", "score", "down_distance", "spot", "kind", "passer", "result", "epa", "wpa"].map(String::from).to_vec();
+    let mut out = CsvText::new();
+    let mut head: Vec<&str> = CUTUP_COLUMNS.to_vec();
     if notes.is_some() {
-        head.push("notes".into());
+        head.push("notes");
     }
-    let mut out = line(&head);
+    out.row(&head);
+    let opt = |v: Option<i32>| v.map(|x| x.to_string()).unwrap_or_default();
     for (k, s) in snaps.iter().enumerate() {
         let mut cells = vec![
             s.game.clone(),
             s.season.to_string(),
             s.week.to_string(),
             s.seq.to_string(),
-            s.period.to_string(),
+            s.quarter.clone(),
             s.clock.clone(),
             s.offense.clone(),
             s.defense.clone(),
             s.score.clone(),
-            s.down_distance.clone(),
+            opt(s.down),
+            opt(s.to_go),
             s.spot.clone(),
+            s.drive.to_string(),
+            s.play_in_drive.to_string(),
             s.kind.to_string(),
             s.passer.clone().unwrap_or_default(),
             s.result.clone(),
             num(s.epa, 3),
             num(s.wpa, 4),
+            s.down_distance.clone(),
         ];
         if let Some(n) = notes {
             cells.push(n.get(k).cloned().unwrap_or_default());
         }
-        out.push_str(&line(&cells));
+        out.row(&cells);
     }
-    out
+    out.finish()
 }
 
 /// The split table: per passer, each metric's value, estimate and interval.
@@ -81,29 +121,30 @@ pub fn split_csv(t: &SplitTable) -> String {
     let mut head = vec!["passer".to_string(), "team".to_string(), "qualified".to_string()];
     for m in METRICS {
         head.push(m.key.to_string());
-        if m.stat != crate::splits::Stat::Count {
+        if m.stat != Stat::Count {
             for suffix in ["league", "adjusted_league", "estimate", "lo90", "hi90", "signal", "percentile"] {
                 head.push(format!("{}_{suffix}", m.key));
             }
         }
     }
-    let mut out = line(&head);
+    let mut out = CsvText::new();
+    out.row(&head);
     let opt = |v: Option<f64>, d: usize| v.map(|x| num(x, d)).unwrap_or_default();
     let mut league = vec!["LEAGUE".to_string(), String::new(), String::new()];
     for (j, m) in METRICS.iter().enumerate() {
         league.push(opt(t.league[j], m.decimals + 1));
-        if m.stat != crate::splits::Stat::Count {
+        if m.stat != Stat::Count {
             league.extend(std::iter::repeat_n(String::new(), 7));
         }
     }
-    out.push_str(&line(&league));
+    out.row(&league);
     for r in &t.rows {
         let mut cells = vec![r.passer.clone(), r.team.clone(), r.qualified.to_string()];
         for (j, m) in METRICS.iter().enumerate() {
             let c = &r.cells[j];
             let d = m.decimals + 1;
             cells.push(opt(c.value, d));
-            if m.stat != crate::splits::Stat::Count {
+            if m.stat != Stat::Count {
                 cells.push(opt(c.league, d));
                 cells.push(opt(c.adjusted_league, d));
                 cells.push(opt(c.estimate, d));
@@ -113,14 +154,42 @@ pub fn split_csv(t: &SplitTable) -> String {
                 cells.push(opt(c.percentile, 0));
             }
         }
-        out.push_str(&line(&cells));
+        out.row(&cells);
     }
-    out
+    out.finish()
 }
 
 #[cfg(test)]
 mod tests {
-    use super::safe_cell;
+    use super::*;
+    use proptest::prelude::*;
+
+    /// The rule written out by hand: neutralise, then quote a cell holding
+    /// a comma, a quote or a line break (RFC 4180), doubling its quotes.
+    fn twin(s: &str) -> String {
+        let risky = s.starts_with(['=', '+', '-', '@', '\t', '\r']);
+        let s = if risky && s.parse::<f64>().is_err() { format!("'{s}") } else { s.to_string() };
+        if s.contains([',', '"', '\n', '\r']) {
+            format!("\"{}\"", s.replace('"', "\"\""))
+        } else {
+            s
+        }
+    }
+
+    proptest! {
+        #[test]
+        fn the_csv_writer_quotes_as_the_rule_says(s in "[a-z=+@,\"\n\r\t 0-9.-]{0,12}") {
+            prop_assert_eq!(safe_cell(&s), twin(&s));
+        }
+
+        #[test]
+        fn rows_are_the_cells_joined(cells in proptest::collection::vec("[a-z=+,\" -]{0,6}", 2..5)) {
+            let mut out = CsvText::new();
+            out.row(&cells);
+            let want = cells.iter().map(|c| twin(c)).collect::<Vec<_>>().join(",") + "\n";
+            prop_assert_eq!(out.finish(), want);
+        }
+    }
 
     #[test]
     fn formula_cells_are_neutralised() {

@@ -1,12 +1,51 @@
 //! Opening a league: load and validate the play file, fit (or restore from
 //! the cache) the models, score every snap. The result is what the split
-//! engine, pages, API and report read.
+//! engine, pages, API and report read; `SnapValues` is the per-snap view of
+//! the scores the split engine takes.
 
 use crate::models::{self, Scored};
-use crate::playfile::{self, LoadOptions, LoadReport};
-use crate::splits::SnapValues;
-use anyhow::Result;
+use crate::playfile::{self, LoadError, LoadOptions, LoadReport};
 use std::path::{Path, PathBuf};
+
+/// Per-snap values the models add, borrowed from the scored league: what
+/// the split engine reads beside `Plays`.
+#[derive(Clone, Copy)]
+pub struct SnapValues<'a> {
+    pub epa: &'a [f64],
+    pub wp: &'a [f64],
+    pub wpa: &'a [f64],
+    pub cp: &'a [f64],
+}
+
+/// Where a league comes from and how it is opened.
+#[derive(Debug, Clone)]
+pub struct LeagueConfig {
+    /// The play file or folder.
+    pub path: PathBuf,
+    pub load: LoadOptions,
+    /// Fit the models again even when cached coefficients exist.
+    pub refit: bool,
+    /// Where fitted models are cached; `None`: fit every time, store nothing.
+    pub cache_dir: Option<PathBuf>,
+}
+
+impl LeagueConfig {
+    /// `path`, strict, models cached in the user's cache folder
+    /// (`models::cache::cache_dir`, which `LATEGAME_CACHE_DIR` overrides).
+    pub fn new(path: impl Into<PathBuf>) -> LeagueConfig {
+        LeagueConfig { path: path.into(), load: LoadOptions::default(), refit: false, cache_dir: models::cache::cache_dir() }
+    }
+}
+
+/// Why a league could not be opened.
+#[derive(Debug, thiserror::Error)]
+pub enum LeagueError {
+    /// The file was refused; the report says why.
+    #[error(transparent)]
+    Load(#[from] LoadError),
+    #[error("fitting the models: {0}")]
+    Models(String),
+}
 
 /// A scored league and how it was loaded.
 pub struct League {
@@ -16,8 +55,10 @@ pub struct League {
 }
 
 impl League {
-    pub fn open(path: &Path, opts: &LoadOptions, refit: bool) -> Result<League> {
-        let loaded = playfile::load(path, opts)?;
+    /// Load, fit (or restore from `cfg.cache_dir`) and score.
+    pub fn open_with(cfg: &LeagueConfig) -> Result<League, LeagueError> {
+        let path = &cfg.path;
+        let loaded = playfile::load(path, &cfg.load)?;
         tracing::info!(
             snaps = loaded.plays.len(),
             games = loaded.plays.games.len(),
@@ -25,8 +66,14 @@ impl League {
             "loaded {}",
             path.display()
         );
-        let scored = models::fit_and_score(loaded.plays, &loaded.fingerprint, refit)?;
-        Ok(League { source: path.to_path_buf(), report: loaded.report, scored })
+        let scored = models::fit_and_score_in(loaded.plays, &loaded.fingerprint, cfg.refit, cfg.cache_dir.as_deref())
+            .map_err(|e| LeagueError::Models(format!("{e:#}")))?;
+        Ok(League { source: path.clone(), report: loaded.report, scored })
+    }
+
+    /// `open_with` with the user's cache folder.
+    pub fn open(path: &Path, opts: &LoadOptions, refit: bool) -> Result<League, LeagueError> {
+        League::open_with(&LeagueConfig { load: *opts, refit, ..LeagueConfig::new(path) })
     }
 
     pub fn values(&self) -> SnapValues<'_> {

@@ -7,6 +7,7 @@ pub mod charts;
 pub mod cli;
 pub mod export;
 pub mod fuzz_props;
+pub mod layout;
 pub mod league;
 pub mod models;
 pub mod notes;

@@ -4,7 +4,7 @@
 //! drive, dropback, next score in the half, each game's result).
 //! Built only by `playfile::load`; read by every later stage, never changed.
 
-use crate::playfile::{Kind, PlayRow};
+use crate::layout::{Kind, PlayRow};
 use serde::Serialize;
 
 /// Marker for "no passer on this snap" in `Plays::passer`.

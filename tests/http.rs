@@ -186,8 +186,7 @@ fn markup_from_the_file_is_shown_as_text() {
     std::fs::create_dir_all(&dir).unwrap();
     let path = dir.join("evil.parquet");
     write_rows(&out.rows, &path).unwrap();
-    use_test_cache();
-    let league = lategame::league::League::open(&path, &Default::default(), false).unwrap();
+    let league = open_league(&path);
     let base = spawn(league, None, Some(evil.to_string()), None);
     for url in [format!("{base}/explore?preset=all&min=1"), format!("{base}/passer?passer={}", enc(evil)), format!("{base}/plays?preset=all&passer={}", enc(evil)), format!("{base}/")] {
         let r = get(&url);
@@ -200,7 +199,6 @@ fn markup_from_the_file_is_shown_as_text() {
 
 #[test]
 fn shared_mode_needs_the_token() {
-    use_test_cache();
     let base = spawn(demo_league(), None, None, Some("abc123".into()));
     assert_eq!(get(&format!("{base}/")).status, 401);
     assert_eq!(get(&format!("{base}/api/summary")).status, 401);

@@ -5,37 +5,8 @@
 
 mod common;
 
-use std::io::{BufRead, BufReader};
-use std::path::{Path, PathBuf};
-use std::process::{Child, Command, Stdio};
-
-fn start(data: &Path) -> (Child, String) {
-    let cache = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target").join("test-cache");
-    let mut child = Command::new(env!("CARGO_BIN_EXE_lategame"))
-        .args(["serve", "--bind", "127.0.0.1:0", "--data-dir"])
-        .arg(data)
-        .env("LATEGAME_CACHE_DIR", cache)
-        .stdout(Stdio::piped())
-        .stderr(Stdio::null())
-        .spawn()
-        .expect("server binary starts");
-    let mut lines = BufReader::new(child.stdout.take().expect("stdout")).lines();
-    let url = loop {
-        match lines.next() {
-            Some(Ok(l)) => {
-                if let Some(rest) = l.strip_prefix("lategame is serving on ") {
-                    break rest.trim_end_matches('/').to_string();
-                }
-            }
-            _ => {
-                let _ = child.kill();
-                panic!("server exited before saying where it serves");
-            }
-        }
-    };
-    std::thread::spawn(move || for _ in lines {});
-    (child, url)
-}
+use std::path::PathBuf;
+use std::process::Command;
 
 #[test]
 fn meeting_view_walks_every_situation_and_notes_survive_a_restart() {
@@ -58,14 +29,14 @@ fn meeting_view_walks_every_situation_and_notes_survive_a_restart() {
     let shots = root.join("target/screenshots");
     std::fs::create_dir_all(&shots).unwrap();
 
-    let (mut child, base) = start(&data);
+    let (mut child, base) = common::start_binary(&data);
     let out = Command::new("node").arg(root.join("tests/browser/meeting.mjs")).arg(&base).arg(&shots).arg(&passer).arg(keys.join(",")).output().expect("node runs");
     let text = format!("{}{}", String::from_utf8_lossy(&out.stdout), String::from_utf8_lossy(&out.stderr));
     child.kill().ok();
     child.wait().ok();
     assert!(out.status.success() && text.contains("meeting check passed"), "{text}");
 
-    let (mut child, base) = start(&data);
+    let (mut child, base) = common::start_binary(&data);
     let notes = common::get(&format!("{base}/api/notes")).json();
     let lists = common::get(&format!("{base}/api/cutups")).json();
     child.kill().ok();

@@ -5,12 +5,10 @@ mod common;
 
 use common::*;
 use lategame::notes::{database_path, NoteStore};
-use lategame::web::AppState;
+use lategame::web::{App, AppConfig};
 use serde_json::{json, Value};
-use std::io::{BufRead, BufReader};
 use std::path::PathBuf;
-use std::process::{Command, Stdio};
-use std::sync::Arc;
+use std::process::Command;
 use std::sync::atomic::{AtomicUsize, Ordering};
 
 fn scratch_dir(tag: &str) -> PathBuf {
@@ -67,12 +65,15 @@ fn server_with_notes() -> (String, Vec<(String, i32)>) {
     let p = league.plays();
     let g = &p.games[3];
     let snaps = (g.start..g.start + 3).map(|i| (g.key.clone(), p.seq[i])).collect();
-    let store = NoteStore::open(&database_path(&scratch_dir("http"))).expect("notes database opens");
-    // Written against another version of the file: its game is not in this one.
-    let gone = lategame::notes::SnapKey { game: "an-older-game".into(), seq: 4 };
-    store.add_note("another-fingerprint", &gone, "from last year's file").expect("note written");
-    let state = Arc::new(AppState::new(league, false, None, None, None).with_notes(store));
-    (spawn_state(state), snaps)
+    let dir = scratch_dir("http");
+    {
+        let store = NoteStore::open(&database_path(&dir)).expect("notes database opens");
+        // Written against another version of the file: its game is not in this one.
+        let gone = lategame::notes::SnapKey { game: "an-older-game".into(), seq: 4 };
+        store.add_note("another-fingerprint", &gone, "from last year's file").expect("note written");
+    }
+    let cfg = AppConfig { data_dir: Some(dir), ..AppConfig::new(league_config(&league.source)) };
+    (spawn_app(App::new(league, cfg)), snaps)
 }
 
 #[test]
@@ -174,38 +175,6 @@ fn notes_and_lists_through_the_api() {
     assert_eq!((after["count"].as_i64(), after["unplaced"].as_i64()), (Some(0), Some(1)));
 }
 
-/// The server binary on a free port with its own notes folder; returns the
-/// child and its base URL once it answers.
-fn start_binary(data: &std::path::Path) -> (std::process::Child, String) {
-    let cache = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target").join("test-cache");
-    let mut child = Command::new(env!("CARGO_BIN_EXE_lategame"))
-        .args(["serve", "--bind", "127.0.0.1:0", "--data-dir"])
-        .arg(data)
-        .env("LATEGAME_CACHE_DIR", cache)
-        .stdout(Stdio::piped())
-        .stderr(Stdio::null())
-        .spawn()
-        .expect("server binary starts");
-    let out = child.stdout.take().expect("stdout");
-    let mut lines = BufReader::new(out).lines();
-    let url = loop {
-        match lines.next() {
-            Some(Ok(l)) => {
-                if let Some(rest) = l.strip_prefix("lategame is serving on ") {
-                    break rest.trim_end_matches('/').to_string();
-                }
-            }
-            _ => {
-                let _ = child.kill();
-                panic!("server exited before saying where it serves");
-            }
-        }
-    };
-    // Keep draining stdout so the child never blocks on a full pipe.
-    std::thread::spawn(move || for _ in lines {});
-    (child, url)
-}
-
 #[test]
 fn a_note_survives_sigkill_right_after_the_post_returns() {
     let data = scratch_dir("kill");
@@ -215,7 +184,7 @@ fn a_note_survives_sigkill_right_after_the_post_returns() {
     let (game, seq) = (g.key.clone(), p.seq[g.start + 4]);
     drop(league);
 
-    let (mut child, base) = start_binary(&data);
+    let (mut child, base) = common::start_binary(&data);
     let r = send("POST", &format!("{base}/api/notes"), Some(&json!({"game": game, "seq": seq, "text": "check the protection here"})), &[]);
     assert_eq!(r.status, 201, "{}", r.body);
     let r = send("POST", &format!("{base}/api/cutups"), Some(&json!({"name": "Protection", "snaps": [{"game": game, "seq": seq}]})), &[]);
@@ -224,7 +193,7 @@ fn a_note_survives_sigkill_right_after_the_post_returns() {
     child.kill().expect("kill");
     child.wait().expect("wait");
 
-    let (mut child, base) = start_binary(&data);
+    let (mut child, base) = common::start_binary(&data);
     let notes = get(&format!("{base}/api/notes")).json();
     let lists = get(&format!("{base}/api/cutups")).json();
     child.kill().ok();

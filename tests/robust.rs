@@ -51,10 +51,9 @@ fn scratch(tag: &str) -> std::path::PathBuf {
 
 #[test]
 fn ten_thousand_random_requests_never_get_a_5xx() {
-    use_test_cache();
     let dir = scratch("robust");
     let path = small_league_file(1, 11, &dir, "one.parquet");
-    let league = lategame::league::League::open(&path, &Default::default(), false).unwrap();
+    let league = open_league(&path);
     let passer = league.plays().passers[0].clone();
     let base = spawn(league, None, None, None);
     let mut g = Gen(0x5eed_1234_abcd_0001);
@@ -88,10 +87,9 @@ fn ten_thousand_random_requests_never_get_a_5xx() {
 
 #[test]
 fn a_bad_new_file_does_not_replace_the_loaded_one() {
-    use_test_cache();
     let dir = scratch("reload");
     let path = small_league_file(1, 21, &dir, "league.parquet");
-    let league = lategame::league::League::open(&path, &Default::default(), false).unwrap();
+    let league = open_league(&path);
     let snaps = league.plays().len() as u64;
     let base = spawn(league, None, None, None);
     // the file changes under the running server: garbage first

@@ -2,7 +2,7 @@
 //! after header checks (missing, duplicated columns) and a UTF-8 check that
 //! can name the row. Listing the files of a folder; the data fingerprint.
 
-use super::validate::{Issue, IssueKind};
+use super::report::{group, Issue, IssueKind};
 use super::{FileFormat, COLUMNS};
 use polars::prelude::*;
 use sha2::{Digest, Sha256};
@@ -181,17 +181,4 @@ fn to_table(name: &str, df: DataFrame) -> Result<RawTable, Vec<Issue>> {
         columns.push(Some(as_text));
     }
     Ok(RawTable { file: name.to_string(), height, columns })
-}
-
-/// 1204 → "1,204".
-pub fn group(n: usize) -> String {
-    let s = n.to_string();
-    let mut out = String::new();
-    for (i, ch) in s.chars().enumerate() {
-        if i > 0 && (s.len() - i) % 3 == 0 {
-            out.push(',');
-        }
-        out.push(ch);
-    }
-    out
 }

@@ -1,9 +1,23 @@
 //! Writing play rows (and scored frames) to CSV or Parquet with polars.
 
 use super::{format_clock, PlayRow};
-use anyhow::{anyhow, Context, Result};
 use polars::prelude::{Column, CsvWriter, DataFrame, ParquetCompression, ParquetWriter, SerWriter};
 use std::path::Path;
+
+/// Why rows or a frame could not be written.
+#[derive(Debug, thiserror::Error)]
+pub enum WriteError {
+    #[error("{0}: expected a .csv or .parquet file name")]
+    Format(String),
+    #[error("creating {path}: {source}")]
+    Create { path: String, source: std::io::Error },
+    #[error("building the play frame: {0}")]
+    Frame(String),
+    #[error("writing {path}: {message}")]
+    Write { path: String, message: String },
+}
+
+type Result<T> = std::result::Result<T, WriteError>;
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum FileFormat {
@@ -17,7 +31,7 @@ impl FileFormat {
         match path.extension().and_then(|e| e.to_str()).map(|e| e.to_ascii_lowercase()) {
             Some(e) if e == "csv" => Ok(FileFormat::Csv),
             Some(e) if e == "parquet" => Ok(FileFormat::Parquet),
-            _ => anyhow::bail!("{}: expected a .csv or .parquet file name", path.display()),
+            _ => Err(WriteError::Format(path.display().to_string())),
         }
     }
 }
@@ -56,7 +70,7 @@ pub fn rows_frame(rows: &[PlayRow]) -> Result<DataFrame> {
         Column::new("points".into(), s(rows, |r| r.points)),
         Column::new("home_line".into(), s(rows, |r| r.home_line)),
     ];
-    DataFrame::new(rows.len(), cols).map_err(|e| anyhow!("building the play frame: {e}"))
+    DataFrame::new(rows.len(), cols).map_err(|e| WriteError::Frame(e.to_string()))
 }
 
 /// Write rows to `path` (format from the extension). Never overwrites the
@@ -70,22 +84,23 @@ pub fn write_frame(df: &mut DataFrame, path: &Path) -> Result<()> {
     let format = FileFormat::from_path(path)?;
     if let Some(dir) = path.parent() {
         if !dir.as_os_str().is_empty() {
-            std::fs::create_dir_all(dir).with_context(|| format!("creating {}", dir.display()))?;
+            std::fs::create_dir_all(dir).map_err(|source| WriteError::Create { path: dir.display().to_string(), source })?;
         }
     }
-    let file = std::fs::File::create(path).with_context(|| format!("creating {}", path.display()))?;
+    let file = std::fs::File::create(path).map_err(|source| WriteError::Create { path: path.display().to_string(), source })?;
+    let failed = |e: polars::prelude::PolarsError| WriteError::Write { path: path.display().to_string(), message: e.to_string() };
     match format {
         FileFormat::Csv => {
             CsvWriter::new(file)
                 .include_header(true)
                 .finish(df)
-                .map_err(|e| anyhow!("writing {}: {e}", path.display()))?;
+                .map_err(failed)?;
         }
         FileFormat::Parquet => {
             ParquetWriter::new(file)
                 .with_compression(ParquetCompression::Zstd(None))
                 .finish(df)
-                .map_err(|e| anyhow!("writing {}: {e}", path.display()))?;
+                .map_err(failed)?;
         }
     }
     Ok(())

@@ -143,14 +143,8 @@ pub fn metric_index(key: &str) -> Option<usize> {
     METRICS.iter().position(|m| m.key == key)
 }
 
-/// Per-snap values the models add, borrowed from the scored league.
-#[derive(Clone, Copy)]
-pub struct SnapValues<'a> {
-    pub epa: &'a [f64],
-    pub wp: &'a [f64],
-    pub wpa: &'a [f64],
-    pub cp: &'a [f64],
-}
+/// Per-snap values the models add (defined with the scored league).
+pub use crate::league::SnapValues;
 
 /// Touchdown pass: a completion on which the offense scored six.
 pub fn is_td_pass(p: &Plays, i: usize) -> bool {

@@ -24,6 +24,12 @@ pub struct Snap {
     /// Offense score – defense score before the snap.
     pub score: String,
     pub down_distance: String,
+    /// Down and yards to go (none on kickoffs and tries).
+    pub down: Option<i32>,
+    pub to_go: Option<i32>,
+    /// Drive number within the game, and the snap's place in the drive (from 1).
+    pub drive: i32,
+    pub play_in_drive: i32,
     /// Ball spot in coaching notation: own side −35, opponent side +20.
     pub spot: String,
     pub kind: &'static str,
@@ -116,6 +122,13 @@ pub fn snap_at(p: &Plays, v: &SnapValues, i: usize) -> Snap {
         defense: p.teams[p.defense[i] as usize].clone(),
         score: format!("{}-{}", p.off_score[i], p.def_score[i]),
         down_distance: down_distance(p.down[i], p.to_go[i], p.ball_on[i]),
+        down: (1..=4).contains(&p.down[i]).then_some(p.down[i]),
+        to_go: (1..=4).contains(&p.down[i]).then_some(p.to_go[i]),
+        drive: p.drive[i],
+        play_in_drive: {
+            let start = p.games[p.game[i] as usize].start;
+            (start..=i).rev().take_while(|&j| p.drive[j] == p.drive[i]).count() as i32
+        },
         spot: coach_spot(p.ball_on[i]),
         kind: p.kind[i].as_str(),
         passer: p.passer_name(i).map(str::to_string),

@@ -12,10 +12,7 @@ mod notes;
 mod pages;
 pub mod query;
 
-use crate::cli::ServeArgs;
-use crate::league::League;
-use crate::playfile::LoadOptions;
-use anyhow::{Context, Result};
+use crate::league::{League, LeagueConfig};
 use axum::extract::{Request, State};
 use axum::http::{header, HeaderValue, StatusCode};
 use axum::middleware::{self, Next};
@@ -23,23 +20,71 @@ use axum::response::{IntoResponse, Response};
 use axum::routing::{get, post};
 use crate::notes::NoteStore;
 use axum::Router;
+use axum_extra::extract::cookie::{Cookie, CookieJar, SameSite};
 use std::net::SocketAddr;
-use std::path::PathBuf;
 use std::sync::{Arc, RwLock};
 use std::time::Duration;
 use tower_http::limit::RequestBodyLimitLayer;
 use tower_http::set_header::SetResponseHeaderLayer;
 use tower_http::timeout::TimeoutLayer;
+use tower_http::trace::TraceLayer;
+use tower_http::classify::{ServerErrorsAsFailures, SharedClassifier};
 
 pub use meeting::screens as meeting_screens;
 pub use query::Params;
+
+/// What the app needs besides the league: where the league is reloaded
+/// from (with its cache folder), our team and passer, the access token.
+#[derive(Debug, Clone)]
+pub struct AppConfig {
+    pub league: LeagueConfig,
+    /// Defaults for "our team" and "our passer" (a cookie overrides them).
+    pub team: Option<String>,
+    pub passer: Option<String>,
+    /// Required on every request when set (shared mode).
+    pub token: Option<String>,
+    /// Folder of the staff's film notes and cut-up lists; `None` turns them
+    /// off (the pages say so).
+    pub data_dir: Option<PathBuf>,
+}
+
+impl AppConfig {
+    /// Reload from `league`; no team, passer, token or notes.
+    pub fn new(league: LeagueConfig) -> AppConfig {
+        AppConfig { league, team: None, passer: None, token: None, data_dir: None }
+    }
+}
+
+/// How to serve: the app, the address, and whether other machines may
+/// connect (then with a fresh access token). The CLI builds it from its flags.
+#[derive(Debug, Clone)]
+pub struct ServeConfig {
+    pub app: AppConfig,
+    /// Address to listen on, e.g. `127.0.0.1:8750`.
+    pub bind: String,
+    pub share: bool,
+}
+
+/// Why the server could not start or stopped.
+#[derive(Debug, thiserror::Error)]
+pub enum ServeError {
+    #[error("--bind {0}: expected an address like 127.0.0.1:8750")]
+    BadAddress(String),
+    #[error("--bind {0}: not a loopback address; add --share to serve other machines (with an access token)")]
+    NotLoopback(SocketAddr),
+    #[error("reading random bytes for the access token: {0}")]
+    Random(String),
+    #[error("binding {addr}: {source}")]
+    Bind { addr: SocketAddr, source: std::io::Error },
+    #[error("serving: {0}")]
+    Io(#[from] std::io::Error),
+}
 
 /// What every handler sees.
 pub struct AppState {
     league: RwLock<Arc<League>>,
     /// Where the league came from and how, for reloading.
-    source: PathBuf,
-    lenient: bool,
+    config: LeagueConfig,
     /// Defaults for "our team" and "our passer" (a cookie overrides them).
     pub team: Option<String>,
     pub passer: Option<String>,
@@ -59,24 +104,27 @@ pub struct AppState {
 const SPLITS_CACHE_SIZE: usize = 128;
 
 impl AppState {
-    pub fn new(league: League, lenient: bool, team: Option<String>, passer: Option<String>, token: Option<String>) -> AppState {
+    fn new(league: League, cfg: AppConfig) -> AppState {
+        let notes = cfg.data_dir.as_ref().and_then(|dir| match NoteStore::open(&crate::notes::database_path(dir)) {
+            Ok(store) => {
+                tracing::info!("film notes and cut-up lists in {}", store.path().display());
+                Some(Arc::new(store))
+            }
+            Err(e) => {
+                tracing::warn!("notes are off: {e}");
+                None
+            }
+        });
         AppState {
-            source: league.source.clone(),
             league: RwLock::new(Arc::new(league)),
-            lenient,
-            team,
-            passer,
-            token,
+            config: LeagueConfig { refit: false, ..cfg.league },
+            team: cfg.team,
+            passer: cfg.passer,
+            token: cfg.token,
             reload_note: RwLock::new(None),
             splits_cache: std::sync::Mutex::new(std::collections::HashMap::new()),
-            notes: None,
+            notes,
         }
-    }
-
-    /// Serve notes and cut-up lists from this database.
-    pub fn with_notes(mut self, store: NoteStore) -> AppState {
-        self.notes = Some(Arc::new(store));
-        self
     }
 
     pub fn notes(&self) -> Option<Arc<NoteStore>> {
@@ -95,10 +143,10 @@ impl AppState {
     /// Load the file again. The new file is validated and scored first; if
     /// anything fails the old league keeps serving.
     pub fn reload(&self) -> Result<(), String> {
-        let result = League::open(&self.source, &LoadOptions { lenient: self.lenient }, false);
+        let result = League::open_with(&self.config);
         let note = match result {
             Ok(new) => {
-                let msg = format!("reloaded {}: {} snaps", self.source.display(), new.plays().len());
+                let msg = format!("reloaded {}: {} snaps", self.config.path.display(), new.plays().len());
                 match self.league.write() {
                     Ok(mut g) => *g = Arc::new(new),
                     Err(p) => *p.into_inner() = Arc::new(new),
@@ -144,10 +192,25 @@ impl AppState {
 
 pub type Shared = Arc<AppState>;
 
+/// The app: its shared state and the router over it.
+pub struct App {
+    pub state: Shared,
+    pub router: Router,
+}
+
+impl App {
+    /// The one way to build the app: `serve`, the tests and the benches all
+    /// come through here, the cache folder in `cfg.league`.
+    pub fn new(league: League, cfg: AppConfig) -> App {
+        let state = Arc::new(AppState::new(league, cfg));
+        App { router: router(state.clone()), state }
+    }
+}
+
 /// Content-Security-Policy: our own scripts, styles and images only.
 pub const CSP: &str = "default-src 'none'; script-src 'self'; style-src 'self'; img-src 'self' data:; connect-src 'self'; form-action 'self'; base-uri 'none'; frame-ancestors 'none'";
 
-pub fn router(state: Shared) -> Router {
+fn router(state: Shared) -> Router {
     Router::new()
         .route("/", get(pages::home))
         .route("/explore", get(pages::explore))
@@ -187,7 +250,24 @@ pub fn router(state: Shared) -> Router {
         .layer(SetResponseHeaderLayer::overriding(header::X_CONTENT_TYPE_OPTIONS, HeaderValue::from_static("nosniff")))
         .layer(SetResponseHeaderLayer::overriding(header::REFERRER_POLICY, HeaderValue::from_static("no-referrer")))
         .layer(SetResponseHeaderLayer::overriding(header::X_FRAME_OPTIONS, HeaderValue::from_static("DENY")))
+        .layer(request_log())
         .with_state(state)
+}
+
+/// One log line per request with its status and time taken, in a span
+/// naming the method and path (never the query: it may hold the token).
+fn request_log() -> TraceLayer<
+    SharedClassifier<ServerErrorsAsFailures>,
+    impl Fn(&Request) -> tracing::Span + Clone,
+    (),
+    impl Fn(&Response, Duration, &tracing::Span) + Clone,
+> {
+    TraceLayer::new_for_http()
+        .make_span_with(|req: &Request| tracing::info_span!("request", method = %req.method(), path = %req.uri().path()))
+        .on_request(())
+        .on_response(|res: &Response, latency: Duration, _: &tracing::Span| {
+            tracing::info!(status = res.status().as_u16(), "answered in {:.1} ms", latency.as_secs_f64() * 1000.0)
+        })
 }
 
 const TOKEN_COOKIE: &str = "lategame_token";
@@ -195,19 +275,19 @@ const TOKEN_COOKIE: &str = "lategame_token";
 /// In shared mode every request must carry the token: `?token=` once
 /// (answered with a cookie and a redirect to the same page without it), then
 /// the cookie.
-async fn require_token(State(state): State<Shared>, req: Request, next: Next) -> Response {
+async fn require_token(State(state): State<Shared>, jar: CookieJar, req: Request, next: Next) -> Response {
     let Some(token) = state.token.clone() else {
         return next.run(req).await;
     };
-    if query::cookie(req.headers(), TOKEN_COOKIE).as_deref() == Some(token.as_str()) {
+    if jar.get(TOKEN_COOKIE).is_some_and(|c| constant_eq(c.value(), &token)) {
         return next.run(req).await;
     }
     let pairs = query::pairs(req.uri().query());
     if pairs.iter().any(|(k, v)| k == "token" && constant_eq(v, &token)) {
         let rest: Vec<(String, String)> = pairs.into_iter().filter(|(k, _)| k != "token").collect();
         let target = format!("{}{}", req.uri().path(), query::to_query_string(&rest));
-        let cookie = format!("{TOKEN_COOKIE}={token}; Path=/; HttpOnly; SameSite=Strict");
-        return (StatusCode::SEE_OTHER, [(header::LOCATION, target), (header::SET_COOKIE, cookie)]).into_response();
+        let cookie = Cookie::build((TOKEN_COOKIE, token)).path("/").http_only(true).same_site(SameSite::Strict);
+        return (StatusCode::SEE_OTHER, jar.add(cookie), [(header::LOCATION, target)]).into_response();
     }
     (StatusCode::UNAUTHORIZED, "401: this lategame server is shared with an access token; open the address printed when it started (it ends in ?token=...)").into_response()
 }
@@ -217,50 +297,59 @@ fn constant_eq(a: &str, b: &str) -> bool {
 }
 
 /// A random token of 32 hex digits from the operating system.
-pub fn new_token() -> Result<String> {
-    use std::io::Read;
+pub fn new_token() -> Result<String, ServeError> {
     let mut bytes = [0u8; 16];
-    std::fs::File::open("/dev/urandom")
-        .and_then(|mut f| f.read_exact(&mut bytes))
-        .context("reading random bytes for the access token")?;
+    getrandom::fill(&mut bytes).map_err(|e| ServeError::Random(e.to_string()))?;
     Ok(bytes.iter().map(|b| format!("{b:02x}")).collect())
 }
 
-/// Bind and serve until Ctrl-C. Loopback only unless `--share`.
-pub fn serve_blocking(league: League, args: &ServeArgs) -> Result<()> {
-    let addr: SocketAddr = args.bind.parse().with_context(|| format!("--bind {}: expected an address like 127.0.0.1:8750", args.bind))?;
-    if !addr.ip().is_loopback() && !args.share {
-        anyhow::bail!("--bind {addr}: not a loopback address; add --share to serve other machines (with an access token)");
+/// Bind and serve until Ctrl-C. Loopback only unless `share`.
+pub fn serve_blocking(league: League, cfg: ServeConfig) -> Result<(), ServeError> {
+    let addr: SocketAddr = cfg.bind.parse().map_err(|_| ServeError::BadAddress(cfg.bind.clone()))?;
+    if !addr.ip().is_loopback() && !cfg.share {
+        return Err(ServeError::NotLoopback(addr));
     }
-    let token = if args.share { Some(new_token()?) } else { None };
-    let mut state = AppState::new(league, args.lenient, args.team.clone(), args.passer.clone(), token.clone());
-    let data_dir = args.data_dir.clone().unwrap_or_else(crate::notes::default_data_dir);
-    match NoteStore::open(&crate::notes::database_path(&data_dir)) {
-        Ok(store) => {
-            tracing::info!("film notes and cut-up lists in {}", store.path().display());
-            state = state.with_notes(store);
-        }
-        Err(e) => tracing::warn!("notes are off: {e}"),
-    }
-    let state = Arc::new(state);
+    let token = if cfg.share { Some(new_token()?) } else { None };
+    let app = App::new(league, AppConfig { token: token.clone(), ..cfg.app });
     let rt = tokio::runtime::Builder::new_multi_thread().enable_all().build()?;
     rt.block_on(async move {
-        let listener = tokio::net::TcpListener::bind(addr).await.with_context(|| format!("binding {addr}"))?;
+        let listener = tokio::net::TcpListener::bind(addr).await.map_err(|source| ServeError::Bind { addr, source })?;
         let local = listener.local_addr()?;
         match &token {
             Some(t) => println!("lategame is serving on http://{local}/?token={t}\n(shared mode: give this address only to your staff; the token is printed once)"),
             None => println!("lategame is serving on http://{local}/"),
         }
-        axum::serve(listener, router(state))
+        axum::serve(listener, app.router)
             .with_graceful_shutdown(async {
                 let _ = tokio::signal::ctrl_c().await;
             })
-            .await
-            .context("serving")
+            .await?;
+        Ok(())
     })
 }
 
-/// Start the server on an already bound listener (tests bind 127.0.0.1:0).
-pub async fn serve_on(listener: tokio::net::TcpListener, state: Shared) -> std::io::Result<()> {
-    axum::serve(listener, router(state)).await
+/// Serve `app` on an already bound listener (tests bind 127.0.0.1:0).
+pub async fn serve_on(listener: tokio::net::TcpListener, app: App) -> std::io::Result<()> {
+    axum::serve(listener, app.router).await
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn tokens_are_32_hex_digits_and_differ() {
+        let a = new_token().expect("random bytes");
+        let b = new_token().expect("random bytes");
+        assert_eq!(a.len(), 32);
+        assert!(a.bytes().all(|c| c.is_ascii_hexdigit() && !c.is_ascii_uppercase()), "{a}");
+        assert_ne!(a, b);
+    }
+
+    #[test]
+    fn tokens_compare_in_full() {
+        assert!(constant_eq("abc123", "abc123"));
+        assert!(!constant_eq("abc123", "abc124"));
+        assert!(!constant_eq("abc123", "abc12"));
+    }
 }

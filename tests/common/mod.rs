@@ -3,38 +3,45 @@
 
 #![allow(dead_code)]
 
-use lategame::league::{demo_path, League};
-use lategame::playfile::LoadOptions;
-use lategame::web::{serve_on, AppState};
-use std::path::PathBuf;
-use std::sync::{Arc, OnceLock};
+use lategame::league::{demo_path, League, LeagueConfig};
+use lategame::web::{serve_on, App, AppConfig};
+use std::path::{Path, PathBuf};
+use std::sync::OnceLock;
 
 /// Cached model coefficients go under target/, never into the user's cache.
-pub fn use_test_cache() {
-    let dir = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target").join("test-cache");
-    // SAFETY: set before any thread of this test binary reads the variable.
-    unsafe { std::env::set_var("LATEGAME_CACHE_DIR", dir) };
+pub fn test_cache_dir() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target").join("test-cache")
+}
+
+/// How the tests open a league: strict, with the test cache folder.
+pub fn league_config(path: &Path) -> LeagueConfig {
+    LeagueConfig { cache_dir: Some(test_cache_dir()), ..LeagueConfig::new(path) }
+}
+
+pub fn open_league(path: &Path) -> League {
+    League::open_with(&league_config(path)).unwrap_or_else(|e| panic!("{} opens: {e}", path.display()))
 }
 
 pub fn demo_league() -> League {
-    use_test_cache();
-    League::open(&demo_path(), &LoadOptions::default(), false).expect("demo league opens")
+    open_league(&demo_path())
 }
 
 /// Start a server for `league` on a random loopback port; returns the base URL.
+/// A reload reads the league's own file again.
 pub fn spawn(league: League, team: Option<String>, passer: Option<String>, token: Option<String>) -> String {
-    let state = Arc::new(AppState::new(league, false, team, passer, token));
-    spawn_state(state)
+    let cfg = AppConfig { team, passer, token, ..AppConfig::new(league_config(&league.source)) };
+    spawn_app(App::new(league, cfg))
 }
 
-pub fn spawn_state(state: Arc<AppState>) -> String {
+/// Serve `app` on a random loopback port; returns the base URL.
+pub fn spawn_app(app: App) -> String {
     let (tx, rx) = std::sync::mpsc::channel();
     std::thread::spawn(move || {
         let rt = tokio::runtime::Builder::new_multi_thread().worker_threads(2).enable_all().build().expect("runtime");
         rt.block_on(async move {
             let listener = tokio::net::TcpListener::bind("127.0.0.1:0").await.expect("bind");
             tx.send(listener.local_addr().expect("addr")).expect("send");
-            let _ = serve_on(listener, state).await;
+            let _ = serve_on(listener, app).await;
         });
     });
     let addr = rx.recv().expect("server address");
@@ -105,4 +112,38 @@ pub fn enc(s: &str) -> String {
             _ => format!("%{b:02X}"),
         })
         .collect()
+}
+
+/// The `lategame` binary serving the demo league on a free loopback port
+/// with its notes in `data` and models from the test cache; returns the
+/// child (kill it when done) and its base URL once it says where it serves.
+pub fn start_binary(data: &Path) -> (std::process::Child, String) {
+    use std::io::{BufRead, BufReader};
+    use std::process::{Command, Stdio};
+    let mut child = Command::new(env!("CARGO_BIN_EXE_lategame"))
+        .args(["serve", "--bind", "127.0.0.1:0", "--data-dir"])
+        .arg(data)
+        .env("LATEGAME_CACHE_DIR", test_cache_dir())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::null())
+        .spawn()
+        .expect("server binary starts");
+    let out = child.stdout.take().expect("stdout");
+    let mut lines = BufReader::new(out).lines();
+    let url = loop {
+        match lines.next() {
+            Some(Ok(l)) => {
+                if let Some(rest) = l.strip_prefix("lategame is serving on ") {
+                    break rest.trim_end_matches('/').to_string();
+                }
+            }
+            _ => {
+                let _ = child.kill();
+                panic!("server exited before saying where it serves");
+            }
+        }
+    };
+    // Keep draining stdout so the child never blocks on a full pipe.
+    std::thread::spawn(move || for _ in lines {});
+    (child, url)
 }
