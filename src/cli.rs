@@ -111,6 +111,9 @@ pub struct ServeArgs {
     /// Allow binding beyond loopback; every request then needs the access token printed at start.
     #[arg(long)]
     pub share: bool,
+    /// Folder for the staff's film notes and cut-up lists (default: LATEGAME_DATA_DIR, else the user's data directory).
+    #[arg(long)]
+    pub data_dir: Option<PathBuf>,
 }
 
 impl ServeArgs {
@@ -123,7 +126,12 @@ impl ServeArgs {
             ..LeagueConfig::new(self.file.clone().unwrap_or_else(demo_path))
         };
         ServeConfig {
-            app: AppConfig { team: self.team.clone(), passer: self.passer.clone(), ..AppConfig::new(league) },
+            app: AppConfig {
+                team: self.team.clone(),
+                passer: self.passer.clone(),
+                data_dir: Some(self.data_dir.clone().unwrap_or_else(crate::notes::default_data_dir)),
+                ..AppConfig::new(league)
+            },
             bind: self.bind.clone(),
             share: self.share,
         }
@@ -186,6 +194,7 @@ fn run(cli: Cli) -> Result<ExitCode> {
         team: None,
         passer: None,
         share: false,
+        data_dir: None,
     }));
     match cmd {
         Cmd::Serve(args) => {

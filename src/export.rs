@@ -59,29 +59,59 @@ fn num(v: f64, decimals: usize) -> String {
     }
 }
 
-/// The cut-up: one row per snap for the video staff.
+/// The cut-up: one row per snap for the video staff, each thing the video
+/// operator cues by in its own column.
 pub fn cutup_csv(snaps: &[Snap]) -> String {
+    cutup_rows(snaps, None)
+}
+
+/// A saved cut-up list: the cut-up with the staff's notes on each snap
+/// (`notes[k]` belongs to `snaps[k]`).
+pub fn cutup_csv_with_notes(snaps: &[Snap], notes: &[String]) -> String {
+    cutup_rows(snaps, Some(notes))
+}
+
+/// The cut-up's column names, in order (without the notes column).
+pub const CUTUP_COLUMNS: [&str; 20] = [
+    "game", "season", "week", "seq", "quarter", "clock", "offense", "defense", "score", "down", "to_go", "yard_line", "drive", "play_in_drive", "kind",
+    "passer", "result", "epa", "wpa", "down_distance",
+];
+
+fn cutup_rows(snaps: &[Snap], notes: Option<&[String]>) -> String {
     let mut out = CsvText::new();
-    out.row(&["game", "season", "week", "seq", "period", "clock", "offense", "defense", "score", "down_distance", "spot", "kind", "passer", "result", "epa", "wpa"]);
-    for s in snaps {
-        out.row(&[
+    let mut head: Vec<&str> = CUTUP_COLUMNS.to_vec();
+    if notes.is_some() {
+        head.push("notes");
+    }
+    out.row(&head);
+    let opt = |v: Option<i32>| v.map(|x| x.to_string()).unwrap_or_default();
+    for (k, s) in snaps.iter().enumerate() {
+        let mut cells = vec![
             s.game.clone(),
             s.season.to_string(),
             s.week.to_string(),
             s.seq.to_string(),
-            s.period.to_string(),
+            s.quarter.clone(),
             s.clock.clone(),
             s.offense.clone(),
             s.defense.clone(),
             s.score.clone(),
-            s.down_distance.clone(),
+            opt(s.down),
+            opt(s.to_go),
             s.spot.clone(),
+            s.drive.to_string(),
+            s.play_in_drive.to_string(),
             s.kind.to_string(),
             s.passer.clone().unwrap_or_default(),
             s.result.clone(),
             num(s.epa, 3),
             num(s.wpa, 4),
-        ]);
+            s.down_distance.clone(),
+        ];
+        if let Some(n) = notes {
+            cells.push(n.get(k).cloned().unwrap_or_default());
+        }
+        out.row(&cells);
     }
     out.finish()
 }

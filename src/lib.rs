@@ -10,6 +10,7 @@ pub mod fuzz_props;
 pub mod layout;
 pub mod league;
 pub mod models;
+pub mod notes;
 pub mod palette;
 pub mod playfile;
 pub mod plays;

@@ -38,6 +38,30 @@ pub const AXIS: Rgb = Rgb(0x44, 0x44, 0x44);
 /// Chart grid lines.
 pub const GRID: Rgb = Rgb(0xe0, 0xe0, 0xe0);
 
+/// The meeting view's dark screen (static/meeting.css): background, text,
+/// secondary text, cards, the estimate, its 90% range, the league mark and
+/// the passer's own normal. Text on these passes 7:1 (the browser test
+/// measures it).
+pub const DECK_BG: Rgb = Rgb(0x10, 0x14, 0x18);
+pub const DECK_INK: Rgb = Rgb(0xf3, 0xf5, 0xf7);
+pub const DECK_MUTED: Rgb = Rgb(0xc9, 0xd1, 0xd9);
+pub const DECK_CARD: Rgb = Rgb(0x1a, 0x20, 0x27);
+pub const DECK_ESTIMATE: Rgb = Rgb(0xff, 0xd1, 0x66);
+pub const DECK_RANGE: Rgb = Rgb(0x5b, 0x8d, 0xb8);
+pub const DECK_NORMAL: Rgb = Rgb(0xff, 0x9f, 0x6e);
+
+/// The CSS variables of static/meeting.css.
+pub const MEETING_VARS: &[(&str, Rgb)] = &[
+    ("--deck-bg", DECK_BG),
+    ("--deck-ink", DECK_INK),
+    ("--deck-muted", DECK_MUTED),
+    ("--deck-card", DECK_CARD),
+    ("--deck-accent", DECK_ESTIMATE),
+    ("--deck-interval", DECK_RANGE),
+    ("--deck-league", DECK_INK),
+    ("--deck-normal", DECK_NORMAL),
+];
+
 /// The CSS variable that carries each colour in static/app.css (the pages).
 pub const PAGE_VARS: &[(&str, Rgb)] =
     &[("--gain", GAIN), ("--loss", LOSS), ("--league", LEAGUE), ("--accent", ACCENT), ("--axis", AXIS), ("--grid", GRID)];
@@ -87,6 +111,7 @@ mod tests {
     fn stylesheets_declare_the_palette() {
         check(include_str!("../static/app.css"), "static/app.css", PAGE_VARS);
         check(include_str!("../static/report.css"), "static/report.css", REPORT_VARS);
+        check(include_str!("../static/meeting.css"), "static/meeting.css", MEETING_VARS);
     }
 
     #[test]

@@ -3,10 +3,12 @@
 //! (askama) or as a one-page PDF drawn here with krilla.
 
 mod html;
+mod list;
 mod pdf;
 
 pub use html::{html, REPORT_CSS};
-pub use pdf::render_pdf;
+pub use list::{ListSheet, ListSheetRow, LIST_COLUMNS};
+pub use pdf::{render_list_pdf, render_pdf};
 
 use crate::charts::{self, BarItem, DotRow, Figure};
 use crate::league::League;

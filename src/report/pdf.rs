@@ -2,7 +2,7 @@
 //! the embedded DejaVu Sans (extractable), charts drawn as vector paths from
 //! the same `Figure` shapes the HTML embeds as SVG (class → colour, stroke).
 
-use super::{Paper, ReportData, ReportError, SnapLine, FOOTNOTES};
+use super::{ListSheet, Paper, ReportData, ReportError, SnapLine, FOOTNOTES, LIST_COLUMNS};
 use crate::charts::{Anchor, Figure, Shape};
 use crate::palette::{Rgb, AXIS, ESTIMATE, GAIN, GREY, GRID, INK, LEAGUE, LOSS, RANGE, RULE, STRIPE};
 use krilla::color::rgb;
@@ -331,6 +331,71 @@ pub fn render_pdf(d: &ReportData, paper: Paper) -> Result<Vec<u8>, ReportError> 
         page.finish();
     }
     doc.finish().map_err(|e| ReportError::Pdf(e.to_string()))
+}
+
+/// A cut-up list as one page: as many rows as fit (a note may take up to
+/// three lines), then a line that says how many more the CSV holds.
+pub fn render_list_pdf(sheet: &ListSheet, paper: Paper) -> Result<Vec<u8>, ReportError> {
+    let regular = Face::load(REGULAR, "DejaVu Sans")?;
+    let bold = Face::load(BOLD, "DejaVu Sans Bold")?;
+    let (pw, ph) = paper.size_pt();
+    let settings = PageSettings::from_wh(pw, ph).ok_or_else(|| ReportError::Pdf("bad page size".into()))?;
+    let mut doc = Document::new();
+    doc.set_metadata(Metadata::new().title(format!("Cut-up list: {}", sheet.title)).creator("lategame".to_string()).language("en".to_string()));
+    {
+        let mut page = doc.start_page_with(settings);
+        let mut surface = page.surface();
+        let mut pen = Pen { s: &mut surface, regular: &regular, bold: &bold, lowest: 0.0 };
+        draw_list(&mut pen, sheet, pw, ph);
+        surface.finish();
+        page.finish();
+    }
+    doc.finish().map_err(|e| ReportError::Pdf(e.to_string()))
+}
+
+fn draw_list(pen: &mut Pen, sheet: &ListSheet, pw: f32, ph: f32) {
+    let (x, w) = (MARGIN, pw - 2.0 * MARGIN);
+    pen.text(x, MARGIN + 12.0, 14.0, true, INK, &sheet.title, w, Align::Left);
+    pen.text(x, MARGIN + 27.0, 8.0, false, GREY, &sheet.subtitle, w, Align::Left);
+    let fixed = [20.0, 70.0, 26.0, 34.0, 58.0, 30.0, 92.0, 150.0];
+    let note_w = (w - fixed.iter().sum::<f32>()).max(80.0);
+    let widths = [fixed[0], fixed[1], fixed[2], fixed[3], fixed[4], fixed[5], fixed[6], fixed[7], note_w];
+    let aligns = [Align::Right, Align::Left, Align::Left, Align::Left, Align::Left, Align::Right, Align::Left, Align::Left, Align::Left];
+    let size = 7.6;
+    let mut y = MARGIN + 48.0;
+    pen.row(x, y, &widths, &aligns, &LIST_COLUMNS, size, true, GREY);
+    pen.line(x, y + 3.0, x + w, y + 3.0, RULE, 0.6);
+    let bottom = ph - MARGIN - 14.0;
+    let note_x = x + widths[..8].iter().sum::<f32>();
+    let mut shown = 0;
+    for (k, r) in sheet.rows.iter().enumerate() {
+        let lines = pen.regular.wrap(size, &r.note, note_w - 6.0, 3);
+        let h = SNAP_ROW * lines.len().max(1) as f32;
+        if y + h > bottom {
+            break;
+        }
+        y += SNAP_ROW;
+        if k % 2 == 1 {
+            pen.rect(x, y - SNAP_ROW + 3.0, w, h, STRIPE);
+        }
+        let num = (k + 1).to_string();
+        let s = &r.snap;
+        let game = format!("{} #{}", s.game, s.seq);
+        let passer = s.passer.clone().unwrap_or_default();
+        let cells = [num.as_str(), &game, &s.quarter, &s.clock, &s.down_distance, &s.spot, &passer, &s.result];
+        pen.row(x, y, &widths[..8], &aligns[..8], &cells, size, false, INK);
+        for (j, line) in lines.iter().enumerate() {
+            pen.text(note_x + 3.0, y + SNAP_ROW * j as f32, size, false, INK, line, note_w - 6.0, Align::Left);
+        }
+        y += h - SNAP_ROW;
+        shown += 1;
+    }
+    if sheet.rows.is_empty() {
+        pen.text(x + 3.0, y + SNAP_ROW, size, false, GREY, "This list has no snaps in the loaded file.", w, Align::Left);
+    } else if shown < sheet.rows.len() {
+        let more = format!("First {shown} of {} snaps on this page; the list's CSV holds every snap and note.", sheet.rows.len());
+        pen.text(x, ph - MARGIN, 8.0, true, INK, &more, w, Align::Left);
+    }
 }
 
 fn date_time(date: &str) -> Option<DateTime> {

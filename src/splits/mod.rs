@@ -5,6 +5,7 @@
 //! Pages, JSON, CSV and the PDF report are all views of these values.
 
 pub mod metrics;
+pub mod review;
 mod profile;
 mod scan;
 mod shrink;
@@ -12,6 +13,6 @@ mod snaps;
 mod table;
 
 pub use metrics::{metric_index, MetricDef, SnapValues, Stat, Unit, METRICS};
-pub use snaps::{coach_spot, down_distance, game_snaps, play_list, result_text, Snap};
+pub use snaps::{coach_spot, down_distance, game_snaps, play_list, quarter, result_text, snap_at, Snap};
 pub use profile::{epa_distribution, profile, EpaDistribution, Profile, ProfileLine, SeasonLine};
 pub use table::{split_table, split_table_for, Cell, MetricInfo, PasserRow, SortBy, SplitTable, DEFAULT_MIN_DROPBACKS};

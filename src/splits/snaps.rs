@@ -16,12 +16,20 @@ pub struct Snap {
     pub week: i32,
     pub seq: i32,
     pub period: i32,
+    /// "Q4", "OT" (a second overtime "OT2").
+    pub quarter: String,
     pub clock: String,
     pub offense: String,
     pub defense: String,
     /// Offense score – defense score before the snap.
     pub score: String,
     pub down_distance: String,
+    /// Down and yards to go (none on kickoffs and tries).
+    pub down: Option<i32>,
+    pub to_go: Option<i32>,
+    /// Drive number within the game, and the snap's place in the drive (from 1).
+    pub drive: i32,
+    pub play_in_drive: i32,
     /// Ball spot in coaching notation: own side −35, opponent side +20.
     pub spot: String,
     pub kind: &'static str,
@@ -30,6 +38,15 @@ pub struct Snap {
     pub epa: f64,
     pub wp: f64,
     pub wpa: f64,
+}
+
+/// "Q4", "OT" (a second overtime "OT2").
+pub fn quarter(period: i32) -> String {
+    match period {
+        p if p <= 4 => format!("Q{p}"),
+        5 => "OT".to_string(),
+        p => format!("OT{}", p - 4),
+    }
 }
 
 /// Own 35 → "-35", opponent 20 → "+20", midfield → "50".
@@ -85,7 +102,8 @@ pub fn result_text(p: &Plays, i: usize) -> String {
     s
 }
 
-fn snap(p: &Plays, v: &SnapValues, i: usize) -> Snap {
+/// One snap, written the way a coach reads it.
+pub fn snap_at(p: &Plays, v: &SnapValues, i: usize) -> Snap {
     let g = &p.games[p.game[i] as usize];
     Snap {
         index: i,
@@ -94,11 +112,19 @@ fn snap(p: &Plays, v: &SnapValues, i: usize) -> Snap {
         week: p.week[i],
         seq: p.seq[i],
         period: p.period[i],
+        quarter: quarter(p.period[i]),
         clock: format_clock(p.clock[i]),
         offense: p.teams[p.offense[i] as usize].clone(),
         defense: p.teams[p.defense[i] as usize].clone(),
         score: format!("{}-{}", p.off_score[i], p.def_score[i]),
         down_distance: down_distance(p.down[i], p.to_go[i], p.ball_on[i]),
+        down: (1..=4).contains(&p.down[i]).then_some(p.down[i]),
+        to_go: (1..=4).contains(&p.down[i]).then_some(p.to_go[i]),
+        drive: p.drive[i],
+        play_in_drive: {
+            let start = p.games[p.game[i] as usize].start;
+            (start..=i).rev().take_while(|&j| p.drive[j] == p.drive[i]).count() as i32
+        },
         spot: coach_spot(p.ball_on[i]),
         kind: p.kind[i].as_str(),
         passer: p.passer_name(i).map(str::to_string),
@@ -123,14 +149,14 @@ pub fn play_list(p: &Plays, v: &SnapValues, s: &Situation, passer: Option<&str>,
         .filter(|&i| p.dropback[i] && who.is_none_or(|w| p.passer[i] == w))
         .filter(|&i| metric.is_none_or(|m| in_unit(p, v, m.unit, i)))
         .filter(|&i| s.matches(p, v.wp, i))
-        .map(|i| snap(p, v, i))
+        .map(|i| snap_at(p, v, i))
         .collect()
 }
 
 /// Every snap of one game, in order (for the game-flow page).
 pub fn game_snaps(p: &Plays, v: &SnapValues, game: usize) -> Vec<Snap> {
     let g = &p.games[game];
-    (g.start..g.end).map(|i| snap(p, v, i)).collect()
+    (g.start..g.end).map(|i| snap_at(p, v, i)).collect()
 }
 
 #[cfg(test)]
@@ -144,6 +170,13 @@ mod tests {
         assert_eq!(coach_spot(50), "50");
         assert_eq!(coach_spot(1), "-1");
         assert_eq!(coach_spot(99), "+1");
+    }
+
+    #[test]
+    fn quarters_spell_overtime() {
+        assert_eq!(quarter(4), "Q4");
+        assert_eq!(quarter(5), "OT");
+        assert_eq!(quarter(6), "OT2");
     }
 
     #[test]

@@ -8,6 +8,9 @@ use axum::response::{IntoResponse, Response};
 const FILES: &[(&str, &str, &str)] = &[
     ("app.css", "text/css; charset=utf-8", include_str!("../../static/app.css")),
     ("app.js", "text/javascript; charset=utf-8", include_str!("../../static/app.js")),
+    ("meeting.css", "text/css; charset=utf-8", include_str!("../../static/meeting.css")),
+    ("meeting.js", "text/javascript; charset=utf-8", include_str!("../../static/meeting.js")),
+    ("notes.js", "text/javascript; charset=utf-8", include_str!("../../static/notes.js")),
     ("report.css", "text/css; charset=utf-8", include_str!("../../static/report.css")),
 ];
 

@@ -5,6 +5,10 @@
 mod api;
 mod assets;
 mod calib;
+mod film;
+mod guard;
+mod meeting;
+mod notes;
 mod pages;
 pub mod query;
 
@@ -14,6 +18,7 @@ use axum::http::{header, HeaderValue, StatusCode};
 use axum::middleware::{self, Next};
 use axum::response::{IntoResponse, Response};
 use axum::routing::{get, post};
+use crate::notes::NoteStore;
 use axum::Router;
 use axum_extra::extract::cookie::{Cookie, CookieJar, SameSite};
 use std::net::SocketAddr;
@@ -25,6 +30,7 @@ use tower_http::timeout::TimeoutLayer;
 use tower_http::trace::TraceLayer;
 use tower_http::classify::{ServerErrorsAsFailures, SharedClassifier};
 
+pub use meeting::screens as meeting_screens;
 pub use query::Params;
 
 /// What the app needs besides the league: where the league is reloaded
@@ -37,12 +43,15 @@ pub struct AppConfig {
     pub passer: Option<String>,
     /// Required on every request when set (shared mode).
     pub token: Option<String>,
+    /// Folder of the staff's film notes and cut-up lists; `None` turns them
+    /// off (the pages say so).
+    pub data_dir: Option<std::path::PathBuf>,
 }
 
 impl AppConfig {
-    /// Reload from `league`; no team, passer or token.
+    /// Reload from `league`; no team, passer, token or notes.
     pub fn new(league: LeagueConfig) -> AppConfig {
-        AppConfig { league, team: None, passer: None, token: None }
+        AppConfig { league, team: None, passer: None, token: None, data_dir: None }
     }
 }
 
@@ -86,6 +95,9 @@ pub struct AppState {
     /// Split tables already computed for this league, by view (the league
     /// never changes until a reload, which empties it).
     splits_cache: std::sync::Mutex<std::collections::HashMap<String, Arc<crate::splits::SplitTable>>>,
+    /// The staff's film notes and cut-up lists (None when the database
+    /// could not be opened; the rest of the server still works).
+    notes: Option<Arc<NoteStore>>,
 }
 
 /// How many split tables the cache keeps before it starts over.
@@ -93,6 +105,16 @@ const SPLITS_CACHE_SIZE: usize = 128;
 
 impl AppState {
     fn new(league: League, cfg: AppConfig) -> AppState {
+        let notes = cfg.data_dir.as_ref().and_then(|dir| match NoteStore::open(&crate::notes::database_path(dir)) {
+            Ok(store) => {
+                tracing::info!("film notes and cut-up lists in {}", store.path().display());
+                Some(Arc::new(store))
+            }
+            Err(e) => {
+                tracing::warn!("notes are off: {e}");
+                None
+            }
+        });
         AppState {
             league: RwLock::new(Arc::new(league)),
             config: LeagueConfig { refit: false, ..cfg.league },
@@ -101,7 +123,12 @@ impl AppState {
             token: cfg.token,
             reload_note: RwLock::new(None),
             splits_cache: std::sync::Mutex::new(std::collections::HashMap::new()),
+            notes,
         }
+    }
+
+    pub fn notes(&self) -> Option<Arc<NoteStore>> {
+        self.notes.clone()
     }
 
     /// The league as loaded now (a reload swaps it; requests in flight keep
@@ -203,8 +230,19 @@ fn router(state: Shared) -> Router {
         .route("/api/plays", get(api::plays))
         .route("/api/game", get(api::game))
         .route("/api/calibration", get(api::calibration))
+        .route("/meeting", get(meeting::meeting))
+        .route("/review", get(film::review))
+        .route("/api/review", get(film::review_json))
+        .route("/cutups", get(film::cutups))
+        .route("/api/notes", get(notes::list_notes).post(notes::create_note))
+        .route("/api/notes/{id}", get(notes::get_note).patch(notes::update_note).delete(notes::delete_note))
+        .route("/api/cutups", get(notes::list_cutups).post(notes::create_cutup))
+        .route("/api/cutups/{id}", get(notes::get_cutup).patch(notes::update_cutup).delete(notes::delete_cutup))
+        .route("/api/cutups/{id}/csv", get(notes::cutup_csv))
+        .route("/api/cutups/{id}/pdf", get(notes::cutup_pdf))
         .route("/static/{file}", get(assets::serve))
         .fallback(pages::not_found)
+        .layer(middleware::from_fn(guard::same_origin))
         .layer(middleware::from_fn_with_state(state.clone(), require_token))
         .layer(RequestBodyLimitLayer::new(16 * 1024))
         .layer(TimeoutLayer::with_status_code(StatusCode::SERVICE_UNAVAILABLE, Duration::from_secs(20)))

@@ -41,7 +41,7 @@ pub fn ours(st: &Shared, headers: &HeaderMap) -> (Option<String>, Option<String>
     (team, passer)
 }
 
-fn chrome(st: &Shared, headers: &HeaderMap, params: Option<&Params>, title: String, active: &'static str, path: &str) -> Chrome {
+pub(super) fn chrome(st: &Shared, headers: &HeaderMap, params: Option<&Params>, title: String, active: &'static str, path: &str) -> Chrome {
     let projector = params.is_some_and(|p| p.projector);
     let toggle_href = match params {
         Some(p) => format!("{path}{}", p.with(&[("view", if projector { None } else { Some("projector") })])),
@@ -65,7 +65,7 @@ fn chrome(st: &Shared, headers: &HeaderMap, params: Option<&Params>, title: Stri
     }
 }
 
-fn html<T: Template>(t: &T) -> Response {
+pub(super) fn html<T: Template>(t: &T) -> Response {
     match t.render() {
         Ok(body) => Html(body).into_response(),
         Err(e) => {
@@ -85,7 +85,7 @@ struct ErrorPage {
     back: String,
 }
 
-fn error_page(st: &Shared, headers: &HeaderMap, status: StatusCode, heading: &str, reason: String, back: &str) -> Response {
+pub(super) fn error_page(st: &Shared, headers: &HeaderMap, status: StatusCode, heading: &str, reason: String, back: &str) -> Response {
     let page = ErrorPage {
         chrome: chrome(st, headers, None, heading.to_string(), "", "/"),
         status: status.as_u16(),
@@ -98,7 +98,7 @@ fn error_page(st: &Shared, headers: &HeaderMap, status: StatusCode, heading: &st
     r
 }
 
-fn bad_query(st: &Shared, headers: &HeaderMap, e: &SituationError, back: &str) -> Response {
+pub(super) fn bad_query(st: &Shared, headers: &HeaderMap, e: &SituationError, back: &str) -> Response {
     error_page(st, headers, StatusCode::BAD_REQUEST, "That view can't be drawn", e.to_string(), back)
 }
 
@@ -665,9 +665,11 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
 
 pub struct SnapView {
     pub game: String,
+    pub seq: i32,
     pub game_href: String,
     pub when: String,
-    pub period: i32,
+    /// "Q4", "OT".
+    pub quarter: String,
     pub clock: String,
     pub teams: String,
     pub score: String,
@@ -704,12 +706,13 @@ const PLAY_PAGE_LIMIT: usize = 2000;
 fn snap_view(s: &splits::Snap) -> SnapView {
     SnapView {
         game: s.game.clone(),
+        seq: s.seq,
         game_href: format!(
             "/game{}",
             to_query_string(&[("game".into(), s.game.clone()), ("passer".into(), s.passer.clone().unwrap_or_default())])
         ),
         when: format!("{} wk {}", s.season, s.week),
-        period: s.period,
+        quarter: s.quarter.clone(),
         clock: s.clock.clone(),
         teams: format!("{} vs {}", s.offense, s.defense),
         score: s.score.clone(),
@@ -809,6 +812,7 @@ struct GamePage {
     swings: Vec<SnapView>,
     passer: String,
     api_href: String,
+    review_href: String,
 }
 
 pub async fn game(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
@@ -876,6 +880,7 @@ pub async fn game(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Raw
         chart,
         swings,
         passer,
+        review_href: super::film::review_href(&key),
         api_href: format!("/api/game{}", to_query_string(&[("game".into(), key)])),
     };
     html(&page)

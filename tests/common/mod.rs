@@ -113,3 +113,37 @@ pub fn enc(s: &str) -> String {
         })
         .collect()
 }
+
+/// The `lategame` binary serving the demo league on a free loopback port
+/// with its notes in `data` and models from the test cache; returns the
+/// child (kill it when done) and its base URL once it says where it serves.
+pub fn start_binary(data: &Path) -> (std::process::Child, String) {
+    use std::io::{BufRead, BufReader};
+    use std::process::{Command, Stdio};
+    let mut child = Command::new(env!("CARGO_BIN_EXE_lategame"))
+        .args(["serve", "--bind", "127.0.0.1:0", "--data-dir"])
+        .arg(data)
+        .env("LATEGAME_CACHE_DIR", test_cache_dir())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::null())
+        .spawn()
+        .expect("server binary starts");
+    let out = child.stdout.take().expect("stdout");
+    let mut lines = BufReader::new(out).lines();
+    let url = loop {
+        match lines.next() {
+            Some(Ok(l)) => {
+                if let Some(rest) = l.strip_prefix("lategame is serving on ") {
+                    break rest.trim_end_matches('/').to_string();
+                }
+            }
+            _ => {
+                let _ = child.kill();
+                panic!("server exited before saying where it serves");
+            }
+        }
+    };
+    // Keep draining stdout so the child never blocks on a full pipe.
+    std::thread::spawn(move || for _ in lines {});
+    (child, url)
+}
