@@ -4,18 +4,10 @@
 //! bin, and the strata of `strata`.
 
 use super::strata::{ep_groups, stratum_score, wp_window, EpGroup, Pred, StratumBin, StratumScore, WpStratum};
-use super::wp::P_EPS;
+pub use super::score::{prob_score, ProbScore};
 use super::{fit_rows_from, Models};
 use crate::plays::Plays;
 use serde::{Deserialize, Serialize};
-
-/// Brier score and log loss of one set of win probabilities.
-#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
-pub struct ProbScore {
-    pub n: usize,
-    pub brier: f64,
-    pub log_loss: f64,
-}
 
 /// One bin of a reliability table: snaps whose prediction fell in `lo..hi`.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
@@ -101,22 +93,6 @@ pub struct CalibOptions {
     /// `None`: leave one season out with >= 3 seasons, the last season with
     /// 2, the last fifth of games with 1.
     pub plan: Option<Plan>,
-}
-
-pub fn prob_score(pred: &[f64], actual: &[f64]) -> ProbScore {
-    let n = pred.len();
-    let (mut b, mut l) = (0.0, 0.0);
-    for (&p, &y) in pred.iter().zip(actual) {
-        b += (p - y) * (p - y);
-        let pc = p.clamp(P_EPS, 1.0 - P_EPS);
-        l -= y * pc.ln() + (1.0 - y) * (1.0 - pc).ln();
-    }
-    let d = n.max(1) as f64;
-    ProbScore {
-        n,
-        brier: b / d,
-        log_loss: l / d,
-    }
 }
 
 pub fn reliability(pred: &[f64], actual: &[f64]) -> Vec<ReliabilityBin> {

@@ -8,6 +8,7 @@ pub mod clock;
 pub mod cp;
 pub mod ep;
 pub mod logit;
+pub mod score;
 pub mod strata;
 #[cfg(test)]
 pub(crate) mod testkit;

@@ -4,7 +4,7 @@
 //! 90% bands (whole games are resampled: snaps of one game are not
 //! independent).
 
-use super::calib::{prob_score, ProbScore};
+use super::score::{prob_score, ProbScore};
 use crate::plays::Plays;
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;

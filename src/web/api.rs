@@ -2,6 +2,7 @@
 //! Bad input is a 400 with `{"error", "param", "value", "reason"}`.
 
 use super::query::Params;
+pub use super::service::{counted, split_for};
 use super::Shared;
 use crate::splits::{self, metric_index, METRICS};
 use axum::extract::{RawQuery, State};
@@ -44,15 +45,6 @@ pub async fn summary(State(st): State<Shared>) -> Response {
     .into_response()
 }
 
-/// The split table; `sort`/`dir`/`by` order the rows as on the page.
-pub fn split_for(st: &Shared, params: &Params, focus: Option<&str>) -> splits::SplitTable {
-    let mut t = (*st.split_table(&params.situation, params.min_dropbacks, focus)).clone();
-    if let Some(key) = &params.sort {
-        t.sort(key, params.sort_by, params.descending);
-    }
-    t
-}
-
 pub async fn splits(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
     match parse(&st, &q) {
         Ok(params) => Json(split_for(&st, &params, None)).into_response(),
@@ -80,7 +72,7 @@ pub async fn profile(State(st): State<Shared>, RawQuery(q): RawQuery) -> Respons
         return bad_request(&crate::situation::SituationError { param: "passer".into(), value: String::new(), reason: "a passer name is required".into() });
     };
     let lg = st.league();
-    let trend = super::pages::trend_situation(&params);
+    let trend = super::service::trend_situation(&params);
     let base = crate::situation::Situation { passer: None, ..params.situation.clone() };
     match splits::profile(lg.plays(), &lg.values(), &passer, &base, &trend, params.min_dropbacks) {
         Some(p) => Json(p).into_response(),
@@ -99,19 +91,6 @@ pub async fn plays(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response 
     let counted = counted(st.as_ref(), &params, &snaps);
     let n_counted = counted.as_ref().map(|c| c.iter().filter(|c| **c).count());
     Json(json!({ "situation": params.situation.describe(), "count": snaps.len(), "counted": n_counted, "counted_snaps": counted, "snaps": snaps })).into_response()
-}
-
-/// For a list opened from a rate or a count of events (`metric=`): does the
-/// metric count each snap (the rate's successes, the count's events)? None
-/// for other metrics (totals of yards, averages) and without one.
-pub fn counted(st: &super::AppState, params: &Params, snaps: &[splits::Snap]) -> Option<Vec<bool>> {
-    let m = &METRICS[params.metric.as_deref().and_then(metric_index)?];
-    if m.stat != splits::Stat::Rate && crate::situation::PlayResult::counted_by(m.key).is_none() {
-        return None;
-    }
-    let lg = st.league();
-    let v = lg.values();
-    Some(snaps.iter().map(|s| splits::metrics::value(lg.plays(), &v, m, s.index) > 0.0).collect())
 }
 
 pub async fn game(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {

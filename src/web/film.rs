@@ -4,7 +4,7 @@
 //! gather the engine's values off the async threads.
 
 use super::pages::{bad_query, chrome, error_page, html, Chrome};
-use super::query::{to_query_string, Params};
+use super::query::Params;
 use super::Shared;
 use crate::charts::{self, Series};
 use crate::notes::{self, Cutup, Note, SnapKey};
@@ -98,7 +98,7 @@ async fn build_review(st: &Shared, headers: &HeaderMap, params: &Params) -> Resu
     };
     let g = &p.games[gi];
     // Whose review: the team asked for, else our team when it played, else the home team.
-    let asked = params.situation.offense.clone().or_else(|| super::pages::ours(st, headers).0);
+    let asked = params.situation.offense.clone().or_else(|| super::service::ours(st, headers).0);
     let team = asked.and_then(|code| p.team_index(&code)).filter(|t| *t == g.home || *t == g.away).unwrap_or(g.home);
     let one_score = params.situation.one_score;
     let lg2 = lg.clone();
@@ -201,9 +201,4 @@ pub async fn cutups(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): R
         Ok(Err(e)) => error_page(&st, &headers, StatusCode::INTERNAL_SERVER_ERROR, "Lists unavailable", e.to_string(), "/"),
         Err(e) => error_page(&st, &headers, StatusCode::INTERNAL_SERVER_ERROR, "Lists unavailable", e.to_string(), "/"),
     }
-}
-
-/// Link to a game's review (for play lists and the game page).
-pub fn review_href(game: &str) -> String {
-    format!("/review{}", to_query_string(&[("game".to_string(), game.to_string())]))
 }

@@ -209,7 +209,7 @@ pub async fn meeting(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         Ok(p) => p,
         Err(e) => return plain(StatusCode::BAD_REQUEST, e.to_string()),
     };
-    let passer = match params.situation.passer.clone().or_else(|| super::pages::ours(&st, &headers).1) {
+    let passer = match params.situation.passer.clone().or_else(|| super::service::ours(&st, &headers).1) {
         Some(p) => p,
         None => return plain(StatusCode::BAD_REQUEST, "passer: choose our passer on the home page, or add ?passer=NAME".into()),
     };

@@ -10,6 +10,7 @@ mod guard;
 mod meeting;
 mod notes;
 mod pages;
+mod service;
 pub mod query;
 
 use crate::league::{League, LeagueConfig};

@@ -3,7 +3,7 @@
 //! Each page is a view of the split engine's values; numbers are formatted
 //! here, nowhere else.
 
-use super::api::split_for;
+use super::service::{ours, review_href, split_for, trend_situation, PASSER_COOKIE, TEAM_COOKIE};
 use super::query::{self, to_query_string, Params};
 use super::Shared;
 use crate::charts::{self, DotRow, Marker, Series};
@@ -29,16 +29,6 @@ pub struct Chrome {
     pub our_query: String,
     /// The preset the menu's links open on.
     pub default_preset: &'static str,
-}
-
-const TEAM_COOKIE: &str = "lg_team";
-const PASSER_COOKIE: &str = "lg_passer";
-
-/// Our team and passer: the cookie, else the `serve --team/--passer` default.
-pub fn ours(st: &Shared, headers: &HeaderMap) -> (Option<String>, Option<String>) {
-    let team = query::cookie(headers, TEAM_COOKIE).filter(|t| !t.is_empty()).or_else(|| st.team.clone());
-    let passer = query::cookie(headers, PASSER_COOKIE).filter(|t| !t.is_empty()).or_else(|| st.passer.clone());
-    (team, passer)
 }
 
 pub(super) fn chrome(st: &Shared, headers: &HeaderMap, params: Option<&Params>, title: String, active: &'static str, path: &str) -> Chrome {
@@ -517,11 +507,6 @@ struct ProfilePage {
     games: Vec<(String, String)>,
 }
 
-/// The situation of the season trend (default late & close).
-pub fn trend_situation(params: &Params) -> Situation {
-    let preset = params.trend.as_deref().and_then(Preset::parse).unwrap_or(Preset::DEFAULT);
-    preset.situation(params.situation.one_score)
-}
 
 const PROFILE_KEYS: &[&str] = &["epa", "success", "cpoe", "rating", "anya", "sack_rate", "int_rate", "wpa"];
 
@@ -770,7 +755,7 @@ pub async fn plays(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Ra
         Err(e) => return bad_query(&st, &headers, &e, "/explore"),
     };
     let snaps = play_list_for(&st, &params);
-    let counted = super::api::counted(st.as_ref(), &params, &snaps).unwrap_or_else(|| vec![false; snaps.len()]);
+    let counted = super::service::counted(st.as_ref(), &params, &snaps).unwrap_or_else(|| vec![false; snaps.len()]);
     let note = list_note(&params, &snaps, &counted);
     let page = PlaysPage {
         chrome: chrome(&st, &headers, Some(&params), "Snaps behind the number".into(), "plays", "/plays"),
@@ -880,7 +865,7 @@ pub async fn game(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Raw
         chart,
         swings,
         passer,
-        review_href: super::film::review_href(&key),
+        review_href: review_href(&key),
         api_href: format!("/api/game{}", to_query_string(&[("game".into(), key)])),
     };
     html(&page)
