@@ -32,6 +32,7 @@
 
   function refresh() {
     return Promise.all([send("GET", "/api/notes"), send("GET", "/api/cutups")]).then(function (r) {
+      if (r[0].off) { throw new Error(r[0].off); }
       notesBySnap = {};
       r[0].notes.forEach(function (n) {
         var k = keyOf(n.game, n.seq);

@@ -278,3 +278,16 @@ fn game_review_places_each_snap_in_the_leagues_distribution() {
     assert_eq!(get(&format!("{base}/review?game=nope")).status, 404);
     assert_eq!(get(&format!("{base}/api/review")).status, 400);
 }
+
+#[test]
+fn without_a_notes_folder_reads_say_off_and_writes_are_refused() {
+    let base = demo_server();
+    let r = get(&format!("{base}/api/notes"));
+    assert_eq!(r.status, 200);
+    assert!(r.json()["off"].as_str().unwrap().starts_with("notes are off"));
+    assert_eq!(get(&format!("{base}/api/cutups")).json()["count"], 0);
+    let r = send("POST", &format!("{base}/api/notes"), Some(&json!({"game": "x", "seq": 1, "text": "y"})), &[]);
+    assert_eq!(r.status, 503, "{}", r.body);
+    let page = get(&format!("{base}/cutups"));
+    assert!(page.body.contains("Notes and lists are off"));
+}

@@ -70,12 +70,15 @@ fn unplaced_text(lost: usize, one: &str, many: &str) -> Option<String> {
     (lost > 0).then(|| format!("{lost} {what} could not be placed: written against another version of the file, not in the loaded one"))
 }
 
+/// Reads answer 200 with `off` set when notes are off, so pages can tell
+/// without an error; writes answer 503.
+fn off_json(what: &str) -> Response {
+    Json(json!({ "off": "notes are off: the server has no notes folder, or the notes database could not be opened (see its log)", "count": 0, what: [] })).into_response()
+}
+
 pub async fn list_notes(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
     let game = crate::web::query::pairs(q.as_deref()).into_iter().find(|(k, _)| k == "game").map(|(_, v)| v);
-    let s = match store(&st) {
-        Ok(s) => s,
-        Err(r) => return r,
-    };
+    let Some(s) = st.notes() else { return off_json("notes") };
     let all = match blocking(move || s.notes()).await {
         Ok(a) => a,
         Err(r) => return r,
@@ -106,15 +109,15 @@ pub async fn create_note(State(st): State<Shared>, bytes: Bytes) -> Response {
         Ok(n) => n,
         Err(r) => return r,
     };
+    let s = match store(&st) {
+        Ok(s) => s,
+        Err(r) => return r,
+    };
     let key = SnapKey { game: new.game, seq: new.seq };
     let lg = st.league();
     let i = match notes::check_snaps(lg.plays(), std::slice::from_ref(&key)) {
         Ok(ix) => ix[0],
         Err(e) => return failed(e),
-    };
-    let s = match store(&st) {
-        Ok(s) => s,
-        Err(r) => return r,
     };
     let fp = lg.scored.fingerprint.clone();
     match blocking(move || s.add_note(&fp, &key, &new.text)).await {
@@ -214,10 +217,7 @@ fn placed_list(st: &Shared, list: Cutup, all_notes: &[Note]) -> PlacedList {
 }
 
 pub async fn list_cutups(State(st): State<Shared>) -> Response {
-    let s = match store(&st) {
-        Ok(s) => s,
-        Err(r) => return r,
-    };
+    let Some(s) = st.notes() else { return off_json("lists") };
     match blocking(move || Ok((s.cutups()?, s.notes()?))).await {
         Ok((lists, all_notes)) => {
             let lists: Vec<PlacedList> = lists.into_iter().map(|l| placed_list(&st, l, &all_notes)).collect();

@@ -1,0 +1,182 @@
+//! One pass over the rows at given coefficients: log-likelihood, gradient
+//! and Hessian pieces, summed on several threads.
+
+use super::*;
+
+#[inline]
+pub(super) fn dot(a: &[f64], b: &[f64]) -> f64 {
+    a.iter().zip(b).map(|(x, y)| x * y).sum()
+}
+
+/// Softmax over the reference (linear predictor 0) and the free classes;
+/// every other class gets 0.
+pub(super) fn softmax_row(coef: &[Vec<f64>], free: &[usize], reference: usize, x: &[f64], out: &mut [f64]) {
+    for v in out.iter_mut() {
+        *v = 0.0;
+    }
+    let mut max = 0.0f64;
+    let mut eta = [0.0f64; 16];
+    for (j, c) in coef.iter().enumerate() {
+        eta[j] = dot(c, x);
+        max = max.max(eta[j]);
+    }
+    let mut sum = (-max).exp();
+    out[reference] = sum;
+    for (j, &c) in free.iter().enumerate() {
+        let e = (eta[j] - max).exp();
+        out[c] = e;
+        sum += e;
+    }
+    for v in out.iter_mut() {
+        *v /= sum;
+    }
+}
+
+/// Sums over rows: log-likelihood, gradient, and (optionally) Hessian pieces.
+pub(super) struct Acc {
+    pub(super) weight: f64,
+    pub(super) ll: f64,
+    pub(super) grad: Vec<f64>, // m * p, class-major
+    /// For each feature pair (a <= b, row-major upper triangle), the
+    /// free-class pairs (j <= l) of sum w q_j (delta_jl - q_l) x_a x_b.
+    pub(super) hess: Vec<f64>,
+}
+
+pub(super) fn tri_len(p: usize) -> usize {
+    p * (p + 1) / 2
+}
+
+/// What one pass needs to know about the problem.
+#[derive(Clone, Copy)]
+pub(super) struct Problem<'a> {
+    pub(super) design: &'a dyn Design,
+    pub(super) labels: Labels<'a>,
+    pub(super) weights: Option<&'a [f64]>,
+    pub(super) free: &'a [usize],
+    pub(super) reference: usize,
+    pub(super) classes: usize,
+}
+
+/// One pass over `rows` at coefficients `coef`.
+pub(super) fn accumulate(pr: Problem, coef: &[Vec<f64>], rows: &[usize], with_hess: bool) -> Acc {
+    let p = pr.design.cols();
+    let k = pr.classes;
+    let m = pr.free.len();
+    let tl = tri_len(p);
+    let np = m * (m + 1) / 2;
+    let starts: Vec<usize> = (0..p).map(|a| triangle_index(p, a, a)).collect();
+    let mut acc = Acc {
+        weight: 0.0,
+        ll: 0.0,
+        grad: vec![0.0; m * p],
+        hess: if with_hess {
+            vec![0.0; np * tl]
+        } else {
+            Vec::new()
+        },
+    };
+    let mut x = vec![0.0; p];
+    let mut q = vec![0.0; k];
+    let mut t = vec![0.0; k];
+    let mut wq = vec![0.0; np];
+    let mut nz: Vec<usize> = Vec::with_capacity(p);
+    for &i in rows {
+        let w = pr.weights.map_or(1.0, |w| w[i]);
+        if w == 0.0 {
+            continue;
+        }
+        acc.weight += w;
+        pr.design.fill(i, &mut x);
+        softmax_row(coef, pr.free, pr.reference, &x, &mut q);
+        for v in t.iter_mut() {
+            *v = 0.0;
+        }
+        match pr.labels {
+            Labels::Binary(y) => {
+                t[1] = y[i];
+                t[0] = 1.0 - y[i];
+            }
+            Labels::Classes { y, .. } => t[y[i] as usize] = 1.0,
+        }
+        for c in 0..k {
+            if t[c] != 0.0 {
+                acc.ll += w * t[c] * q[c].max(1e-300).ln();
+            }
+        }
+        for (j, &c) in pr.free.iter().enumerate() {
+            let r = w * (t[c] - q[c]);
+            let g = &mut acc.grad[j * p..(j + 1) * p];
+            for a in 0..p {
+                g[a] += r * x[a];
+            }
+        }
+        if with_hess {
+            let mut pi = 0;
+            for (j, &cj) in pr.free.iter().enumerate() {
+                for &cl in &pr.free[j..] {
+                    let d = if cj == cl { 1.0 } else { 0.0 };
+                    wq[pi] = w * q[cj] * (d - q[cl]);
+                    pi += 1;
+                }
+            }
+            nz.clear();
+            nz.extend((0..p).filter(|&a| x[a] != 0.0));
+            for (ia, &a) in nz.iter().enumerate() {
+                let xa = x[a];
+                let base = starts[a];
+                for &b in &nz[ia..] {
+                    let v = xa * x[b];
+                    let at = (base + b - a) * np;
+                    let dst = &mut acc.hess[at..at + np];
+                    for (h, s) in dst.iter_mut().zip(&wq) {
+                        *h += v * s;
+                    }
+                }
+            }
+        }
+    }
+    acc
+}
+
+/// Position of (a, b), a <= b, in the row-major upper triangle of a p x p matrix.
+pub(super) fn triangle_index(p: usize, a: usize, b: usize) -> usize {
+    a * p - a * (a + 1) / 2 + a + (b - a)
+}
+
+/// `accumulate` split across threads, sums combined.
+pub(super) fn accumulate_par(
+    pr: Problem,
+    coef: &[Vec<f64>],
+    rows: &[usize],
+    with_hess: bool,
+    threads: usize,
+) -> Acc {
+    let threads = threads.max(1).min(rows.len() / 2000 + 1);
+    if threads == 1 {
+        return accumulate(pr, coef, rows, with_hess);
+    }
+    let chunk = rows.len().div_ceil(threads);
+    let parts: Vec<Acc> = std::thread::scope(|s| {
+        let handles: Vec<_> = rows
+            .chunks(chunk)
+            .map(|part| s.spawn(move || accumulate(pr, coef, part, with_hess)))
+            .collect();
+        handles
+            .into_iter()
+            .map(|h| h.join().expect("logit worker panicked"))
+            .collect()
+    });
+    let mut it = parts.into_iter();
+    let mut total = it.next().expect("at least one part");
+    for a in it {
+        total.weight += a.weight;
+        total.ll += a.ll;
+        for (x, y) in total.grad.iter_mut().zip(&a.grad) {
+            *x += y;
+        }
+        for (x, y) in total.hess.iter_mut().zip(&a.hess) {
+            *x += y;
+        }
+    }
+    total
+}
