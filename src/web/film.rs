@@ -67,7 +67,7 @@ pub fn review_view(chrome: Chrome, r: &GameReview, wide: bool) -> ReviewPage {
         std::cmp::Ordering::Equal => "tied",
     };
     let heading = format!("Game review: {} {} {} {}-{} ({})", r.team, if r.home { "vs" } else { "at" }, r.opponent, us, them, outcome);
-    let mut labels: Vec<(f64, String)> = vec![(0.0, "Q1".into()), (900.0, "Q2".into()), (1800.0, "Q3".into()), (2700.0, "Q4".into()), (3600.0, "end of Q4".into())];
+    let mut labels: Vec<(f64, String)> = vec![(0.0, "Q1".into()), (900.0, "Q2".into()), (1800.0, "Q3".into()), (2700.0, "Q4".into()), (3600.0, "end".into())];
     if r.wp_path.last().is_some_and(|p| p.0 > 3601.0) {
         labels.push((4200.0, "OT".into()));
     }

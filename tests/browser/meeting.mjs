@@ -107,6 +107,20 @@ try {
   const label = await open.textContent();
   if (label !== "1 note") fail("note button says " + label + " after saving");
   await page.screenshot({ path: `${shotDir}/meeting-note.png` });
+  const game = await page.locator("tr[data-game]").first().getAttribute("data-game");
+  // The lists page and a game review, laptop and projector.
+  for (const [size, w, h, view] of [["laptop", 1366, 768, ""], ["projector", 1920, 1080, "&view=projector"]]) {
+    await page.setViewportSize({ width: w, height: h });
+    for (const [name, path] of [["cutups", "/cutups?season=2020..2025"], ["review", "/review?game=" + encodeURIComponent(game)]]) {
+      const resp = await page.goto(base + path + view, { waitUntil: "load" });
+      if (!resp || resp.status() !== 200) fail(name + " answered " + (resp && resp.status()));
+      await page.screenshot({ path: `${shotDir}/${name}-${size}.png` });
+      if (name === "cutups") {
+        const listed = await page.locator("section.cutup h2").first().textContent();
+        if (!listed || !listed.includes("Meeting cut-up")) fail("the lists page does not show the new list: " + listed);
+      }
+    }
+  }
 } finally {
   await browser.close();
 }
