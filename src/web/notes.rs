@@ -36,6 +36,11 @@ fn id_of(kind: &str, raw: &str) -> Result<i64, Response> {
     raw.parse::<i64>().map_err(|_| refuse(StatusCode::BAD_REQUEST, format!("{kind} id '{raw}' is not a number")))
 }
 
+/// The database and the id in the address, or the refusal.
+fn store_and_id(st: &Shared, kind: &str, raw: &str) -> Result<(Arc<NoteStore>, i64), Response> {
+    Ok((store(st)?, id_of(kind, raw)?))
+}
+
 fn body<T: serde::de::DeserializeOwned>(bytes: &Bytes, expected: &str) -> Result<T, Response> {
     serde_json::from_slice(bytes).map_err(|e| refuse(StatusCode::BAD_REQUEST, format!("request body: {e}; expected JSON like {expected}")))
 }
@@ -127,9 +132,9 @@ pub async fn create_note(State(st): State<Shared>, bytes: Bytes) -> Response {
 }
 
 pub async fn get_note(State(st): State<Shared>, Path(raw): Path<String>) -> Response {
-    let (s, id) = match (store(&st), id_of("note", &raw)) {
-        (Ok(s), Ok(id)) => (s, id),
-        (Err(r), _) | (_, Err(r)) => return r,
+    let (s, id) = match store_and_id(&st, "note", &raw) {
+        Ok(x) => x,
+        Err(r) => return r,
     };
     match blocking(move || s.note(id)).await {
         Ok(Some(n)) => Json(n).into_response(),
@@ -145,9 +150,9 @@ struct NoteEdit {
 }
 
 pub async fn update_note(State(st): State<Shared>, Path(raw): Path<String>, bytes: Bytes) -> Response {
-    let (s, id) = match (store(&st), id_of("note", &raw)) {
-        (Ok(s), Ok(id)) => (s, id),
-        (Err(r), _) | (_, Err(r)) => return r,
+    let (s, id) = match store_and_id(&st, "note", &raw) {
+        Ok(x) => x,
+        Err(r) => return r,
     };
     let edit: NoteEdit = match body(&bytes, r#"{"text": "..."}"#) {
         Ok(e) => e,
@@ -160,16 +165,21 @@ pub async fn update_note(State(st): State<Shared>, Path(raw): Path<String>, byte
     }
 }
 
-pub async fn delete_note(State(st): State<Shared>, Path(raw): Path<String>) -> Response {
-    let (s, id) = match (store(&st), id_of("note", &raw)) {
-        (Ok(s), Ok(id)) => (s, id),
-        (Err(r), _) | (_, Err(r)) => return r,
+/// Delete by id: 204, or 404 naming what was not there.
+async fn delete_with(st: &Shared, kind: &str, what: &str, raw: &str, delete: fn(&NoteStore, i64) -> Result<bool, NotesError>) -> Response {
+    let (s, id) = match store_and_id(st, kind, raw) {
+        Ok(x) => x,
+        Err(r) => return r,
     };
-    match blocking(move || s.delete_note(id)).await {
+    match blocking(move || delete(&s, id)).await {
         Ok(true) => StatusCode::NO_CONTENT.into_response(),
-        Ok(false) => refuse(StatusCode::NOT_FOUND, format!("no note {id}")),
+        Ok(false) => refuse(StatusCode::NOT_FOUND, format!("no {what} {id}")),
         Err(r) => r,
     }
+}
+
+pub async fn delete_note(State(st): State<Shared>, Path(raw): Path<String>) -> Response {
+    delete_with(&st, "note", "note", &raw, NoteStore::delete_note).await
 }
 
 /// A list as the loaded file has it: its snaps in order, each with its
@@ -272,9 +282,9 @@ pub async fn get_cutup(State(st): State<Shared>, Path(raw): Path<String>) -> Res
 }
 
 pub async fn update_cutup(State(st): State<Shared>, Path(raw): Path<String>, bytes: Bytes) -> Response {
-    let (s, id) = match (store(&st), id_of("list", &raw)) {
-        (Ok(s), Ok(id)) => (s, id),
-        (Err(r), _) | (_, Err(r)) => return r,
+    let (s, id) = match store_and_id(&st, "list", &raw) {
+        Ok(x) => x,
+        Err(r) => return r,
     };
     let change: CutupChange = match body(&bytes, r#"{"name": "...", "add": [{"game": "...", "seq": 12}], "remove": [], "snaps": [...]}"#) {
         Ok(c) => c,
@@ -294,15 +304,7 @@ pub async fn update_cutup(State(st): State<Shared>, Path(raw): Path<String>, byt
 }
 
 pub async fn delete_cutup(State(st): State<Shared>, Path(raw): Path<String>) -> Response {
-    let (s, id) = match (store(&st), id_of("list", &raw)) {
-        (Ok(s), Ok(id)) => (s, id),
-        (Err(r), _) | (_, Err(r)) => return r,
-    };
-    match blocking(move || s.delete_cutup(id)).await {
-        Ok(true) => StatusCode::NO_CONTENT.into_response(),
-        Ok(false) => refuse(StatusCode::NOT_FOUND, format!("no cut-up list {id}")),
-        Err(r) => r,
-    }
+    delete_with(&st, "list", "cut-up list", &raw, NoteStore::delete_cutup).await
 }
 
 /// The list as the video staff's cut-up CSV, with a notes column.
