@@ -1,0 +1,267 @@
+//! The situation explorer: presets, the filter form, the passer table with estimates and intervals; every number links to its snaps.
+
+use super::*;
+
+pub struct PresetLink {
+    pub label: &'static str,
+    pub href: String,
+    pub active: bool,
+}
+
+pub struct FormField {
+    pub key: &'static str,
+    pub label: &'static str,
+    pub value: String,
+    pub placeholder: String,
+    pub help: &'static str,
+}
+
+pub struct Column {
+    pub key: &'static str,
+    pub short: &'static str,
+    pub label: &'static str,
+    pub href: String,
+    pub aria_sort: &'static str,
+    pub numeric: bool,
+    pub stability: String,
+}
+
+pub struct CellView {
+    pub main: String,
+    pub sub: String,
+    pub signal: String,
+    pub sort: String,
+    pub href: String,
+    pub title: String,
+}
+
+pub struct RowView {
+    pub passer: String,
+    pub team: String,
+    pub ours: bool,
+    pub profile_href: String,
+    pub cells: Vec<CellView>,
+}
+
+#[derive(Template)]
+#[template(path = "explore.html")]
+pub(super) struct ExplorePage {
+    pub(super) chrome: Chrome,
+    pub(super) presets: Vec<PresetLink>,
+    pub(super) preset_options: Vec<(&'static str, &'static str, bool)>,
+    pub(super) preset_value: String,
+    pub(super) os_value: String,
+    pub(super) site_value: String,
+    pub(super) fields: Vec<FormField>,
+    pub(super) min: u32,
+    pub(super) by_raw: bool,
+    pub(super) description: String,
+    pub(super) seasons: String,
+    pub(super) league_dropbacks: u32,
+    pub(super) qualified: usize,
+    pub(super) columns: Vec<Column>,
+    pub(super) league: Vec<String>,
+    pub(super) rows: Vec<RowView>,
+    pub(super) api_href: String,
+    pub(super) csv_href: String,
+    pub(super) plays_href: String,
+    pub(super) sort_note: String,
+}
+
+/// The columns shown: all metrics on a laptop, the projector set on a
+/// projector.
+pub(super) fn shown_metrics(projector: bool) -> Vec<usize> {
+    METRICS
+        .iter()
+        .enumerate()
+        .filter(|(_, m)| if projector { m.projector } else { m.key != "completions" && m.key != "yards" && m.key != "wpa" })
+        .map(|(j, _)| j)
+        .collect()
+}
+
+/// A passer page link that keeps the seasons and the view.
+pub fn passer_query(passer: &str, params: &Params) -> String {
+    let mut q = vec![("passer".to_string(), passer.to_string())];
+    if let Some(s) = params.situation.show(Field::Seasons) {
+        q.push(("season".into(), s));
+    }
+    if params.projector {
+        q.push(("view".into(), "projector".into()));
+    }
+    to_query_string(&q)
+}
+
+/// Does the query ask for a situation (a preset or any filter), even with
+/// empty boxes? A bare page opens on the default preset.
+pub fn asks_situation(raw: &[(String, String)]) -> bool {
+    raw.iter().any(|(k, _)| crate::situation::params::spec(k).is_some_and(|s| s.field != Field::Page))
+}
+
+/// The link behind one number: a count opens exactly the snaps it counts
+/// (`result=`), anything else its denominator (`metric=`), where the play
+/// list marks the counted snaps of a rate.
+pub fn number_query(situation: &Situation, passer: &str, metric: &str) -> Vec<(String, String)> {
+    let mut s = Situation { passer: Some(passer.to_string()), ..situation.clone() };
+    if let Some(res) = PlayResult::counted_by(metric) {
+        if s.results.as_ref().is_none_or(|rs| rs.contains(&res)) {
+            s.results = Some(vec![res]);
+        }
+    }
+    let mut q = s.to_query();
+    q.push(("metric".into(), metric.to_string()));
+    q
+}
+
+pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
+        Ok(p) => p,
+        Err(e) => return bad_query(&st, &headers, &e, &format!("/explore?preset={}", Preset::DEFAULT.key())),
+    };
+    let mut params = params;
+    if !asks_situation(&params.raw) {
+        // A bare /explore opens on the default preset.
+        params.situation = Preset::DEFAULT.situation(params.situation.one_score);
+        params.raw.push(("preset".into(), Preset::DEFAULT.key().into()));
+    }
+    let ch = chrome(&st, &headers, Some(&params), "Situation explorer".into(), "explore", "/explore");
+    let table = split_for(&st, &params, ch.our_passer.as_deref());
+    let sq = params.situation_query();
+    let current_preset = params.situation.preset;
+    let presets = Preset::ALL
+        .iter()
+        .map(|p| {
+            let kept = Situation { seasons: params.situation.seasons.clone(), ..p.situation(params.situation.one_score) };
+            let mut q = kept.to_query();
+            if params.projector {
+                q.push(("view".into(), "projector".into()));
+            }
+            PresetLink { label: p.label(), href: format!("/explore{}", to_query_string(&q)), active: current_preset == Some(*p) }
+        })
+        .collect();
+    let own_get = |k: &str| sq.iter().find(|(p, _)| p == k).map(|(_, v)| v.clone()).unwrap_or_default();
+    let base = params.situation.base();
+    let fields = PARAMS
+        .iter()
+        .filter(|spec| spec.form)
+        .map(|spec| FormField {
+            key: spec.key,
+            label: spec.label,
+            value: own_get(spec.key),
+            placeholder: base.show(spec.field).unwrap_or_else(|| "any".into()),
+            help: spec.help,
+        })
+        .collect();
+    let shown = shown_metrics(params.projector);
+    let mut columns = vec![
+        Column { key: "passer", short: "Passer", label: "Passer", href: String::new(), aria_sort: "none", numeric: false, stability: String::new() },
+        Column { key: "team", short: "Team", label: "Team", href: String::new(), aria_sort: "none", numeric: false, stability: String::new() },
+    ];
+    for &j in &shown {
+        let mi = &table.metrics[j];
+        columns.push(Column {
+            key: mi.key,
+            short: mi.short,
+            label: mi.label,
+            href: String::new(),
+            aria_sort: "none",
+            numeric: true,
+            stability: stability_note(mi),
+        });
+    }
+    for c in columns.iter_mut() {
+        let sorted_here = params.sort.as_deref() == Some(c.key);
+        let next_dir = if sorted_here && params.descending { "asc" } else { "desc" };
+        c.href = format!("/explore{}", params.with(&[("sort", Some(c.key)), ("dir", Some(next_dir))]));
+        if sorted_here {
+            c.aria_sort = if params.descending { "descending" } else { "ascending" };
+        }
+    }
+    let league = shown.iter().map(|&j| fmt(table.league[j], METRICS[j].decimals)).collect();
+    let (our_team, our_passer) = (ch.our_team.clone(), ch.our_passer.clone());
+    let rows = table
+        .rows
+        .iter()
+        .filter(|r| r.qualified || our_passer.as_deref() == Some(r.passer.as_str()))
+        .map(|r| RowView {
+            passer: r.passer.clone(),
+            team: r.team.clone(),
+            ours: our_passer.as_deref() == Some(r.passer.as_str()) || (our_passer.is_none() && our_team.as_deref() == Some(r.team.as_str())),
+            profile_href: format!("/passer{}", passer_query(&r.passer, &params)),
+            cells: shown
+                .iter()
+                .map(|&j| {
+                    let m = &METRICS[j];
+                    let c = &r.cells[j];
+                    let (sub, signal) = if m.stat == Stat::Count {
+                        (String::new(), String::new())
+                    } else {
+                        (
+                            format!("{} [{}, {}]", fmt(c.estimate, m.decimals), fmt(c.lo, m.decimals), fmt(c.hi, m.decimals)),
+                            c.signal.map(|s| format!("signal {:.0}%", s * 100.0)).unwrap_or_else(|| "signal –".into()),
+                        )
+                    };
+                    let sortv = match params.sort_by {
+                        SortBy::Estimate if m.stat != Stat::Count => c.estimate.or(c.value),
+                        _ => c.value,
+                    };
+                    CellView {
+                        main: fmt(c.value, m.decimals),
+                        sub,
+                        signal,
+                        sort: sort_value(sortv),
+                        href: format!("/plays{}", to_query_string(&number_query(&params.situation, &r.passer, m.key))),
+                        title: format!("{} {}; pct {}", c.n, m.unit.label(), fmt(c.percentile, 0)),
+                    }
+                })
+                .collect(),
+        })
+        .collect::<Vec<_>>();
+    let sort_note = match &params.sort {
+        Some(k) => format!(
+            "sorted by {} ({}, {})",
+            metric_index(k).map(|j| METRICS[j].label).unwrap_or(k.as_str()),
+            if params.sort_by == SortBy::Estimate { "estimate" } else { "raw value" },
+            if params.descending { "high to low" } else { "low to high" }
+        ),
+        None => "sorted by dropbacks".into(),
+    };
+    let page = ExplorePage {
+        presets,
+        preset_options: Preset::ALL.iter().map(|p| (p.key(), p.label(), current_preset == Some(*p))).collect(),
+        preset_value: current_preset.map(|p| p.key().to_string()).unwrap_or_default(),
+        os_value: params.situation.one_score.to_string(),
+        site_value: own_get("site"),
+        fields,
+        min: params.min_dropbacks,
+        by_raw: params.sort_by == SortBy::Value,
+        description: table.situation.clone(),
+        seasons: seasons_text(&table.seasons),
+        league_dropbacks: table.league_dropbacks,
+        qualified: table.qualified().count(),
+        columns,
+        league,
+        rows,
+        api_href: format!("/api/splits{}", params.with(&[("view", None)])),
+        csv_href: format!("/api/splits.csv{}", params.with(&[("view", None)])),
+        plays_href: format!("/plays{}", to_query_string(&sq)),
+        sort_note,
+        chrome: ch,
+    };
+    html(&page)
+}
+
+pub(super) fn stability_note(mi: &MetricInfo) -> String {
+    match mi.stability {
+        Some(r) => format!("season-to-season r = {r:.2} over {} passer pairs", mi.stability_pairs),
+        None if mi.stat == Stat::Count => "a total".into(),
+        None => "too few passers qualified in consecutive seasons to judge".into(),
+    }
+}
+
+pub(super) fn seasons_text(s: &[i32]) -> String {
+    match (s.first(), s.last()) {
+        (Some(a), Some(b)) if a != b && s.len() == (b - a + 1) as usize => format!("{a}–{b}"),
+        (Some(_), Some(_)) => s.iter().map(|x| x.to_string()).collect::<Vec<_>>().join(", "),
+        _ => "none".into(),
+    }
+}

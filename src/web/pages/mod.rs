@@ -1,0 +1,133 @@
+//! The server-rendered pages (askama templates): home, situation explorer,
+//! passer profile, play list and cut-up export, game flow, calibration.
+//! Each page is a view of the split engine's values; numbers are formatted
+//! here, nowhere else.
+
+use super::service::{ours, review_href, split_for, trend_situation, PASSER_COOKIE, TEAM_COOKIE};
+use super::query::{self, to_query_string, Params};
+use super::Shared;
+use crate::charts::{self, DotRow, Marker, Series};
+use crate::situation::params::Field;
+use crate::situation::{PlayResult, Preset, Situation, SituationError, PARAMS};
+use crate::splits::{self, metric_index, MetricInfo, SortBy, Stat, METRICS};
+use askama::Template;
+use axum::extract::{RawQuery, State};
+use axum::http::{header, HeaderMap, StatusCode};
+use axum::response::{Html, IntoResponse, Redirect, Response};
+
+mod home;
+mod explore;
+mod profile;
+mod plays;
+mod game;
+mod calibration;
+mod report;
+
+pub use home::*;
+pub use explore::*;
+pub use profile::*;
+pub use plays::*;
+pub use game::*;
+pub use calibration::*;
+pub use report::*;
+
+/// Page frame: title, navigation, projector toggle, our team and passer.
+pub struct Chrome {
+    pub title: String,
+    pub active: &'static str,
+    pub projector: bool,
+    pub toggle_href: String,
+    pub toggle_label: &'static str,
+    pub our_team: Option<String>,
+    pub our_passer: Option<String>,
+    pub our_query: String,
+    /// The preset the menu's links open on.
+    pub default_preset: &'static str,
+}
+
+pub(super) fn chrome(st: &Shared, headers: &HeaderMap, params: Option<&Params>, title: String, active: &'static str, path: &str) -> Chrome {
+    let projector = params.is_some_and(|p| p.projector);
+    let toggle_href = match params {
+        Some(p) => format!("{path}{}", p.with(&[("view", if projector { None } else { Some("projector") })])),
+        None => format!("{path}{}", if projector { "" } else { "?view=projector" }),
+    };
+    let (our_team, our_passer) = ours(st, headers);
+    let our_query = match &our_passer {
+        Some(p) => to_query_string(&[("passer".to_string(), p.clone())]),
+        None => String::new(),
+    };
+    Chrome {
+        title,
+        active,
+        projector,
+        toggle_href,
+        toggle_label: if projector { "Laptop view" } else { "Projector view" },
+        our_team,
+        our_passer,
+        our_query,
+        default_preset: Preset::DEFAULT.key(),
+    }
+}
+
+pub(super) fn html<T: Template>(t: &T) -> Response {
+    match t.render() {
+        Ok(body) => Html(body).into_response(),
+        Err(e) => {
+            tracing::error!("template: {e}");
+            (StatusCode::INTERNAL_SERVER_ERROR, "the page could not be drawn").into_response()
+        }
+    }
+}
+
+#[derive(Template)]
+#[template(path = "error.html")]
+struct ErrorPage {
+    chrome: Chrome,
+    status: u16,
+    heading: String,
+    reason: String,
+    back: String,
+}
+
+pub(super) fn error_page(st: &Shared, headers: &HeaderMap, status: StatusCode, heading: &str, reason: String, back: &str) -> Response {
+    let page = ErrorPage {
+        chrome: chrome(st, headers, None, heading.to_string(), "", "/"),
+        status: status.as_u16(),
+        heading: heading.to_string(),
+        reason,
+        back: back.to_string(),
+    };
+    let mut r = html(&page);
+    *r.status_mut() = status;
+    r
+}
+
+pub(super) fn bad_query(st: &Shared, headers: &HeaderMap, e: &SituationError, back: &str) -> Response {
+    error_page(st, headers, StatusCode::BAD_REQUEST, "That view can't be drawn", e.to_string(), back)
+}
+
+pub async fn not_found(State(st): State<Shared>, headers: HeaderMap) -> Response {
+    error_page(&st, &headers, StatusCode::NOT_FOUND, "No such page", "Nothing lives at this address.".into(), "/")
+}
+
+/// A number for a table cell; "–" when missing.
+pub fn fmt(v: Option<f64>, decimals: usize) -> String {
+    match v {
+        Some(x) if x.is_finite() => {
+            let s = format!("{x:.decimals$}");
+            if s.starts_with('-') && s.trim_start_matches(['-', '0', '.']).is_empty() {
+                s.trim_start_matches('-').to_string()
+            } else {
+                s
+            }
+        }
+        _ => "–".to_string(),
+    }
+}
+
+fn sort_value(v: Option<f64>) -> String {
+    match v {
+        Some(x) if x.is_finite() => format!("{x}"),
+        _ => String::new(),
+    }
+}
