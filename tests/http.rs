@@ -338,3 +338,45 @@ fn the_season_follows_a_passer_link_and_the_passer_page_says_which() {
     assert!(reason.starts_with("not in the file; the file covers ") && reason.ends_with(&season), "{reason}");
     assert_eq!(get(&format!("{base}/explore?preset=end-of-game&season=1999")).status, 400);
 }
+
+/// The cells of the game page's swings table: (offense vs defense, WPA).
+fn swing_rows(html: &str) -> Vec<(String, f64)> {
+    let body = html.split("<tbody>").nth(1).unwrap_or("").split("</tbody>").next().unwrap_or("");
+    body.split("<tr")
+        .skip(1)
+        .map(|row| {
+            let cells: Vec<String> = row.split("<td").skip(1).map(|c| c.split('>').nth(1).unwrap_or("").split('<').next().unwrap_or("").to_string()).collect();
+            let wpa = cells.last().map(|c| c.replace('−', "-").replace('+', "")).and_then(|c| c.parse().ok()).unwrap_or(f64::NAN);
+            (cells.get(2).cloned().unwrap_or_default(), wpa)
+        })
+        .collect()
+}
+
+#[test]
+fn the_game_chart_is_drawn_from_our_side_and_labels_overtime() {
+    let lg = demo_league();
+    let p = lg.plays();
+    // A game that went to overtime (the demo league has some).
+    let ot = p.games.iter().find(|g| (g.start..g.end).any(|i| p.period[i] >= 5)).expect("an overtime game in the demo league");
+    let (key, home, away) = (ot.key.clone(), p.teams[ot.home as usize].clone(), p.teams[ot.away as usize].clone());
+    // We are the away team: the chart and the swings are ours.
+    let base = spawn(demo_league(), Some(away.to_lowercase()), None, None);
+    let page = get(&format!("{base}/game?game={}", enc(&key))).body;
+    assert!(page.contains(&format!("{away} win probability through the game (our team)")), "title names our side");
+    assert!(page.contains(">OT<"), "overtime labelled on the x axis");
+    let api = get(&format!("{base}/api/game?game={}", enc(&key))).json();
+    let snaps = api["snaps"].as_array().expect("snaps");
+    let rows = swing_rows(&page);
+    assert!(!rows.is_empty());
+    for (teams, wpa) in &rows {
+        let offense = teams.split(" vs ").next().unwrap_or("");
+        // the snap with this offense and this |WPA|
+        let s = snaps.iter().find(|s| s["offense"] == offense && (s["wpa"].as_f64().unwrap_or(9.0).abs() - wpa.abs()).abs() < 6e-4).expect("the swing is a snap of the game");
+        let expect = if offense == away { s["wpa"].as_f64().unwrap() } else { -s["wpa"].as_f64().unwrap() };
+        assert!((wpa - expect).abs() < 6e-4, "{teams}: {wpa} vs {expect}");
+    }
+    assert!(rows.iter().any(|(t, w)| t.starts_with(&format!("{home} vs")) && *w != 0.0), "a home snap is shown with its sign turned");
+    // Without our team in the game: the home side, said in the title.
+    let neutral = get(&format!("{}/game?game={}", demo_server(), enc(&key))).body;
+    assert!(neutral.contains(&format!("{home} win probability through the game (home team)")));
+}
