@@ -328,7 +328,7 @@ fn text_table(t: &splits::SplitTable) -> String {
     let fmt = |v: Option<f64>, j: usize| v.map(|x| format!("{:.*}", METRICS[j].decimals, x)).unwrap_or_else(|| "-".into());
     s.push_str(&format!("{:<22} {:<5}", "LEAGUE", ""));
     for &j in &idx {
-        s.push_str(&format!(" {:>w$}", fmt(t.league[j], j), w = width(j)));
+        s.push_str(&format!(" {:>w$}", fmt(t.league_row[j], j), w = width(j)));
     }
     s.push('\n');
     for r in t.qualified() {

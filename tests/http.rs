@@ -380,3 +380,38 @@ fn the_game_chart_is_drawn_from_our_side_and_labels_overtime() {
     let neutral = get(&format!("{}/game?game={}", demo_server(), enc(&key))).body;
     assert!(neutral.contains(&format!("{home} win probability through the game (home team)")));
 }
+
+#[test]
+fn the_league_row_holds_per_passer_quantities_and_csv_counts_are_whole() {
+    let base = demo_server();
+    let j = get(&format!("{base}/api/splits?preset=end-of-game")).json();
+    let keys: Vec<String> = j["metrics"].as_array().expect("metrics").iter().map(|m| m["key"].as_str().unwrap_or("").to_string()).collect();
+    let at = |k: &str| keys.iter().position(|x| x == k).expect(k);
+    let (db, wpa_total, epa) = (at("dropbacks"), at("wpa_total"), at("epa"));
+    // JSON: the league row has no count; the totals stay under league_totals.
+    assert!(j["league"][db].is_null() && j["league"][wpa_total].is_null());
+    assert_eq!(j["league_totals"][db].as_f64(), j["league_dropbacks"].as_f64());
+    assert_eq!(j["league"][epa], j["league_totals"][epa]);
+    assert!(j["league"][epa].is_number());
+    // CSV: the same league row; counts written as whole numbers.
+    let csv = get(&format!("{base}/api/splits.csv?preset=end-of-game")).body;
+    let mut lines = csv.lines();
+    let head: Vec<&str> = lines.next().expect("head").split(',').collect();
+    let col = |k: &str| head.iter().position(|h| *h == k).expect(k);
+    let league: Vec<&str> = lines.next().expect("league row").split(',').collect();
+    assert_eq!(league[0], "LEAGUE");
+    assert_eq!((league[col("dropbacks")], league[col("wpa_total")], league[col("int")]), ("", "", ""));
+    assert!(league[col("epa")].parse::<f64>().is_ok());
+    let first: Vec<&str> = lines.next().expect("a passer").split(',').collect();
+    let dropbacks = first[col("dropbacks")];
+    assert!(!dropbacks.contains('.') && dropbacks.parse::<u32>().unwrap_or(0) > 0, "{dropbacks}");
+    assert_eq!(first[col("int")].parse::<u32>().map(|n| n.to_string()).as_deref(), Ok(first[col("int")]));
+    // The page: the league row shows neither total.
+    let page = get(&format!("{base}/explore?preset=end-of-game")).body;
+    let row = page.split("<tr class=\"league\">").nth(1).expect("league row").split("</tr>").next().unwrap_or("");
+    let total = j["league_dropbacks"].as_u64().expect("league dropbacks");
+    assert!(!row.contains(&format!(">{total}<")), "league dropbacks total in the league row");
+    let wpa = format!(">{:.3}<", j["league_totals"][wpa_total].as_f64().expect("a WPA total"));
+    assert!(!row.contains(&wpa), "league WPA total in the league row");
+    assert!(row.contains(">–<"));
+}
