@@ -31,6 +31,9 @@ enum Cmd {
     /// Validate a play file (or folder) and print the report; non-zero exit on errors.
     Check {
         file: PathBuf,
+        /// Count bad rows as skipped (as `serve --lenient` would) and exit 0 when valid rows remain.
+        #[arg(long)]
+        lenient: bool,
     },
     /// Generate the simulated demo league (play file plus truth file).
     Simulate {
@@ -209,13 +212,13 @@ fn run(cli: Cli) -> Result<ExitCode> {
             crate::web::serve_blocking(league, cfg)?;
             Ok(ExitCode::SUCCESS)
         }
-        Cmd::Check { file } => {
+        Cmd::Check { file, lenient } => {
             let pb = spinner(&format!("checking {}", file.display()));
-            let result = playfile::load(&file, &LoadOptions { lenient: false });
+            let result = playfile::load(&file, &LoadOptions { lenient });
             pb.finish_and_clear();
             match result {
                 Ok(loaded) => {
-                    print!("{}", loaded.report.summary(false));
+                    print!("{}", loaded.report.summary(lenient));
                     println!("fingerprint {}", loaded.fingerprint);
                     Ok(ExitCode::SUCCESS)
                 }
