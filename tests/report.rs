@@ -294,7 +294,7 @@ fn pdf_is_one_page_with_the_numbers_in_its_text() {
         let text = tool("pdftotext", &["-layout", &path, "-"]);
         assert!(text.contains(PASSERS[3]), "{text}");
         assert!(text.contains(&d.team));
-        assert!(text.contains("End of game, one score (one score = 8); seasons 2025"), "{text}");
+        assert!(text.contains("End of game, one score (8 points); seasons 2025"), "{text}");
         for m in &d.metrics {
             assert!(text.contains(m.label), "{}", m.label);
             for s in [&m.value, &m.estimate, &m.interval, &m.league, &m.percentile, &m.signal] {
@@ -341,7 +341,7 @@ fn html_has_the_same_numbers_and_no_inline_code() {
     assert!(html.contains("paper-letter"));
     assert!(report::html(&d, Paper::A4).contains("paper-a4"));
     assert!(html.contains(PASSERS[0]));
-    assert!(html.contains("End of game, one score (one score = 8); seasons 2025") || html.contains("End of game, one score (one score = 8); seasons 2025"), "situation missing");
+    assert!(html.contains("End of game, one score (8 points); seasons 2025") || html.contains("End of game, one score (8 points); seasons 2025"), "situation missing");
     for m in &d.metrics {
         for s in [&m.value, &m.estimate, &m.league, &m.percentile] {
             assert!(html.contains(&format!(">{s}<")), "{} {s}", m.key);
