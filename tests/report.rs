@@ -461,3 +461,34 @@ fn report_command_writes_one_page() {
     assert!(!bad.status.success());
     assert!(String::from_utf8_lossy(&bad.stderr).contains("no passer named 'Nobody Here'"));
 }
+
+#[test]
+fn the_report_defines_the_situation_gives_a_verdict_and_a_glossary() {
+    let dir = scratch();
+    let (p, epa, wp, wpa, cp) = league(None);
+    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp };
+    let d = build(&p, &v, PASSERS[3]);
+    // Every filter of the preset, in words, and none of the preset's name.
+    assert!(d.definition.contains("quarters 4,ot") && d.definition.contains("left in regulation") && d.definition.contains("margin"), "{}", d.definition);
+    assert!(!d.definition.contains("End of game"), "{}", d.definition);
+    // The verdict follows the EPA estimate's range and the league.
+    let m = d.metrics.iter().find(|m| m.key == "epa").expect("EPA");
+    let (lo, hi, lg) = (m.cell.lo.unwrap(), m.cell.hi.unwrap(), m.cell.league.unwrap());
+    let word = if lo > lg { "better than" } else if hi < lg { "worse than" } else { "not told apart from" };
+    assert!(d.verdict.starts_with(&format!("Verdict: {} is {word} the league here", PASSERS[3])), "{}", d.verdict);
+    assert!(d.verdict.contains(&m.estimate), "{}", d.verdict);
+    let html = report::html(&d, Paper::Letter);
+    let esc = |t: &str| t.replace('&', "&amp;").replace('<', "&lt;").replace('>', "&gt;").replace('\'', "&#39;");
+    assert!(html.contains(&format!("Situation: {}", esc(&d.definition))), "{}", d.definition);
+    assert!(html.contains(&esc(&d.verdict)), "{}", d.verdict);
+    for term in ["EPA: ", "CPOE: ", "ANY/A: ", "WPA: ", "Estimate: "] {
+        assert!(html.contains(term), "{term} missing from the glossary");
+    }
+    let path = write_pdf(&dir, "glossary.pdf", &report::render_pdf(&d, Paper::Letter).unwrap());
+    let text = tool("pdftotext", &[&path, "-"]).split_whitespace().collect::<Vec<_>>().join(" ");
+    for term in ["EPA: expected points added", "CPOE: completion % over expected", "ANY/A: adjusted net yards", "WPA: win probability added", "Estimate: our number", "Verdict:", "Situation: quarters"] {
+        assert!(text.contains(term), "{term} missing from the PDF:\n{text}");
+    }
+    assert!(!text.contains('…'), "something is cut off:\n{text}");
+    assert_on_page_without_overlaps(&path);
+}
