@@ -31,6 +31,9 @@ enum Cmd {
     /// Validate a play file (or folder) and print the report; non-zero exit on errors.
     Check {
         file: PathBuf,
+        /// Count bad rows as skipped (as `serve --lenient` would) and exit 0 when valid rows remain.
+        #[arg(long)]
+        lenient: bool,
     },
     /// Generate the simulated demo league (play file plus truth file).
     Simulate {
@@ -150,6 +153,8 @@ pub fn main() -> ExitCode {
     tracing_subscriber::fmt()
         .with_env_filter(tracing_subscriber::EnvFilter::try_from_default_env().unwrap_or_else(|_| "lategame=info,warn".into()))
         .with_writer(std::io::stderr)
+        // colour only for a person at a terminal, never into a file or pipe
+        .with_ansi(std::io::IsTerminal::is_terminal(&std::io::stderr()))
         .init();
     match run(cli) {
         Ok(code) => code,
@@ -209,13 +214,13 @@ fn run(cli: Cli) -> Result<ExitCode> {
             crate::web::serve_blocking(league, cfg)?;
             Ok(ExitCode::SUCCESS)
         }
-        Cmd::Check { file } => {
+        Cmd::Check { file, lenient } => {
             let pb = spinner(&format!("checking {}", file.display()));
-            let result = playfile::load(&file, &LoadOptions { lenient: false });
+            let result = playfile::load(&file, &LoadOptions { lenient });
             pb.finish_and_clear();
             match result {
                 Ok(loaded) => {
-                    print!("{}", loaded.report.summary(false));
+                    print!("{}", loaded.report.summary(lenient));
                     println!("fingerprint {}", loaded.fingerprint);
                     Ok(ExitCode::SUCCESS)
                 }
@@ -314,29 +319,42 @@ fn situation_from(preset: Option<&str>, query: Option<&str>) -> Result<Situation
     parsed.map_err(|e| anyhow::anyhow!("{e}"))
 }
 
+/// Seasons as a coach writes them: `2020-2025`, or a list when not consecutive.
+fn season_words(seasons: &[i32]) -> String {
+    match (seasons.first(), seasons.last()) {
+        (Some(a), Some(b)) if a == b => a.to_string(),
+        (Some(a), Some(b)) if seasons.windows(2).all(|w| w[1] == w[0] + 1) => format!("{a}-{b}"),
+        _ => seasons.iter().map(|s| s.to_string()).collect::<Vec<_>>().join(", "),
+    }
+}
+
+/// The split table as text, as the explorer shows it: per passer the raw
+/// numbers, and below them the estimate [90% interval] of each rate or mean.
 fn text_table(t: &splits::SplitTable) -> String {
     let keys = ["dropbacks", "comp_pct", "ypa", "int_rate", "sack_rate", "rating", "anya", "epa", "success", "wpa_total", "cpoe"];
     let idx: Vec<usize> = keys.iter().filter_map(|k| splits::metric_index(k)).collect();
-    let mut s = format!("{} — seasons {:?}, min {} dropbacks\n", t.situation, t.seasons, t.min_dropbacks);
-    s.push_str(&format!("{:<22} {:<5}", "passer", "team"));
-    // each column as wide as its heading, at least 8
-    let width = |j: usize| METRICS[j].short.chars().count().max(8);
-    for &j in &idx {
-        s.push_str(&format!(" {:>w$}", METRICS[j].short, w = width(j)));
-    }
-    s.push('\n');
-    let fmt = |v: Option<f64>, j: usize| v.map(|x| format!("{:.*}", METRICS[j].decimals, x)).unwrap_or_else(|| "-".into());
-    s.push_str(&format!("{:<22} {:<5}", "LEAGUE", ""));
-    for &j in &idx {
-        s.push_str(&format!(" {:>w$}", fmt(t.league[j], j), w = width(j)));
-    }
-    s.push('\n');
+    let num = |v: Option<f64>, j: usize| v.filter(|x| x.is_finite()).map(|x| format!("{:.*}", METRICS[j].decimals, x)).unwrap_or_else(|| "-".into());
+    let estimate = |c: &splits::Cell, j: usize| match c.estimate {
+        Some(_) => format!("{} [{}, {}]", num(c.estimate, j), num(c.lo, j), num(c.hi, j)),
+        None => String::new(),
+    };
+    // Lines of cells: heading, league, then two per qualified passer.
+    let mut lines: Vec<(String, String, Vec<String>)> = vec![
+        ("passer".into(), "team".into(), idx.iter().map(|&j| METRICS[j].short.to_string()).collect()),
+        ("LEAGUE".into(), String::new(), idx.iter().map(|&j| num(t.league_row[j], j)).collect()),
+    ];
     for r in t.qualified() {
-        let name: String = r.passer.chars().take(22).collect();
-        s.push_str(&format!("{:<22} {:<5}", name, r.team));
-        for &j in &idx {
-            s.push_str(&format!(" {:>w$}", fmt(r.cells[j].value, j), w = width(j)));
+        lines.push((r.passer.chars().take(22).collect(), r.team.clone(), idx.iter().map(|&j| num(r.cells[j].value, j)).collect()));
+        lines.push(("  estimate [90%]".into(), String::new(), idx.iter().map(|&j| estimate(&r.cells[j], j)).collect()));
+    }
+    let widths: Vec<usize> = (0..idx.len()).map(|k| lines.iter().map(|l| l.2[k].chars().count()).max().unwrap_or(0).max(8)).collect();
+    let mut s = format!("{} — seasons {}, ranked with at least {} dropbacks\n", t.situation, season_words(&t.seasons), t.min_dropbacks);
+    for (name, team, cells) in &lines {
+        let mut line = format!("{name:<22} {team:<5}");
+        for (c, w) in cells.iter().zip(&widths) {
+            line.push_str(&format!(" {c:>w$}"));
         }
+        s.push_str(line.trim_end());
         s.push('\n');
     }
     s
@@ -345,6 +363,33 @@ fn text_table(t: &splits::SplitTable) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn the_text_table_shows_estimates_and_intervals_and_says_things_once() {
+        let league = crate::league::League::open_with(&LeagueConfig::new(demo_path())).expect("the demo league");
+        let t = splits::split_table(league.plays(), &league.values(), &Preset::DEFAULT.situation(8), 20);
+        let text = text_table(&t);
+        let mut lines = text.lines();
+        let heading = lines.next().expect("a heading");
+        assert_eq!(heading, format!("End of game, one score (8 points) — seasons {}, ranked with at least 20 dropbacks", season_words(&t.seasons)));
+        let words: Vec<String> = heading.split([' ', ',', '(', ')']).filter(|w| w.len() > 2).map(str::to_lowercase).collect();
+        for (k, w) in words.iter().enumerate() {
+            assert!(!words[k + 1..].contains(w), "'{w}' twice in: {heading}");
+        }
+        // The first ranked passer's EPA: raw number, then estimate [lo, hi] below it.
+        let r = t.qualified().next().expect("a ranked passer");
+        let j = splits::metric_index("epa").expect("epa");
+        let c = &r.cells[j];
+        let name: String = r.passer.chars().take(22).collect();
+        let at = text.lines().position(|l| l.starts_with(&name)).expect("the passer's line");
+        let below = text.lines().nth(at + 1).expect("the estimate line");
+        assert!(below.starts_with("  estimate [90%]"), "{below}");
+        let want = format!("{:.3} [{:.3}, {:.3}]", c.estimate.unwrap(), c.lo.unwrap(), c.hi.unwrap());
+        assert!(below.contains(&want), "{want} in {below}");
+        assert!(c.lo.unwrap() <= c.estimate.unwrap() && c.estimate.unwrap() <= c.hi.unwrap());
+        assert_eq!(season_words(&[2020, 2021, 2022]), "2020-2022");
+        assert_eq!(season_words(&[2020, 2022]), "2020, 2022");
+    }
 
     #[test]
     fn where_reads_the_pages_language() {

@@ -130,9 +130,11 @@ pub fn split_csv(t: &SplitTable) -> String {
     let mut out = CsvText::new();
     out.row(&head);
     let opt = |v: Option<f64>, d: usize| v.map(|x| num(x, d)).unwrap_or_default();
+    // Counts are whole numbers; the rest carry one more decimal than the page.
+    let places = |m: &crate::splits::MetricDef| if m.stat == Stat::Count && m.decimals == 0 { 0 } else { m.decimals + 1 };
     let mut league = vec!["LEAGUE".to_string(), String::new(), String::new()];
     for (j, m) in METRICS.iter().enumerate() {
-        league.push(opt(t.league[j], m.decimals + 1));
+        league.push(opt(t.league_row[j], places(m)));
         if m.stat != Stat::Count {
             league.extend(std::iter::repeat_n(String::new(), 7));
         }
@@ -142,7 +144,7 @@ pub fn split_csv(t: &SplitTable) -> String {
         let mut cells = vec![r.passer.clone(), r.team.clone(), r.qualified.to_string()];
         for (j, m) in METRICS.iter().enumerate() {
             let c = &r.cells[j];
-            let d = m.decimals + 1;
+            let d = places(m);
             cells.push(opt(c.value, d));
             if m.stat != Stat::Count {
                 cells.push(opt(c.league, d));

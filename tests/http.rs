@@ -339,3 +339,80 @@ fn the_season_follows_a_passer_link_and_the_passer_page_says_which() {
     assert!(reason.starts_with("not in the file; the file covers ") && reason.ends_with(&season), "{reason}");
     assert_eq!(get(&format!("{base}/explore?preset=end-of-game&season=1999")).status, 400);
 }
+
+/// The cells of the game page's swings table: (offense vs defense, WPA).
+fn swing_rows(html: &str) -> Vec<(String, f64)> {
+    let body = html.split("<tbody>").nth(1).unwrap_or("").split("</tbody>").next().unwrap_or("");
+    body.split("<tr")
+        .skip(1)
+        .map(|row| {
+            let cells: Vec<String> = row.split("<td").skip(1).map(|c| c.split('>').nth(1).unwrap_or("").split('<').next().unwrap_or("").to_string()).collect();
+            let wpa = cells.last().map(|c| c.replace('−', "-").replace('+', "")).and_then(|c| c.parse().ok()).unwrap_or(f64::NAN);
+            (cells.get(2).cloned().unwrap_or_default(), wpa)
+        })
+        .collect()
+}
+
+#[test]
+fn the_game_chart_is_drawn_from_our_side_and_labels_overtime() {
+    let lg = demo_league();
+    let p = lg.plays();
+    // A game that went to overtime (the demo league has some).
+    let ot = p.games.iter().find(|g| (g.start..g.end).any(|i| p.period[i] >= 5)).expect("an overtime game in the demo league");
+    let (key, home, away) = (ot.key.clone(), p.teams[ot.home as usize].clone(), p.teams[ot.away as usize].clone());
+    // We are the away team: the chart and the swings are ours.
+    let base = spawn(demo_league(), Some(away.to_lowercase()), None, None);
+    let page = get(&format!("{base}/game?game={}", enc(&key))).body;
+    assert!(page.contains(&format!("{away} win probability through the game (our team)")), "title names our side");
+    assert!(page.contains(">OT<"), "overtime labelled on the x axis");
+    let api = get(&format!("{base}/api/game?game={}", enc(&key))).json();
+    let snaps = api["snaps"].as_array().expect("snaps");
+    let rows = swing_rows(&page);
+    assert!(!rows.is_empty());
+    for (teams, wpa) in &rows {
+        let offense = teams.split(" vs ").next().unwrap_or("");
+        // the snap with this offense and this |WPA|
+        let s = snaps.iter().find(|s| s["offense"] == offense && (s["wpa"].as_f64().unwrap_or(9.0).abs() - wpa.abs()).abs() < 6e-4).expect("the swing is a snap of the game");
+        let expect = if offense == away { s["wpa"].as_f64().unwrap() } else { -s["wpa"].as_f64().unwrap() };
+        assert!((wpa - expect).abs() < 6e-4, "{teams}: {wpa} vs {expect}");
+    }
+    assert!(rows.iter().any(|(t, w)| t.starts_with(&format!("{home} vs")) && *w != 0.0), "a home snap is shown with its sign turned");
+    // Without our team in the game: the home side, said in the title.
+    let neutral = get(&format!("{}/game?game={}", demo_server(), enc(&key))).body;
+    assert!(neutral.contains(&format!("{home} win probability through the game (home team)")));
+}
+
+#[test]
+fn the_league_row_holds_per_passer_quantities_and_csv_counts_are_whole() {
+    let base = demo_server();
+    let j = get(&format!("{base}/api/splits?preset=end-of-game")).json();
+    let keys: Vec<String> = j["metrics"].as_array().expect("metrics").iter().map(|m| m["key"].as_str().unwrap_or("").to_string()).collect();
+    let at = |k: &str| keys.iter().position(|x| x == k).expect(k);
+    let (db, wpa_total, epa) = (at("dropbacks"), at("wpa_total"), at("epa"));
+    // JSON: the league row has no count; the totals stay under league_totals.
+    assert!(j["league"][db].is_null() && j["league"][wpa_total].is_null());
+    assert_eq!(j["league_totals"][db].as_f64(), j["league_dropbacks"].as_f64());
+    assert_eq!(j["league"][epa], j["league_totals"][epa]);
+    assert!(j["league"][epa].is_number());
+    // CSV: the same league row; counts written as whole numbers.
+    let csv = get(&format!("{base}/api/splits.csv?preset=end-of-game")).body;
+    let mut lines = csv.lines();
+    let head: Vec<&str> = lines.next().expect("head").split(',').collect();
+    let col = |k: &str| head.iter().position(|h| *h == k).expect(k);
+    let league: Vec<&str> = lines.next().expect("league row").split(',').collect();
+    assert_eq!(league[0], "LEAGUE");
+    assert_eq!((league[col("dropbacks")], league[col("wpa_total")], league[col("int")]), ("", "", ""));
+    assert!(league[col("epa")].parse::<f64>().is_ok());
+    let first: Vec<&str> = lines.next().expect("a passer").split(',').collect();
+    let dropbacks = first[col("dropbacks")];
+    assert!(!dropbacks.contains('.') && dropbacks.parse::<u32>().unwrap_or(0) > 0, "{dropbacks}");
+    assert_eq!(first[col("int")].parse::<u32>().map(|n| n.to_string()).as_deref(), Ok(first[col("int")]));
+    // The page: the league row shows neither total.
+    let page = get(&format!("{base}/explore?preset=end-of-game")).body;
+    let row = page.split("<tr class=\"league\">").nth(1).expect("league row").split("</tr>").next().unwrap_or("");
+    let total = j["league_dropbacks"].as_u64().expect("league dropbacks");
+    assert!(!row.contains(&format!(">{total}<")), "league dropbacks total in the league row");
+    let wpa = format!(">{:.3}<", j["league_totals"][wpa_total].as_f64().expect("a WPA total"));
+    assert!(!row.contains(&wpa), "league WPA total in the league row");
+    assert!(row.contains(">–<"));
+}

@@ -107,7 +107,33 @@ fn valid_game_loads_with_derived_columns() {
 
 #[test]
 fn bad_down_names_file_row_column_value_and_expectation() {
-    assert_eq!(first(&set(3, "down", "6")), "week7.csv row 3: column down is 6; expected 1-4 or empty");
+    assert_eq!(first(&set(3, "down", "6")), "week7.csv row 3: column down is 6; expected 1-4 on a run snap");
+}
+
+/// No message contradicts itself: an empty down on a snap that needs one
+/// asks for a down, not for "1-4 or empty".
+#[test]
+fn an_empty_down_asks_for_a_down() {
+    let m = first(&set(2, "down", ""));
+    assert_eq!(m, "week7.csv row 2: column down is empty; expected 1-4 on a pass snap");
+    for text in [set(2, "down", ""), set(3, "down", "6"), set(2, "season", "abc"), set(2, "to_go", "")] {
+        for m in messages(&text) {
+            assert!(!(m.contains(" is empty;") && m.ends_with("or empty")), "contradicts itself: {m}");
+        }
+    }
+}
+
+/// "2.0" is down 2 (whole-number decimals, as Parquet float columns read,
+/// count as that number in every whole-number column); "2.5" is no down.
+#[test]
+fn a_whole_number_decimal_is_a_down_and_a_fraction_is_not() {
+    let dir = TempDir::new();
+    let p = write(dir.path(), "ok.csv", &set(4, "down", "2.0"));
+    let loaded = load(&p, &LoadOptions::default()).expect("2.0 is down 2");
+    assert_eq!(loaded.plays.down[3], 2);
+    assert_eq!(first(&set(4, "down", "2.5")), "week7.csv row 4: column down is 2.5; expected 1-4 on a sack snap");
+    assert_eq!(first(&set(4, "to_go", "6.0")), "no error");
+    assert_eq!(first(&set(4, "to_go", "6.5")), "week7.csv row 4: column to_go is 6.5; expected yards to go 1-99 with a down");
 }
 
 #[test]
@@ -266,7 +292,7 @@ fn check_command_reports_and_exits_nonzero() {
     let out = std::process::Command::new(env!("CARGO_BIN_EXE_lategame")).arg("check").arg(&bad).output().unwrap();
     assert!(!out.status.success());
     let text = String::from_utf8_lossy(&out.stdout);
-    assert!(text.contains("week7.csv row 3: column down is 6; expected 1-4 or empty"), "{text}");
+    assert!(text.contains("week7.csv row 3: column down is 6; expected 1-4 on a run snap"), "{text}");
     assert!(text.contains("problems by kind:"), "{text}");
     // the staff's file is only ever read
     assert_eq!(std::fs::read(&bad).unwrap(), before);
@@ -275,6 +301,25 @@ fn check_command_reports_and_exits_nonzero() {
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stdout));
 }
 
+
+#[test]
+fn check_lenient_skips_bad_rows_and_prints_no_colour_codes() {
+    let dir = TempDir::new();
+    let bad = write(dir.path(), "week7.csv", &set(3, "down", "6"));
+    let run = |args: &[&str]| std::process::Command::new(env!("CARGO_BIN_EXE_lategame")).args(args).arg(&bad).output().unwrap();
+    let out = run(&["check", "--lenient"]);
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(out.status.success(), "{text}");
+    assert!(text.contains("8 rows read, 1 games, 7 rows kept; 1 rows skipped"), "{text}");
+    assert!(text.contains("column down is 6; expected 1-4 on a run snap"), "{text}");
+    // Output to a pipe (not a terminal): plain text, in the report and in
+    // the command line's own errors.
+    for out in [run(&["check"]), run(&["check", "--lenient"]), run(&["check", "--no-such-flag"])] {
+        for stream in [&out.stdout, &out.stderr] {
+            assert!(!stream.contains(&0x1b), "an escape code in: {}", String::from_utf8_lossy(stream));
+        }
+    }
+}
 
 proptest::proptest! {
     #![proptest_config(proptest::prelude::ProptestConfig { cases: 64, ..Default::default() })]

@@ -294,7 +294,7 @@ fn pdf_is_one_page_with_the_numbers_in_its_text() {
         let text = tool("pdftotext", &["-layout", &path, "-"]);
         assert!(text.contains(PASSERS[3]), "{text}");
         assert!(text.contains(&d.team));
-        assert!(text.contains("End of game, one score (one score = 8); seasons 2025"), "{text}");
+        assert!(text.contains("End of game, one score (8 points); seasons 2025"), "{text}");
         for m in &d.metrics {
             assert!(text.contains(m.label), "{}", m.label);
             for s in [&m.value, &m.estimate, &m.interval, &m.league, &m.percentile, &m.signal] {
@@ -341,7 +341,7 @@ fn html_has_the_same_numbers_and_no_inline_code() {
     assert!(html.contains("paper-letter"));
     assert!(report::html(&d, Paper::A4).contains("paper-a4"));
     assert!(html.contains(PASSERS[0]));
-    assert!(html.contains("End of game, one score (one score = 8); seasons 2025") || html.contains("End of game, one score (one score = 8); seasons 2025"), "situation missing");
+    assert!(html.contains("End of game, one score (8 points); seasons 2025") || html.contains("End of game, one score (8 points); seasons 2025"), "situation missing");
     for m in &d.metrics {
         for s in [&m.value, &m.estimate, &m.league, &m.percentile] {
             assert!(html.contains(&format!(">{s}<")), "{} {s}", m.key);
@@ -460,4 +460,35 @@ fn report_command_writes_one_page() {
         .unwrap();
     assert!(!bad.status.success());
     assert!(String::from_utf8_lossy(&bad.stderr).contains("no passer named 'Nobody Here'"));
+}
+
+#[test]
+fn the_report_defines_the_situation_gives_a_verdict_and_a_glossary() {
+    let dir = scratch();
+    let (p, epa, wp, wpa, cp) = league(None);
+    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp };
+    let d = build(&p, &v, PASSERS[3]);
+    // Every filter of the preset, in words, and none of the preset's name.
+    assert!(d.definition.contains("quarters 4,ot") && d.definition.contains("left in regulation") && d.definition.contains("margin"), "{}", d.definition);
+    assert!(!d.definition.contains("End of game"), "{}", d.definition);
+    // The verdict follows the EPA estimate's range and the league.
+    let m = d.metrics.iter().find(|m| m.key == "epa").expect("EPA");
+    let (lo, hi, lg) = (m.cell.lo.unwrap(), m.cell.hi.unwrap(), m.cell.league.unwrap());
+    let word = if lo > lg { "better than" } else if hi < lg { "worse than" } else { "not told apart from" };
+    assert!(d.verdict.starts_with(&format!("Verdict: {} is {word} the league here", PASSERS[3])), "{}", d.verdict);
+    assert!(d.verdict.contains(&m.estimate), "{}", d.verdict);
+    let html = report::html(&d, Paper::Letter);
+    let esc = |t: &str| t.replace('&', "&amp;").replace('<', "&lt;").replace('>', "&gt;").replace('\'', "&#39;");
+    assert!(html.contains(&format!("Situation: {}", esc(&d.definition))), "{}", d.definition);
+    assert!(html.contains(&esc(&d.verdict)), "{}", d.verdict);
+    for term in ["EPA: ", "CPOE: ", "ANY/A: ", "WPA: ", "Estimate: "] {
+        assert!(html.contains(term), "{term} missing from the glossary");
+    }
+    let path = write_pdf(&dir, "glossary.pdf", &report::render_pdf(&d, Paper::Letter).unwrap());
+    let text = tool("pdftotext", &[&path, "-"]).split_whitespace().collect::<Vec<_>>().join(" ");
+    for term in ["EPA: expected points added", "CPOE: completion % over expected", "ANY/A: adjusted net yards", "WPA: win probability added", "Estimate: our number", "Verdict:", "Situation: quarters"] {
+        assert!(text.contains(term), "{term} missing from the PDF:\n{text}");
+    }
+    assert!(!text.contains('…'), "something is cut off:\n{text}");
+    assert_on_page_without_overlaps(&path);
 }

@@ -210,7 +210,13 @@ fn parse_row(t: &RawTable, r: usize, issues: &mut Vec<Issue>) -> Option<PlayRow>
             }
         }
     } else {
-        c.int(C_DOWN, 1, 4, kind.is_some(), "1-4 or empty")
+        // A pass, run, sack... needs a down; an unknown kind is reported on
+        // its own, so its down may be empty. Whole-number decimals ("2.0",
+        // as Parquet float columns read) count as that down; "2.5" does not.
+        match kind {
+            Some(k) => c.int(C_DOWN, 1, 4, true, &format!("1-4 on a {} snap", k.as_str())),
+            None => c.int(C_DOWN, 1, 4, false, "1-4 or empty"),
+        }
     };
     let ball_on = c.int(C_BALL_ON, 1, 99, true, "1-99 (yards from the offense's own goal line)");
     let to_go = if down.is_some() {

@@ -40,7 +40,7 @@ impl IssueKind {
 }
 
 /// One problem, with where it is. `Display` gives the coach-facing line,
-/// e.g. `week7.csv row 1,204: column down is 6; expected 1-4 or empty`.
+/// e.g. `week7.csv row 1,204: column down is 6; expected 1-4 on a run snap`.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Issue {
     pub file: String,

@@ -64,9 +64,11 @@ pub enum ReportError {
 pub const KEY_METRICS: [&str; 8] = ["epa", "success", "cpoe", "rating", "anya", "sack_rate", "int_rate", "wpa"];
 
 /// The reading notes printed at the foot of the page (HTML and PDF).
-pub const FOOTNOTES: [&str; 2] = [
+pub const FOOTNOTES: [&str; 4] = [
+    "EPA: expected points added, the change in the offense's expected points over the snap. CPOE: completion % over expected, caught % minus the model's completion chance of each throw.",
+    "ANY/A: adjusted net yards per attempt: pass yards less sack yards, +20 per touchdown pass, -45 per interception, over throws plus sacks. WPA: win probability added, the change in the offense's chance of winning over the snap.",
     "Estimate: our number pulled toward the league by as much as it could be luck (empirical Bayes); 90% range: where his true level likely sits. League: every passer in the same situation and seasons.",
-    "Pct: percentile among qualified passers, 100 = best (for sacked % and INT %, low is good). Signal: how much of the estimate rests on his own snaps rather than the league. WPA: change in win probability on the snap.",
+    "Pct: percentile among qualified passers, 100 = best (for sacked % and INT %, low is good). Signal: how much of the estimate rests on his own snaps rather than the league.",
 ];
 
 /// Where the numbers come from: stamped in the header.
@@ -132,6 +134,10 @@ pub struct ReportData {
     pub team: String,
     /// The situation in words (the split table's own description).
     pub situation: String,
+    /// What the situation is, filter by filter, in words.
+    pub definition: String,
+    /// One plain line: better, worse or not told apart from the league.
+    pub verdict: String,
     /// The situation as query parameters (the JSON API gives the same
     /// numbers for this query).
     pub query: Vec<(String, String)>,
@@ -229,6 +235,8 @@ impl ReportData {
             passer: row.passer.clone(),
             team: row.team.clone(),
             situation: table.situation.clone(),
+            definition: Situation { preset: None, passer: None, ..s.clone() }.describe(),
+            verdict: verdict(&row.passer, &metrics),
             query: table.query.clone(),
             seasons_label: seasons_label(&table.seasons),
             seasons: table.seasons.clone(),
@@ -280,6 +288,27 @@ pub fn fmt_metric(v: Option<f64>, decimals: usize) -> String {
         Some(x) if x.is_finite() => format!("{x:.decimals$}"),
         _ => "–".to_string(),
     }
+}
+
+/// The plain verdict from EPA per dropback: the estimate's 90% range above
+/// the league, below it, or around it.
+pub fn verdict(passer: &str, metrics: &[KeyMetric]) -> String {
+    let Some(m) = metrics.iter().find(|m| m.key == "epa") else {
+        return "No verdict: EPA per dropback is missing.".to_string();
+    };
+    let c = &m.cell;
+    let (Some(est), Some(lo), Some(hi), Some(lg)) = (c.estimate, c.lo, c.hi, c.league) else {
+        return format!("No verdict: too few snaps for an estimate of {passer}'s EPA per dropback.");
+    };
+    let f = |x: f64| fmt_metric(Some(x), m.decimals);
+    let (word, range) = if lo > lg {
+        ("better than", "all of its 90% range above the league")
+    } else if hi < lg {
+        ("worse than", "all of its 90% range below the league")
+    } else {
+        ("not told apart from", "its 90% range takes in the league")
+    };
+    format!("Verdict: {passer} is {word} the league here: EPA per dropback estimate {} against the league's {} ({} to {}; {range}).", f(est), f(lg), f(lo), f(hi))
 }
 
 fn key_metric(j: usize, c: &Cell) -> KeyMetric {

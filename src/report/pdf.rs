@@ -421,7 +421,16 @@ fn draw(pen: &mut Pen, d: &ReportData, pw: f32, ph: f32) {
     pen.text(x0 + name_w + 8.0, y, 12.0, false, GREY, &d.team, team_w, Align::Left);
     y += 16.0;
     pen.text(x0, y, 10.5, false, INK, &d.situation, w, Align::Left);
-    y += 12.5;
+    y += 11.0;
+    for line in pen.regular.wrap(7.4, &format!("Situation: {}", d.definition), w, 2) {
+        pen.text(x0, y, 7.4, false, INK, &line, w, Align::Left);
+        y += 9.5;
+    }
+    for line in pen.bold.wrap(7.8, &d.verdict, w, 2) {
+        pen.text(x0, y, 7.8, true, INK, &line, w, Align::Left);
+        y += 10.0;
+    }
+    y += 1.5;
     let meta = format!("{} · {}", d.counts_line(), d.provenance_line());
     pen.text(x0, y, 7.2, false, GREY, &meta, w, Align::Left);
     y += 7.0;
@@ -429,7 +438,8 @@ fn draw(pen: &mut Pen, d: &ReportData, pw: f32, ph: f32) {
     let top = y + 14.0;
 
     // ---- vertical budget ----
-    let foot_h = 2.0 * 9.0 + 4.0;
+    let foot_lines: Vec<String> = FOOTNOTES.iter().flat_map(|note| pen.regular.wrap(6.3, note, w, 3)).collect();
+    let foot_h = foot_lines.len() as f32 * 8.0 + 4.0;
     let plays_h = 14.0 + SNAP_ROW * 6.0 + 2.0;
     let body_bottom = ph - MARGIN - foot_h - plays_h - 12.0;
     let lw = (w - GUTTER) * 0.58;
@@ -499,10 +509,10 @@ fn draw(pen: &mut Pen, d: &ReportData, pw: f32, ph: f32) {
     snap_table(pen, x0 + bw + GUTTER, by, bw, "Biggest losses (WPA)", &d.worst);
 
     // ---- footer ----
-    let fy = ph - MARGIN - 9.0;
+    let fy = ph - MARGIN - foot_h + 8.0;
     pen.line(x0, fy - 9.0, right, fy - 9.0, RULE, 0.6);
-    for (k, note) in FOOTNOTES.iter().enumerate() {
-        pen.text(x0, fy + 9.0 * k as f32, 6.3, false, GREY, note, w, Align::Left);
+    for (k, line) in foot_lines.iter().enumerate() {
+        pen.text(x0, fy + 8.0 * k as f32, 6.3, false, GREY, line, w, Align::Left);
     }
 }
 
@@ -525,7 +535,20 @@ fn legend(pen: &mut Pen, x: f32, y: f32, w: f32) {
 
 fn snap_table(pen: &mut Pen, x: f32, y: f32, w: f32, title: &str, snaps: &[SnapLine]) {
     pen.heading(x, y, title, w);
-    let fixed = [66.0, 38.0, 32.0, 50.0, 24.0, 34.0];
+    // Each short column as wide as its longest cell ("OT 10:00" too), the
+    // result column takes the rest.
+    let fit = |head: &str, cell: &dyn Fn(&SnapLine) -> &str, least: f32| -> f32 {
+        let widest = snaps.iter().map(|s| pen.regular.width(7.0, cell(s))).fold(pen.bold.width(6.6, head), f32::max);
+        (widest + 6.0).max(least)
+    };
+    let fixed = [
+        fit("Game", &|s| &s.game, 40.0),
+        fit("Clock", &|s| &s.when, 30.0),
+        fit("Score", &|s| &s.score, 28.0),
+        fit("Down", &|s| &s.down_distance, 40.0),
+        fit("Spot", &|s| &s.spot, 22.0),
+        fit("WPA", &|s| &s.wpa, 30.0),
+    ];
     let result_w = (w - fixed.iter().sum::<f32>()).max(40.0);
     let widths = [fixed[0], fixed[1], fixed[2], fixed[3], fixed[4], result_w, fixed[5]];
     let aligns = [Align::Left, Align::Left, Align::Left, Align::Left, Align::Right, Align::Left, Align::Right];
@@ -538,6 +561,10 @@ fn snap_table(pen: &mut Pen, x: f32, y: f32, w: f32, title: &str, snaps: &[SnapL
     }
     for s in snaps {
         ty += SNAP_ROW;
-        pen.row(x, ty, &widths, &aligns, &[&s.game, &s.when, &s.score, &s.down_distance, &s.spot, &s.result, &s.wpa], 7.0, false, INK);
+        pen.row(x, ty, &widths, &aligns, &[&s.game, &s.when, &s.score, &s.down_distance, &s.spot, "", &s.wpa], 7.0, false, INK);
+        // A long result is set smaller (down to 5.6 pt) rather than cut.
+        let room = (result_w - 6.0).max(1.0);
+        let size = (7.0 * room / pen.regular.width(7.0, &s.result).max(1.0)).clamp(5.6, 7.0);
+        pen.text(x + widths[..5].iter().sum::<f32>() + 3.0, ty, size, false, INK, &s.result, room, Align::Left);
     }
 }

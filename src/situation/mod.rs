@@ -313,7 +313,12 @@ impl Situation {
         if let Some(p) = self.preset {
             let mut label = p.label().to_string();
             if p.uses_one_score() {
-                label.push_str(&format!(" (one score = {})", self.one_score));
+                // "End of game, one score (8 points)", not "one score (one score = 8)"
+                if label.contains("one score") {
+                    label.push_str(&format!(" ({} points)", self.one_score));
+                } else {
+                    label.push_str(&format!(" (one score = {})", self.one_score));
+                }
             }
             parts.push(label);
         }

@@ -79,7 +79,7 @@ fn end_of_game_is_what_it_says() {
     assert_eq!(s.to_query_full(), q("quarter=4,ot&game-left=..7:30&margin=-8..8"));
     let s7 = parse("preset=end-of-game&one-score=7");
     assert_eq!(s7.margin, Some(Range::new(Some(-7.0), Some(7.0))));
-    assert_eq!(s7.describe(), "End of game, one score (one score = 7)");
+    assert_eq!(s7.describe(), "End of game, one score (7 points)");
 }
 
 #[test]

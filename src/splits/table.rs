@@ -78,8 +78,13 @@ pub struct SplitTable {
     pub seasons: Vec<i32>,
     pub min_dropbacks: u32,
     pub metrics: Vec<MetricInfo>,
-    /// League values (counts are league totals).
+    /// League values (counts are league totals); in JSON `league_totals`.
+    #[serde(rename = "league_totals")]
     pub league: Vec<Option<f64>>,
+    /// The league row as pages, JSON (`league`) and CSV show it: per-passer
+    /// quantities only, so counts (league-wide sums) are `None`.
+    #[serde(rename = "league")]
+    pub league_row: Vec<Option<f64>>,
     pub league_dropbacks: u32,
     /// Every passer with a dropback in the situation; `qualified` marks
     /// those at or above the minimum.
@@ -136,6 +141,11 @@ pub enum SortBy {
 pub const DEFAULT_MIN_DROPBACKS: u32 = 20;
 
 /// The split table for a situation.
+/// The league row's per-passer quantities: rates and means; counts blank.
+pub fn league_row(league: &[Option<f64>]) -> Vec<Option<f64>> {
+    METRICS.iter().zip(league).map(|(m, v)| if m.stat == Stat::Count { None } else { *v }).collect()
+}
+
 pub fn split_table(p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32) -> SplitTable {
     split_table_for(p, v, s, min_dropbacks, None)
 }
@@ -263,6 +273,7 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: 
         min_dropbacks,
         metrics,
         league_dropbacks: sums.league[db].n as u32,
+        league_row: league_row(&league),
         league,
         rows,
     }

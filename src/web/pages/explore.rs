@@ -176,7 +176,7 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
             c.aria_sort = if params.descending { "descending" } else { "ascending" };
         }
     }
-    let league = shown.iter().map(|&j| fmt(table.league[j], METRICS[j].decimals)).collect();
+    let league = shown.iter().map(|&j| fmt(table.league_row[j], METRICS[j].decimals)).collect();
     let (our_team, our_passer) = (ch.our_team.clone(), ch.our_passer.clone());
     let rows = table
         .rows

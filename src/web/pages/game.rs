@@ -10,8 +10,22 @@ pub(super) struct GamePage {
     pub(super) chart: String,
     pub(super) swings: Vec<SnapView>,
     pub(super) passer: String,
+    /// The team whose win probability the chart and the WPA column show.
+    pub(super) side: String,
     pub(super) api_href: String,
     pub(super) review_href: String,
+}
+
+/// The x-axis labels of a game chart: the four quarters, then each overtime
+/// period the game reached (10 minutes each), then the end.
+fn period_labels(last_period: i32) -> Vec<(f64, String)> {
+    let mut labels: Vec<(f64, String)> = (1..=4).map(|q| (((q - 1) * 900) as f64, format!("Q{q}"))).collect();
+    for per in 5..=last_period {
+        labels.push(((3600 + (per - 5) * 600) as f64, splits::quarter(per)));
+    }
+    let end = if last_period <= 4 { 3600 } else { 3600 + (last_period - 4) * 600 };
+    labels.push((end as f64, "end".into()));
+    labels
 }
 
 pub async fn game(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
@@ -32,7 +46,13 @@ pub async fn game(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Raw
     let away = p.teams[g.away as usize].clone();
     let snaps = splits::game_snaps(p, &lg.values(), gi);
     let passer = params.situation.passer.clone().unwrap_or_default();
-    // Home win probability across the game, x = seconds elapsed.
+    // Win probability from one side: our team when it plays, else the home team.
+    let (our_team, _) = ours(&st, &headers);
+    let ours_plays = our_team.as_deref().and_then(|t| [&home, &away].into_iter().find(|s| s.eq_ignore_ascii_case(t)).cloned());
+    let side = ours_plays.clone().unwrap_or_else(|| home.clone());
+    let side_home = side == home;
+    let side_word = if ours_plays.is_some() { "our team" } else { "home team" };
+    // x = seconds elapsed; overtime periods are 10 minutes.
     let elapsed = |i: usize| -> f64 {
         let per = p.period[i];
         if per <= 4 {
@@ -42,43 +62,56 @@ pub async fn game(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Raw
         }
     };
     let wp = &lg.scored.scores.wp;
-    let mut pts: Vec<(f64, f64)> = (g.start..g.end).map(|i| (elapsed(i), if p.off_home[i] { wp[i] } else { 1.0 - wp[i] })).collect();
+    let wpa = &lg.scored.scores.wpa;
+    // The offense's win probability and WPA, turned to the side's.
+    let side_sign = |i: usize| if p.off_home[i] == side_home { 1.0 } else { -1.0 };
+    let side_wp = |i: usize| if side_sign(i) > 0.0 { wp[i] } else { 1.0 - wp[i] };
+    let mut pts: Vec<(f64, f64)> = (g.start..g.end).map(|i| (elapsed(i), side_wp(i))).collect();
     if let Some(last) = pts.last().copied() {
-        pts.push((last.0 + 1.0, g.home_result()));
+        pts.push((last.0 + 1.0, if side_home { g.home_result() } else { 1.0 - g.home_result() }));
     }
     let mut lev: Vec<usize> = (g.start..g.end).filter(|&i| !passer.is_empty() && p.passer_name(i) == Some(passer.as_str())).collect();
-    lev.sort_by(|&a, &b| lg.scored.scores.wpa[b].abs().partial_cmp(&lg.scored.scores.wpa[a].abs()).unwrap_or(std::cmp::Ordering::Equal));
+    lev.sort_by(|&a, &b| wpa[b].abs().partial_cmp(&wpa[a].abs()).unwrap_or(std::cmp::Ordering::Equal));
     lev.truncate(8);
     let markers: Vec<Marker> = lev
         .iter()
         .map(|&i| Marker {
             x: elapsed(i),
-            y: if p.off_home[i] { wp[i] } else { 1.0 - wp[i] },
-            class: if lg.scored.scores.wpa[i] >= 0.0 { "pos" } else { "neg" },
-            title: format!("Q{} {} {} — {} (WPA {:+.3})", p.period[i], crate::playfile::format_clock(p.clock[i]), splits::down_distance(p.down[i], p.to_go[i], p.ball_on[i]), splits::result_text(p, i), lg.scored.scores.wpa[i]),
+            y: side_wp(i),
+            class: if side_sign(i) * wpa[i] >= 0.0 { "pos" } else { "neg" },
+            title: format!("{} {} {} — {} ({side} WPA {:+.3})", splits::quarter(p.period[i]), crate::playfile::format_clock(p.clock[i]), splits::down_distance(p.down[i], p.to_go[i], p.ball_on[i]), splits::result_text(p, i), side_sign(i) * wpa[i]),
         })
         .collect();
-    let labels: Vec<(f64, String)> = vec![(0.0, "Q1".into()), (900.0, "Q2".into()), (1800.0, "Q3".into()), (2700.0, "Q4".into()), (3600.0, "end".into())];
+    let last_period = (g.start..g.end).map(|i| p.period[i]).max().unwrap_or(4);
     let chart = charts::lines(
-        &format!("{home} win probability through the game{}", if passer.is_empty() { String::new() } else { format!("; dots: {passer}'s biggest swings") }),
-        &[Series { name: format!("{home} win probability"), class: "passer", points: pts }],
+        &format!("{side} win probability through the game ({side_word}){}", if passer.is_empty() { String::new() } else { format!("; dots: {passer}'s biggest swings") }),
+        &[Series { name: format!("{side} win probability"), class: "passer", points: pts }],
         &markers,
         if params.projector { 1400.0 } else { 1000.0 },
         300.0,
         Some((0.0, 1.0)),
-        Some(&labels),
+        Some(&period_labels(last_period)),
         &|v| format!("{:.0}%", v * 100.0),
     )
     .to_svg();
     let mut order: Vec<usize> = (0..snaps.len()).collect();
     order.sort_by(|&a, &b| snaps[b].wpa.abs().partial_cmp(&snaps[a].wpa.abs()).unwrap_or(std::cmp::Ordering::Equal));
-    let swings = order.iter().take(12).map(|&k| snap_view(&snaps[k])).collect();
+    let swings = order
+        .iter()
+        .take(12)
+        .map(|&k| {
+            let s = &snaps[k];
+            let signed = if s.offense == side { s.wpa } else { -s.wpa };
+            SnapView { wpa: fmt(Some(signed), 3), wpa_sort: sort_value(Some(signed)), ..snap_view(s) }
+        })
+        .collect();
     let page = GamePage {
         chrome: chrome(&st, &headers, Some(&params), format!("Game flow: {away} at {home}"), "game", "/game"),
         heading: format!("{} week {}: {away} {} at {home} {}", g.season, g.week, g.away_final, g.home_final),
         chart,
         swings,
         passer,
+        side,
         review_href: review_href(&key),
         api_href: format!("/api/game{}", to_query_string(&[("game".into(), key)])),
     };
