@@ -84,12 +84,12 @@ fn column_values(html: &str, col: usize) -> Vec<String> {
 #[test]
 fn page_numbers_equal_the_json_api() {
     let base = demo_server();
-    let q = "preset=end-of-game&sort=epa&dir=desc";
+    let q = "preset=end-of-game&sort=epa&dir=desc&cols=all";
     let page = get(&format!("{base}/explore?{q}")).body;
     let json = get(&format!("{base}/api/splits?{q}")).json();
     let rows = json["rows"].as_array().unwrap();
     let qualified: Vec<&serde_json::Value> = rows.iter().filter(|r| r["qualified"] == true).collect();
-    // column 0 = passer, 1 = team, 2.. = metrics in the laptop order
+    // column 0 = passer, 1 = team, 2.. = every metric in order (cols=all)
     let names = column_values(&page, 0);
     assert_eq!(names.len(), qualified.len());
     for (n, r) in names.iter().zip(&qualified) {
@@ -97,7 +97,7 @@ fn page_numbers_equal_the_json_api() {
     }
     // the EPA column carries the estimate the API reports, digit for digit
     let keys = json["metrics"].as_array().unwrap().iter().map(|m| m["key"].as_str().unwrap().to_string()).collect::<Vec<_>>();
-    let shown: Vec<&String> = keys.iter().filter(|k| !matches!(k.as_str(), "completions" | "yards" | "wpa")).collect();
+    let shown: Vec<&String> = keys.iter().collect();
     let epa_col = 2 + shown.iter().position(|k| *k == "epa").unwrap();
     let epa_idx = keys.iter().position(|k| k == "epa").unwrap();
     let page_epa = column_values(&page, epa_col);
@@ -274,7 +274,7 @@ fn links(html: &str) -> Vec<(String, String)> {
 fn a_count_opens_exactly_the_snaps_it_counts() {
     let base = demo_server();
     // (end of game: few enough snaps per passer that the play page shows them all)
-    let page = get(&format!("{base}/explore?preset=end-of-game&min=1")).body;
+    let page = get(&format!("{base}/explore?preset=end-of-game&min=1&cols=all")).body;
     let all = links(&page);
     // the first passer with interceptions: follow his count
     let (href, text) = all.iter().find(|(h, t)| h.ends_with("metric=int") && t != "0").expect("an interception count").clone();
@@ -415,4 +415,22 @@ fn the_league_row_holds_per_passer_quantities_and_csv_counts_are_whole() {
     let wpa = format!(">{:.3}<", j["league_totals"][wpa_total].as_f64().expect("a WPA total"));
     assert!(!row.contains(&wpa), "league WPA total in the league row");
     assert!(row.contains(">–<"));
+}
+
+#[test]
+fn column_groups_choose_the_explorers_columns() {
+    let base = demo_server();
+    let heads = |q: &str| -> Vec<String> {
+        let page = get(&format!("{base}/explore?{q}")).body;
+        // after the passer and team columns
+        page.split("data-key=\"").skip(3).map(|r| r.split('"').next().unwrap_or("").to_string()).collect()
+    };
+    // the default is the key numbers, in the group's order
+    let want: Vec<String> = lategame::splits::METRIC_GROUPS[0].2.iter().map(|k| k.to_string()).collect();
+    assert_eq!(heads("preset=end-of-game"), want);
+    assert_eq!(heads("preset=end-of-game&cols=pressure")[1], "sacks");
+    assert_eq!(heads("preset=end-of-game&cols=all").len(), lategame::splits::METRICS.len());
+    let r = get(&format!("{base}/explore?cols=pasing"));
+    assert_eq!(r.status, 400);
+    assert!(r.body.contains("unknown column group"), "{}", r.body);
 }

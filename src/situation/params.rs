@@ -92,6 +92,7 @@ pub const PARAMS: &[ParamSpec] = &[
     p("metric", Field::Page, "Metric", "play list: only the snaps a metric is taken over (its key, e.g. int_rate)", "int_rate", "", false),
     p("game", Field::Page, "Game", "game page: the game's key", "KEY", "", false),
     p("trend", Field::Page, "Trend", "passer page: the preset of the season trend", "two-minute-drill", "", false),
+    p("cols", Field::Page, "Columns", "explorer: the column group, key (default), passing, pressure, value or all", "passing", "", false),
     p("screen", Field::Page, "Screen", "meeting view: the situation on screen (a preset's key)", "two-minute-drill", "", false),
     p("paper", Field::Page, "Paper", "report: letter (default) or a4", "a4", "", false),
     p("token", Field::Page, "Token", "shared mode: the access token, on the first visit only", "TOKEN", "", false),

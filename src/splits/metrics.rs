@@ -113,6 +113,22 @@ use Stat::*;
 use Unit::*;
 
 /// Every metric, in table order.
+/// Metrics that belong together, for tables too wide to show every column
+/// (the explorer's column groups): key, label, metric keys in table order.
+/// The first group is the default; "all" shows every metric.
+pub const METRIC_GROUPS: &[(&str, &str, &[&str])] = &[
+    ("key", "Key numbers", &["dropbacks", "rating", "epa", "success", "wpa", "cpoe", "anya", "int_rate", "sack_rate"]),
+    ("passing", "Passing", &["dropbacks", "attempts", "completions", "comp_pct", "yards", "ypa", "td", "int", "int_rate", "anya", "rating"]),
+    ("pressure", "Pressure and style", &["dropbacks", "sacks", "sack_rate", "scrambles", "scramble_rate", "turnover", "sticks", "pace"]),
+    ("value", "Value", &["dropbacks", "epa", "success", "wpa_total", "wpa", "cpoe"]),
+    ("all", "All columns", &[]),
+];
+
+/// The group named `key`, if there is one.
+pub fn metric_group(key: &str) -> Option<&'static (&'static str, &'static str, &'static [&'static str])> {
+    METRIC_GROUPS.iter().find(|g| g.0 == key)
+}
+
 pub const METRICS: &[MetricDef] = &[
     m(Id::Dropbacks, "dropbacks", "Dropbacks", "Dropbacks", Dropback, Count, true, 1.0, 0, true, false),
     m(Id::Attempts, "attempts", "Throws (pass attempts)", "Throws", Attempt, Count, true, 1.0, 0, false, false),

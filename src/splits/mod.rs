@@ -12,7 +12,7 @@ mod shrink;
 mod snaps;
 mod table;
 
-pub use metrics::{metric_index, MetricDef, SnapValues, Stat, Unit, METRICS};
+pub use metrics::{metric_group, metric_index, MetricDef, SnapValues, Stat, Unit, METRICS, METRIC_GROUPS};
 pub use snaps::{coach_spot, down_distance, game_snaps, play_list, quarter, result_text, snap_at, Snap};
 pub use profile::{epa_distribution, profile, EpaDistribution, Profile, ProfileLine, SeasonLine};
 pub use table::{split_table, split_table_for, Cell, MetricInfo, PasserRow, SortBy, SplitTable, DEFAULT_MIN_DROPBACKS};

@@ -55,6 +55,8 @@ pub struct Params {
     pub metric: Option<String>,
     pub game: Option<String>,
     pub trend: Option<String>,
+    /// Explorer column group (`splits::METRIC_GROUPS`); None = the default.
+    pub cols: Option<String>,
     pub paper: Option<String>,
 }
 
@@ -108,6 +110,15 @@ impl Params {
             Some(v) if crate::situation::Preset::parse(&v).is_some() => Some(v),
             Some(v) => return Err(bad("trend", &v, &format!("unknown preset; expected one of {}", crate::situation::Preset::keys()))),
         };
+        let cols = match get("cols") {
+            None => None,
+            Some(v) if v.is_empty() => None,
+            Some(v) if crate::splits::metric_group(&v).is_some() => Some(v),
+            Some(v) => {
+                let keys: Vec<&str> = crate::splits::METRIC_GROUPS.iter().map(|g| g.0).collect();
+                return Err(bad("cols", &v, &format!("unknown column group; expected one of {}", keys.join(", "))));
+            }
+        };
         let paper = match get("paper").as_deref() {
             None | Some("") => None,
             Some(v @ ("letter" | "a4")) => Some(v.to_string()),
@@ -123,6 +134,7 @@ impl Params {
             metric,
             game: get("game").filter(|g| !g.is_empty()),
             trend,
+            cols,
             paper,
             raw,
         })

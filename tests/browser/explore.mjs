@@ -70,6 +70,15 @@ try {
   if (got.chosen !== "end-of-game") fail("preset after the form: " + got.chosen);
   console.log("form with preset end-of-game and season " + season + ": " + got.rows.length + " passers, league " + api.league_dropbacks + " dropbacks");
 
+  // the default explorer fits a 1366 px laptop without sideways scrolling
+  await page.setViewportSize({ width: 1366, height: 768 });
+  await page.goto(base + "/explore?preset=end-of-game", { waitUntil: "load" });
+  const fit = await page.evaluate(() => {
+    const w = document.querySelector(".table-wrap");
+    return { table: w.scrollWidth, box: w.clientWidth, page: document.documentElement.scrollWidth, view: window.innerWidth };
+  });
+  if (fit.table > fit.box + 1 || fit.page > fit.view + 1) fail("explorer scrolls sideways at 1366 px: " + JSON.stringify(fit));
+
   const enc = encodeURIComponent(passer);
   const pages = [
     ["home", "/"],

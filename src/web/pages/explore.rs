@@ -48,6 +48,8 @@ pub struct RowView {
 pub(super) struct ExplorePage {
     pub(super) chrome: Chrome,
     pub(super) presets: Vec<PresetLink>,
+    pub(super) groups: Vec<GroupLink>,
+    pub(super) cols_value: String,
     pub(super) preset_options: Vec<(&'static str, &'static str, bool)>,
     pub(super) preset_value: String,
     pub(super) os_value: String,
@@ -68,15 +70,25 @@ pub(super) struct ExplorePage {
     pub(super) sort_note: String,
 }
 
-/// The columns shown: all metrics on a laptop, the projector set on a
-/// projector.
-pub(super) fn shown_metrics(projector: bool) -> Vec<usize> {
-    METRICS
-        .iter()
-        .enumerate()
-        .filter(|(_, m)| if projector { m.projector } else { m.key != "completions" && m.key != "yards" && m.key != "wpa" })
-        .map(|(j, _)| j)
-        .collect()
+/// The columns shown: the projector's short set unless a group is asked
+/// for; on a laptop the group (default: the key numbers, which fit 1366 px).
+pub(super) fn shown_metrics(projector: bool, cols: Option<&str>) -> Vec<usize> {
+    let group = match cols {
+        None if projector => return METRICS.iter().enumerate().filter(|(_, m)| m.projector).map(|(j, _)| j).collect(),
+        None => METRIC_GROUPS[0],
+        Some(k) => *splits::metric_group(k).unwrap_or(&METRIC_GROUPS[0]),
+    };
+    if group.2.is_empty() {
+        return (0..METRICS.len()).collect();
+    }
+    group.2.iter().filter_map(|k| metric_index(k)).collect()
+}
+
+/// A link to one column group of the explorer.
+pub struct GroupLink {
+    pub label: &'static str,
+    pub href: String,
+    pub active: bool,
 }
 
 /// A passer page link that keeps the seasons and the view.
@@ -151,7 +163,12 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
             help: spec.help,
         })
         .collect();
-    let shown = shown_metrics(params.projector);
+    let shown = shown_metrics(params.projector, params.cols.as_deref());
+    let current_group = params.cols.as_deref().unwrap_or(if params.projector { "" } else { METRIC_GROUPS[0].0 });
+    let groups: Vec<GroupLink> = METRIC_GROUPS
+        .iter()
+        .map(|g| GroupLink { label: g.1, href: format!("/explore{}", params.with(&[("cols", Some(g.0))])), active: g.0 == current_group })
+        .collect();
     let mut columns = vec![
         Column { key: "passer", short: "Passer", label: "Passer", href: String::new(), aria_sort: "none", numeric: false, stability: String::new() },
         Column { key: "team", short: "Team", label: "Team", href: String::new(), aria_sort: "none", numeric: false, stability: String::new() },
@@ -227,6 +244,8 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     };
     let page = ExplorePage {
         presets,
+        groups,
+        cols_value: params.cols.clone().unwrap_or_default(),
         preset_options: Preset::ALL.iter().map(|p| (p.key(), p.label(), current_preset == Some(*p))).collect(),
         preset_value: current_preset.map(|p| p.key().to_string()).unwrap_or_default(),
         os_value: params.situation.one_score.to_string(),

@@ -9,7 +9,7 @@ use super::Shared;
 use crate::charts::{self, DotRow, Marker, Series};
 use crate::situation::params::Field;
 use crate::situation::{PlayResult, Preset, Situation, SituationError, PARAMS};
-use crate::splits::{self, metric_index, MetricInfo, SortBy, Stat, METRICS};
+use crate::splits::{self, metric_index, MetricInfo, SortBy, Stat, METRICS, METRIC_GROUPS};
 use askama::Template;
 use axum::extract::{RawQuery, State};
 use axum::http::{header, HeaderMap, StatusCode};
