@@ -434,3 +434,21 @@ fn column_groups_choose_the_explorers_columns() {
     assert_eq!(r.status, 400);
     assert!(r.body.contains("unknown column group"), "{}", r.body);
 }
+
+#[test]
+fn the_menu_keeps_the_seasons_and_the_projector_view() {
+    let base = demo_server();
+    let page = get(&format!("{base}/explore?preset=two-minute-drill&season=2024,2025&view=projector")).body;
+    let nav = page.split("<nav aria-label=\"Pages\">").nth(1).and_then(|n| n.split("</nav>").next()).expect("the menu");
+    let hrefs: Vec<String> = nav.split("href=\"").skip(1).map(|r| r.split('"').next().unwrap_or("").replace("&amp;", "&").replace("&#38;", "&")).collect();
+    assert_eq!(hrefs.len(), 7, "{nav}");
+    assert!(hrefs.iter().all(|h| h.contains("view=projector")), "{hrefs:?}");
+    for h in hrefs.iter().filter(|h| h.starts_with("/explore") || h.starts_with("/report") || h.starts_with("/passer")) {
+        assert!(h.contains("season=2024,2025") || h.contains("season=2024%2C2025"), "{h}");
+    }
+    // and every one of them answers
+    for h in &hrefs {
+        let r = get(&format!("{base}{h}"));
+        assert!(r.status == 200 || r.status == 400, "{h}: {}", r.status);
+    }
+}

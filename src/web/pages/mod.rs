@@ -34,15 +34,43 @@ pub use report::*;
 /// Page frame: title, navigation, projector toggle, our team and passer.
 pub struct Chrome {
     pub title: String,
-    pub active: &'static str,
     pub projector: bool,
     pub toggle_href: String,
     pub toggle_label: &'static str,
     pub our_team: Option<String>,
     pub our_passer: Option<String>,
-    pub our_query: String,
-    /// The preset the menu's links open on.
-    pub default_preset: &'static str,
+    /// The menu: label, address (keeping the seasons, our passer and the
+    /// projector view), and whether it is this page.
+    pub menu: Vec<(&'static str, String, bool)>,
+}
+
+/// The top menu's links. Every link keeps the seasons asked for and the
+/// projector view; the passer pages open on our passer.
+fn menu(active: &str, params: Option<&Params>, our_passer: Option<&str>, preset: &str) -> Vec<(&'static str, String, bool)> {
+    let mut keep: Vec<(String, String)> = Vec::new();
+    if let Some(s) = params.and_then(|p| p.situation.show(crate::situation::params::Field::Seasons)) {
+        keep.push(("season".into(), s));
+    }
+    if params.is_some_and(|p| p.projector) {
+        keep.push(("view".into(), "projector".into()));
+    }
+    let with = |mut first: Vec<(String, String)>, seasons: bool| {
+        first.extend(keep.iter().filter(|(k, _)| seasons || k != "season").cloned());
+        to_query_string(&first)
+    };
+    let preset_q = vec![("preset".to_string(), preset.to_string())];
+    let passer_q: Vec<(String, String)> = our_passer.map(|p| vec![("passer".to_string(), p.to_string())]).unwrap_or_default();
+    let mut report_q = preset_q.clone();
+    report_q.extend(passer_q.clone());
+    vec![
+        ("Home", format!("/{}", with(Vec::new(), false)), active == "home"),
+        ("Situations", format!("/explore{}", with(preset_q, true)), active == "explore"),
+        ("Passer", format!("/passer{}", with(passer_q.clone(), true)), active == "passer"),
+        ("Meeting", format!("/meeting{}", with(passer_q, true)), active == "meeting"),
+        ("Cut-ups", format!("/cutups{}", with(Vec::new(), false)), active == "cutups"),
+        ("Calibration", format!("/calibration{}", with(Vec::new(), false)), active == "calibration"),
+        ("Report", format!("/report{}", with(report_q, true)), active == "report"),
+    ]
 }
 
 pub(super) fn chrome(st: &Shared, headers: &HeaderMap, params: Option<&Params>, title: String, active: &'static str, path: &str) -> Chrome {
@@ -52,20 +80,14 @@ pub(super) fn chrome(st: &Shared, headers: &HeaderMap, params: Option<&Params>, 
         None => format!("{path}{}", if projector { "" } else { "?view=projector" }),
     };
     let (our_team, our_passer) = ours(st, headers);
-    let our_query = match &our_passer {
-        Some(p) => to_query_string(&[("passer".to_string(), p.clone())]),
-        None => String::new(),
-    };
     Chrome {
+        menu: menu(active, params, our_passer.as_deref(), Preset::DEFAULT.key()),
         title,
-        active,
         projector,
         toggle_href,
         toggle_label: if projector { "Laptop view" } else { "Projector view" },
         our_team,
         our_passer,
-        our_query,
-        default_preset: Preset::DEFAULT.key(),
     }
 }
 
