@@ -3,6 +3,7 @@
 //! and calls the library; no logic of its own.
 
 use crate::league::{demo_path, League, LeagueConfig};
+use crate::numfmt;
 use crate::playfile::{self, LoadOptions};
 use crate::situation::{Preset, Situation};
 use crate::splits::{self, METRICS};
@@ -333,7 +334,7 @@ fn season_words(seasons: &[i32]) -> String {
 fn text_table(t: &splits::SplitTable) -> String {
     let keys = ["dropbacks", "comp_pct", "ypa", "int_rate", "sack_rate", "rating", "anya", "epa", "success", "wpa_total", "cpoe"];
     let idx: Vec<usize> = keys.iter().filter_map(|k| splits::metric_index(k)).collect();
-    let num = |v: Option<f64>, j: usize| v.filter(|x| x.is_finite()).map(|x| format!("{:.*}", METRICS[j].decimals, x)).unwrap_or_else(|| "-".into());
+    let num = |v: Option<f64>, j: usize| numfmt::as_computed(v, METRICS[j].decimals, "-");
     let estimate = |c: &splits::Cell, j: usize| match c.estimate {
         Some(_) => format!("{} [{}, {}]", num(c.estimate, j), num(c.lo, j), num(c.hi, j)),
         None => String::new(),

@@ -2,6 +2,7 @@
 //! Every text cell that a spreadsheet could take for a formula is
 //! neutralised.
 
+use crate::numfmt::plain;
 use crate::splits::{Snap, SplitTable, Stat, METRICS};
 use std::borrow::Cow;
 
@@ -51,14 +52,6 @@ pub fn safe_cell(s: &str) -> String {
     text
 }
 
-fn num(v: f64, decimals: usize) -> String {
-    if v.is_finite() {
-        format!("{v:.decimals$}")
-    } else {
-        String::new()
-    }
-}
-
 /// The cut-up: one row per snap for the video staff, each thing the video
 /// operator cues by in its own column.
 pub fn cutup_csv(snaps: &[Snap]) -> String {
@@ -104,8 +97,8 @@ fn cutup_rows(snaps: &[Snap], notes: Option<&[String]>) -> String {
             s.kind.to_string(),
             s.passer.clone().unwrap_or_default(),
             s.result.clone(),
-            num(s.epa, 3),
-            num(s.wpa, 4),
+            plain(Some(s.epa), 3),
+            plain(Some(s.wpa), 4),
             s.down_distance.clone(),
         ];
         if let Some(n) = notes {
@@ -129,12 +122,11 @@ pub fn split_csv(t: &SplitTable) -> String {
     }
     let mut out = CsvText::new();
     out.row(&head);
-    let opt = |v: Option<f64>, d: usize| v.map(|x| num(x, d)).unwrap_or_default();
     // Counts are whole numbers; the rest carry one more decimal than the page.
     let places = |m: &crate::splits::MetricDef| if m.stat == Stat::Count && m.decimals == 0 { 0 } else { m.decimals + 1 };
     let mut league = vec!["LEAGUE".to_string(), String::new(), String::new()];
     for (j, m) in METRICS.iter().enumerate() {
-        league.push(opt(t.league_row[j], places(m)));
+        league.push(plain(t.league_row[j], places(m)));
         if m.stat != Stat::Count {
             league.extend(std::iter::repeat_n(String::new(), 7));
         }
@@ -145,15 +137,15 @@ pub fn split_csv(t: &SplitTable) -> String {
         for (j, m) in METRICS.iter().enumerate() {
             let c = &r.cells[j];
             let d = places(m);
-            cells.push(opt(c.value, d));
+            cells.push(plain(c.value, d));
             if m.stat != Stat::Count {
-                cells.push(opt(c.league, d));
-                cells.push(opt(c.adjusted_league, d));
-                cells.push(opt(c.estimate, d));
-                cells.push(opt(c.lo, d));
-                cells.push(opt(c.hi, d));
-                cells.push(opt(c.signal, 3));
-                cells.push(opt(c.percentile, 0));
+                cells.push(plain(c.league, d));
+                cells.push(plain(c.adjusted_league, d));
+                cells.push(plain(c.estimate, d));
+                cells.push(plain(c.lo, d));
+                cells.push(plain(c.hi, d));
+                cells.push(plain(c.signal, 3));
+                cells.push(plain(c.percentile, 0));
             }
         }
         out.row(&cells);

@@ -11,6 +11,7 @@ pub mod layout;
 pub mod league;
 pub mod models;
 pub mod notes;
+pub mod numfmt;
 pub mod palette;
 pub mod playfile;
 pub mod plays;

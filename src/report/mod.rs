@@ -282,13 +282,9 @@ impl ReportData {
     }
 }
 
-/// A number at a metric's display precision; "–" when absent.
-pub fn fmt_metric(v: Option<f64>, decimals: usize) -> String {
-    match v {
-        Some(x) if x.is_finite() => format!("{x:.decimals$}"),
-        _ => "–".to_string(),
-    }
-}
+/// A number at a metric's display precision; "–" when absent (the one
+/// formatter in `numfmt`, named here for the report's callers).
+pub use crate::numfmt::fmt_metric;
 
 /// The plain verdict from EPA per dropback: the estimate's 90% range above
 /// the league, below it, or around it.

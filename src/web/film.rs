@@ -8,6 +8,7 @@ use super::query::Params;
 use super::Shared;
 use crate::charts::{self, Series};
 use crate::notes::{self, Cutup, Note, SnapKey};
+use crate::numfmt;
 use crate::splits::review::{game_review, GameReview, ReviewSnap};
 use crate::splits::{snap_at, Snap};
 use askama::Template;
@@ -39,22 +40,15 @@ pub struct ReviewPage {
     pub sections: Vec<ReviewSectionView>,
 }
 
-fn pct_text(v: Option<f64>) -> String {
-    match v {
-        Some(x) => format!("{:.0}", x),
-        None => "–".into(),
-    }
-}
-
 fn row(r: &ReviewSnap) -> ReviewRow {
     let s = &r.snap;
     ReviewRow {
         snap: s.clone(),
         passer: s.passer.clone().unwrap_or_default(),
-        epa: if s.epa.is_finite() { format!("{:+.2}", s.epa) } else { "–".into() },
-        epa_pct: pct_text(r.epa_pct),
-        wpa: if s.wpa.is_finite() { format!("{:+.1}%", s.wpa * 100.0) } else { "–".into() },
-        wpa_pct: pct_text(r.wpa_pct),
+        epa: numfmt::signed(Some(s.epa), 2, ""),
+        epa_pct: numfmt::count(r.epa_pct),
+        wpa: numfmt::signed(Some(s.wpa * 100.0), 1, "%"),
+        wpa_pct: numfmt::count(r.wpa_pct),
     }
 }
 
@@ -79,7 +73,7 @@ pub fn review_view(chrome: Chrome, r: &GameReview, wide: bool) -> ReviewPage {
         260.0,
         Some((0.0, 1.0)),
         Some(&labels),
-        &|v| format!("{:.0}%", v * 100.0),
+        &|v| numfmt::percent(Some(v * 100.0), 0),
     )
     .to_svg();
     let sections = r.sections.iter().map(|s| ReviewSectionView { label: s.label.to_string(), rows: s.snaps.iter().map(row).collect() }).collect();

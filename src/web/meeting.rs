@@ -6,6 +6,7 @@
 
 use super::query::Params;
 use super::Shared;
+use crate::numfmt;
 use crate::situation::{Preset, Situation};
 use crate::splits::{self, Cell, MetricInfo, Snap, SplitTable, Stat};
 use askama::Template;
@@ -75,17 +76,10 @@ pub fn screens() -> Vec<Preset> {
 }
 
 fn shown(m: &MetricInfo, v: Option<f64>) -> String {
-    match v {
-        Some(x) if x.is_finite() => {
-            let s = format!("{x:.*}", m.decimals);
-            let s = if s.starts_with('-') && s.trim_start_matches(['-', '0', '.']).is_empty() { s[1..].to_string() } else { s };
-            if m.stat == Stat::Rate {
-                format!("{s}%")
-            } else {
-                s
-            }
-        }
-        _ => "–".to_string(),
+    if m.stat == Stat::Rate {
+        numfmt::percent(v, m.decimals)
+    } else {
+        numfmt::fixed(v, m.decimals)
     }
 }
 
@@ -146,7 +140,7 @@ fn panel(m: &MetricInfo, cell: &Cell, league: Option<f64>, normal: Option<f64>) 
 }
 
 fn cue(s: &Snap) -> CueSnap {
-    CueSnap { snap: s.clone(), wpa: if s.wpa.is_finite() { format!("{:+.1} pts of WP", s.wpa * 100.0) } else { "–".into() } }
+    CueSnap { snap: s.clone(), wpa: numfmt::signed(Some(s.wpa * 100.0), 1, " pts of WP") }
 }
 
 /// Links to a screen: the passer, the seasons and the position.

@@ -193,7 +193,7 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
             c.aria_sort = if params.descending { "descending" } else { "ascending" };
         }
     }
-    let league = shown.iter().map(|&j| fmt(table.league_row[j], METRICS[j].decimals)).collect();
+    let league = shown.iter().map(|&j| fixed(table.league_row[j], METRICS[j].decimals)).collect();
     let (our_team, our_passer) = (ch.our_team.clone(), ch.our_passer.clone());
     let rows = table
         .rows
@@ -213,7 +213,7 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                         (String::new(), String::new())
                     } else {
                         (
-                            format!("{} [{}, {}]", fmt(c.estimate, m.decimals), fmt(c.lo, m.decimals), fmt(c.hi, m.decimals)),
+                            format!("{} [{}, {}]", fixed(c.estimate, m.decimals), fixed(c.lo, m.decimals), fixed(c.hi, m.decimals)),
                             c.signal.map(|s| format!("signal {:.0}%", s * 100.0)).unwrap_or_else(|| "signal –".into()),
                         )
                     };
@@ -222,12 +222,12 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                         _ => c.value,
                     };
                     CellView {
-                        main: fmt(c.value, m.decimals),
+                        main: fixed(c.value, m.decimals),
                         sub,
                         signal,
                         sort: sort_value(sortv),
                         href: format!("/plays{}", to_query_string(&number_query(&params.situation, &r.passer, m.key))),
-                        title: format!("{} {}; pct {}", c.n, m.unit.label(), fmt(c.percentile, 0)),
+                        title: format!("{} {}; pct {}", c.n, m.unit.label(), fixed(c.percentile, 0)),
                     }
                 })
                 .collect(),

@@ -102,7 +102,7 @@ pub async fn game(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Raw
         .map(|&k| {
             let s = &snaps[k];
             let signed = if s.offense == side { s.wpa } else { -s.wpa };
-            SnapView { wpa: fmt(Some(signed), 3), wpa_sort: sort_value(Some(signed)), ..snap_view(s) }
+            SnapView { wpa: fixed(Some(signed), 3), wpa_sort: sort_value(Some(signed)), ..snap_view(s) }
         })
         .collect();
     let page = GamePage {

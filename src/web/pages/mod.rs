@@ -1,12 +1,13 @@
 //! The server-rendered pages (askama templates): home, situation explorer,
 //! passer profile, play list and cut-up export, game flow, calibration.
 //! Each page is a view of the split engine's values; numbers are formatted
-//! here, nowhere else.
+//! by `numfmt`, nowhere else.
 
 use super::service::{ours, review_href, split_for, trend_situation, PASSER_COOKIE, TEAM_COOKIE};
 use super::query::{self, to_query_string, Params};
 use super::Shared;
 use crate::charts::{self, DotRow, Marker, Series};
+use crate::numfmt::fixed;
 use crate::situation::params::Field;
 use crate::situation::{PlayResult, Preset, Situation, SituationError, PARAMS};
 use crate::splits::{self, metric_index, MetricInfo, SortBy, Stat, METRICS, METRIC_GROUPS};
@@ -130,21 +131,6 @@ pub(super) fn bad_query(st: &Shared, headers: &HeaderMap, e: &SituationError, ba
 
 pub async fn not_found(State(st): State<Shared>, headers: HeaderMap) -> Response {
     error_page(&st, &headers, StatusCode::NOT_FOUND, "No such page", "Nothing lives at this address.".into(), "/")
-}
-
-/// A number for a table cell; "–" when missing.
-pub fn fmt(v: Option<f64>, decimals: usize) -> String {
-    match v {
-        Some(x) if x.is_finite() => {
-            let s = format!("{x:.decimals$}");
-            if s.starts_with('-') && s.trim_start_matches(['-', '0', '.']).is_empty() {
-                s.trim_start_matches('-').to_string()
-            } else {
-                s
-            }
-        }
-        _ => "–".to_string(),
-    }
 }
 
 fn sort_value(v: Option<f64>) -> String {

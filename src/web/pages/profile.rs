@@ -120,11 +120,11 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                         let m = &METRICS[j];
                         let c = line.row.as_ref().map(|r| &r.cells[j]);
                         (
-                            fmt(c.and_then(|c| c.value), m.decimals),
+                            fixed(c.and_then(|c| c.value), m.decimals),
                             c.filter(|_| m.stat != Stat::Count)
-                                .map(|c| format!("est {} [{}, {}]", fmt(c.estimate, m.decimals), fmt(c.lo, m.decimals), fmt(c.hi, m.decimals)))
+                                .map(|c| format!("est {} [{}, {}]", fixed(c.estimate, m.decimals), fixed(c.lo, m.decimals), fixed(c.hi, m.decimals)))
                                 .unwrap_or_default(),
-                            fmt(line.league[j], m.decimals),
+                            fixed(line.league[j], m.decimals),
                         )
                     })
                     .collect(),

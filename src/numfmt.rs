@@ -1,0 +1,126 @@
+//! Numbers for people: the one place that turns a value into the text a
+//! page, the report, the CLI table or a CSV shows. Imports nothing from the
+//! crate, so every layer may call it.
+
+/// What a page, the report or a signed figure shows for a missing value.
+pub const MISSING: &str = "–";
+
+fn digits(x: f64, decimals: usize) -> String {
+    format!("{x:.decimals$}")
+}
+
+/// `v` with `decimals` places; "–" when missing or not finite; a value
+/// that rounds to zero never shows a minus sign ("0.00", not "-0.00").
+pub fn fixed(v: Option<f64>, decimals: usize) -> String {
+    match v {
+        Some(x) if x.is_finite() => {
+            let s = digits(x, decimals);
+            if s.starts_with('-') && s.trim_start_matches(['-', '0', '.']).is_empty() {
+                s[1..].to_string()
+            } else {
+                s
+            }
+        }
+        _ => MISSING.to_string(),
+    }
+}
+
+/// `v` with `decimals` places and its sign as computed (a tiny negative
+/// value reads "-0.00"); `missing` when missing or not finite. The report
+/// and the CLI table use it.
+pub fn as_computed(v: Option<f64>, decimals: usize, missing: &str) -> String {
+    match v {
+        Some(x) if x.is_finite() => digits(x, decimals),
+        _ => missing.to_string(),
+    }
+}
+
+/// The report's form: [`as_computed`] with "–" for missing.
+pub fn fmt_metric(v: Option<f64>, decimals: usize) -> String {
+    as_computed(v, decimals, MISSING)
+}
+
+/// The CSV form: `decimals` places, sign as computed, empty when missing
+/// or not finite.
+pub fn plain(v: Option<f64>, decimals: usize) -> String {
+    as_computed(v, decimals, "")
+}
+
+/// A whole number (a count, a percentile): [`fixed`] with no decimals.
+pub fn count(v: Option<f64>) -> String {
+    fixed(v, 0)
+}
+
+/// A value already in percent units with a "%" after it ("41.7%"); "–"
+/// alone when missing.
+pub fn percent(v: Option<f64>, decimals: usize) -> String {
+    match v {
+        Some(x) if x.is_finite() => format!("{}%", fixed(Some(x), decimals)),
+        _ => MISSING.to_string(),
+    }
+}
+
+/// A change, always with its sign ("+0.37", "-1.20") and `unit` after it
+/// ("%", " pts of WP"); "–" alone when missing or not finite.
+pub fn signed(v: Option<f64>, decimals: usize, unit: &str) -> String {
+    match v {
+        Some(x) if x.is_finite() => format!("{x:+.decimals$}{unit}"),
+        _ => MISSING.to_string(),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn fixed_rounds_and_never_shows_negative_zero() {
+        assert_eq!(fixed(Some(0.125), 2), "0.12"); // 0.125 is exact in binary: ties go to even
+        assert_eq!(fixed(Some(0.375), 2), "0.38");
+        assert_eq!(fixed(Some(2.0 / 3.0), 3), "0.667");
+        assert_eq!(fixed(Some(-1.005), 1), "-1.0");
+        assert_eq!(fixed(Some(-0.004), 2), "0.00");
+        assert_eq!(fixed(Some(-0.0), 1), "0.0");
+        assert_eq!(fixed(Some(-0.4), 0), "0");
+        assert_eq!(fixed(Some(-0.006), 2), "-0.01");
+        assert_eq!(fixed(Some(-12.5), 0), "-12");
+        assert_eq!(fixed(Some(1234.5678), 1), "1234.6");
+    }
+
+    #[test]
+    fn missing_and_non_finite_read_as_a_dash_or_empty() {
+        for v in [None, Some(f64::NAN), Some(f64::INFINITY), Some(f64::NEG_INFINITY)] {
+            assert_eq!(fixed(v, 2), "–");
+            assert_eq!(fmt_metric(v, 2), "–");
+            assert_eq!(plain(v, 2), "");
+            assert_eq!(as_computed(v, 3, "-"), "-");
+            assert_eq!(count(v), "–");
+            assert_eq!(percent(v, 1), "–");
+            assert_eq!(signed(v, 2, "%"), "–");
+        }
+    }
+
+    #[test]
+    fn the_report_csv_and_cli_forms_keep_the_sign_as_computed() {
+        assert_eq!(fmt_metric(Some(-0.1234), 3), "-0.123");
+        assert_eq!(fmt_metric(Some(-0.0001), 2), "-0.00");
+        assert_eq!(plain(Some(-0.0001), 2), "-0.00");
+        assert_eq!(plain(Some(0.23456), 4), "0.2346");
+        assert_eq!(plain(Some(17.0), 0), "17");
+        assert_eq!(as_computed(Some(0.4567), 3, "-"), "0.457");
+    }
+
+    #[test]
+    fn counts_percents_and_signed_changes() {
+        assert_eq!(count(Some(42.0)), "42");
+        assert_eq!(count(Some(87.5)), "88");
+        assert_eq!(count(Some(86.5)), "86"); // ties to even
+        assert_eq!(percent(Some(41.666), 1), "41.7%");
+        assert_eq!(percent(Some(-0.01), 1), "0.0%");
+        assert_eq!(signed(Some(0.37), 2, ""), "+0.37");
+        assert_eq!(signed(Some(-1.2), 2, ""), "-1.20");
+        assert_eq!(signed(Some(0.0), 2, ""), "+0.00");
+        assert_eq!(signed(Some(0.0123 * 100.0), 1, "%"), "+1.2%");
+        assert_eq!(signed(Some(-0.045 * 100.0), 1, " pts of WP"), "-4.5 pts of WP");
+    }
+}
