@@ -321,7 +321,7 @@ fn the_season_follows_a_passer_link_and_the_passer_page_says_which() {
     let base = demo_server();
     let season = get(&format!("{base}/api/summary")).json()["seasons"].as_array().and_then(|s| s.last().cloned()).expect("a season").to_string();
     let page = get(&format!("{base}/explore?preset=end-of-game&season={season}")).body;
-    let (href, name) = links(&page).into_iter().find(|(h, _)| h.starts_with("/passer?")).expect("a passer link");
+    let (href, name) = links(&page).into_iter().find(|(h, _)| h.starts_with("/passer?passer=")).expect("a passer link in the table");
     assert!(href.ends_with(&format!("&season={season}")), "{href}");
     let profile = get(&format!("{base}{href}")).body;
     assert!(profile.contains(&format!("Seasons {season}</p>")), "season not shown");
