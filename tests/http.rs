@@ -441,8 +441,9 @@ fn the_menu_keeps_the_seasons_and_the_projector_view() {
     let page = get(&format!("{base}/explore?preset=two-minute-drill&season=2024,2025&view=projector")).body;
     let nav = page.split("<nav aria-label=\"Pages\">").nth(1).and_then(|n| n.split("</nav>").next()).expect("the menu");
     let hrefs: Vec<String> = nav.split("href=\"").skip(1).map(|r| r.split('"').next().unwrap_or("").replace("&amp;", "&").replace("&#38;", "&")).collect();
-    assert_eq!(hrefs.len(), 7, "{nav}");
+    assert_eq!(hrefs.len(), 8, "{nav}");
     assert!(hrefs.iter().all(|h| h.contains("view=projector")), "{hrefs:?}");
+    assert!(hrefs.iter().any(|h| h.starts_with("/report.pdf?")), "a PDF button on every page: {hrefs:?}");
     for h in hrefs.iter().filter(|h| h.starts_with("/explore") || h.starts_with("/report") || h.starts_with("/passer")) {
         assert!(h.contains("season=2024,2025") || h.contains("season=2024%2C2025"), "{h}");
     }

@@ -70,7 +70,8 @@ fn menu(active: &str, params: Option<&Params>, our_passer: Option<&str>, preset:
         ("Meeting", format!("/meeting{}", with(passer_q, true)), active == "meeting"),
         ("Cut-ups", format!("/cutups{}", with(Vec::new(), false)), active == "cutups"),
         ("Calibration", format!("/calibration{}", with(Vec::new(), false)), active == "calibration"),
-        ("Report", format!("/report{}", with(report_q, true)), active == "report"),
+        ("Report", format!("/report{}", with(report_q.clone(), true)), active == "report"),
+        ("PDF", format!("/report.pdf{}", with(report_q, true)), false),
     ]
 }
 
