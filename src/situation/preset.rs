@@ -36,6 +36,11 @@ impl Preset {
 
     /// The preset a page opens on when nothing is asked for.
     pub const DEFAULT: Preset = Preset::EndOfGame;
+    /// The game-on-the-line situations: every preset but "every snap" (the
+    /// baseline a passer's normal is taken over).
+    pub fn situations() -> impl Iterator<Item = Preset> {
+        Preset::ALL.into_iter().filter(|p| *p != Preset::EverySnap)
+    }
 
     /// The key in links (`preset=end-of-game`).
     pub fn key(self) -> &'static str {

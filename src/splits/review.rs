@@ -91,7 +91,7 @@ pub fn game_review(p: &Plays, v: &SnapValues, game: usize, team: u16, one_score:
     }
     let by_cell: Vec<Vec<f64>> = by_cell.into_iter().map(sorted).collect();
     let mut sections = Vec::new();
-    for preset in Preset::ALL.iter().copied().filter(|p| *p != Preset::EverySnap) {
+    for preset in Preset::situations() {
         let s = preset.situation(one_score);
         let ours: Vec<usize> = (g.start..g.end).filter(|&i| p.offense[i] == team && scrimmage(p.kind[i]) && s.matches(p, v.wp, i)).collect();
         if ours.is_empty() {

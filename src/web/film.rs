@@ -7,10 +7,10 @@ use super::pages::{bad_query, chrome, error_page, html, Chrome};
 use super::query::Params;
 use super::Shared;
 use crate::charts::{self, Series};
-use crate::notes::{self, Cutup, Note, SnapKey};
+use crate::notes::{self, Cutup, Note};
 use crate::numfmt;
 use crate::splits::review::{game_review, GameReview, ReviewSnap};
-use crate::splits::{snap_at, Snap};
+use crate::splits::Snap;
 use askama::Template;
 use axum::extract::{RawQuery, State};
 use axum::http::{HeaderMap, StatusCode};
@@ -159,19 +159,22 @@ pub fn lists_view(p: &crate::plays::Plays, v: &crate::splits::SnapValues, lists:
     lists
         .into_iter()
         .map(|l| {
-            let (placed, lost) = notes::place(p, l.snaps, |k: &SnapKey| k.clone());
+            let placed = super::notes::place_list(p, v, l, all_notes);
             let rows = placed
+                .snaps
                 .into_iter()
-                .map(|(k, i)| {
-                    let s = snap_at(p, v, i);
-                    ListRow {
-                        passer: s.passer.clone().unwrap_or_default(),
-                        snap: s,
-                        notes: all_notes.iter().filter(|n| n.game == k.game && n.seq == k.seq).map(|n| n.text.as_str()).collect::<Vec<_>>().join(" | "),
-                    }
-                })
+                .map(|s| ListRow { passer: s.snap.passer.clone().unwrap_or_default(), snap: s.snap, notes: s.notes.join(" | ") })
                 .collect();
-            ListView { id: l.id, name: l.name, csv_href: format!("/api/cutups/{}/csv", l.id), pdf_href: format!("/api/cutups/{}/pdf", l.id), delete_url: format!("/api/cutups/{}", l.id), rows, unplaced: lost }
+            let id = placed.id;
+            ListView {
+                id,
+                name: placed.name,
+                csv_href: format!("/api/cutups/{id}/csv"),
+                pdf_href: format!("/api/cutups/{id}/pdf"),
+                delete_url: format!("/api/cutups/{id}"),
+                rows,
+                unplaced: placed.unplaced,
+            }
         })
         .collect()
 }

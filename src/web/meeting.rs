@@ -72,7 +72,7 @@ pub struct MeetingView {
 
 /// The screens, in order: every preset but "all snaps" (his normal).
 pub fn screens() -> Vec<Preset> {
-    Preset::ALL.iter().copied().filter(|p| *p != Preset::EverySnap).collect()
+    Preset::situations().collect()
 }
 
 fn shown(m: &MetricInfo, v: Option<f64>) -> String {

@@ -185,32 +185,37 @@ pub async fn delete_note(State(st): State<Shared>, Path(raw): Path<String>) -> R
 /// A list as the loaded file has it: its snaps in order, each with its
 /// notes, and how many could not be placed.
 #[derive(Serialize)]
-struct PlacedList {
-    id: i64,
-    name: String,
+pub(super) struct PlacedList {
+    pub(super) id: i64,
+    pub(super) name: String,
     created_at: String,
     updated_at: String,
     count: usize,
-    snaps: Vec<ListSnap>,
-    unplaced: usize,
+    pub(super) snaps: Vec<ListSnap>,
+    pub(super) unplaced: usize,
     unplaced_text: Option<String>,
 }
 
 #[derive(Serialize)]
-struct ListSnap {
+pub(super) struct ListSnap {
     #[serde(flatten)]
-    snap: Snap,
-    notes: Vec<String>,
+    pub(super) snap: Snap,
+    pub(super) notes: Vec<String>,
 }
 
 fn placed_list(st: &Shared, list: Cutup, all_notes: &[Note]) -> PlacedList {
     let lg = st.league();
-    let (p, v) = (lg.plays(), lg.values());
+    place_list(lg.plays(), &lg.values(), list, all_notes)
+}
+
+/// A list against a loaded league: its snaps that are there, in order, each
+/// with its notes, and how many are not (pages and JSON share it).
+pub(super) fn place_list(p: &crate::plays::Plays, v: &crate::splits::SnapValues, list: Cutup, all_notes: &[Note]) -> PlacedList {
     let (placed, lost) = notes::place(p, list.snaps, |k| k.clone());
     let snaps: Vec<ListSnap> = placed
         .into_iter()
         .map(|(k, i)| ListSnap {
-            snap: snap_at(p, &v, i),
+            snap: snap_at(p, v, i),
             notes: all_notes.iter().filter(|n| n.game == k.game && n.seq == k.seq).map(|n| n.text.clone()).collect(),
         })
         .collect();
