@@ -19,7 +19,8 @@ const browser = await chromium.launch({
 });
 
 // In the page: every element with its own visible text, its font size and
-// contrast against the first opaque background behind it (WCAG 2 formula).
+// contrast against the first opaque background behind it (source: W3C WCAG 2.1,
+// definitions of relative luminance and contrast ratio).
 const measure = () => {
   function rgb(s) {
     const m = s.match(/rgba?\(([^)]+)\)/);
