@@ -3,6 +3,7 @@
 //! engine, pages, API and report read; `SnapValues` is the per-snap view of
 //! the scores the split engine takes.
 
+use crate::models::throw::{ThrowModel, ThrowScores};
 use crate::models::{self, Scored};
 use crate::playfile::{self, LoadError, LoadOptions, LoadReport};
 use std::path::{Path, PathBuf};
@@ -15,6 +16,9 @@ pub struct SnapValues<'a> {
     pub wp: &'a [f64],
     pub wpa: &'a [f64],
     pub cp: &'a [f64],
+    /// Throw choice and execution values (`models::throw`); NaN where none.
+    pub choice: &'a [f64],
+    pub execution: &'a [f64],
 }
 
 /// Where a league comes from and how it is opened.
@@ -52,6 +56,9 @@ pub struct League {
     pub source: PathBuf,
     pub report: LoadReport,
     pub scored: Scored,
+    /// The throw-value model (`None` without air yards) and its per-snap values.
+    pub throw_model: Option<ThrowModel>,
+    pub throw: ThrowScores,
 }
 
 impl League {
@@ -68,7 +75,8 @@ impl League {
         );
         let scored = models::fit_and_score_in(loaded.plays, &loaded.fingerprint, cfg.refit, cfg.cache_dir.as_deref())
             .map_err(|e| LeagueError::Models(format!("{e:#}")))?;
-        Ok(League { source: path.clone(), report: loaded.report, scored })
+        let (throw_model, throw) = throw_values(&scored).map_err(|e| LeagueError::Models(format!("{e:#}")))?;
+        Ok(League { source: path.clone(), report: loaded.report, scored, throw_model, throw })
     }
 
     /// `open_with` with the user's cache folder.
@@ -78,12 +86,28 @@ impl League {
 
     pub fn values(&self) -> SnapValues<'_> {
         let s = &self.scored.scores;
-        SnapValues { epa: &s.epa, wp: &s.wp, wpa: &s.wpa, cp: &s.cp }
+        SnapValues { epa: &s.epa, wp: &s.wp, wpa: &s.wpa, cp: &s.cp, choice: &self.throw.choice, execution: &self.throw.execution }
     }
 
     pub fn plays(&self) -> &crate::plays::Plays {
         &self.scored.plays
     }
+}
+
+/// Fit the throw-value model on every snap and score the passes (fitted at
+/// each opening: about a second on the demo league, not cached).
+pub fn throw_values(scored: &Scored) -> anyhow::Result<(Option<ThrowModel>, ThrowScores)> {
+    let started = std::time::Instant::now();
+    let p = &scored.plays;
+    let rows: Vec<u32> = (0..p.len() as u32).collect();
+    let Some(model) = models::throw::fit(p, &rows, &Default::default())? else {
+        let nan = vec![f64::NAN; p.len()];
+        return Ok((None, ThrowScores { chosen: nan.clone(), league: nan.clone(), choice: nan.clone(), execution: nan.clone(), league_sticks: nan }));
+    };
+    let s = &scored.scores;
+    let values = models::throw::score_all(&model, &scored.models, p, &s.ep, &s.wp, &s.wpa);
+    tracing::info!(seconds = started.elapsed().as_secs_f64(), "throw-value model fitted and scored");
+    Ok((Some(model), values))
 }
 
 /// The bundled demo league (used when no file is given).

@@ -10,6 +10,7 @@ pub mod ep;
 pub mod logit;
 pub mod score;
 pub mod strata;
+pub mod throw;
 #[cfg(test)]
 pub(crate) mod testkit;
 pub mod wp;

@@ -18,6 +18,8 @@ pub enum Unit {
     /// Dropbacks while trailing in the final 2:00 of a half, with a next
     /// snap by the same offense in the same period.
     HurryUp,
+    /// Attempts with air yards the throw-value model priced.
+    ThrowValued,
 }
 
 impl Unit {
@@ -29,6 +31,7 @@ impl Unit {
             Unit::AttemptWithCp => "attempts with air yards",
             Unit::LateDownAttempt => "3rd/4th-down attempts",
             Unit::HurryUp => "hurry-up snaps",
+            Unit::ThrowValued => "attempts with air yards",
         }
     }
 }
@@ -70,6 +73,8 @@ pub enum Id {
     Turnover,
     Sticks,
     Pace,
+    Choice,
+    Execution,
 }
 
 #[derive(Debug, Clone, Copy, Serialize)]
@@ -120,7 +125,7 @@ pub const METRIC_GROUPS: &[(&str, &str, &[&str])] = &[
     ("key", "Key numbers", &["dropbacks", "rating", "epa", "success", "wpa", "cpoe", "anya", "int_rate", "sack_rate"]),
     ("passing", "Passing", &["dropbacks", "attempts", "completions", "comp_pct", "yards", "ypa", "td", "int", "int_rate", "anya", "rating"]),
     ("pressure", "Pressure and style", &["dropbacks", "sacks", "sack_rate", "scrambles", "scramble_rate", "turnover", "sticks", "pace"]),
-    ("value", "Value", &["dropbacks", "epa", "success", "wpa_total", "wpa", "cpoe"]),
+    ("value", "Value", &["dropbacks", "epa", "success", "wpa_total", "wpa", "cpoe", "choice", "execution"]),
     ("all", "All columns", &[]),
 ];
 
@@ -153,6 +158,8 @@ pub const METRICS: &[MetricDef] = &[
     m(Id::Turnover, "turnover", "Giveaways per dropback (%): interceptions and lost fumbles", "Giveaway %", Dropback, Rate, false, 100.0, 1, false, true),
     m(Id::Sticks, "sticks", "Thrown past the sticks on 3rd/4th down (%)", "Past sticks %", LateDownAttempt, Rate, true, 100.0, 1, false, true),
     m(Id::Pace, "pace", "Hurry-up pace: seconds to the next snap when trailing late in a half", "Hurry-up secs", HurryUp, Mean, false, 1.0, 1, false, true),
+    m(Id::Choice, "choice", "Where he threw: WPA per throw of his depth over the depths the league picks in the same spot", "Depth choice", ThrowValued, Mean, true, 1.0, 4, false, true),
+    m(Id::Execution, "execution", "How the throw came off: WPA per throw over what the league gets at that depth", "Execution", ThrowValued, Mean, true, 1.0, 4, false, true),
 ];
 
 pub fn metric_index(key: &str) -> Option<usize> {
@@ -198,6 +205,7 @@ pub fn in_unit(p: &Plays, v: &SnapValues, unit: Unit, i: usize) -> bool {
         AttemptWithCp => k == Kind::Pass && v.cp.get(i).is_some_and(|c| c.is_finite()),
         LateDownAttempt => k == Kind::Pass && p.down[i] >= 3 && p.air_yards[i].is_some(),
         HurryUp => k.is_dropback() && hurry_up_gap(p, i).is_some(),
+        ThrowValued => k == Kind::Pass && v.choice.get(i).is_some_and(|c| c.is_finite()),
     }
 }
 
@@ -235,6 +243,8 @@ pub fn value(p: &Plays, v: &SnapValues, m: &MetricDef, i: usize) -> f64 {
         Id::Turnover => b(p.intercepted[i] || p.fumble_lost[i]),
         Id::Sticks => b(p.air_yards[i].is_some_and(|a| a >= p.to_go[i])),
         Id::Pace => hurry_up_gap(p, i).unwrap_or(0.0),
+        Id::Choice => v.choice.get(i).copied().unwrap_or(0.0),
+        Id::Execution => v.execution.get(i).copied().unwrap_or(0.0),
     }
 }
 
@@ -249,6 +259,7 @@ pub fn contributions(p: &Plays, v: &SnapValues, i: usize, out: &mut [f64]) -> u6
         in_unit(p, v, Unit::AttemptWithCp, i),
         in_unit(p, v, Unit::LateDownAttempt, i),
         in_unit(p, v, Unit::HurryUp, i),
+        in_unit(p, v, Unit::ThrowValued, i),
     ];
     for (j, m) in METRICS.iter().enumerate() {
         let inside = units[m.unit as usize];
