@@ -4,6 +4,7 @@
 
 mod draw;
 mod game;
+mod habits;
 mod league;
 mod names;
 mod truth;
@@ -12,6 +13,7 @@ mod truth;
 mod tests;
 
 pub use game::{KICK_TRY_SPOT, TWO_POINT_SPOT};
+pub use habits::ThrowShort;
 pub use league::{PasserSkills, TeamStrength};
 pub use names::LEAGUE_NAME;
 pub use truth::{write_truth, TruthRow};
@@ -113,6 +115,12 @@ pub fn simulate(cfg: &SimConfig) -> SimOutput {
     simulate_with_progress(cfg, &|_, _| {})
 }
 
+/// Simulate with some passers throwing short when trailing late (`habits`);
+/// the truth file records each passer's tilt shift.
+pub fn simulate_throw_short(cfg: &SimConfig, short: ThrowShort) -> SimOutput {
+    run_with(cfg, &|_, _| {}, None, short)
+}
+
 /// As `simulate`, calling `on_game(done, total)` after every game.
 pub fn simulate_with_progress(cfg: &SimConfig, on_game: &dyn Fn(usize, usize)) -> SimOutput {
     run(cfg, on_game, None)
@@ -187,7 +195,11 @@ fn rating(s: &TeamStrength, q: &PasserSkills) -> f64 {
 /// Per game: the pregame features (for the pilot regression).
 pub(crate) type FeatureLog = Vec<[f64; FEATURES]>;
 
-pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Option<&mut FeatureLog>) -> SimOutput {
+pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), log: Option<&mut FeatureLog>) -> SimOutput {
+    run_with(cfg, on_game, log, ThrowShort::default())
+}
+
+fn run_with(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Option<&mut FeatureLog>, short: ThrowShort) -> SimOutput {
     let league_rng = ChaCha8Rng::seed_from_u64(cfg.seed);
     let mut league = League::new(league_rng, cfg.first_season);
     let total = cfg.seasons as usize * GAMES_PER_SEASON;
@@ -244,6 +256,7 @@ pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Opti
                         [league.passers[qa[0]].name.as_str(), league.passers[qa[1]].name.as_str()],
                     ],
                     qb_skills: [skills(qh), skills(qa)],
+                    throw_short: [qh.map(|q| short.shift(q)), qa.map(|q| short.shift(q))],
                     home_line: (line_of(&f) * 10.0).round() / 10.0,
                 };
                 let mut rng = ChaCha8Rng::seed_from_u64(cfg.seed ^ 0x5EED_6A3E_0F1E_1D00);
@@ -258,7 +271,7 @@ pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Opti
         }
     }
     team_seasons.sort_by(|a, b| (a.season, &a.code).cmp(&(b.season, &b.code)));
-    let truth = book.rows(|pid| league.passers[pid].name.clone(), |t| league.teams[t].code.to_string());
+    let truth = book.rows(|pid| league.passers[pid].name.clone(), |t| league.teams[t].code.to_string(), |pid| short.shift(pid));
     let seen: std::collections::HashSet<&str> = truth.iter().map(|t| t.passer.as_str()).collect();
     let passers = league
         .passers

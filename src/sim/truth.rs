@@ -28,6 +28,8 @@ pub struct TruthRow {
     pub interception: f64,
     pub sack: f64,
     pub scramble: f64,
+    /// Shift of his depth tilt when trailing late (`ThrowShort`; 0: none).
+    pub late_trailing_depth_shift: f64,
 }
 
 /// The engine's probabilities at one dropback.
@@ -92,7 +94,7 @@ impl TruthBook {
     }
 
     /// One row per passer with at least one dropback, in order of passer id.
-    pub(crate) fn rows(&self, name: impl Fn(usize) -> String, team_code: impl Fn(usize) -> String) -> Vec<TruthRow> {
+    pub(crate) fn rows(&self, name: impl Fn(usize) -> String, team_code: impl Fn(usize) -> String, shift: impl Fn(usize) -> f64) -> Vec<TruthRow> {
         self.tally
             .iter()
             .enumerate()
@@ -114,6 +116,7 @@ impl TruthBook {
                     interception: t.sum[1] / n,
                     sack: t.sum[2] / n,
                     scramble: t.sum[3] / n,
+                    late_trailing_depth_shift: shift(pid),
                 }
             })
             .collect()
@@ -133,11 +136,11 @@ pub fn write_truth(truth: &[TruthRow], path: &Path) -> Result<()> {
     let opt = |v: Option<f64>| v.map(|v| format!("{v:.6}")).unwrap_or_default();
     let mut body = String::from(
         "passer,last_team,seasons,late_close_dropbacks,late_close_complete,late_close_interception,\
-         late_close_sack,late_close_scramble,dropbacks,complete,interception,sack,scramble\n",
+         late_close_sack,late_close_scramble,dropbacks,complete,interception,sack,scramble,late_trailing_depth_shift\n",
     );
     for r in truth {
         body.push_str(&format!(
-            "{},{},{},{},{},{},{},{},{},{:.6},{:.6},{:.6},{:.6}\n",
+            "{},{},{},{},{},{},{},{},{},{:.6},{:.6},{:.6},{:.6},{}\n",
             r.passer,
             r.last_team,
             r.seasons,
@@ -150,7 +153,8 @@ pub fn write_truth(truth: &[TruthRow], path: &Path) -> Result<()> {
             r.complete,
             r.interception,
             r.sack,
-            r.scramble
+            r.scramble,
+            r.late_trailing_depth_shift
         ));
     }
     w.write_all(body.as_bytes()).with_context(|| format!("writing {}", path.display()))?;

@@ -31,6 +31,8 @@ pub(crate) struct GameSetup<'a> {
     pub qb_ids: [[usize; 2]; 2],
     pub qb_names: [[&'a str; 2]; 2],
     pub qb_skills: [[PasserSkills; 2]; 2],
+    /// Each dressed passer's depth-tilt shift when trailing late (`habits`).
+    pub throw_short: [[f64; 2]; 2],
     pub home_line: f64,
 }
 

@@ -146,6 +146,10 @@ impl Engine<'_, '_> {
         } else if self.milk(off) {
             tilt -= 0.12;
         }
+        let short = self.g.throw_short[off][self.qb[off]];
+        if short != 0.0 && crate::sim::habits::trailing_late(self.period, self.clock, m) {
+            tilt += short;
+        }
         let mut band = [0.0; BANDS];
         let mut total = 0.0;
         for (c, b) in band.iter_mut().enumerate() {
