@@ -19,6 +19,9 @@ pub struct SnapValues<'a> {
     /// Throw choice and execution values (`models::throw`); NaN where none.
     pub choice: &'a [f64],
     pub execution: &'a [f64],
+    /// The league's share of throws past the line to gain in the snap's
+    /// state (`models::throw::sticks_share`); NaN where none.
+    pub league_sticks: &'a [f64],
 }
 
 /// Where a league comes from and how it is opened.
@@ -86,7 +89,7 @@ impl League {
 
     pub fn values(&self) -> SnapValues<'_> {
         let s = &self.scored.scores;
-        SnapValues { epa: &s.epa, wp: &s.wp, wpa: &s.wpa, cp: &s.cp, choice: &self.throw.choice, execution: &self.throw.execution }
+        SnapValues { epa: &s.epa, wp: &s.wp, wpa: &s.wpa, cp: &s.cp, choice: &self.throw.choice, execution: &self.throw.execution, league_sticks: &self.throw.league_sticks }
     }
 
     pub fn plays(&self) -> &crate::plays::Plays {

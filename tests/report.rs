@@ -227,7 +227,7 @@ fn assert_on_page_without_overlaps(pdf: &str) {
 #[test]
 fn numbers_are_the_split_engines() {
     let (p, epa, wp, wpa, cp) = league(None);
-    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[] };
+    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[], league_sticks: &[] };
     let d = build(&p, &v, PASSERS[2]);
     // Current season by default.
     assert_eq!(d.seasons, vec![2025]);
@@ -268,7 +268,7 @@ fn numbers_are_the_split_engines() {
 #[test]
 fn unknown_passer_and_empty_situation_are_errors() {
     let (p, epa, wp, wpa, cp) = league(None);
-    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[] };
+    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[], league_sticks: &[] };
     let s = Preset::EndOfGame.situation(8);
     let e = ReportData::from_parts(&p, &v, provenance(), &s, "Nobody Here", 20).unwrap_err();
     assert!(matches!(e, ReportError::UnknownPasser(_)));
@@ -282,7 +282,7 @@ fn unknown_passer_and_empty_situation_are_errors() {
 fn pdf_is_one_page_with_the_numbers_in_its_text() {
     let dir = scratch();
     let (p, epa, wp, wpa, cp) = league(None);
-    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[] };
+    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[], league_sticks: &[] };
     for (paper, size) in [(Paper::Letter, "792 x 612 pts"), (Paper::A4, "841.89 x 595.28 pts")] {
         let d = build(&p, &v, PASSERS[3]);
         let bytes = report::render_pdf(&d, paper).unwrap();
@@ -314,7 +314,7 @@ fn small_samples_and_long_names_still_fit() {
     let dir = scratch();
     let long = "Maximilian Bartholomew Fitzgerald-Wolstenholme Ashbury-Vandercourt the Third of Tallisker Mere";
     let (p, epa, wp, wpa, cp) = league(Some(long));
-    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[] };
+    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[], league_sticks: &[] };
     let backup = build(&p, &v, PASSERS[8]);
     assert!(backup.dropbacks < 20 && !backup.qualified);
     assert!(backup.sample_note.starts_with(&format!("n = {} dropbacks", backup.dropbacks)), "{}", backup.sample_note);
@@ -334,7 +334,7 @@ fn small_samples_and_long_names_still_fit() {
 #[test]
 fn html_has_the_same_numbers_and_no_inline_code() {
     let (p, epa, wp, wpa, cp) = league(None);
-    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[] };
+    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[], league_sticks: &[] };
     let d = build(&p, &v, PASSERS[0]);
     let html = report::html(&d, Paper::Letter);
     assert!(html.contains(r#"<link rel="stylesheet" href="/static/report.css">"#));
@@ -466,7 +466,7 @@ fn report_command_writes_one_page() {
 fn the_report_defines_the_situation_gives_a_verdict_and_a_glossary() {
     let dir = scratch();
     let (p, epa, wp, wpa, cp) = league(None);
-    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[] };
+    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[], league_sticks: &[] };
     let d = build(&p, &v, PASSERS[3]);
     // Every filter of the preset, in words, and none of the preset's name.
     assert!(d.definition.contains("quarters 4,ot") && d.definition.contains("left in regulation") && d.definition.contains("margin"), "{}", d.definition);

@@ -26,7 +26,7 @@ fn rmse(pairs: &[(f64, f64)]) -> f64 {
 fn shrunk_late_and_close_rates_beat_raw_rates_against_the_truth() {
     let (p, truth) = league();
     let (epa, wp, wpa, cp) = zeros(p.len());
-    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[] };
+    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[], league_sticks: &[] };
     let min = 10;
     let t = splits::split_table(&p, &v, &Preset::EndOfGame.situation(8), min);
     for (key, pick) in [
@@ -54,7 +54,7 @@ fn shrunk_late_and_close_rates_beat_raw_rates_against_the_truth() {
 fn filters_never_return_a_snap_outside_their_window() {
     let (p, _) = league();
     let (epa, wp, wpa, cp) = zeros(p.len());
-    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[] };
+    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[], league_sticks: &[] };
     let lc = Preset::EndOfGame.situation(7);
     for s in splits::play_list(&p, &v, &lc, None, None) {
         let i = s.index;
@@ -77,7 +77,7 @@ fn filters_never_return_a_snap_outside_their_window() {
 fn totals_agree_with_a_plain_count() {
     let (p, _) = league();
     let (epa, wp, wpa, cp) = zeros(p.len());
-    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[] };
+    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[], league_sticks: &[] };
     let t = splits::split_table(&p, &v, &Preset::EverySnap.situation(8), 1);
     let db = metric_index("dropbacks").unwrap();
     let att = metric_index("attempts").unwrap();

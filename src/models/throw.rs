@@ -163,6 +163,9 @@ pub struct ThrowModel {
     pub int_spot: [f64; BANDS],
     /// Share of interceptions returned for a touchdown, per band.
     pub pick_six: [f64; BANDS],
+    /// Per distance 0..=`MAX_TO_GO`: each band's share of throws at or
+    /// past it.
+    pub air_past: Vec<[f64; BANDS]>,
     pub mix_stats: FitStats,
     pub outcome_stats: FitStats,
 }
@@ -273,6 +276,7 @@ pub fn fit(p: &Plays, rows: &[u32], opts: &FitOptions) -> anyhow::Result<Option<
         runoff,
         int_spot,
         pick_six,
+        air_past: air_past(p, &train),
     }))
 }
 
@@ -309,8 +313,8 @@ pub struct ThrowScores {
     /// Execution value: actual WPA − `chosen`.
     pub execution: Vec<f64>,
     /// The league's share of throws at or past the line to gain in the
-    /// state (from the depth mix and where the bands sit against the
-    /// distance); NaN where the model does not apply.
+    /// state (the depth mix, and how deep the league throws within each
+    /// band); NaN where the model does not apply.
     pub league_sticks: Vec<f64>,
 }
 
@@ -331,7 +335,7 @@ pub fn score_all(model: &ThrowModel, models: &Models, p: &Plays, ep: &[f64], wp:
             let mix = model.band_mix(&s);
             let league: f64 = mix.iter().zip(&ev).map(|(w, e)| w * e).sum();
             let chosen = ev[band_of(p.air_yards[i].unwrap_or(0))];
-            (chosen, league, sticks_share(&mix, s.to_go))
+            (chosen, league, model.sticks_share(&mix, s.to_go))
         })
         .collect();
     let mut out = ThrowScores {
@@ -351,15 +355,41 @@ pub fn score_all(model: &ThrowModel, models: &Models, p: &Plays, ep: &[f64], wp:
     out
 }
 
-/// The share of a depth mix thrown at or past `to_go` air yards, each band
-/// taken as spread evenly over its yards (behind the line: −4…0; deep: 20-39).
-pub fn sticks_share(mix: &[f64; BANDS], to_go: i32) -> f64 {
-    const SPAN: [(i32, i32); BANDS] = [(-4, 0), (1, 9), (10, 19), (20, 39)];
-    mix.iter()
-        .zip(SPAN)
-        .map(|(w, (lo, hi))| {
-            let past = (hi - to_go.max(lo) + 1).clamp(0, hi - lo + 1);
-            w * past as f64 / (hi - lo + 1) as f64
-        })
-        .sum()
+/// Longest distance the past-the-sticks shares are kept for (longer: this one).
+pub const MAX_TO_GO: usize = 40;
+
+impl ThrowModel {
+    /// Share of each band's throws that reach `to_go` air yards.
+    pub fn past_share(&self, to_go: i32) -> [f64; BANDS] {
+        self.air_past[(to_go.max(0) as usize).min(MAX_TO_GO)]
+    }
+
+    /// The league's share of throws at or past `to_go` air yards in a state
+    /// whose depth mix is `mix`.
+    pub fn sticks_share(&self, mix: &[f64; BANDS], to_go: i32) -> f64 {
+        mix.iter().zip(self.past_share(to_go)).map(|(w, q)| w * q).sum()
+    }
+}
+
+/// Per distance 0..=MAX_TO_GO, each band's share of throws with air yards at
+/// or past it (the league's own depths within each band).
+fn air_past(p: &Plays, rows: &[u32]) -> Vec<[f64; BANDS]> {
+    let mut n = [0.0; BANDS];
+    let mut at = vec![[0.0; BANDS]; MAX_TO_GO + 2];
+    for &r in rows {
+        let Some(a) = p.air_yards[r as usize] else { continue };
+        let b = band_of(a);
+        n[b] += 1.0;
+        // Throws behind the line count at 0 (a distance is never 0).
+        at[(a.max(0) as usize).min(MAX_TO_GO + 1)][b] += 1.0;
+    }
+    let mut out = vec![[0.0; BANDS]; MAX_TO_GO + 1];
+    let mut tail = at[MAX_TO_GO + 1];
+    for d in (0..=MAX_TO_GO).rev() {
+        for b in 0..BANDS {
+            tail[b] += at[d][b];
+            out[d][b] = if n[b] > 0.0 { tail[b] / n[b] } else { 0.0 };
+        }
+    }
+    out
 }

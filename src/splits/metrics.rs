@@ -75,6 +75,7 @@ pub enum Id {
     Pace,
     Choice,
     Execution,
+    SticksOver,
 }
 
 #[derive(Debug, Clone, Copy, Serialize)]
@@ -157,9 +158,10 @@ pub const METRICS: &[MetricDef] = &[
     m(Id::Cpoe, "cpoe", "Completion % over expected", "CPOE", AttemptWithCp, Mean, true, 1.0, 1, true, false),
     m(Id::Turnover, "turnover", "Giveaways per dropback (%): interceptions and lost fumbles", "Giveaway %", Dropback, Rate, false, 100.0, 1, false, true),
     m(Id::Sticks, "sticks", "Thrown past the sticks on 3rd/4th down (%)", "Past sticks %", LateDownAttempt, Rate, true, 100.0, 1, false, true),
+    m(Id::SticksOver, "sticks_over", "Past the sticks on 3rd/4th down over the league's depths in the same spots (% points)", "Sticks vs league", LateDownAttempt, Mean, true, 100.0, 1, false, true),
     m(Id::Pace, "pace", "Hurry-up pace: seconds to the next snap when trailing late in a half", "Hurry-up secs", HurryUp, Mean, false, 1.0, 1, false, true),
-    m(Id::Choice, "choice", "Where he threw: WPA per throw of his depth over the depths the league picks in the same spot", "Depth choice", ThrowValued, Mean, true, 1.0, 4, false, true),
-    m(Id::Execution, "execution", "How the throw came off: WPA per throw over what the league gets at that depth", "Execution", ThrowValued, Mean, true, 1.0, 4, false, true),
+    m(Id::Choice, "choice", "Depth choice: WPA per throw of the depth he picked over the depths the league picks in the same spot", "Depth choice", ThrowValued, Mean, true, 1.0, 4, false, true),
+    m(Id::Execution, "execution", "Execution: WPA per throw over what the league gets at the depth he picked", "Execution", ThrowValued, Mean, true, 1.0, 4, false, true),
 ];
 
 pub fn metric_index(key: &str) -> Option<usize> {
@@ -243,6 +245,10 @@ pub fn value(p: &Plays, v: &SnapValues, m: &MetricDef, i: usize) -> f64 {
         Id::Turnover => b(p.intercepted[i] || p.fumble_lost[i]),
         Id::Sticks => b(p.air_yards[i].is_some_and(|a| a >= p.to_go[i])),
         Id::Pace => hurry_up_gap(p, i).unwrap_or(0.0),
+        Id::SticksOver => {
+            let past = b(p.air_yards[i].is_some_and(|a| a >= p.to_go[i]));
+            past - v.league_sticks.get(i).copied().filter(|x| x.is_finite()).unwrap_or(past)
+        }
         Id::Choice => v.choice.get(i).copied().unwrap_or(0.0),
         Id::Execution => v.execution.get(i).copied().unwrap_or(0.0),
     }

@@ -154,7 +154,7 @@ mod tests {
         let n = p.len();
         let zeros = vec![0.0; n];
         let half = vec![0.5; n];
-        let v = SnapValues { epa: &zeros, wp: &half, wpa: &zeros, cp: &half, choice: &[], execution: &[] };
+        let v = SnapValues { epa: &zeros, wp: &half, wpa: &zeros, cp: &half, choice: &[], execution: &[], league_sticks: &[] };
         let g = &p.games[2];
         let r = game_review(&p, &v, 2, g.away, 8).expect("the away team played");
         assert!(!r.home);

@@ -38,6 +38,10 @@ pub struct Snap {
     pub epa: f64,
     pub wp: f64,
     pub wpa: f64,
+    /// Throw choice and execution values in WPA (`models::throw`); NaN
+    /// (null in JSON) where the snap is not a pass with air yards.
+    pub choice: f64,
+    pub execution: f64,
 }
 
 /// "Q4", "OT" (a second overtime "OT2").
@@ -132,6 +136,8 @@ pub fn snap_at(p: &Plays, v: &SnapValues, i: usize) -> Snap {
         epa: v.epa.get(i).copied().unwrap_or(f64::NAN),
         wp: v.wp.get(i).copied().unwrap_or(f64::NAN),
         wpa: v.wpa.get(i).copied().unwrap_or(f64::NAN),
+        choice: v.choice.get(i).copied().unwrap_or(f64::NAN),
+        execution: v.execution.get(i).copied().unwrap_or(f64::NAN),
     }
 }
 

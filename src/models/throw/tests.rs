@@ -9,17 +9,6 @@ fn bands_split_air_yards() {
 }
 
 #[test]
-fn share_past_the_sticks_by_hand() {
-    // 3rd & 5: half the short band (5-9 of 1-9 is 5/9), all of the rest beyond.
-    let mix = [0.1, 0.5, 0.3, 0.1];
-    let want = 0.5 * 5.0 / 9.0 + 0.3 + 0.1;
-    assert!((sticks_share(&mix, 5) - want).abs() < 1e-12);
-    // 3rd & 25: half the deep band (25-39 of 20-39 is 15/20).
-    assert!((sticks_share(&mix, 25) - 0.1 * 15.0 / 20.0).abs() < 1e-12);
-    assert!((sticks_share(&mix, 1) - 0.9).abs() < 1e-12);
-}
-
-#[test]
 fn values_add_up_and_probabilities_are_probabilities() {
     let plays = testkit::league(300, 2, 5);
     let models = fit(&plays).expect("fit");
@@ -51,6 +40,18 @@ fn values_add_up_and_probabilities_are_probabilities() {
     for b in 1..BANDS {
         assert!(m.gains[b][2] > m.gains[b - 1][2], "{:?}", m.gains);
     }
+    // Past-the-sticks shares: all at 0 (a distance is never 0), none behind
+    // the line reaches 1, every deep throw reaches 20; shares fall with distance.
+    assert!(m.past_share(0).iter().all(|&x| (x - 1.0).abs() < 1e-12));
+    assert_eq!(m.past_share(1)[0], 0.0);
+    assert!((m.past_share(20)[3] - 1.0).abs() < 1e-12);
+    for d in 1..=MAX_TO_GO as i32 {
+        let (a, b) = (m.past_share(d - 1), m.past_share(d));
+        assert!((0..BANDS).all(|k| b[k] <= a[k]));
+    }
+    let mix = [0.25; BANDS];
+    let hand: f64 = m.past_share(7).iter().map(|q| 0.25 * q).sum();
+    assert!((m.sticks_share(&mix, 7) - hand).abs() < 1e-12);
     assert!(m.runoff.iter().flatten().flatten().all(|x| x.is_finite() && *x >= 0.0));
 }
 

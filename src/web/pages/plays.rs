@@ -20,6 +20,11 @@ pub struct SnapView {
     pub wpa: String,
     pub epa_sort: String,
     pub wpa_sort: String,
+    /// Throw choice and execution values ("–" off passes with air yards).
+    pub choice: String,
+    pub execution: String,
+    pub choice_sort: String,
+    pub execution_sort: String,
     /// Counted by the number the list was opened from (rates mark these).
     pub counted: bool,
 }
@@ -63,6 +68,10 @@ pub(super) fn snap_view(s: &splits::Snap) -> SnapView {
         wpa: fixed(Some(s.wpa), 3),
         epa_sort: sort_value(Some(s.epa)),
         wpa_sort: sort_value(Some(s.wpa)),
+        choice: fixed(s.choice.is_finite().then_some(s.choice), 3),
+        execution: fixed(s.execution.is_finite().then_some(s.execution), 3),
+        choice_sort: sort_value(s.choice.is_finite().then_some(s.choice)),
+        execution_sort: sort_value(s.execution.is_finite().then_some(s.execution)),
         counted: false,
     }
 }

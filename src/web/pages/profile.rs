@@ -27,11 +27,18 @@ pub(super) struct ProfilePage {
     pub(super) rows: Vec<ProfileRowView>,
     pub(super) decision_heads: Vec<(&'static str, &'static str)>,
     pub(super) decision_rows: Vec<ProfileRowView>,
+    /// Choice and execution by situation (dot-interval charts).
+    pub(super) throw_charts: Vec<(String, String)>,
     pub(super) api_href: String,
     pub(super) report_href: String,
     pub(super) games: Vec<(String, String)>,
 }
 
+
+/// The decisions panel: the throw values (charted), and beside them the
+/// dropbacks the throw values leave out.
+pub(super) const THROW_KEYS: &[&str] = &["choice", "execution"];
+pub(super) const BESIDE_KEYS: &[&str] = &["sack_rate", "scramble_rate"];
 
 pub(super) const PROFILE_KEYS: &[&str] = &["epa", "success", "cpoe", "rating", "anya", "sack_rate", "int_rate", "wpa"];
 
@@ -54,32 +61,31 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     let ch = chrome(&st, &headers, Some(&params), format!("Passer profile: {name}"), "passer", "/passer");
     let keys: Vec<usize> = PROFILE_KEYS.iter().filter_map(|k| metric_index(k)).collect();
     let width = if ch.projector { 560.0 } else { 420.0 };
-    let charts = keys
-        .iter()
-        .map(|&j| {
-            let m = &METRICS[j];
-            let rows: Vec<DotRow> = prof
-                .presets
-                .iter()
-                .map(|line| {
-                    let c = line.row.as_ref().map(|r| &r.cells[j]);
-                    DotRow {
-                        label: line.label.to_string(),
-                        estimate: c.and_then(|c| c.estimate),
-                        lo: c.and_then(|c| c.lo),
-                        hi: c.and_then(|c| c.hi),
-                        raw: c.and_then(|c| c.value),
-                        league: line.league[j],
-                    }
-                })
-                .collect();
-            let unit = if m.scale == 100.0 && !m.label.contains('%') { " (%)" } else { "" };
-            (
-                format!("{}{unit}", m.label),
-                charts::dot_interval(&format!("{} — {name} by situation (dot: estimate, bar: 90% interval, tick: league)", m.label), &rows, width).to_svg(),
-            )
-        })
-        .collect();
+    let dot_chart = |j: usize| {
+        let m = &METRICS[j];
+        let rows: Vec<DotRow> = prof
+            .presets
+            .iter()
+            .map(|line| {
+                let c = line.row.as_ref().map(|r| &r.cells[j]);
+                DotRow {
+                    label: line.label.to_string(),
+                    estimate: c.and_then(|c| c.estimate),
+                    lo: c.and_then(|c| c.lo),
+                    hi: c.and_then(|c| c.hi),
+                    raw: c.and_then(|c| c.value),
+                    league: line.league[j],
+                }
+            })
+            .collect();
+        let unit = if m.scale == 100.0 && !m.label.contains('%') { " (%)" } else { "" };
+        (
+            format!("{}{unit}", m.label),
+            charts::dot_interval(&format!("{} — {name} by situation (dot: estimate, bar: 90% interval, tick: league)", m.label), &rows, width).to_svg(),
+        )
+    };
+    let charts: Vec<(String, String)> = keys.iter().map(|&j| dot_chart(j)).collect();
+    let throw_charts: Vec<(String, String)> = THROW_KEYS.iter().filter_map(|k| metric_index(k)).map(dot_chart).collect();
     let ej = metric_index("epa").unwrap_or(0);
     let trend_series = vec![
         Series { name: format!("{name} EPA per dropback"), class: "passer", points: prof.trend.iter().filter_map(|s| s.values[ej].map(|v| (s.season as f64, v))).collect() },
@@ -102,7 +108,13 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     )
     .to_svg();
     let table_keys: Vec<usize> = METRICS.iter().enumerate().filter(|(_, m)| m.stat != Stat::Count || m.key == "dropbacks").map(|(j, _)| j).collect();
-    let decision_keys: Vec<usize> = METRICS.iter().enumerate().filter(|(_, m)| m.decision && m.stat != Stat::Count).map(|(j, _)| j).collect();
+    // The throw values first, sacks and scrambles beside them, then the rest.
+    let first: Vec<usize> = THROW_KEYS.iter().chain(BESIDE_KEYS).filter_map(|k| metric_index(k)).collect();
+    let decision_keys: Vec<usize> = first
+        .iter()
+        .copied()
+        .chain(METRICS.iter().enumerate().filter(|(j, m)| m.decision && m.stat != Stat::Count && !first.contains(j)).map(|(j, _)| j))
+        .collect();
     let build_rows = |ks: &[usize]| -> Vec<ProfileRowView> {
         prof.presets
             .iter()
@@ -163,6 +175,7 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         rows: build_rows(&table_keys),
         decision_heads: heads(&decision_keys),
         decision_rows: build_rows(&decision_keys),
+        throw_charts,
         api_href: format!("/api/profile{}", params.with(&[("passer", Some(&name)), ("view", None)])),
         report_href: format!("/report{}", to_query_string(&Situation { passer: Some(name.clone()), seasons: params.situation.seasons.clone(), ..Preset::DEFAULT.situation(params.situation.one_score) }.to_query())),
         games,
