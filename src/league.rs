@@ -107,9 +107,10 @@ pub fn throw_values(scored: &Scored) -> anyhow::Result<(Option<ThrowModel>, Thro
         let nan = vec![f64::NAN; p.len()];
         return Ok((None, ThrowScores { chosen: nan.clone(), league: nan.clone(), choice: nan.clone(), execution: nan.clone(), league_sticks: nan }));
     };
+    let fitted = started.elapsed().as_secs_f64();
     let s = &scored.scores;
     let values = models::throw::score_all(&model, &scored.models, p, &s.ep, &s.wp, &s.wpa);
-    tracing::info!(seconds = started.elapsed().as_secs_f64(), "throw-value model fitted and scored");
+    tracing::info!(fit_seconds = fitted, seconds = started.elapsed().as_secs_f64(), "throw-value model fitted and scored");
     Ok((Some(model), values))
 }
 

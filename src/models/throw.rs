@@ -120,8 +120,10 @@ fn outcome_features(s: &State, band: usize, out: &mut [f64]) {
     }
 }
 
-/// Quantile points of the gain on a catch (equal weights).
-pub const GAIN_QUANTILES: [f64; 5] = [0.1, 0.3, 0.5, 0.7, 0.9];
+/// A catch's gain is summarised by this many points of equal weight: the
+/// means of equal-count slices of the league's catches in the band, shortest
+/// to longest (so their mean is the band's mean gain, tail included).
+pub const GAIN_POINTS: usize = 5;
 
 /// Clock regimes: ordinary, hurrying (trailing or tied late in a half),
 /// running it down (ahead late).
@@ -152,9 +154,9 @@ pub struct ThrowModel {
     pub mix: logit::Fit,
     /// P(incomplete, complete, intercepted | state, band).
     pub outcome: logit::Fit,
-    /// Gain on a catch at `GAIN_QUANTILES`, per band (catches at or behind
+    /// Gain on a catch, `GAIN_POINTS` slice means per band (catches at or behind
     /// midfield, so the goal line rarely cuts them).
-    pub gains: [[f64; GAIN_QUANTILES.len()]; BANDS],
+    pub gains: [[f64; GAIN_POINTS]; BANDS],
     /// Median seconds from the snap to the next snap, per regime, outcome
     /// and band.
     pub runoff: [[[f64; BANDS]; 3]; REGIMES],
@@ -163,6 +165,8 @@ pub struct ThrowModel {
     pub int_spot: [f64; BANDS],
     /// Share of interceptions returned for a touchdown, per band.
     pub pick_six: [f64; BANDS],
+    /// Share of catches fumbled away, per band.
+    pub catch_fumble: [f64; BANDS],
     /// Per distance 0..=`MAX_TO_GO`: each band's share of throws at or
     /// past it.
     pub air_past: Vec<[f64; BANDS]>,
@@ -216,12 +220,17 @@ pub fn fit(p: &Plays, rows: &[u32], opts: &FitOptions) -> anyhow::Result<Option<
     let mut gaps: Vec<Vec<f64>> = vec![Vec::new(); REGIMES * 3 * BANDS];
     let mut gaps_any: Vec<Vec<f64>> = vec![Vec::new(); 3];
     let (mut spot, mut spot_n, mut six, mut ints) = ([0.0; BANDS], [0.0; BANDS], [0.0; BANDS], [0.0; BANDS]);
+    let (mut catches, mut fumbles) = ([0.0; BANDS], [0.0; BANDS]);
     for &r in &train {
         let i = r as usize;
         let b = band(i);
         let o = outcome_of(p, i);
         if o == COMPLETE && p.ball_on[i] <= 50 && !p.fumble_lost[i] {
             gains[b].push(p.gain[i] as f64);
+        }
+        if o == COMPLETE {
+            catches[b] += 1.0;
+            fumbles[b] += p.fumble_lost[i] as i32 as f64;
         }
         let j = i + 1;
         let next_same_period = j < p.len() && p.game[j] == p.game[i] && p.period[j] == p.period[i];
@@ -255,18 +264,21 @@ pub fn fit(p: &Plays, rows: &[u32], opts: &FitOptions) -> anyhow::Result<Option<
         a.sort_by(f64::total_cmp);
         a
     };
-    let mut gq = [[0.0; GAIN_QUANTILES.len()]; BANDS];
+    let mut gq = [[0.0; GAIN_POINTS]; BANDS];
     for (b, g) in gains.iter_mut().enumerate() {
         g.sort_by(f64::total_cmp);
         let src: &[f64] = if g.len() >= 20 { g } else { &all_gains };
-        for (k, &q) in GAIN_QUANTILES.iter().enumerate() {
-            gq[b][k] = if src.is_empty() { 0.0 } else { quantile_sorted(src, q) };
+        for (k, point) in gq[b].iter_mut().enumerate() {
+            let slice = &src[k * src.len() / GAIN_POINTS..(k + 1) * src.len() / GAIN_POINTS];
+            *point = if slice.is_empty() { 0.0 } else { slice.iter().sum::<f64>() / slice.len() as f64 };
         }
     }
     let all_spot = spot.iter().sum::<f64>() / spot_n.iter().sum::<f64>().max(1.0);
     let all_six = six.iter().sum::<f64>() / ints.iter().sum::<f64>().max(1.0);
     let int_spot = std::array::from_fn(|b| if spot_n[b] >= 10.0 { spot[b] / spot_n[b] } else { all_spot });
     let pick_six = std::array::from_fn(|b| if ints[b] >= 10.0 { six[b] / ints[b] } else { all_six });
+    let all_fumble = fumbles.iter().sum::<f64>() / catches.iter().sum::<f64>().max(1.0);
+    let catch_fumble = std::array::from_fn(|b| if catches[b] >= 50.0 { fumbles[b] / catches[b] } else { all_fumble });
     Ok(Some(ThrowModel {
         mix_stats: mix.stats.clone(),
         outcome_stats: outcome.stats.clone(),
@@ -276,6 +288,7 @@ pub fn fit(p: &Plays, rows: &[u32], opts: &FitOptions) -> anyhow::Result<Option<
         runoff,
         int_spot,
         pick_six,
+        catch_fumble,
         air_past: air_past(p, &train),
     }))
 }

@@ -1,9 +1,9 @@
 //! The states a throw leaves, priced by the WP model: an incompletion (next
-//! down, or the ball over on downs), a catch at each gain quantile (first
-//! down, next down, touchdown), an interception (returned to the league's
+//! down, or the ball over on downs), a catch at each gain point (first
+//! down, next down, touchdown, or fumbled away), an interception (returned to the league's
 //! usual spot, or for a touchdown); the clock each costs; the period's end.
 
-use super::{regime, State, ThrowModel, BANDS, COMPLETE, GAIN_QUANTILES, INCOMPLETE, INTERCEPTED};
+use super::{regime, State, ThrowModel, BANDS, COMPLETE, GAIN_POINTS, INCOMPLETE, INTERCEPTED};
 use crate::models::wp::Situation;
 use crate::models::Models;
 use crate::plays::Plays;
@@ -112,12 +112,20 @@ pub(super) fn expected_wp(model: &ThrowModel, models: &Models, s0: &Situation, s
         let q = model.outcome_probs(st, b);
         let run = |o: usize| model.runoff[rg][o][b];
         let inc = wp_after(models, s0, st, run(INCOMPLETE), after_gain(st, 0));
-        let nq = GAIN_QUANTILES.len() as f64;
-        let comp: f64 = model.gains[b]
+        let nq = GAIN_POINTS as f64;
+        // A catch fumbled away leaves the ball where a middle catch ends.
+        let kept: f64 = model.gains[b]
             .iter()
             .map(|&g| wp_after(models, s0, st, run(COMPLETE), after_gain(st, g.round() as i32)))
             .sum::<f64>()
             / nq;
+        let pf = model.catch_fumble[b];
+        let mid = st.ball_on + model.gains[b][GAIN_POINTS / 2].round() as i32;
+        let comp = if pf > 0.0 && mid < 100 {
+            (1.0 - pf) * kept + pf * wp_after(models, s0, st, run(COMPLETE), Next::Over(100 - mid.max(1)))
+        } else {
+            kept
+        };
         let mirror = (100 - st.ball_on) as f64 + model.int_spot[b];
         let spot = if mirror < 1.0 { 20 } else { (mirror.round() as i32).min(99) };
         let ps = model.pick_six[b];
