@@ -61,7 +61,7 @@ pub enum ReportError {
 }
 
 /// The metrics on the page, in order.
-pub const KEY_METRICS: [&str; 10] = ["epa", "success", "cpoe", "rating", "anya", "sack_rate", "int_rate", "wpa", "choice", "execution"];
+pub const KEY_METRICS: [&str; 8] = ["epa", "success", "cpoe", "rating", "anya", "sack_rate", "int_rate", "wpa"];
 
 /// The reading notes printed at the foot of the page (HTML and PDF).
 pub const FOOTNOTES: [&str; 4] = [
