@@ -318,6 +318,7 @@ fn run(cli: Cli) -> Result<ExitCode> {
                 situation.seasons = Some(season);
             }
             let league = open_league(file, &map, lenient, false)?;
+            situation.check_tags(league.plays()).map_err(|e| anyhow::anyhow!("--where: {e}"))?;
             let table = splits::split_table(league.plays(), &league.values(), &situation, min);
             match format {
                 Format::Json => println!("{}", serde_json::to_string_pretty(&table)?),

@@ -38,6 +38,9 @@ pub struct Snap {
     pub epa: f64,
     pub wp: f64,
     pub wpa: f64,
+    /// The staff's tags on this snap: (tag name, value; empty when none),
+    /// every tag of the file in its order.
+    pub tags: Vec<(String, String)>,
 }
 
 /// "Q4", "OT" (a second overtime "OT2").
@@ -132,6 +135,7 @@ pub fn snap_at(p: &Plays, v: &SnapValues, i: usize) -> Snap {
         epa: v.epa.get(i).copied().unwrap_or(f64::NAN),
         wp: v.wp.get(i).copied().unwrap_or(f64::NAN),
         wpa: v.wpa.get(i).copied().unwrap_or(f64::NAN),
+        tags: p.tags.names.iter().enumerate().map(|(t, n)| (n.clone(), p.tags.value(t, i).unwrap_or("").to_string())).collect(),
     }
 }
 

@@ -22,6 +22,8 @@ pub struct SnapView {
     pub wpa_sort: String,
     /// Counted by the number the list was opened from (rates mark these).
     pub counted: bool,
+    /// The staff's tag values, in the file's tag order.
+    pub tags: Vec<String>,
 }
 
 #[derive(Template)]
@@ -34,6 +36,8 @@ pub(super) struct PlaysPage {
     /// What the list is, against the number it came from.
     pub(super) note: String,
     pub(super) marking: bool,
+    /// The file's tag names (a column each).
+    pub(super) tag_names: Vec<String>,
     pub(super) snaps: Vec<SnapView>,
     pub(super) csv_href: String,
     pub(super) api_href: String,
@@ -64,6 +68,7 @@ pub(super) fn snap_view(s: &splits::Snap) -> SnapView {
         epa_sort: sort_value(Some(s.epa)),
         wpa_sort: sort_value(Some(s.wpa)),
         counted: false,
+        tags: s.tags.iter().map(|(_, v)| v.clone()).collect(),
     }
 }
 
@@ -118,6 +123,7 @@ pub async fn plays(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Ra
         shown: snaps.len().min(PLAY_PAGE_LIMIT),
         note: note.text,
         marking: note.marking,
+        tag_names: st.league().plays().tags.names.clone(),
         snaps: snaps.iter().zip(&counted).take(PLAY_PAGE_LIMIT).map(|(s, c)| SnapView { counted: *c, ..snap_view(s) }).collect(),
         csv_href: format!("/plays.csv{}", params.with(&[("view", None)])),
         api_href: format!("/api/plays{}", params.with(&[("view", None)])),
