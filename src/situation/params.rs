@@ -94,6 +94,7 @@ pub const PARAMS: &[ParamSpec] = &[
     p("view", Field::Page, "View", "laptop (default) or projector: large type, fewer columns", "projector", "", false),
     p("metric", Field::Page, "Metric", "play list: only the snaps a metric is taken over (its key, e.g. int_rate)", "int_rate", "", false),
     p("game", Field::Page, "Game", "game page: the game's key", "KEY", "", false),
+    p("by-tag", Field::Page, "By tag", "passer page: break the passer down by the values of one of the staff's tags (its NAME)", "pressure", "", false),
     p("trend", Field::Page, "Trend", "passer page: the preset of the season trend", "two-minute-drill", "", false),
     p("cols", Field::Page, "Columns", "explorer: the column group, key (default), passing, pressure, value or all", "passing", "", false),
     p("screen", Field::Page, "Screen", "meeting view: the situation on screen (a preset's key)", "two-minute-drill", "", false),
