@@ -322,3 +322,20 @@ G1,2024,1,AAA,BBB,2,1,15:00,BBB,AAA,0,0,3,3,1,10,25,pass,Quill Ostrander,true,fa
     assert_eq!(loaded.plays.tags.value(0, 0), None);
     assert_eq!(loaded.plays.tags.value(0, 1), Some("two high"));
 }
+
+#[test]
+fn the_documented_example_loads_through_its_mapping() {
+    let path = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("docs").join("mapping-example.csv");
+    let loaded = load_mapped(&path, &LoadOptions::default(), Some(&mapping())).unwrap_or_else(|e| panic!("{e}"));
+    assert_eq!(loaded.report.rows_kept, 12);
+    assert_eq!(loaded.plays.tags.names, vec!["pressure", "shell", "note"]);
+    // Row 6 (PX: intercepted, OWN 39, H has the ball): our notation.
+    let i = loaded.plays.seq.iter().position(|&s| s == 6).unwrap();
+    assert!(loaded.plays.intercepted[i]);
+    assert_eq!(loaded.plays.ball_on[i], 39);
+    assert_eq!(loaded.plays.clock[i], 13 * 60 + 1);
+    assert_eq!(loaded.plays.teams[loaded.plays.offense[i] as usize], "FRH");
+    assert_eq!(loaded.plays.tags.value(2, i), Some("hot read vs pressure"));
+    // Without the mapping the file is refused: its columns are not ours.
+    assert!(load(&path, &LoadOptions::default()).is_err());
+}
