@@ -238,6 +238,7 @@ fn every_malformed_foreign_file_names_their_column_and_value() {
         ("distance zero", set_cell(&base, pass, "Dist", "0"), "their column Dist is 0; expected yards to go 1-99 with a down".into()),
         ("no passer on a pass", set_cell(&base, pass, "Thrower", ""), "their column Thrower is empty; expected a passer name on a pass snap".into()),
         ("a column missing", base.replacen("MatchRef,", "Match,", 1), "their column MatchRef (our game) is not in the file".into()),
+        ("snaps out of order", set_cell(&base, 3, "SnapNo", "1"), "row 3: their column SnapNo is 1 after 2 on row 2".into()),
         ("an empty yard line", set_cell(&base, any, "Spot", ""), "their column Spot is empty; expected 1-99".into()),
     ];
     assert!(cases.len() >= 12);
@@ -339,3 +340,28 @@ fn the_documented_example_loads_through_its_mapping() {
     // Without the mapping the file is refused: its columns are not ours.
     assert!(load(&path, &LoadOptions::default()).is_err());
 }
+
+proptest::proptest! {
+    #![proptest_config(proptest::prelude::ProptestConfig::with_cases(48))]
+    /// Any text in any of their cells: an error or a load, never a panic,
+    /// and a refusal names one of their columns.
+    #[test]
+    fn any_cell_text_is_an_error_or_a_load_never_a_panic(col in 0usize..29, row in 1usize..4, text in "[A-Za-z0-9 :+.-]{0,12}") {
+        let header: Vec<&str> = HEADER.split(',').collect();
+        let base = format!("{HEADER}\n{}\n{}\n{}\n", SAMPLE_ROWS[0], SAMPLE_ROWS[1], SAMPLE_ROWS[2]);
+        let text = set_cell(&base, row, header[col], &text);
+        let path = scratch(&format!("prop-{}-{col}-{row}.csv", std::process::id()));
+        std::fs::write(&path, text).unwrap();
+        if let Err(e) = load_mapped(&path, &LoadOptions::default(), Some(&mapping())) {
+            let first = e.report.issues.first().map(|i| i.to_string()).unwrap_or_default();
+            proptest::prop_assert!(first.contains("their column "), "{}", first);
+        }
+    }
+}
+
+/// Three rows of the invented layout (from docs/mapping-example.csv).
+const SAMPLE_ROWS: [&str; 3] = [
+    "2020w01g01,2020,1,FRH,ALD,1,Q1,15:00 remaining,G,0,0,3,3,,,OWN 35,KO,,,,,0,FALSE,Y,0,5.9,,C2,",
+    "2020w01g01,2020,1,FRH,ALD,2,Q1,15:00 remaining,H,0,0,3,3,1,10,OWN 25,RN,,,,,6,FALSE,N,0,5.9,,C3,",
+    "2020w01g01,2020,1,FRH,ALD,5,Q1,13:07 remaining,H,0,0,3,3,2,7,OWN 39,PI,Lucan Gremulvey,N,0,21,0,FALSE,N,0,5.9,no,C2,boot right",
+];
