@@ -178,6 +178,31 @@ fn the_same_split_tables_through_the_mapping() {
     let a = lategame::splits::split_table(native.plays(), &native.values(), &s, 5);
     let b = lategame::splits::split_table(mapped.plays(), &mapped.values(), &s, 5);
     assert_eq!(serde_json::to_value(&a).unwrap(), serde_json::to_value(&b).unwrap());
+    tags_over_http(mapped);
+}
+
+/// The mapped league's tags through the pages and the API.
+fn tags_over_http(mapped: League) {
+    let passer = mapped.plays().passers[0].clone();
+    let base = common::spawn(mapped, None, None, None);
+    let r = common::get(&format!("{base}/explore?preset=end-of-game&tag.shell=C2"));
+    assert_eq!(r.status, 200);
+    assert!(r.body.contains("name=\"tag.shell\"") && r.body.contains("<option value=\"C2\" selected>"), "a select per listed tag");
+    assert!(r.body.contains("name=\"tag.note\"") && r.body.contains("placeholder=\"~text\""), "a search box for the 97-value tag");
+    let r = common::get(&format!("{base}/api/splits?preset=end-of-game&tag.presure=yes"));
+    assert_eq!(r.status, 400);
+    assert!(r.body.contains("did you mean 'tag.pressure'?"), "{}", r.body);
+    let q = |s: &str| s.replace(' ', "%20");
+    let r = common::get(&format!("{base}/passer?passer={}&by-tag=shell", q(&passer)));
+    assert_eq!(r.status, 200);
+    assert!(r.body.contains("By tag: Shell") && r.body.contains("id=\"tag-table\""), "the breakdown section");
+    let r = common::get(&format!("{base}/passer?passer={}&by-tag=shel", q(&passer)));
+    assert_eq!(r.status, 400);
+    let r = common::get(&format!("{base}/plays.csv?preset=end-of-game&tag.shell=C2"));
+    assert_eq!(r.status, 200);
+    let mut lines = r.body.lines();
+    assert!(lines.next().unwrap_or("").contains("tag.pressure,tag.shell,tag.note"));
+    assert!(lines.next().is_some_and(|l| l.contains(",C2,")), "the rows carry the tag");
 }
 
 /// A small foreign file: the first game of the demo league, with `edit`
