@@ -32,9 +32,18 @@ enum Cmd {
     /// Validate a play file (or folder) and print the report; non-zero exit on errors.
     Check {
         file: PathBuf,
+        #[command(flatten)]
+        map: MapArg,
         /// Count bad rows as skipped (as `serve --lenient` would) and exit 0 when valid rows remain.
         #[arg(long)]
         lenient: bool,
+    },
+    /// Draft a mapping for a play file in another layout from its header and a sample of its values (README: "Another layout").
+    Map {
+        file: PathBuf,
+        /// Write the draft here (default: print it).
+        #[arg(short, long)]
+        out: Option<PathBuf>,
     },
     /// Generate the simulated demo league (play file plus truth file).
     Simulate {
@@ -51,6 +60,8 @@ enum Cmd {
     /// Write every snap with its input columns plus EP, EPA, WP, WPA and completion probability.
     Score {
         file: PathBuf,
+        #[command(flatten)]
+        map: MapArg,
         #[arg(short, long)]
         out: PathBuf,
         #[arg(long)]
@@ -61,6 +72,8 @@ enum Cmd {
     /// Print the passer split table for a situation.
     Splits {
         file: Option<PathBuf>,
+        #[command(flatten)]
+        map: MapArg,
         #[arg(long, conflicts_with = "r#where", help = preset_help())]
         preset: Option<String>,
         /// A situation in the pages' query language, e.g. 'preset=end-of-game&down=3,4&ball-on=+20..' (see README, "Situation parameters").
@@ -80,6 +93,8 @@ enum Cmd {
     /// Write the one-page situation report as PDF, without the server.
     Report {
         file: Option<PathBuf>,
+        #[command(flatten)]
+        map: MapArg,
         #[arg(long)]
         passer: String,
         #[arg(long, default_value = Preset::DEFAULT.key(), help = preset_help())]
@@ -94,9 +109,25 @@ enum Cmd {
     },
 }
 
+/// `--map M.toml`: read the play file through a mapping (another layout).
+#[derive(clap::Args, Clone, Default)]
+pub struct MapArg {
+    /// A mapping for a play file in another layout (draft one with `lategame map FILE`).
+    #[arg(long = "map", value_name = "M.toml")]
+    pub map: Option<PathBuf>,
+}
+
+impl MapArg {
+    fn open(&self) -> Result<Option<playfile::Mapping>> {
+        self.map.as_deref().map(playfile::Mapping::open).transpose().map_err(Into::into)
+    }
+}
+
 #[derive(clap::Args)]
 pub struct ServeArgs {
     pub file: Option<PathBuf>,
+    #[command(flatten)]
+    pub map: MapArg,
     /// Address to listen on.
     #[arg(long, default_value = "127.0.0.1:8750")]
     pub bind: String,
@@ -123,13 +154,14 @@ pub struct ServeArgs {
 impl ServeArgs {
     /// The server's own configuration from these flags (models cached in
     /// the user's cache folder).
-    fn config(&self) -> ServeConfig {
+    fn config(&self) -> Result<ServeConfig> {
         let league = LeagueConfig {
             load: LoadOptions { lenient: self.lenient },
             refit: self.refit,
+            mapping: self.map.open()?,
             ..LeagueConfig::new(self.file.clone().unwrap_or_else(demo_path))
         };
-        ServeConfig {
+        Ok(ServeConfig {
             app: AppConfig {
                 team: self.team.clone(),
                 passer: self.passer.clone(),
@@ -138,7 +170,7 @@ impl ServeArgs {
             },
             bind: self.bind.clone(),
             share: self.share,
-        }
+        })
     }
 }
 
@@ -175,8 +207,8 @@ fn spinner(msg: &str) -> ProgressBar {
 }
 
 /// Load, fit and score with a spinner.
-pub fn open_league(file: Option<PathBuf>, lenient: bool, refit: bool) -> Result<League> {
-    let cfg = LeagueConfig { load: LoadOptions { lenient }, refit, ..LeagueConfig::new(file.unwrap_or_else(demo_path)) };
+pub fn open_league(file: Option<PathBuf>, map: &MapArg, lenient: bool, refit: bool) -> Result<League> {
+    let cfg = LeagueConfig { load: LoadOptions { lenient }, refit, mapping: map.open()?, ..LeagueConfig::new(file.unwrap_or_else(demo_path)) };
     open_configured(&cfg)
 }
 
@@ -194,6 +226,7 @@ fn open_configured(cfg: &LeagueConfig) -> Result<League> {
 fn run(cli: Cli) -> Result<ExitCode> {
     let cmd = cli.cmd.unwrap_or(Cmd::Serve(ServeArgs {
         file: None,
+        map: MapArg::default(),
         bind: "127.0.0.1:8750".into(),
         lenient: false,
         refit: false,
@@ -205,7 +238,7 @@ fn run(cli: Cli) -> Result<ExitCode> {
     match cmd {
         Cmd::Serve(args) => {
             let demo = args.file.is_none();
-            let mut cfg = args.config();
+            let mut cfg = args.config()?;
             let league = open_configured(&cfg.app.league)?;
             if demo && cfg.app.team.is_none() && cfg.app.passer.is_none() {
                 // The bundled demo's scenario (demo-data/README.md).
@@ -215,9 +248,10 @@ fn run(cli: Cli) -> Result<ExitCode> {
             crate::web::serve_blocking(league, cfg)?;
             Ok(ExitCode::SUCCESS)
         }
-        Cmd::Check { file, lenient } => {
+        Cmd::Check { file, map, lenient } => {
+            let mapping = map.open()?;
             let pb = spinner(&format!("checking {}", file.display()));
-            let result = playfile::load(&file, &LoadOptions { lenient });
+            let result = playfile::load_mapped(&file, &LoadOptions { lenient }, mapping.as_ref());
             pb.finish_and_clear();
             match result {
                 Ok(loaded) => {
@@ -230,6 +264,20 @@ fn run(cli: Cli) -> Result<ExitCode> {
                     Ok(ExitCode::FAILURE)
                 }
             }
+        }
+        Cmd::Map { file, out } => {
+            let bytes = std::fs::read(&file).with_context(|| format!("reading {}", file.display()))?;
+            let name = file.file_name().map(|n| n.to_string_lossy().to_string()).unwrap_or_else(|| file.display().to_string());
+            let df = playfile::read_frame(&name, &file, &bytes).map_err(|issues| anyhow::anyhow!("{}", issues.iter().map(|i| i.to_string()).collect::<Vec<_>>().join("\n")))?;
+            let draft = playfile::draft_mapping(&name, &df);
+            match out {
+                Some(out) => {
+                    std::fs::write(&out, &draft).with_context(|| format!("writing {}", out.display()))?;
+                    println!("draft mapping written to {}; fill in the lines marked FILL IN, then run `lategame check {} --map {}`", out.display(), file.display(), out.display());
+                }
+                None => print!("{draft}"),
+            }
+            Ok(ExitCode::SUCCESS)
         }
         Cmd::Simulate { seasons, seed, first_season, out } => {
             let cfg = crate::sim::SimConfig { seasons, seed, first_season };
@@ -254,22 +302,23 @@ fn run(cli: Cli) -> Result<ExitCode> {
             );
             Ok(ExitCode::SUCCESS)
         }
-        Cmd::Score { file, out, lenient, refit } => {
+        Cmd::Score { file, map, out, lenient, refit } => {
             if std::fs::canonicalize(&out).ok().is_some_and(|o| std::fs::canonicalize(&file).ok() == Some(o)) {
                 anyhow::bail!("{}: refusing to overwrite the play file; choose another output", out.display());
             }
-            let league = open_league(Some(file), lenient, refit)?;
+            let league = open_league(Some(file), &map, lenient, refit)?;
             let mut df = crate::models::scored_frame(&league.scored)?;
             playfile::write_frame(&mut df, &out)?;
             println!("{} scored snaps written to {}", league.plays().len(), out.display());
             Ok(ExitCode::SUCCESS)
         }
-        Cmd::Splits { file, preset, r#where, season, min, format, lenient } => {
+        Cmd::Splits { file, map, preset, r#where, season, min, format, lenient } => {
             let mut situation = situation_from(preset.as_deref(), r#where.as_deref())?;
             if !season.is_empty() {
                 situation.seasons = Some(season);
             }
-            let league = open_league(file, lenient, false)?;
+            let league = open_league(file, &map, lenient, false)?;
+            situation.check_tags(league.plays()).map_err(|e| anyhow::anyhow!("--where: {e}"))?;
             let table = splits::split_table(league.plays(), &league.values(), &situation, min);
             match format {
                 Format::Json => println!("{}", serde_json::to_string_pretty(&table)?),
@@ -278,13 +327,13 @@ fn run(cli: Cli) -> Result<ExitCode> {
             }
             Ok(ExitCode::SUCCESS)
         }
-        Cmd::Report { file, passer, preset, season, paper, out } => {
+        Cmd::Report { file, map, passer, preset, season, paper, out } => {
             let mut situation = situation_from(Some(&preset), None)?;
             if !season.is_empty() {
                 situation.seasons = Some(season);
             }
             let paper = crate::report::Paper::parse(&paper).context("--paper: expected letter or a4")?;
-            let league = open_league(file, false, false)?;
+            let league = open_league(file, &map, false, false)?;
             let pdf = crate::report::pdf(&league, &situation, &passer, paper)?;
             std::fs::write(&out, pdf).with_context(|| format!("writing {}", out.display()))?;
             println!("report written to {}", out.display());

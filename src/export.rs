@@ -72,9 +72,13 @@ pub const CUTUP_COLUMNS: [&str; 20] = [
 
 fn cutup_rows(snaps: &[Snap], notes: Option<&[String]>) -> String {
     let mut out = CsvText::new();
-    let mut head: Vec<&str> = CUTUP_COLUMNS.to_vec();
+    let mut head: Vec<String> = CUTUP_COLUMNS.iter().map(|c| c.to_string()).collect();
+    // The staff's tags after our columns, as `tag.NAME` (the query's spelling).
+    if let Some(first) = snaps.first() {
+        head.extend(first.tags.iter().map(|(n, _)| format!("tag.{n}")));
+    }
     if notes.is_some() {
-        head.push("notes");
+        head.push("notes".into());
     }
     out.row(&head);
     let opt = |v: Option<i32>| v.map(|x| x.to_string()).unwrap_or_default();
@@ -101,6 +105,7 @@ fn cutup_rows(snaps: &[Snap], notes: Option<&[String]>) -> String {
             plain(Some(s.wpa), 4),
             s.down_distance.clone(),
         ];
+        cells.extend(s.tags.iter().map(|(_, v)| v.clone()));
         if let Some(n) = notes {
             cells.push(n.get(k).cloned().unwrap_or_default());
         }

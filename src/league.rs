@@ -34,13 +34,15 @@ pub struct LeagueConfig {
     pub refit: bool,
     /// Where fitted models are cached; `None`: fit every time, store nothing.
     pub cache_dir: Option<PathBuf>,
+    /// How to read a file in another layout (`None`: ours).
+    pub mapping: Option<playfile::Mapping>,
 }
 
 impl LeagueConfig {
     /// `path`, strict, models cached in the user's cache folder
     /// (`models::cache::cache_dir`, which `LATEGAME_CACHE_DIR` overrides).
     pub fn new(path: impl Into<PathBuf>) -> LeagueConfig {
-        LeagueConfig { path: path.into(), load: LoadOptions::default(), refit: false, cache_dir: models::cache::cache_dir() }
+        LeagueConfig { path: path.into(), load: LoadOptions::default(), refit: false, cache_dir: models::cache::cache_dir(), mapping: None }
     }
 }
 
@@ -68,7 +70,7 @@ impl League {
     /// Load, fit (or restore from `cfg.cache_dir`) and score.
     pub fn open_with(cfg: &LeagueConfig) -> Result<League, LeagueError> {
         let path = &cfg.path;
-        let loaded = playfile::load(path, &cfg.load)?;
+        let loaded = playfile::load_mapped(path, &cfg.load, cfg.mapping.as_ref())?;
         tracing::info!(
             snaps = loaded.plays.len(),
             games = loaded.plays.games.len(),

@@ -90,6 +90,84 @@ pub struct Source {
     pub row: u32,
 }
 
+/// Marker for "empty" in `Tags::codes`.
+pub const NO_TAG: u32 = u32::MAX;
+
+/// Most distinct values a tag may have to be offered as a list; beyond it
+/// the tag is searchable text.
+pub const TAG_LIST_MAX: usize = 50;
+
+/// The staff's own columns (tags): per tag its name as the query language
+/// writes it (`tag.NAME`), its header in the file, its distinct values
+/// (sorted) and, per snap, the index of its value (`NO_TAG` when empty).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Tags {
+    pub names: Vec<String>,
+    pub headers: Vec<String>,
+    pub values: Vec<Vec<String>>,
+    pub codes: Vec<Vec<u32>>,
+}
+
+impl Tags {
+    /// Intern `cells[t][snap]` for each tag header `headers[t]`.
+    pub fn build(headers: &[String], cells: &[Vec<Option<&str>>]) -> Tags {
+        let mut tags = Tags::default();
+        for (h, col) in headers.iter().zip(cells) {
+            let mut values: Vec<String> = col.iter().flatten().map(|v| v.to_string()).collect();
+            values.sort();
+            values.dedup();
+            let codes = col.iter().map(|v| v.and_then(|v| values.binary_search_by(|x| x.as_str().cmp(v)).ok()).map_or(NO_TAG, |c| c as u32)).collect();
+            let mut name = tag_key(h);
+            let base = name.clone();
+            let mut k = 2;
+            while tags.names.contains(&name) {
+                name = format!("{base}_{k}");
+                k += 1;
+            }
+            tags.names.push(name);
+            tags.headers.push(h.clone());
+            tags.values.push(values);
+            tags.codes.push(codes);
+        }
+        tags
+    }
+    pub fn is_empty(&self) -> bool {
+        self.names.is_empty()
+    }
+    /// The tag called `name` (without regard to case).
+    pub fn index(&self, name: &str) -> Option<usize> {
+        self.names.iter().position(|n| n.eq_ignore_ascii_case(name))
+    }
+    /// Tag `t`'s value on snap `i`.
+    pub fn value(&self, t: usize, i: usize) -> Option<&str> {
+        let c = *self.codes.get(t)?.get(i)?;
+        (c != NO_TAG).then(|| self.values[t][c as usize].as_str())
+    }
+    /// Few enough values to offer as a list.
+    pub fn is_list(&self, t: usize) -> bool {
+        self.values.get(t).is_some_and(|v| v.len() <= TAG_LIST_MAX)
+    }
+}
+
+/// A header as the query language writes it: lower case, letters, digits
+/// and `_` (`Coverage Shell` → `coverage_shell`).
+pub fn tag_key(header: &str) -> String {
+    let mut s = String::new();
+    for ch in header.trim().chars().flat_map(char::to_lowercase) {
+        if ch.is_ascii_alphanumeric() {
+            s.push(ch);
+        } else if !s.ends_with('_') && !s.is_empty() {
+            s.push('_');
+        }
+    }
+    let s = s.trim_end_matches('_').to_string();
+    if s.is_empty() {
+        "tag".to_string()
+    } else {
+        s
+    }
+}
+
 /// The league, one vector per column, all of equal length `len()`.
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct Plays {
@@ -128,6 +206,8 @@ pub struct Plays {
     pub touchback: Vec<bool>,
     pub points: Vec<i32>,
     pub source: Vec<Source>,
+    /// The staff's own columns beyond ours.
+    pub tags: Tags,
 
     // ---- derived ----
     /// Seconds left in the half (overtime: in the period).

@@ -11,10 +11,19 @@ use crate::plays::Source;
 pub(super) fn parse_rows(t: &RawTable, fi: usize, range: std::ops::Range<usize>) -> (Vec<(PlayRow, Source)>, Vec<Issue>) {
     let mut rows = Vec::with_capacity(range.len());
     let mut all = Vec::new();
+    // What a mapping could not read in these rows, reported in row order.
+    let pre: &[Issue] = t.mapped.as_ref().map(|m| m.issues.as_slice()).unwrap_or(&[]);
+    let mut next_pre = pre.partition_point(|i| i.row.is_some_and(|x| x <= range.start));
     for r in range {
         let mut issues = Vec::new();
+        let mut skip = false;
+        while next_pre < pre.len() && pre[next_pre].row == Some(r + 1) {
+            issues.push(pre[next_pre].clone());
+            next_pre += 1;
+            skip = true;
+        }
         if let Some(row) = parse_row(t, r, &mut issues) {
-            if issues.is_empty() {
+            if issues.is_empty() && !skip {
                 rows.push((row, Source { file: fi as u16, row: (r + 1) as u32 }));
             }
         }
@@ -59,13 +68,19 @@ struct Cells<'a> {
 
 impl<'a> Cells<'a> {
     fn bad(&mut self, col: usize, value: &str, expected: &str) {
-        let name = COLUMNS[col].name;
+        if self.t.failed(col, self.row) {
+            return;
+        }
+        let name = match self.t.mapped.as_ref().and_then(|m| m.labels.get(col)) {
+            Some(theirs) => theirs.clone(),
+            None => COLUMNS[col].name.to_string(),
+        };
         self.issues.push(Issue {
             file: self.t.file.clone(),
             row: Some(self.row + 1),
-            column: Some(name.to_string()),
+            column: Some(name),
             kind: IssueKind::BadValue,
-            message: format!("column {name} is {}; expected {expected}", show(value)),
+            message: format!("{} is {}; expected {expected}", self.t.label(col), show(value)),
         });
     }
     fn raw(&self, col: usize) -> Option<&'a str> {

@@ -4,7 +4,7 @@
 
 use super::read::RawTable;
 use super::report::{group, Issue, IssueKind, LoadReport};
-use super::{format_clock, PlayRow};
+use super::{format_clock, PlayRow, COLUMNS};
 use crate::plays::Source;
 use std::collections::HashMap;
 
@@ -38,13 +38,15 @@ pub(super) fn check_games(rows: Vec<(PlayRow, Source)>, tables: &[RawTable], rep
         for (row, src) in rows {
             let issue = kept.last().map(|(prev, psrc)| compare(&kept[0].0, &kept[0].1, prev, psrc, &row, src.file, tables)).unwrap_or(None);
             match issue {
-                Some((kind, col, msg)) => report.push(Issue {
-                    file: tables[src.file as usize].file.clone(),
-                    row: Some(src.row as usize),
-                    column: Some(col.to_string()),
-                    kind,
-                    message: msg,
-                }),
+                Some((kind, col, msg)) => {
+                    let t = &tables[src.file as usize];
+                    // Through a mapping, the message names their column.
+                    let (column, message) = match t.mapped.as_ref().and_then(|m| COLUMNS.iter().position(|c| c.name == col).and_then(|ci| m.labels.get(ci))) {
+                        Some(theirs) => (theirs.clone(), msg.replacen(&format!("column {col}"), &format!("their column {theirs}"), 1)),
+                        None => (col.to_string(), msg),
+                    };
+                    report.push(Issue { file: t.file.clone(), row: Some(src.row as usize), column: Some(column), kind, message })
+                }
                 None => kept.push((row, src)),
             }
         }

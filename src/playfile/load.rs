@@ -1,13 +1,15 @@
 //! Loading a play file or folder: list the files, read them, parse every
 //! cell, check every game, build `Plays`. Strict mode refuses a file with
-//! errors; lenient mode skips the bad rows and keeps every valid one.
+//! errors; lenient mode skips the bad rows and keeps every valid one. A file
+//! in another layout is read through a `Mapping`.
 
 use super::cells::parse_rows;
 use super::games::check_games;
-use super::read::{fingerprint, list_files, read_table, RawTable};
+use super::mapping::Mapping;
+use super::read::{fingerprint, list_files, read_frame, read_table, RawTable};
 use super::report::{Issue, IssueKind, LoadError, LoadOptions, LoadReport};
 use super::PlayRow;
-use crate::plays::{Plays, Source};
+use crate::plays::{Plays, Source, Tags};
 use std::path::Path;
 
 /// A loaded, validated league.
@@ -17,8 +19,14 @@ pub struct Loaded {
     pub fingerprint: String,
 }
 
-/// Load and validate a play file or folder.
+/// Load and validate a play file or folder in our layout.
 pub fn load(path: &Path, opts: &LoadOptions) -> Result<Loaded, LoadError> {
+    load_mapped(path, opts, None)
+}
+
+/// Load and validate a play file or folder, read through `mapping` when
+/// it is in another layout (the mapping's text joins the fingerprint).
+pub fn load_mapped(path: &Path, opts: &LoadOptions, mapping: Option<&Mapping>) -> Result<Loaded, LoadError> {
     let mut report = LoadReport::default();
     let files = match list_files(path) {
         Ok(f) => f,
@@ -42,12 +50,19 @@ pub fn load(path: &Path, opts: &LoadOptions) -> Result<Loaded, LoadError> {
     if report.fatal {
         return Err(LoadError { report });
     }
-    let fp_input: Vec<(String, Vec<u8>)> = contents.iter().map(|(n, _, b)| (n.clone(), b.clone())).collect();
+    let mut fp_input: Vec<(String, Vec<u8>)> = contents.iter().map(|(n, _, b)| (n.clone(), b.clone())).collect();
+    if let Some(m) = mapping {
+        fp_input.push(("mapping".to_string(), m.text.clone().into_bytes()));
+    }
     let fingerprint = fingerprint(&fp_input);
     drop(fp_input);
     let mut tables = Vec::new();
     for (name, path, bytes) in &contents {
-        match read_table(name, path, bytes) {
+        let table = match mapping {
+            None => read_table(name, path, bytes),
+            Some(m) => read_frame(name, path, bytes).and_then(|df| super::mapping_apply::translate(m, name, &df)),
+        };
+        match table {
             Ok(t) => tables.push(t),
             Err(issues) => {
                 for i in issues {
@@ -100,7 +115,36 @@ pub fn load_with(tables: Vec<RawTable>, opts: &LoadOptions, mut report: LoadRepo
         return Err(LoadError { report });
     }
     let (rows, sources): (Vec<PlayRow>, Vec<Source>) = rows.into_iter().unzip();
-    let plays = Plays::from_rows(report.files.clone(), &rows, sources);
+    let mut plays = Plays::from_rows(report.files.clone(), &rows, sources);
+    plays.tags = gather_tags(&tables, &plays.source);
     report.games = plays.games.len();
     Ok(Loaded { plays, report, fingerprint: String::new() })
+}
+
+/// The staff's tag columns of every file, per kept snap (a tag one file
+/// lacks is empty on its snaps).
+fn gather_tags(tables: &[RawTable], sources: &[Source]) -> Tags {
+    let mut names: Vec<String> = Vec::new();
+    for t in tables {
+        for (n, _) in &t.tags {
+            if !names.contains(n) {
+                names.push(n.clone());
+            }
+        }
+    }
+    let cells = names
+        .iter()
+        .map(|n| {
+            let cols: Vec<Option<&polars::prelude::StringChunked>> = tables.iter().map(|t| t.tags.iter().find(|(x, _)| x == n).map(|(_, c)| c)).collect();
+            sources
+                .iter()
+                .map(|s| {
+                    let c = cols.get(s.file as usize).copied().flatten()?;
+                    let v = c.get((s.row as usize).checked_sub(1)?)?.trim();
+                    (!v.is_empty()).then_some(v)
+                })
+                .collect::<Vec<Option<&str>>>()
+        })
+        .collect::<Vec<_>>();
+    Tags::build(&names, &cells)
 }

@@ -1,6 +1,7 @@
 //! Reading one play file (CSV or Parquet) into text columns with polars,
 //! after header checks (missing, duplicated columns) and a UTF-8 check that
 //! can name the row. Listing the files of a folder; the data fingerprint.
+//! Columns beyond ours are kept as the staff's tags.
 
 use super::report::{group, Issue, IssueKind};
 use super::{FileFormat, COLUMNS};
@@ -15,6 +16,22 @@ pub struct RawTable {
     pub file: String,
     pub height: usize,
     pub columns: Vec<Option<StringChunked>>,
+    /// Columns beyond ours (the staff's tags): their header name and text.
+    pub tags: Vec<(String, StringChunked)>,
+    /// Read through a mapping: what the messages call each of our columns
+    /// (their column's name) and what the mapping could not read.
+    pub mapped: Option<Mapped>,
+}
+
+/// What reading through a mapping adds to a table.
+#[derive(Default)]
+pub struct Mapped {
+    /// Their name for each of our columns, in `COLUMNS` order.
+    pub labels: Vec<String>,
+    /// Cells the mapping could not read, in row order (already reported:
+    /// the cell checks stay quiet about them).
+    pub issues: Vec<Issue>,
+    pub failed: std::collections::HashSet<(usize, usize)>,
 }
 
 impl RawTable {
@@ -24,6 +41,18 @@ impl RawTable {
         let c = self.columns[col].as_ref()?;
         let v = c.get(row)?.trim();
         (!v.is_empty()).then_some(v)
+    }
+    /// What messages call column `col`: `column ball_on`, or through a
+    /// mapping `their column YardLn`.
+    pub fn label(&self, col: usize) -> String {
+        match self.mapped.as_ref().and_then(|m| m.labels.get(col)) {
+            Some(l) => format!("their column {l}"),
+            None => format!("column {}", COLUMNS[col].name),
+        }
+    }
+    /// Did the mapping already report this cell?
+    pub fn failed(&self, col: usize, row: usize) -> bool {
+        self.mapped.as_ref().is_some_and(|m| m.failed.contains(&(row, col)))
     }
 }
 
@@ -85,7 +114,28 @@ pub fn read_table(name: &str, path: &Path, bytes: &[u8]) -> Result<RawTable, Vec
     }
 }
 
+/// Parse the bytes of one file into a frame of text columns, every column
+/// kept (for reading through a mapping); header names checked for duplicates.
+pub fn read_frame(name: &str, path: &Path, bytes: &[u8]) -> Result<DataFrame, Vec<Issue>> {
+    let format = FileFormat::from_path(path).map_err(|e| vec![Issue::named(name, IssueKind::Unreadable, e.to_string())])?;
+    let result = std::panic::catch_unwind(|| match format {
+        FileFormat::Csv => csv_frame(name, bytes),
+        FileFormat::Parquet => parquet_frame(name, bytes),
+    });
+    match result {
+        Ok(r) => r,
+        Err(_) => Err(vec![Issue::named(name, IssueKind::Unreadable, "the file could not be parsed (reader failed)".to_string())]),
+    }
+}
+
 fn read_csv(name: &str, bytes: &[u8]) -> Result<RawTable, Vec<Issue>> {
+    let df = csv_frame(name, bytes)?;
+    let header: Vec<String> = df.get_column_names().iter().map(|s| s.to_string()).collect();
+    check_required(name, &header)?;
+    to_table(name, df)
+}
+
+fn csv_frame(name: &str, bytes: &[u8]) -> Result<DataFrame, Vec<Issue>> {
     let bytes = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
     if let Err(e) = std::str::from_utf8(bytes) {
         let at = e.valid_up_to();
@@ -103,7 +153,7 @@ fn read_csv(name: &str, bytes: &[u8]) -> Result<RawTable, Vec<Issue>> {
         return Err(vec![Issue::named(name, IssueKind::Empty, "the file is empty; expected a header row naming the columns".into())]);
     }
     let header: Vec<String> = split_header(header_line);
-    check_header(name, &header)?;
+    check_duplicates(name, &header)?;
     let opts = CsvReadOptions::default()
         .with_has_header(true)
         .with_infer_schema_length(Some(0))
@@ -112,16 +162,23 @@ fn read_csv(name: &str, bytes: &[u8]) -> Result<RawTable, Vec<Issue>> {
         .into_reader_with_file_handle(Cursor::new(bytes.to_vec()))
         .finish()
         .map_err(|e| vec![Issue::named(name, IssueKind::Unreadable, format!("not a readable CSV file: {}", first_line(&e.to_string())))])?;
-    to_table(name, df)
+    Ok(df)
 }
 
 fn read_parquet(name: &str, bytes: &[u8]) -> Result<RawTable, Vec<Issue>> {
+    let df = parquet_frame(name, bytes)?;
+    let header: Vec<String> = df.get_column_names().iter().map(|s| s.to_string()).collect();
+    check_required(name, &header)?;
+    to_table(name, df)
+}
+
+fn parquet_frame(name: &str, bytes: &[u8]) -> Result<DataFrame, Vec<Issue>> {
     let df = ParquetReader::new(Cursor::new(bytes.to_vec()))
         .finish()
         .map_err(|e| vec![Issue::named(name, IssueKind::Unreadable, format!("not a readable Parquet file: {}", first_line(&e.to_string())))])?;
     let header: Vec<String> = df.get_column_names().iter().map(|s| s.to_string()).collect();
-    check_header(name, &header)?;
-    to_table(name, df)
+    check_duplicates(name, &header)?;
+    Ok(df)
 }
 
 fn first_line(s: &str) -> &str {
@@ -144,7 +201,7 @@ fn split_header(line: &str) -> Vec<String> {
     out.into_iter().map(|s| s.trim().to_string()).collect()
 }
 
-fn check_header(name: &str, header: &[String]) -> Result<(), Vec<Issue>> {
+fn check_duplicates(name: &str, header: &[String]) -> Result<(), Vec<Issue>> {
     let mut issues = Vec::new();
     let mut seen = std::collections::HashSet::new();
     for h in header {
@@ -152,6 +209,15 @@ fn check_header(name: &str, header: &[String]) -> Result<(), Vec<Issue>> {
             issues.push(Issue::column(name, h, IssueKind::DuplicateColumn, format!("column {h} appears more than once; expected each column once")));
         }
     }
+    if issues.is_empty() {
+        Ok(())
+    } else {
+        Err(issues)
+    }
+}
+
+fn check_required(name: &str, header: &[String]) -> Result<(), Vec<Issue>> {
+    let mut issues = Vec::new();
     for spec in COLUMNS.iter().filter(|c| c.required) {
         if !header.iter().any(|h| h == spec.name) {
             issues.push(Issue::column(name, spec.name, IssueKind::MissingColumn, format!("column {} is missing; expected it in the header", spec.name)));
@@ -180,5 +246,19 @@ fn to_table(name: &str, df: DataFrame) -> Result<RawTable, Vec<Issue>> {
             })?;
         columns.push(Some(as_text));
     }
-    Ok(RawTable { file: name.to_string(), height, columns })
+    let mut tags = Vec::new();
+    for col in df.columns() {
+        if COLUMNS.iter().any(|c| c.name == col.name().as_str()) {
+            continue;
+        }
+        tags.push((col.name().to_string(), text_of(name, col)?));
+    }
+    Ok(RawTable { file: name.to_string(), height, columns, tags, mapped: None })
+}
+
+/// A column as text (numbers written as polars writes them).
+pub fn text_of(name: &str, col: &Column) -> Result<StringChunked, Vec<Issue>> {
+    col.cast(&DataType::String)
+        .and_then(|c| c.str().map(|s| s.rechunk().into_owned()))
+        .map_err(|e| vec![Issue::column(name, col.name().as_str(), IssueKind::BadValue, format!("column {} cannot be read as text: {}", col.name(), first_line(&e.to_string())))])
 }

@@ -6,6 +6,7 @@
 pub mod params;
 mod preset;
 mod result;
+pub mod tags;
 pub mod values;
 
 use crate::plays::Plays;
@@ -17,6 +18,7 @@ use values::{err, parse_int_list, parse_name, parse_probability, parse_range, sh
 pub use params::{decode_pairs, readme_table, ParamSpec, PARAMS};
 pub use preset::Preset;
 pub use result::{PlayResult, RESULTS};
+pub use tags::{TagFilter, TagMatch};
 
 /// An inclusive range; either end may be open.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Default)]
@@ -76,6 +78,8 @@ pub struct Situation {
     pub passer: Option<String>,
     /// What the snap ended in (any of these).
     pub results: Option<Vec<PlayResult>>,
+    /// The staff's tags (`tag.NAME=...`), by name.
+    pub tags: Vec<TagFilter>,
 }
 
 impl Default for Situation {
@@ -100,6 +104,7 @@ impl Default for Situation {
             opponent: None,
             passer: None,
             results: None,
+            tags: Vec::new(),
         }
     }
 }
@@ -205,6 +210,14 @@ impl Situation {
             Field::Opponent => put!(opponent, parse_name(k, v)),
             Field::Passer => put!(passer, parse_name(k, v)),
             Field::Results => put!(results, parse_results(k, v)),
+            Field::Tag => {
+                let name = tags::tag_name(k).unwrap_or("").to_ascii_lowercase();
+                self.tags.retain(|t| t.name != name);
+                if !any {
+                    self.tags.push(tags::parse_tag(k, v)?);
+                    self.tags.sort_by(|a, b| a.name.cmp(&b.name));
+                }
+            }
         }
         Ok(())
     }
@@ -236,6 +249,8 @@ impl Situation {
             Field::Opponent => self.opponent.clone(),
             Field::Passer => self.passer.clone(),
             Field::Results => self.results.as_deref().map(|v| show_list(v, |r| r.key().to_string())),
+            // Several at once: `to_query` writes each.
+            Field::Tag => None,
         }
     }
 
@@ -259,6 +274,10 @@ impl Situation {
                 Field::Preset => self.show(Field::Preset),
                 Field::OneScore => (self.one_score != 8).then(|| self.one_score.to_string()),
                 Field::Page => None,
+                Field::Tag => {
+                    q.extend(self.tags.iter().map(|t| (t.key(), t.show())));
+                    None
+                }
                 f => {
                     let (mine, theirs) = (self.show(f), base.show(f));
                     (mine != theirs).then(|| mine.unwrap_or_else(|| "any".to_string()))
@@ -305,6 +324,13 @@ impl Situation {
             && self.opponent.as_ref().is_none_or(|t| plays.teams[plays.defense[i] as usize].eq_ignore_ascii_case(t))
             && self.passer.as_ref().is_none_or(|p| plays.passer_name(i) == Some(p.as_str()))
             && self.results.as_ref().is_none_or(|rs| rs.iter().any(|r| r.of(plays, i)))
+            && self.tags.iter().all(|t| t.matches(plays, i))
+    }
+
+    /// Every tag filter against the tags the file has (unknown tag or value:
+    /// the refusal with the nearest one).
+    pub fn check_tags(&self, plays: &Plays) -> Result<(), SituationError> {
+        self.tags.iter().try_for_each(|t| t.check(plays))
     }
 
     /// The situation in words, for headers and the report.
@@ -324,6 +350,7 @@ impl Situation {
         }
         for (k, v) in self.to_query() {
             match params::spec(&k) {
+                Some(spec) if spec.field == params::Field::Tag => parts.push(format!("{} {}", tags::tag_name(&k).unwrap_or(""), v)),
                 Some(spec) if spec.field.is_filter() => parts.push(spec.words.replace("{}", &v)),
                 _ => {}
             }

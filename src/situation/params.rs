@@ -30,6 +30,8 @@ pub enum Field {
     Opponent,
     Passer,
     Results,
+    /// The staff's own columns: `tag.NAME` (one spec stands for every tag).
+    Tag,
     /// Not a filter: a page's own setting, read by `web::query`.
     Page,
 }
@@ -84,6 +86,7 @@ pub const PARAMS: &[ParamSpec] = &[
     p("opponent", Field::Opponent, "Opponent", "defense team code (any case)", "QRM", "vs {}", true),
     p("passer", Field::Passer, "Passer", "passer name (any case)", "NAME", "passer {}", false),
     p("result", Field::Results, "Result", "what the snap ended in, any of: completion, incompletion, interception, sack, scramble, touchdown-pass, touchdown, first-down, fumble-lost", "interception", "result {}", true),
+    p("tag.NAME", Field::Tag, "Tags", "the staff's own columns (tags, any column beyond ours): values of tag NAME, a list, or ~text to search a tag with more than 50 values", "yes,no", "{}", false),
     p("min", Field::Page, "Min. dropbacks", "table: dropbacks a passer needs to be ranked (default 20)", "30", "", false),
     p("sort", Field::Page, "Sort", "table: column to sort on: passer, team or a metric key such as epa", "epa", "", false),
     p("dir", Field::Page, "Direction", "table: desc (high to low, default) or asc", "asc", "", false),
@@ -91,6 +94,7 @@ pub const PARAMS: &[ParamSpec] = &[
     p("view", Field::Page, "View", "laptop (default) or projector: large type, fewer columns", "projector", "", false),
     p("metric", Field::Page, "Metric", "play list: only the snaps a metric is taken over (its key, e.g. int_rate)", "int_rate", "", false),
     p("game", Field::Page, "Game", "game page: the game's key", "KEY", "", false),
+    p("by-tag", Field::Page, "By tag", "passer page: break the passer down by the values of one of the staff's tags (its NAME)", "pressure", "", false),
     p("trend", Field::Page, "Trend", "passer page: the preset of the season trend", "two-minute-drill", "", false),
     p("cols", Field::Page, "Columns", "explorer: the column group, key (default), passing, pressure, value or all", "passing", "", false),
     p("screen", Field::Page, "Screen", "meeting view: the situation on screen (a preset's key)", "two-minute-drill", "", false),
@@ -98,8 +102,11 @@ pub const PARAMS: &[ParamSpec] = &[
     p("token", Field::Page, "Token", "shared mode: the access token, on the first visit only", "TOKEN", "", false),
 ];
 
-/// The spec of `key`, if it is known.
+/// The spec of `key`, if it is known (`tag.NAME` for any NAME).
 pub fn spec(key: &str) -> Option<&'static ParamSpec> {
+    if super::tags::tag_name(key).is_some() {
+        return spec_of(Field::Tag);
+    }
     PARAMS.iter().find(|s| s.key == key)
 }
 

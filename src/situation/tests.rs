@@ -4,6 +4,7 @@
 
 use super::values::{parse_range, plain};
 use super::*;
+use super::tags::TagMatch;
 
 fn q(s: &str) -> Vec<(String, String)> {
     decode_pairs(s)
@@ -153,7 +154,9 @@ fn readme_table_is_the_spec() {
 #[test]
 fn keys_are_unique_and_plain_words() {
     for (i, a) in PARAMS.iter().enumerate() {
-        assert!(a.key.chars().all(|c| c.is_ascii_lowercase() || c == '-'), "{}", a.key);
+        // one spec stands for every tag: `tag.NAME`
+        let key = if a.field == params::Field::Tag { a.key.strip_prefix("tag.").unwrap_or("?").to_ascii_lowercase() } else { a.key.to_string() };
+        assert!(key.chars().all(|c| c.is_ascii_lowercase() || c == '-'), "{}", a.key);
         assert!(PARAMS[i + 1..].iter().all(|b| b.key != a.key), "{} twice", a.key);
         if a.field.is_filter() {
             assert!(a.words.contains("{}"), "{}", a.key);
@@ -188,5 +191,23 @@ fn preset_labels_fit_the_profile_charts() {
     // the profile's dot charts show about 26 characters of a row label
     for p in Preset::ALL {
         assert!(p.label().chars().count() <= 26, "{} is too long for a chart row", p.label());
+    }
+}
+
+#[test]
+fn tag_filters_read_back_and_describe_themselves() {
+    let s = parse("preset=end-of-game&tag.shell=C2,C3&tag.pressure=yes&tag.note=~blitz");
+    assert_eq!(s.tags.len(), 3);
+    assert_eq!(s.tags[0].name, "note");
+    assert_eq!(s.tags[0].keep, TagMatch::Contains("blitz".into()));
+    assert_eq!(s.tags[2].keep, TagMatch::Any(vec!["C2".into(), "C3".into()]));
+    assert_eq!(Situation::from_query(&s.to_query()).unwrap(), s);
+    let d = s.describe();
+    assert!(d.ends_with("note ~blitz; pressure yes; shell C2,C3"), "{d}");
+    // `any` lifts one; a later value replaces an earlier one
+    assert!(parse("tag.shell=C2&tag.shell=any").tags.is_empty());
+    assert_eq!(parse("tag.shell=C2&tag.shell=C4").tags[0].keep, TagMatch::Any(vec!["C4".into()]));
+    for bad in ["tag.=yes", "tag.a%20b=yes", "tag.note=~", "tag.shell=,"] {
+        assert!(Situation::from_query_string(bad).is_err(), "{bad}");
     }
 }

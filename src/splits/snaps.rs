@@ -42,6 +42,9 @@ pub struct Snap {
     /// (null in JSON) where the snap is not a pass with air yards.
     pub choice: f64,
     pub execution: f64,
+    /// The staff's tags on this snap: (tag name, value; empty when none),
+    /// every tag of the file in its order.
+    pub tags: Vec<(String, String)>,
 }
 
 /// "Q4", "OT" (a second overtime "OT2").
@@ -138,6 +141,7 @@ pub fn snap_at(p: &Plays, v: &SnapValues, i: usize) -> Snap {
         wpa: v.wpa.get(i).copied().unwrap_or(f64::NAN),
         choice: v.choice.get(i).copied().unwrap_or(f64::NAN),
         execution: v.execution.get(i).copied().unwrap_or(f64::NAN),
+        tags: p.tags.names.iter().enumerate().map(|(t, n)| (n.clone(), p.tags.value(t, i).unwrap_or("").to_string())).collect(),
     }
 }
 

@@ -171,6 +171,7 @@ pub fn resolve_names(plays: &Plays, s: &mut Situation) -> Result<(), SituationEr
     resolve(Field::Team, &mut s.offense, &plays.teams, "team")?;
     resolve(Field::Opponent, &mut s.opponent, &plays.teams, "team")?;
     resolve(Field::Passer, &mut s.passer, &plays.passers, "passer")?;
+    s.check_tags(plays)?;
     check_seasons(plays, s)
 }
 

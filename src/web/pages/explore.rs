@@ -16,6 +16,39 @@ pub struct FormField {
     pub help: &'static str,
 }
 
+/// One of the staff's tags in the filter form: a select when it has at
+/// most `TAG_LIST_MAX` values, a text search (`~text`) otherwise.
+pub struct TagField {
+    pub key: String,
+    pub label: String,
+    pub list: bool,
+    /// (value, selected) for a select; the first is "any" (empty value).
+    pub options: Vec<(String, bool)>,
+    /// The text box's value for a searchable tag.
+    pub value: String,
+}
+
+/// The form's tag fields for the league's tags and the current filters.
+pub fn tag_fields(plays: &crate::plays::Plays, s: &Situation) -> Vec<TagField> {
+    let tags = &plays.tags;
+    tags.names
+        .iter()
+        .enumerate()
+        .map(|(t, name)| {
+            let current = s.tags.iter().find(|f| &f.name == name).map(|f| f.show()).unwrap_or_default();
+            let list = tags.is_list(t);
+            let mut options = Vec::new();
+            if list {
+                options = tags.values[t].iter().map(|v| (v.clone(), v.eq_ignore_ascii_case(&current))).collect();
+                if !current.is_empty() && !options.iter().any(|(_, sel)| *sel) {
+                    options.insert(0, (current.clone(), true));
+                }
+            }
+            TagField { key: format!("tag.{name}"), label: tags.headers[t].clone(), list, options, value: if list { String::new() } else { current } }
+        })
+        .collect()
+}
+
 pub struct Column {
     pub key: &'static str,
     pub short: &'static str,
@@ -55,6 +88,7 @@ pub(super) struct ExplorePage {
     pub(super) os_value: String,
     pub(super) site_value: String,
     pub(super) fields: Vec<FormField>,
+    pub(super) tag_fields: Vec<TagField>,
     pub(super) min: u32,
     pub(super) by_raw: bool,
     pub(super) description: String,
@@ -251,6 +285,7 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         os_value: params.situation.one_score.to_string(),
         site_value: own_get("site"),
         fields,
+        tag_fields: tag_fields(st.league().plays(), &params.situation),
         min: params.min_dropbacks,
         by_raw: params.sort_by == SortBy::Value,
         description: table.situation.clone(),

@@ -27,6 +27,8 @@ pub struct SnapView {
     pub execution_sort: String,
     /// Counted by the number the list was opened from (rates mark these).
     pub counted: bool,
+    /// The staff's tag values, in the file's tag order.
+    pub tags: Vec<String>,
 }
 
 #[derive(Template)]
@@ -39,6 +41,8 @@ pub(super) struct PlaysPage {
     /// What the list is, against the number it came from.
     pub(super) note: String,
     pub(super) marking: bool,
+    /// The file's tag names (a column each).
+    pub(super) tag_names: Vec<String>,
     pub(super) snaps: Vec<SnapView>,
     pub(super) csv_href: String,
     pub(super) api_href: String,
@@ -73,6 +77,7 @@ pub(super) fn snap_view(s: &splits::Snap) -> SnapView {
         choice_sort: sort_value(s.choice.is_finite().then_some(s.choice)),
         execution_sort: sort_value(s.execution.is_finite().then_some(s.execution)),
         counted: false,
+        tags: s.tags.iter().map(|(_, v)| v.clone()).collect(),
     }
 }
 
@@ -127,6 +132,7 @@ pub async fn plays(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Ra
         shown: snaps.len().min(PLAY_PAGE_LIMIT),
         note: note.text,
         marking: note.marking,
+        tag_names: st.league().plays().tags.names.clone(),
         snaps: snaps.iter().zip(&counted).take(PLAY_PAGE_LIMIT).map(|(s, c)| SnapView { counted: *c, ..snap_view(s) }).collect(),
         csv_href: format!("/plays.csv{}", params.with(&[("view", None)])),
         api_href: format!("/api/plays{}", params.with(&[("view", None)])),

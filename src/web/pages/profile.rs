@@ -9,6 +9,20 @@ pub struct ProfileRowView {
     pub cells: Vec<(String, String, String)>,
 }
 
+/// The by-tag section: the chosen tag, the choices, a chart and a table.
+pub struct TagSection {
+    pub tag: String,
+    pub header: String,
+    /// (tag name, header, selected) for the tag select (tags with a list).
+    pub choices: Vec<(String, String, bool)>,
+    pub situation: String,
+    pub chart: String,
+    pub heads: Vec<(&'static str, &'static str)>,
+    pub rows: Vec<ProfileRowView>,
+    /// Why there is no breakdown (no tag with a list, unknown tag).
+    pub note: String,
+}
+
 #[derive(Template)]
 #[template(path = "profile.html")]
 pub(super) struct ProfilePage {
@@ -32,6 +46,68 @@ pub(super) struct ProfilePage {
     pub(super) api_href: String,
     pub(super) report_href: String,
     pub(super) games: Vec<(String, String)>,
+    pub(super) by_tag: Option<TagSection>,
+}
+
+pub(super) const TAG_KEYS: &[&str] = &["epa", "success", "comp_pct", "sack_rate", "int_rate", "anya"];
+
+/// The passer by the values of tag `asked` (default: the file's first tag
+/// with a list), in `situation`. None when the file has no tags.
+fn tag_section(p: &crate::plays::Plays, v: &splits::SnapValues, name: &str, situation: &Situation, asked: Option<&str>, min: u32, width: f64) -> Option<TagSection> {
+    let tags = &p.tags;
+    if tags.is_empty() {
+        return None;
+    }
+    let listed: Vec<usize> = (0..tags.names.len()).filter(|&t| tags.is_list(t)).collect();
+    let tag = asked.map(str::to_string).or_else(|| listed.first().map(|&t| tags.names[t].clone())).unwrap_or_default();
+    let choices = listed.iter().map(|&t| (tags.names[t].clone(), tags.headers[t].clone(), tags.names[t].eq_ignore_ascii_case(&tag))).collect();
+    let mut section = TagSection { tag: tag.clone(), header: tag.clone(), choices, situation: situation.describe(), chart: String::new(), heads: Vec::new(), rows: Vec::new(), note: String::new() };
+    let b = match splits::tag_breakdown(p, v, name, situation, &tag, min) {
+        Ok(b) => b,
+        Err(e) => {
+            section.note = e.to_string();
+            return Some(section);
+        }
+    };
+    section.header = b.header.clone();
+    let keys: Vec<usize> = TAG_KEYS.iter().filter_map(|k| metric_index(k)).collect();
+    let ej = metric_index("epa").unwrap_or(0);
+    let dots: Vec<DotRow> = b
+        .lines
+        .iter()
+        .map(|l| {
+            let c = l.row.as_ref().map(|r| &r.cells[ej]);
+            DotRow { label: l.value.clone(), estimate: c.and_then(|c| c.estimate), lo: c.and_then(|c| c.lo), hi: c.and_then(|c| c.hi), raw: c.and_then(|c| c.value), league: l.league[ej] }
+        })
+        .collect();
+    section.chart = charts::dot_interval(&format!("EPA per dropback — {name} by {} (dot: estimate, bar: 90% interval, tick: league)", b.header), &dots, width).to_svg();
+    section.heads = keys.iter().map(|&j| (METRICS[j].short, METRICS[j].label)).collect();
+    section.rows = b
+        .lines
+        .iter()
+        .map(|l| ProfileRowView {
+            label: "",
+            href: {
+                let mut q = l.query.clone();
+                q.push(("passer".into(), name.to_string()));
+                format!("/plays{}", to_query_string(&q))
+            },
+            dropbacks: format!("{}: {} of {}", l.value, l.row.as_ref().map(|r| r.dropbacks).unwrap_or(0), l.league_dropbacks),
+            cells: keys
+                .iter()
+                .map(|&j| {
+                    let m = &METRICS[j];
+                    let c = l.row.as_ref().map(|r| &r.cells[j]);
+                    (
+                        fixed(c.and_then(|c| c.value), m.decimals),
+                        c.map(|c| format!("est {} [{}, {}]", fixed(c.estimate, m.decimals), fixed(c.lo, m.decimals), fixed(c.hi, m.decimals))).unwrap_or_default(),
+                        fixed(l.league[j], m.decimals),
+                    )
+                })
+                .collect(),
+        })
+        .collect();
+    Some(section)
 }
 
 
@@ -156,6 +232,18 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
             }
         }
     }
+    let asked_tag = params.raw.iter().rev().find(|(k, v)| k == "by-tag" && !v.trim().is_empty()).map(|(_, v)| v.trim().to_string());
+    if let Some(t) = &asked_tag {
+        // An unknown tag is refused like any filter: the nearest name.
+        let probe = crate::situation::TagFilter { name: t.to_ascii_lowercase(), keep: crate::situation::TagMatch::Contains(String::new()) };
+        if let Err(mut e) = probe.check(p) {
+            e.param = "by-tag".into();
+            e.value = t.clone();
+            return bad_query(&st, &headers, &e, "/passer");
+        }
+    }
+    let tag_situation = Situation { seasons: params.situation.seasons.clone(), ..trend.clone() };
+    let by_tag = tag_section(p, &lg.values(), &name, &tag_situation, asked_tag.as_deref(), params.min_dropbacks, width);
     let mut all: Vec<(String, bool)> = p.passers.iter().map(|n| (n.clone(), *n == name)).collect();
     all.sort();
     let page = ProfilePage {
@@ -179,6 +267,7 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         api_href: format!("/api/profile{}", params.with(&[("passer", Some(&name)), ("view", None)])),
         report_href: format!("/report{}", to_query_string(&Situation { passer: Some(name.clone()), seasons: params.situation.seasons.clone(), ..Preset::DEFAULT.situation(params.situation.one_score) }.to_query())),
         games,
+        by_tag,
         chrome: ch,
     };
     html(&page)
