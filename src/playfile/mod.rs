@@ -12,7 +12,7 @@ mod write;
 
 pub use load::{load, load_with, Loaded};
 pub use read::{fingerprint, list_files, read_table, RawTable};
-pub use report::{group, Issue, IssueKind, LoadError, LoadOptions, LoadReport, KEPT_ISSUES, LISTED_ISSUES};
+pub use report::{Issue, IssueKind, LoadError, LoadOptions, LoadReport, KEPT_ISSUES, LISTED_ISSUES};
 pub use write::{rows_frame, write_frame, write_rows, FileFormat, WriteError};
 
 // The column layout lives at the bottom of the crate (`plays` reads it too);

@@ -2,7 +2,8 @@
 //! after header checks (missing, duplicated columns) and a UTF-8 check that
 //! can name the row. Listing the files of a folder; the data fingerprint.
 
-use super::report::{group, Issue, IssueKind};
+use super::report::{Issue, IssueKind};
+use crate::numfmt::thousands as group;
 use super::{FileFormat, COLUMNS};
 use polars::prelude::*;
 use sha2::{Digest, Sha256};

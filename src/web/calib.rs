@@ -4,7 +4,7 @@
 
 use crate::models::strata::{Banded, EpGroup, StratumBin, StratumScore};
 use crate::models::{Calibration, FitReport, ModelReport, Plan};
-use crate::playfile::group;
+use crate::numfmt::thousands as group;
 
 /// One stratum as the page shows it.
 pub struct StratumView {

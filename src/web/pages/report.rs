@@ -3,8 +3,8 @@
 use super::*;
 
 /// The report's data for a request: the situation, our passer (or
-/// `passer=`), the paper size.
-pub(super) fn report_data(st: &Shared, headers: &HeaderMap, q: Option<&str>) -> Result<(crate::report::ReportData, crate::report::Paper), Response> {
+/// `passer=`), the paper size, and the page's screen links.
+pub(super) fn report_data(st: &Shared, headers: &HeaderMap, q: Option<&str>) -> Result<(crate::report::ReportData, crate::report::Paper, crate::report::ReportScreen), Response> {
     let params = Params::parse_in(q, st.league().plays()).map_err(|e| bad_query(st, headers, &e, &format!("/report?preset={}", Preset::DEFAULT.key())))?;
     let (_, our_passer) = ours(st, headers);
     let Some(passer) = params.situation.passer.clone().or(our_passer) else {
@@ -16,21 +16,53 @@ pub(super) fn report_data(st: &Shared, headers: &HeaderMap, q: Option<&str>) -> 
     }
     let paper = params.paper.as_deref().and_then(crate::report::Paper::parse).unwrap_or(crate::report::Paper::Letter);
     let lg = st.league();
+    let screen = report_screen(&params, &situation, &passer);
     match crate::report::ReportData::build(&lg, &situation, &passer, params.min_dropbacks) {
-        Ok(d) => Ok((d, paper)),
+        Ok(d) => Ok((d, paper, screen)),
         Err(e) => Err(error_page(st, headers, StatusCode::BAD_REQUEST, "No report for that", e.to_string(), "/")),
+    }
+}
+
+/// Links from the report back to the pages it came from: the explorer in
+/// the same situation and seasons, the passer's page, the PDF and the other
+/// view, each keeping the situation, the seasons and the view.
+pub fn report_screen(params: &Params, situation: &Situation, passer: &str) -> crate::report::ReportScreen {
+    let view = |q: &mut Vec<(String, String)>| {
+        if params.projector {
+            q.push(("view".into(), "projector".into()));
+        }
+    };
+    let mut explore = Situation { passer: None, ..situation.clone() }.to_query();
+    view(&mut explore);
+    let mut report = Situation { passer: Some(passer.to_string()), ..situation.clone() }.to_query();
+    if let Some(paper) = &params.paper {
+        report.push(("paper".into(), paper.clone()));
+    }
+    let pdf = report.clone();
+    let mut toggle = report.clone();
+    if !params.projector {
+        toggle.push(("view".into(), "projector".into()));
+    }
+    crate::report::ReportScreen {
+        projector: params.projector,
+        links: vec![
+            ("Back to the situations".into(), format!("/explore{}", to_query_string(&explore))),
+            (format!("{passer}'s page"), format!("/passer{}", passer_query(passer, params))),
+            ("PDF".into(), format!("/report.pdf{}", to_query_string(&pdf))),
+            ((if params.projector { "Laptop view" } else { "Projector view" }).into(), format!("/report{}", to_query_string(&toggle))),
+        ],
     }
 }
 
 pub async fn report_html(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
     match report_data(&st, &headers, q.as_deref()) {
-        Ok((data, paper)) => Html(crate::report::html(&data, paper)).into_response(),
+        Ok((data, paper, screen)) => Html(crate::report::html_with(&data, paper, &screen)).into_response(),
         Err(r) => r,
     }
 }
 
 pub async fn report_pdf(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
-    let (data, paper) = match report_data(&st, &headers, q.as_deref()) {
+    let (data, paper, _) = match report_data(&st, &headers, q.as_deref()) {
         Ok(x) => x,
         Err(r) => return r,
     };
