@@ -127,7 +127,7 @@ pub fn number_query(situation: &Situation, passer: &str, metric: &str) -> Vec<(S
 pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
     let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
-        Err(e) => return bad_query(&st, &headers, &e, &format!("/explore?preset={}", Preset::DEFAULT.key())),
+        Err(e) => return refused(&st, &headers, &e, "/explore", q.as_deref()),
     };
     let mut params = params;
     if !asks_situation(&params.raw) {

@@ -31,7 +31,7 @@ fn period_labels(last_period: i32) -> Vec<(f64, String)> {
 pub async fn game(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
     let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
-        Err(e) => return bad_query(&st, &headers, &e, "/"),
+        Err(e) => return refused(&st, &headers, &e, "/game", q.as_deref()),
     };
     let lg = st.league();
     let p = lg.plays();

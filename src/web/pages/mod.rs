@@ -152,6 +152,33 @@ pub(super) fn bad_query(st: &Shared, headers: &HeaderMap, e: &SituationError, ba
     error_page(st, headers, StatusCode::BAD_REQUEST, "That view can't be drawn", e.to_string(), back)
 }
 
+/// The same page without the parameters that could not be used: each
+/// refused parameter is dropped in turn until the rest parses, so every
+/// other filter, the seasons and the view are kept.
+pub fn working_back(path: &str, q: Option<&str>, plays: &crate::plays::Plays) -> String {
+    let mut pairs: Vec<(String, String)> = query::pairs(q).into_iter().filter(|(k, _)| k != "token").collect();
+    loop {
+        let qs = to_query_string(&pairs);
+        match Params::parse_in(Some(qs.trim_start_matches('?')), plays) {
+            Ok(_) => return format!("{path}{qs}"),
+            Err(e) => {
+                let before = pairs.len();
+                pairs.retain(|(k, _)| *k != e.param);
+                if pairs.len() == before {
+                    return path.to_string();
+                }
+            }
+        }
+    }
+}
+
+/// A refused query on `path`: the reason, and a way back that keeps every
+/// filter it can.
+pub(super) fn refused(st: &Shared, headers: &HeaderMap, e: &SituationError, path: &str, q: Option<&str>) -> Response {
+    let back = working_back(path, q, st.league().plays());
+    bad_query(st, headers, e, &back)
+}
+
 pub async fn not_found(State(st): State<Shared>, headers: HeaderMap) -> Response {
     error_page(&st, &headers, StatusCode::NOT_FOUND, "No such page", "Nothing lives at this address.".into(), "/")
 }

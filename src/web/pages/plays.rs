@@ -106,7 +106,7 @@ pub(super) fn list_note(params: &Params, snaps: &[splits::Snap], counted: &[bool
 pub async fn plays(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
     let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
-        Err(e) => return bad_query(&st, &headers, &e, "/explore"),
+        Err(e) => return refused(&st, &headers, &e, "/plays", q.as_deref()),
     };
     let snaps = play_list_for(&st, &params);
     let counted = super::super::service::counted(st.as_ref(), &params, &snaps).unwrap_or_else(|| vec![false; snaps.len()]);
@@ -130,12 +130,9 @@ pub async fn plays(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Ra
 pub async fn plays_csv(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
     let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
-        Err(e) => return bad_query(&st, &headers, &e, "/explore"),
+        Err(e) => return refused(&st, &headers, &e, "/plays", q.as_deref()),
     };
     let snaps = play_list_for(&st, &params);
-    (
-        [(header::CONTENT_TYPE, "text/csv; charset=utf-8"), (header::CONTENT_DISPOSITION, "attachment; filename=\"cutup.csv\"")],
-        crate::export::cutup_csv(&snaps),
-    )
-        .into_response()
+    let name = crate::export::file_name("cutup", &crate::export::name_parts(&params.situation, &snaps), "csv");
+    ([(header::CONTENT_TYPE, "text/csv; charset=utf-8".to_string()), (header::CONTENT_DISPOSITION, format!("attachment; filename=\"{name}\""))], crate::export::cutup_csv(&snaps)).into_response()
 }

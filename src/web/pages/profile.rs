@@ -38,7 +38,7 @@ pub(super) const PROFILE_KEYS: &[&str] = &["epa", "success", "cpoe", "rating", "
 pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
     let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
-        Err(e) => return bad_query(&st, &headers, &e, "/passer"),
+        Err(e) => return refused(&st, &headers, &e, "/passer", q.as_deref()),
     };
     let lg = st.league();
     let p = lg.plays();

@@ -5,7 +5,7 @@ use super::*;
 /// The report's data for a request: the situation, our passer (or
 /// `passer=`), the paper size, and the page's screen links.
 pub(super) fn report_data(st: &Shared, headers: &HeaderMap, q: Option<&str>) -> Result<(crate::report::ReportData, crate::report::Paper, crate::report::ReportScreen), Response> {
-    let params = Params::parse_in(q, st.league().plays()).map_err(|e| bad_query(st, headers, &e, &format!("/report?preset={}", Preset::DEFAULT.key())))?;
+    let params = Params::parse_in(q, st.league().plays()).map_err(|e| refused(st, headers, &e, "/report", q))?;
     let (_, our_passer) = ours(st, headers);
     let Some(passer) = params.situation.passer.clone().or(our_passer) else {
         return Err(error_page(st, headers, StatusCode::BAD_REQUEST, "Which passer?", "passer=: name the report's passer, or choose our passer on the home page.".into(), "/"));
@@ -66,8 +66,12 @@ pub async fn report_pdf(State(st): State<Shared>, headers: HeaderMap, RawQuery(q
         Ok(x) => x,
         Err(r) => return r,
     };
+    let mut parts = vec![data.team.clone(), data.passer.clone()];
+    parts.extend(data.query.iter().filter(|(k, _)| k == "preset").map(|(_, v)| v.clone()));
+    parts.push(data.seasons_label.clone());
+    let name = crate::export::file_name("report", &parts, "pdf");
     match tokio::task::spawn_blocking(move || crate::report::render_pdf(&data, paper)).await {
-        Ok(Ok(bytes)) => ([(header::CONTENT_TYPE, "application/pdf"), (header::CONTENT_DISPOSITION, "inline; filename=\"report.pdf\"")], bytes).into_response(),
+        Ok(Ok(bytes)) => ([(header::CONTENT_TYPE, "application/pdf".to_string()), (header::CONTENT_DISPOSITION, format!("inline; filename=\"{name}\""))], bytes).into_response(),
         Ok(Err(e)) => error_page(&st, &headers, StatusCode::INTERNAL_SERVER_ERROR, "The PDF could not be made", e.to_string(), "/"),
         Err(_) => error_page(&st, &headers, StatusCode::INTERNAL_SERVER_ERROR, "The PDF could not be made", "the worker stopped".into(), "/"),
     }
