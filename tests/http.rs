@@ -477,3 +477,33 @@ fn the_way_back_from_a_refused_view_keeps_every_filter_it_can() {
     let body = r.body.replace("&#38;", "&").replace("&amp;", "&");
     assert!(body.contains(&format!("/plays?preset=end-of-game&passer={}&metric=int\"", enc(&passer).replace("%20", "+"))), "{}", &body[..body.len().min(3000)]);
 }
+
+/// Every page link on a projector page keeps the projector view (the menu,
+/// passer names, numbers, game links, presets); only the view toggle, the
+/// downloads and the JSON twins leave it.
+#[test]
+fn projector_view_is_kept_on_every_page_link() {
+    let base = demo_server();
+    let passer = enc(&busiest_passer(base));
+    let plays = format!("/plays?preset=end-of-game&passer={passer}&metric=int&view=projector");
+    let game_link = {
+        let body = get(&format!("{base}{plays}")).body.replace("&#38;", "&").replace("&amp;", "&");
+        body.split("href=\"").filter_map(|t| t.split('"').next()).find(|h| h.starts_with("/game?")).map(str::to_string).expect("a game link")
+    };
+    for page in [format!("/explore?preset=end-of-game&view=projector"), format!("/passer?passer={passer}&view=projector"), plays.clone(), game_link] {
+        let r = get(&format!("{base}{page}"));
+        assert_eq!(r.status, 200, "{page}");
+        let body = r.body.replace("&#38;", "&").replace("&amp;", "&");
+        let mut checked = 0;
+        for href in body.split("href=\"").skip(1).filter_map(|t| t.split('"').next()) {
+            let leaves = href.starts_with("/static") || href.starts_with("/api") || href.contains(".csv") || href.contains(".pdf") || href.starts_with("data:") || href.starts_with('#');
+            let toggle = !href.contains("view=projector") && body.contains(&format!("href=\"{href}\" class=\"toggle\"")) || body.contains(&format!("class=\"toggle\" href=\"{href}\""));
+            if leaves || toggle || !href.starts_with('/') {
+                continue;
+            }
+            assert!(href.contains("view=projector"), "{page}: {href} drops the projector view");
+            checked += 1;
+        }
+        assert!(checked >= 8, "{page}: only {checked} links checked");
+    }
+}

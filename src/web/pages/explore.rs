@@ -226,7 +226,7 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                         sub,
                         signal,
                         sort: sort_value(sortv),
-                        href: format!("/plays{}", to_query_string(&number_query(&params.situation, &r.passer, m.key))),
+                        href: format!("/plays{}", viewed(number_query(&params.situation, &r.passer, m.key), params.projector)),
                         title: format!("{} {}; pct {}", c.n, m.unit.label(), fixed(c.percentile, 0)),
                     }
                 })
@@ -262,7 +262,7 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         rows,
         api_href: format!("/api/splits{}", params.with(&[("view", None)])),
         csv_href: format!("/api/splits.csv{}", params.with(&[("view", None)])),
-        plays_href: format!("/plays{}", to_query_string(&sq)),
+        plays_href: format!("/plays{}", viewed(sq.clone(), params.projector)),
         sort_note,
         chrome: ch,
     };

@@ -102,7 +102,7 @@ pub async fn game(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Raw
         .map(|&k| {
             let s = &snaps[k];
             let signed = if s.offense == side { s.wpa } else { -s.wpa };
-            SnapView { wpa: fixed(Some(signed), 3), wpa_sort: sort_value(Some(signed)), ..snap_view(s) }
+            SnapView { wpa: fixed(Some(signed), 3), wpa_sort: sort_value(Some(signed)), ..snap_view(s, params.projector) }
         })
         .collect();
     let page = GamePage {
@@ -112,7 +112,7 @@ pub async fn game(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Raw
         swings,
         passer,
         side,
-        review_href: review_href(&key),
+        review_href: format!("{}{}", review_href(&key), if params.projector { "&view=projector" } else { "" }),
         api_href: format!("/api/game{}", to_query_string(&[("game".into(), key)])),
     };
     html(&page)

@@ -183,6 +183,15 @@ pub async fn not_found(State(st): State<Shared>, headers: HeaderMap) -> Response
     error_page(&st, &headers, StatusCode::NOT_FOUND, "No such page", "Nothing lives at this address.".into(), "/")
 }
 
+/// `?query` with `view=projector` added when the page is in projector view,
+/// so links inside tables keep the view.
+pub fn viewed(mut q: Vec<(String, String)>, projector: bool) -> String {
+    if projector && !q.iter().any(|(k, _)| k == "view") {
+        q.push(("view".into(), "projector".into()));
+    }
+    to_query_string(&q)
+}
+
 fn sort_value(v: Option<f64>) -> String {
     match v {
         Some(x) if x.is_finite() => format!("{x}"),

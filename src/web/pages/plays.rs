@@ -42,14 +42,12 @@ pub(super) struct PlaysPage {
 
 pub(super) const PLAY_PAGE_LIMIT: usize = 2000;
 
-pub(super) fn snap_view(s: &splits::Snap) -> SnapView {
+/// One snap for a table; its game link keeps the projector view.
+pub(super) fn snap_view(s: &splits::Snap, projector: bool) -> SnapView {
     SnapView {
         game: s.game.clone(),
         seq: s.seq,
-        game_href: format!(
-            "/game{}",
-            to_query_string(&[("game".into(), s.game.clone()), ("passer".into(), s.passer.clone().unwrap_or_default())])
-        ),
+        game_href: format!("/game{}", viewed(vec![("game".into(), s.game.clone()), ("passer".into(), s.passer.clone().unwrap_or_default())], projector)),
         when: format!("{} wk {}", s.season, s.week),
         quarter: s.quarter.clone(),
         clock: s.clock.clone(),
@@ -118,10 +116,10 @@ pub async fn plays(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Ra
         shown: snaps.len().min(PLAY_PAGE_LIMIT),
         note: note.text,
         marking: note.marking,
-        snaps: snaps.iter().zip(&counted).take(PLAY_PAGE_LIMIT).map(|(s, c)| SnapView { counted: *c, ..snap_view(s) }).collect(),
+        snaps: snaps.iter().zip(&counted).take(PLAY_PAGE_LIMIT).map(|(s, c)| SnapView { counted: *c, ..snap_view(s, params.projector) }).collect(),
         csv_href: format!("/plays.csv{}", params.with(&[("view", None)])),
         api_href: format!("/api/plays{}", params.with(&[("view", None)])),
-        back_href: format!("/explore{}", to_query_string(&Situation { passer: None, results: None, ..params.situation.clone() }.to_query())),
+        back_href: format!("/explore{}", viewed(Situation { passer: None, results: None, ..params.situation.clone() }.to_query(), params.projector)),
     };
     html(&page)
 }

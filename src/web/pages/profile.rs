@@ -111,7 +111,7 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                 href: {
                     let mut q = line.query.clone();
                     q.push(("passer".into(), name.clone()));
-                    format!("/plays{}", to_query_string(&q))
+                    format!("/plays{}", viewed(q, params.projector))
                 },
                 dropbacks: line.row.as_ref().map(|r| r.dropbacks.to_string()).unwrap_or_else(|| "0".into()),
                 cells: ks
@@ -138,7 +138,7 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     for g in p.games.iter().rev() {
         if (g.start..g.end).any(|i| Some(p.passer[i]) == who) {
             let label = format!("{} wk {}: {} at {} ({}–{})", g.season, g.week, p.teams[g.away as usize], p.teams[g.home as usize], g.away_final, g.home_final);
-            games.push((format!("/game{}", to_query_string(&[("game".into(), g.key.clone()), ("passer".into(), name.clone())])), label));
+            games.push((format!("/game{}", viewed(vec![("game".into(), g.key.clone()), ("passer".into(), name.clone())], params.projector)), label));
             if games.len() >= 12 {
                 break;
             }
@@ -164,7 +164,7 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         decision_heads: heads(&decision_keys),
         decision_rows: build_rows(&decision_keys),
         api_href: format!("/api/profile{}", params.with(&[("passer", Some(&name)), ("view", None)])),
-        report_href: format!("/report{}", to_query_string(&Situation { passer: Some(name.clone()), seasons: params.situation.seasons.clone(), ..Preset::DEFAULT.situation(params.situation.one_score) }.to_query())),
+        report_href: format!("/report{}", viewed(Situation { passer: Some(name.clone()), seasons: params.situation.seasons.clone(), ..Preset::DEFAULT.situation(params.situation.one_score) }.to_query(), params.projector)),
         games,
         chrome: ch,
     };
