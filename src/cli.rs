@@ -349,7 +349,9 @@ fn text_table(t: &splits::SplitTable) -> String {
         lines.push(("  estimate [90%]".into(), String::new(), idx.iter().map(|&j| estimate(&r.cells[j], j)).collect()));
     }
     let widths: Vec<usize> = (0..idx.len()).map(|k| lines.iter().map(|l| l.2[k].chars().count()).max().unwrap_or(0).max(8)).collect();
-    let mut s = format!("{} — seasons {}, ranked with at least {} dropbacks\n", t.situation, season_words(&t.seasons), t.min_dropbacks);
+    // The seasons are said once: by the situation when it names them, else here.
+    let seasons = if t.situation.contains("season") { String::new() } else { format!("seasons {}, ", season_words(&t.seasons)) };
+    let mut s = format!("{} — {seasons}ranked with at least {} dropbacks\n", t.situation, t.min_dropbacks);
     for (name, team, cells) in &lines {
         let mut line = format!("{name:<22} {team:<5}");
         for (c, w) in cells.iter().zip(&widths) {
@@ -388,6 +390,11 @@ mod tests {
         let want = format!("{:.3} [{:.3}, {:.3}]", c.estimate.unwrap(), c.lo.unwrap(), c.hi.unwrap());
         assert!(below.contains(&want), "{want} in {below}");
         assert!(c.lo.unwrap() <= c.estimate.unwrap() && c.estimate.unwrap() <= c.hi.unwrap());
+        // With seasons asked for, the heading still says them once.
+        let s2025 = crate::situation::Situation { seasons: Some(vec![2025]), ..Preset::DEFAULT.situation(8) };
+        let t2 = splits::split_table(league.plays(), &league.values(), &s2025, 20);
+        let h2 = text_table(&t2).lines().next().unwrap_or_default().to_string();
+        assert_eq!(h2.matches("2025").count(), 1, "{h2}");
         assert_eq!(season_words(&[2020, 2021, 2022]), "2020-2022");
         assert_eq!(season_words(&[2020, 2022]), "2020, 2022");
     }

@@ -59,7 +59,7 @@ pub(super) struct ExplorePage {
     pub(super) by_raw: bool,
     pub(super) description: String,
     pub(super) seasons: String,
-    pub(super) league_dropbacks: u32,
+    pub(super) league_dropbacks: String,
     pub(super) qualified: usize,
     pub(super) columns: Vec<Column>,
     pub(super) league: Vec<String>,
@@ -137,6 +137,13 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     }
     let ch = chrome(&st, &headers, Some(&params), "Situation explorer".into(), "explore", "/explore");
     let table = split_for(&st, &params, ch.our_passer.as_deref());
+    html(&explore_view(ch, &params, &table))
+}
+
+/// The explorer's view of a split table: presets, the form, the column
+/// groups, the league row and a row per ranked passer (ours too), every
+/// number linked to its snaps. Pure: no request, no league.
+pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTable) -> ExplorePage {
     let sq = params.situation_query();
     let current_preset = params.situation.preset;
     let presets = Preset::ALL
@@ -242,7 +249,7 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         ),
         None => "sorted by dropbacks".into(),
     };
-    let page = ExplorePage {
+    ExplorePage {
         presets,
         groups,
         cols_value: params.cols.clone().unwrap_or_default(),
@@ -255,7 +262,7 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         by_raw: params.sort_by == SortBy::Value,
         description: table.situation.clone(),
         seasons: seasons_text(&table.seasons),
-        league_dropbacks: table.league_dropbacks,
+        league_dropbacks: crate::numfmt::thousands(table.league_dropbacks as usize),
         qualified: table.qualified().count(),
         columns,
         league,
@@ -265,8 +272,7 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         plays_href: format!("/plays{}", viewed(sq.clone(), params.projector)),
         sort_note,
         chrome: ch,
-    };
-    html(&page)
+    }
 }
 
 pub(super) fn stability_note(mi: &MetricInfo) -> String {

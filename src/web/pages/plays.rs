@@ -108,20 +108,27 @@ pub async fn plays(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Ra
     };
     let snaps = play_list_for(&st, &params);
     let counted = super::super::service::counted(st.as_ref(), &params, &snaps).unwrap_or_else(|| vec![false; snaps.len()]);
-    let note = list_note(&params, &snaps, &counted);
-    let page = PlaysPage {
-        chrome: chrome(&st, &headers, Some(&params), "Snaps behind the number".into(), "plays", "/plays"),
+    let ch = chrome(&st, &headers, Some(&params), "Snaps behind the number".into(), "plays", "/plays");
+    html(&plays_view(ch, &params, &snaps, &counted))
+}
+
+/// The play list's view: what the list is against the number it came
+/// from, the snaps (the first `PLAY_PAGE_LIMIT`) with the counted ones
+/// marked, and the links out. Pure: no request, no league.
+pub(super) fn plays_view(ch: Chrome, params: &Params, snaps: &[splits::Snap], counted: &[bool]) -> PlaysPage {
+    let note = list_note(params, snaps, counted);
+    PlaysPage {
+        chrome: ch,
         description: params.situation.describe(),
         count: snaps.len(),
         shown: snaps.len().min(PLAY_PAGE_LIMIT),
         note: note.text,
         marking: note.marking,
-        snaps: snaps.iter().zip(&counted).take(PLAY_PAGE_LIMIT).map(|(s, c)| SnapView { counted: *c, ..snap_view(s, params.projector) }).collect(),
+        snaps: snaps.iter().zip(counted).take(PLAY_PAGE_LIMIT).map(|(s, c)| SnapView { counted: *c, ..snap_view(s, params.projector) }).collect(),
         csv_href: format!("/plays.csv{}", params.with(&[("view", None)])),
         api_href: format!("/api/plays{}", params.with(&[("view", None)])),
         back_href: format!("/explore{}", viewed(Situation { passer: None, results: None, ..params.situation.clone() }.to_query(), params.projector)),
-    };
-    html(&page)
+    }
 }
 
 /// The cut-up export for the video staff.

@@ -22,6 +22,9 @@ pub(super) struct ProfilePage {
     pub(super) charts: Vec<(String, String)>,
     pub(super) trend_chart: String,
     pub(super) trend_label: String,
+    /// The trend's and the EPA histogram's titles, shown above them.
+    pub(super) trend_title: String,
+    pub(super) epa_title: String,
     pub(super) epa_chart: String,
     pub(super) table_heads: Vec<(&'static str, &'static str)>,
     pub(super) rows: Vec<ProfileRowView>,
@@ -52,6 +55,16 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         return error_page(&st, &headers, StatusCode::NOT_FOUND, "No such passer", format!("No passer named {name} in this league."), "/");
     };
     let ch = chrome(&st, &headers, Some(&params), format!("Passer profile: {name}"), "passer", "/passer");
+    let dist = splits::epa_distribution(p, &lg.values(), &Situation { passer: None, ..trend.clone() }, &name);
+    html(&profile_view(ch, &params, &name, &prof, &dist, p))
+}
+
+/// The passer page's view: a dot-and-interval chart per key metric across
+/// the presets, the season trend, the EPA distribution against the league,
+/// the decision and every-metric tables and his recent games. Pure: the
+/// split engine's profile and distribution in, no request.
+pub(super) fn profile_view(ch: Chrome, params: &Params, name: &str, prof: &splits::Profile, dist: &splits::EpaDistribution, p: &crate::plays::Plays) -> ProfilePage {
+    let name = name.to_string();
     let keys: Vec<usize> = PROFILE_KEYS.iter().filter_map(|k| metric_index(k)).collect();
     let width = if ch.projector { 560.0 } else { 420.0 };
     let charts = keys
@@ -91,7 +104,6 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     } else {
         String::new()
     };
-    let dist = splits::epa_distribution(p, &lg.values(), &Situation { passer: None, ..trend.clone() }, &name);
     let epa_chart = charts::histogram(
         &format!("EPA per dropback, {}: league (n = {}) vs {name} (n = {})", prof.trend_situation, dist.league_n, dist.passer_n),
         &dist.edges,
@@ -146,7 +158,7 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     }
     let mut all: Vec<(String, bool)> = p.passers.iter().map(|n| (n.clone(), *n == name)).collect();
     all.sort();
-    let page = ProfilePage {
+    ProfilePage {
         passer: name.clone(),
         team: prof.team.clone().unwrap_or_default(),
         passers: all,
@@ -158,6 +170,8 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         charts,
         trend_chart,
         trend_label: prof.trend_situation.clone(),
+        trend_title: format!("EPA per dropback by season, {}: {name} (solid) and the league (dashed)", prof.trend_situation),
+        epa_title: format!("EPA per dropback, {}: the league (light, n = {}) and {name} (dark, n = {})", prof.trend_situation, dist.league_n, dist.passer_n),
         epa_chart,
         table_heads: heads(&table_keys),
         rows: build_rows(&table_keys),
@@ -167,6 +181,5 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         report_href: format!("/report{}", viewed(Situation { passer: Some(name.clone()), seasons: params.situation.seasons.clone(), ..Preset::DEFAULT.situation(params.situation.one_score) }.to_query(), params.projector)),
         games,
         chrome: ch,
-    };
-    html(&page)
+    }
 }
