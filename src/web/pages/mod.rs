@@ -23,6 +23,8 @@ mod plays;
 mod game;
 mod calibration;
 mod report;
+#[cfg(test)]
+mod tests;
 
 pub use home::*;
 pub use explore::*;
