@@ -14,7 +14,7 @@ mod tests;
 pub use game::{KICK_TRY_SPOT, TWO_POINT_SPOT};
 pub use league::{PasserSkills, TeamStrength};
 pub use names::LEAGUE_NAME;
-pub use truth::{write_truth, TruthRow};
+pub use truth::{write_truth, TruthError, TruthRow};
 
 use crate::playfile::PlayRow;
 use game::{play_game, GameSetup};
