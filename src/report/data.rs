@@ -173,7 +173,10 @@ impl ReportData {
             team: row.team.clone(),
             situation: table.situation.clone(),
             definition: situation_words(&s),
-            verdict: verdict(&row.passer, &metrics),
+            verdict: {
+                let epa = metrics.iter().find(|m| m.key == "epa");
+                verdict(&row.passer, epa.map(|m| &m.cell), epa.map(|m| m.decimals).unwrap_or(3))
+            },
             query: table.query.clone(),
             seasons_label: seasons_label(&table.seasons),
             seasons: table.seasons.clone(),

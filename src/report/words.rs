@@ -4,7 +4,7 @@
 //! Reads the `Situation` value; the seasons and the passer are said
 //! elsewhere on the page, so they are left out here.
 
-use super::data::KeyMetric;
+use crate::splits::Cell;
 use crate::layout::format_clock;
 use crate::numfmt::fmt_metric;
 use crate::situation::{Range, Site, Situation, OT};
@@ -180,17 +180,17 @@ pub fn situation_words(s: &Situation) -> String {
     }
 }
 
-/// The plain verdict from EPA per dropback, in one line: the estimate's
-/// 90% range above the league, below it, or taking it in.
-pub fn verdict(passer: &str, metrics: &[KeyMetric]) -> String {
-    let Some(m) = metrics.iter().find(|m| m.key == "epa") else {
+/// The plain verdict from EPA per dropback (its cell, shown at `decimals`
+/// places), in one line: the estimate's 90% range above the league, below
+/// it, or taking it in.
+pub fn verdict(passer: &str, epa: Option<&Cell>, decimals: usize) -> String {
+    let Some(c) = epa else {
         return "Verdict: none, EPA per dropback is missing.".to_string();
     };
-    let c = &m.cell;
     let (Some(est), Some(lo), Some(hi), Some(lg)) = (c.estimate, c.lo, c.hi, c.league) else {
         return format!("Verdict: none, too few snaps for an estimate of {passer}'s EPA per dropback.");
     };
-    let f = |x: f64| fmt_metric(Some(x), m.decimals);
+    let f = |x: f64| fmt_metric(Some(x), decimals);
     let word = if lo > lg {
         "better than"
     } else if hi < lg {

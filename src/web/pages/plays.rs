@@ -87,7 +87,13 @@ pub(super) fn list_note(params: &Params, snaps: &[splits::Snap], counted: &[bool
     let exact = PlayResult::counted_by(m.key).is_some_and(|r| params.situation.results.as_deref() == Some(&[r][..]));
     let n_counted = counted.iter().filter(|c| **c).count();
     match m.stat {
-        Stat::Count if exact => ListNote { text: format!("{} snaps: exactly the ones counted in {}", snaps.len(), m.label), marking: false },
+        Stat::Count if exact => ListNote {
+            text: match snaps.len() {
+                1 => format!("1 snap: exactly the one counted in {}", m.label),
+                n => format!("{n} snaps: exactly the ones counted in {}", m.label),
+            },
+            marking: false,
+        },
         Stat::Count if PlayResult::counted_by(m.key).is_some() => ListNote {
             text: format!("{} {unit}; the {n_counted} counted in {} are marked ● (sort on Counted to list them first)", snaps.len(), m.label),
             marking: true,

@@ -99,7 +99,7 @@ fn play_list_says_what_it_shows() {
     let counted = vec![true; snaps.len()];
     let page = plays_view(chrome_for(&pr, None, None), &pr, &snaps, &counted);
     assert_eq!(page.count, table.rows[0].cells[metric_index("int").unwrap()].value.unwrap_or(0.0) as usize);
-    assert!(page.note.contains("exactly the ones counted"), "{}", page.note);
+    assert!(page.note.contains("exactly the one"), "{}", page.note);
     assert!(!page.marking);
     assert!(!page.back_href.contains("result=") && !page.back_href.contains("passer="), "{}", page.back_href);
 }
