@@ -221,12 +221,11 @@ fn run(cli: Cli) -> Result<ExitCode> {
             pb.finish_and_clear();
             match result {
                 Ok(loaded) => {
-                    print!("{}", loaded.report.summary(lenient));
-                    println!("fingerprint {}", loaded.fingerprint);
+                    out(&format!("{}fingerprint {}\n", loaded.report.summary(lenient), loaded.fingerprint));
                     Ok(ExitCode::SUCCESS)
                 }
                 Err(e) => {
-                    print!("{}", e.report.summary(false));
+                    out(&e.report.summary(false));
                     Ok(ExitCode::FAILURE)
                 }
             }
@@ -272,9 +271,9 @@ fn run(cli: Cli) -> Result<ExitCode> {
             let league = open_league(file, lenient, false)?;
             let table = splits::split_table(league.plays(), &league.values(), &situation, min);
             match format {
-                Format::Json => println!("{}", serde_json::to_string_pretty(&table)?),
-                Format::Csv => print!("{}", crate::export::split_csv(&table)),
-                Format::Table => print!("{}", text_table(&table)),
+                Format::Json => out(&format!("{}\n", serde_json::to_string_pretty(&table)?)),
+                Format::Csv => out(&crate::export::split_csv(&table)),
+                Format::Table => out(&text_table(&table)),
             }
             Ok(ExitCode::SUCCESS)
         }
@@ -318,6 +317,18 @@ fn situation_from(preset: Option<&str>, query: Option<&str>) -> Result<Situation
         (None, None) => Ok(Preset::DEFAULT.situation(8)),
     };
     parsed.map_err(|e| anyhow::anyhow!("{e}"))
+}
+
+/// Print to standard output; a reader that stops early (`| head`) ends the
+/// output quietly instead of a panic.
+fn out(text: &str) {
+    use std::io::Write;
+    let mut so = std::io::stdout().lock();
+    if let Err(e) = so.write_all(text.as_bytes()).and_then(|_| so.flush()) {
+        if e.kind() != std::io::ErrorKind::BrokenPipe {
+            eprintln!("error: writing the output: {e}");
+        }
+    }
 }
 
 /// Seasons as a coach writes them: `2020-2025`, or a list when not consecutive.

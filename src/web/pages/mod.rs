@@ -84,8 +84,7 @@ pub fn menu(active: &str, params: Option<&Params>, our_passer: Option<&str>) -> 
     let preset_q = vec![("preset".to_string(), Preset::DEFAULT.key().to_string())];
     let page_passer = params.and_then(|p| p.situation.passer.as_deref()).or(our_passer);
     let passer_q: Vec<(String, String)> = page_passer.map(|p| vec![("passer".to_string(), p.to_string())]).unwrap_or_default();
-    let report_q = report_situation_for(params, our_passer).to_query();
-    let mut report_view = report_q.clone();
+    let mut report_view = report_situation_for(params, our_passer).to_query();
     report_view.extend(view.iter().cloned());
     vec![
         ("Home", format!("/{}", with(Vec::new(), false)), active == "home"),
@@ -95,7 +94,7 @@ pub fn menu(active: &str, params: Option<&Params>, our_passer: Option<&str>) -> 
         ("Cut-ups", format!("/cutups{}", with(Vec::new(), false)), active == "cutups"),
         ("Calibration", format!("/calibration{}", with(Vec::new(), false)), active == "calibration"),
         ("Report", format!("/report{}", to_query_string(&report_view)), active == "report"),
-        ("PDF", format!("/report.pdf{}", to_query_string(&report_q)), false),
+        ("PDF", format!("/report.pdf{}", to_query_string(&report_view)), false),
     ]
 }
 
