@@ -255,12 +255,11 @@ fn run(cli: Cli) -> Result<ExitCode> {
             pb.finish_and_clear();
             match result {
                 Ok(loaded) => {
-                    print!("{}", loaded.report.summary(lenient));
-                    println!("fingerprint {}", loaded.fingerprint);
+                    out(&format!("{}fingerprint {}\n", loaded.report.summary(lenient), loaded.fingerprint));
                     Ok(ExitCode::SUCCESS)
                 }
                 Err(e) => {
-                    print!("{}", e.report.summary(false));
+                    out(&e.report.summary(false));
                     Ok(ExitCode::FAILURE)
                 }
             }
@@ -321,9 +320,9 @@ fn run(cli: Cli) -> Result<ExitCode> {
             situation.check_tags(league.plays()).map_err(|e| anyhow::anyhow!("--where: {e}"))?;
             let table = splits::split_table(league.plays(), &league.values(), &situation, min);
             match format {
-                Format::Json => println!("{}", serde_json::to_string_pretty(&table)?),
-                Format::Csv => print!("{}", crate::export::split_csv(&table)),
-                Format::Table => print!("{}", text_table(&table)),
+                Format::Json => out(&format!("{}\n", serde_json::to_string_pretty(&table)?)),
+                Format::Csv => out(&crate::export::split_csv(&table)),
+                Format::Table => out(&text_table(&table)),
             }
             Ok(ExitCode::SUCCESS)
         }
@@ -369,6 +368,18 @@ fn situation_from(preset: Option<&str>, query: Option<&str>) -> Result<Situation
     parsed.map_err(|e| anyhow::anyhow!("{e}"))
 }
 
+/// Print to standard output; a reader that stops early (`| head`) ends the
+/// output quietly instead of a panic.
+fn out(text: &str) {
+    use std::io::Write;
+    let mut so = std::io::stdout().lock();
+    if let Err(e) = so.write_all(text.as_bytes()).and_then(|_| so.flush()) {
+        if e.kind() != std::io::ErrorKind::BrokenPipe {
+            eprintln!("error: writing the output: {e}");
+        }
+    }
+}
+
 /// Seasons as a coach writes them: `2020-2025`, or a list when not consecutive.
 fn season_words(seasons: &[i32]) -> String {
     match (seasons.first(), seasons.last()) {
@@ -398,7 +409,9 @@ fn text_table(t: &splits::SplitTable) -> String {
         lines.push(("  estimate [90%]".into(), String::new(), idx.iter().map(|&j| estimate(&r.cells[j], j)).collect()));
     }
     let widths: Vec<usize> = (0..idx.len()).map(|k| lines.iter().map(|l| l.2[k].chars().count()).max().unwrap_or(0).max(8)).collect();
-    let mut s = format!("{} — seasons {}, ranked with at least {} dropbacks\n", t.situation, season_words(&t.seasons), t.min_dropbacks);
+    // The seasons are said once: by the situation when it names them, else here.
+    let seasons = if t.situation.contains("season") { String::new() } else { format!("seasons {}, ", season_words(&t.seasons)) };
+    let mut s = format!("{} — {seasons}ranked with at least {} dropbacks\n", t.situation, t.min_dropbacks);
     for (name, team, cells) in &lines {
         let mut line = format!("{name:<22} {team:<5}");
         for (c, w) in cells.iter().zip(&widths) {
@@ -437,6 +450,11 @@ mod tests {
         let want = format!("{:.3} [{:.3}, {:.3}]", c.estimate.unwrap(), c.lo.unwrap(), c.hi.unwrap());
         assert!(below.contains(&want), "{want} in {below}");
         assert!(c.lo.unwrap() <= c.estimate.unwrap() && c.estimate.unwrap() <= c.hi.unwrap());
+        // With seasons asked for, the heading still says them once.
+        let s2025 = crate::situation::Situation { seasons: Some(vec![2025]), ..Preset::DEFAULT.situation(8) };
+        let t2 = splits::split_table(league.plays(), &league.values(), &s2025, 20);
+        let h2 = text_table(&t2).lines().next().unwrap_or_default().to_string();
+        assert_eq!(h2.matches("2025").count(), 1, "{h2}");
         assert_eq!(season_words(&[2020, 2021, 2022]), "2020-2022");
         assert_eq!(season_words(&[2020, 2022]), "2020, 2022");
     }

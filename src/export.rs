@@ -64,6 +64,56 @@ pub fn cutup_csv_with_notes(snaps: &[Snap], notes: &[String]) -> String {
     cutup_rows(snaps, Some(notes))
 }
 
+/// A file name in words a video staff can sort by: `prefix`, then each
+/// non-empty part, letters and digits kept, anything else a hyphen
+/// ("cutup-DUV-Tiernan-Ivusk-end-of-game-2025.csv").
+pub fn file_name(prefix: &str, parts: &[String], ext: &str) -> String {
+    let mut words: Vec<String> = vec![prefix.to_string()];
+    for p in parts {
+        let cleaned: String = p.chars().map(|c| if c.is_ascii_alphanumeric() { c } else { '-' }).collect();
+        let joined = cleaned.split('-').filter(|w| !w.is_empty()).collect::<Vec<_>>().join("-");
+        if !joined.is_empty() {
+            words.push(joined);
+        }
+    }
+    let mut stem = words.join("-");
+    stem.truncate(120);
+    format!("{}.{ext}", stem.trim_end_matches('-'))
+}
+
+/// The parts that name a cut-up or a report: the team (the filter's, else
+/// the one offense all the snaps share), the passer, the situation (its
+/// preset's key or "custom", and the play results asked for) and the
+/// seasons (asked for, else those the snaps span).
+pub fn name_parts(s: &crate::situation::Situation, snaps: &[Snap]) -> Vec<String> {
+    let team = s.offense.clone().or_else(|| {
+        let first = snaps.first().map(|x| x.offense.clone())?;
+        snaps.iter().all(|x| x.offense == first).then_some(first)
+    });
+    // The preset's window untouched (who, when and the result aside) keeps its key.
+    let window = crate::situation::Situation { seasons: None, weeks: None, site: None, offense: None, opponent: None, passer: None, results: None, ..s.clone() };
+    let situation = match s.preset {
+        Some(p) if window == s.base() => p.key().to_string(),
+        Some(p) => format!("{}-custom", p.key()),
+        None => "custom".to_string(),
+    };
+    let results = s.results.as_ref().map(|rs| rs.iter().map(|r| r.key()).collect::<Vec<_>>().join("-")).unwrap_or_default();
+    let seasons = match &s.seasons {
+        Some(v) => span(v),
+        None => span(&snaps.iter().map(|x| x.season).collect::<Vec<_>>()),
+    };
+    vec![team.unwrap_or_default(), s.passer.clone().unwrap_or_default(), situation, results, seasons]
+}
+
+/// "2025", "2020-2025" (first to last), "" for none.
+fn span(seasons: &[i32]) -> String {
+    match (seasons.iter().min(), seasons.iter().max()) {
+        (Some(a), Some(b)) if a == b => a.to_string(),
+        (Some(a), Some(b)) => format!("{a}-{b}"),
+        _ => String::new(),
+    }
+}
+
 /// The cut-up's column names, in order (without the notes column).
 pub const CUTUP_COLUMNS: [&str; 20] = [
     "game", "season", "week", "seq", "quarter", "clock", "offense", "defense", "score", "down", "to_go", "yard_line", "drive", "play_in_drive", "kind",
@@ -112,6 +162,27 @@ fn cutup_rows(snaps: &[Snap], notes: Option<&[String]>) -> String {
         out.row(&cells);
     }
     out.finish()
+}
+
+#[cfg(test)]
+mod name_tests {
+    use super::*;
+    use crate::situation::{decode_pairs, Situation};
+
+    fn sit(q: &str) -> Situation {
+        Situation::from_query(&decode_pairs(q)).expect("query")
+    }
+
+    #[test]
+    fn file_names_say_team_passer_situation_and_seasons() {
+        let s = sit("preset=end-of-game&team=DUV&passer=Tiernan Ivusk&season=2024,2025&result=interception");
+        assert_eq!(file_name("cutup", &name_parts(&s, &[]), "csv"), "cutup-DUV-Tiernan-Ivusk-end-of-game-interception-2024-2025.csv");
+        let s = sit("preset=end-of-game&down=3");
+        assert_eq!(file_name("cutup", &name_parts(&s, &[]), "csv"), "cutup-end-of-game-custom.csv");
+        assert_eq!(file_name("cutup", &name_parts(&sit("down=3"), &[]), "csv"), "cutup-custom.csv");
+        // Odd characters never reach the file name.
+        assert_eq!(file_name("report", &["A/B \"x\"".to_string(), String::new(), "2025".into()], "pdf"), "report-A-B-x-2025.pdf");
+    }
 }
 
 /// The split table: per passer, each metric's value, estimate and interval.

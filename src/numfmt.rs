@@ -46,6 +46,20 @@ pub fn plain(v: Option<f64>, decimals: usize) -> String {
     as_computed(v, decimals, "")
 }
 
+/// A whole number with thousands separators: 1204 → "1,204" (load
+/// reports, the report's counts, the calibration page).
+pub fn thousands(n: usize) -> String {
+    let s = n.to_string();
+    let mut out = String::new();
+    for (i, ch) in s.chars().enumerate() {
+        if i > 0 && (s.len() - i) % 3 == 0 {
+            out.push(',');
+        }
+        out.push(ch);
+    }
+    out
+}
+
 /// A whole number (a count, a percentile): [`fixed`] with no decimals.
 pub fn count(v: Option<f64>) -> String {
     fixed(v, 0)
@@ -72,6 +86,14 @@ pub fn signed(v: Option<f64>, decimals: usize, unit: &str) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn thousands_are_grouped() {
+        assert_eq!(thousands(3204), "3,204");
+        assert_eq!(thousands(999), "999");
+        assert_eq!(thousands(0), "0");
+        assert_eq!(thousands(1_234_567), "1,234,567");
+    }
 
     #[test]
     fn fixed_rounds_and_never_shows_negative_zero() {

@@ -157,6 +157,12 @@ fn cutup_export_is_csv_with_safe_cells() {
     let passer = enc(&busiest_passer(base));
     let r = get(&format!("{base}/plays.csv?preset=end-of-game&passer={passer}"));
     assert!(r.header("content-type").unwrap_or("").starts_with("text/csv"));
+    // A file name the video staff can sort by: team, passer, situation, seasons.
+    let who = busiest_passer(base).replace(' ', "-");
+    let disposition = r.header("content-disposition").unwrap_or("");
+    assert!(disposition.contains(&format!("-{who}-end-of-game-")) && disposition.ends_with(".csv\""), "{disposition}");
+    let named = get(&format!("{base}/plays.csv?preset=end-of-game&passer={passer}&season=2025&result=interception"));
+    assert!(named.header("content-disposition").unwrap_or("").ends_with(&format!("-{who}-end-of-game-interception-2025.csv\"")), "{:?}", named.header("content-disposition"));
     let mut lines = r.body.lines();
     // Each thing the video operator cues by in its own column (overtime spelled in `quarter`).
     assert_eq!(lines.next(), Some("game,season,week,seq,quarter,clock,offense,defense,score,down,to_go,yard_line,drive,play_in_drive,kind,passer,result,epa,wpa,down_distance"));
@@ -451,5 +457,53 @@ fn the_menu_keeps_the_seasons_and_the_projector_view() {
     for h in &hrefs {
         let r = get(&format!("{base}{h}"));
         assert!(r.status == 200 || r.status == 400, "{h}: {}", r.status);
+    }
+}
+
+#[test]
+fn the_way_back_from_a_refused_view_keeps_every_filter_it_can() {
+    let base = demo_server();
+    // A season outside the file and a misspelt key: both dropped, the rest kept.
+    let r = get(&format!("{base}/explore?preset=two-minute-drill&season=1999&down=3&downn=4&view=projector"));
+    assert_eq!(r.status, 400);
+    let href = r.body.split("href=\"").filter_map(|t| t.split('"').next()).find(|h| h.contains("down=3")).unwrap_or("").replace("&amp;", "&").replace("&#38;", "&");
+    assert_eq!(href, "/explore?preset=two-minute-drill&down=3&view=projector", "{}", &r.body[..r.body.len().min(2000)]);
+    let back = get(&format!("{base}{href}"));
+    assert_eq!(back.status, 200);
+    // The play list comes back to itself, passer and metric kept.
+    let passer = busiest_passer(base);
+    let r = get(&format!("{base}/plays?preset=end-of-game&passer={}&metric=int&margin=lots", enc(&passer)));
+    assert_eq!(r.status, 400);
+    let body = r.body.replace("&#38;", "&").replace("&amp;", "&");
+    assert!(body.contains(&format!("/plays?preset=end-of-game&passer={}&metric=int\"", enc(&passer).replace("%20", "+"))), "{}", &body[..body.len().min(3000)]);
+}
+
+/// Every page link on a projector page keeps the projector view (the menu,
+/// passer names, numbers, game links, presets); only the view toggle, the
+/// downloads and the JSON twins leave it.
+#[test]
+fn projector_view_is_kept_on_every_page_link() {
+    let base = demo_server();
+    let passer = enc(&busiest_passer(base));
+    let plays = format!("/plays?preset=end-of-game&passer={passer}&metric=int&view=projector");
+    let game_link = {
+        let body = get(&format!("{base}{plays}")).body.replace("&#38;", "&").replace("&amp;", "&");
+        body.split("href=\"").filter_map(|t| t.split('"').next()).find(|h| h.starts_with("/game?")).map(str::to_string).expect("a game link")
+    };
+    for page in [format!("/explore?preset=end-of-game&view=projector"), format!("/passer?passer={passer}&view=projector"), plays.clone(), game_link] {
+        let r = get(&format!("{base}{page}"));
+        assert_eq!(r.status, 200, "{page}");
+        let body = r.body.replace("&#38;", "&").replace("&amp;", "&");
+        let mut checked = 0;
+        for href in body.split("href=\"").skip(1).filter_map(|t| t.split('"').next()) {
+            let leaves = href.starts_with("/static") || href.starts_with("/api") || href.contains(".csv") || href.contains(".pdf") || href.starts_with("data:") || href.starts_with('#');
+            let toggle = !href.contains("view=projector") && body.contains(&format!("href=\"{href}\" class=\"toggle\"")) || body.contains(&format!("class=\"toggle\" href=\"{href}\""));
+            if leaves || toggle || !href.starts_with('/') {
+                continue;
+            }
+            assert!(href.contains("view=projector"), "{page}: {href} drops the projector view");
+            checked += 1;
+        }
+        assert!(checked >= 8, "{page}: only {checked} links checked");
     }
 }

@@ -229,8 +229,8 @@ fn numbers_are_the_split_engines() {
     let (p, epa, wp, wpa, cp) = league(None);
     let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[], league_sticks: &[] };
     let d = build(&p, &v, PASSERS[2]);
-    // Current season by default.
-    assert_eq!(d.seasons, vec![2025]);
+    // Every season of the file by default, as on the pages.
+    assert_eq!(d.seasons, p.seasons());
     let s = report::report_situation(&p, &Preset::EndOfGame.situation(8));
     let t = splits::split_table_for(&p, &v, &s, splits::DEFAULT_MIN_DROPBACKS, Some(PASSERS[2]));
     let row = t.row(PASSERS[2]).expect("row");
@@ -294,7 +294,7 @@ fn pdf_is_one_page_with_the_numbers_in_its_text() {
         let text = tool("pdftotext", &["-layout", &path, "-"]);
         assert!(text.contains(PASSERS[3]), "{text}");
         assert!(text.contains(&d.team));
-        assert!(text.contains("End of game, one score (8 points); seasons 2025"), "{text}");
+        assert!(text.contains("End of game, one score (8 points); seasons 2024–2025"), "{text}");
         for m in &d.metrics {
             assert!(text.contains(m.label), "{}", m.label);
             for s in [&m.value, &m.estimate, &m.interval, &m.league, &m.percentile, &m.signal] {
@@ -341,7 +341,7 @@ fn html_has_the_same_numbers_and_no_inline_code() {
     assert!(html.contains("paper-letter"));
     assert!(report::html(&d, Paper::A4).contains("paper-a4"));
     assert!(html.contains(PASSERS[0]));
-    assert!(html.contains("End of game, one score (8 points); seasons 2025") || html.contains("End of game, one score (8 points); seasons 2025"), "situation missing");
+    assert!(html.contains("End of game, one score (8 points); seasons 2024–2025"), "situation missing");
     for m in &d.metrics {
         for s in [&m.value, &m.estimate, &m.league, &m.percentile] {
             assert!(html.contains(&format!(">{s}<")), "{} {s}", m.key);
@@ -367,8 +367,8 @@ fn html_has_the_same_numbers_and_no_inline_code() {
 
 mod common;
 
-/// The passer with the most end-of-game dropbacks in the demo league's
-/// current season, and his report.
+/// The passer with the most end-of-game dropbacks in the demo league
+/// (every season), and his report.
 fn demo_report(league: &lategame::league::League) -> ReportData {
     let s = report::report_situation(league.plays(), &Preset::EndOfGame.situation(8));
     let t = splits::split_table(league.plays(), &league.values(), &s, splits::DEFAULT_MIN_DROPBACKS);
@@ -380,7 +380,7 @@ fn demo_report(league: &lategame::league::League) -> ReportData {
 fn demo_report_numbers_equal_the_json_api() {
     let league = common::demo_league();
     let d = demo_report(&league);
-    assert_eq!(d.seasons, vec![*league.plays().seasons().last().unwrap()]);
+    assert_eq!(d.seasons, league.plays().seasons());
     assert_eq!(d.provenance.fingerprint, league.scored.fingerprint);
     assert_eq!(d.provenance.model_version, lategame::models::MODEL_VERSION);
     let url = format!("{}/api/splits?{}&passer={}", common::demo_server(), d.query_string(), common::enc(&d.passer));
@@ -468,15 +468,14 @@ fn the_report_defines_the_situation_gives_a_verdict_and_a_glossary() {
     let (p, epa, wp, wpa, cp) = league(None);
     let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[], league_sticks: &[] };
     let d = build(&p, &v, PASSERS[3]);
-    // Every filter of the preset, in words, and none of the preset's name.
-    assert!(d.definition.contains("quarters 4,ot") && d.definition.contains("left in regulation") && d.definition.contains("margin"), "{}", d.definition);
-    assert!(!d.definition.contains("End of game"), "{}", d.definition);
-    // The verdict follows the EPA estimate's range and the league.
+    // The preset's window in a coach's words, not the query's, and none of the preset's name.
+    assert_eq!(d.definition, "4th quarter, 7:30 or less, or overtime; within 8 points");
+    // The verdict follows the EPA estimate's range and the league, in one line.
     let m = d.metrics.iter().find(|m| m.key == "epa").expect("EPA");
     let (lo, hi, lg) = (m.cell.lo.unwrap(), m.cell.hi.unwrap(), m.cell.league.unwrap());
-    let word = if lo > lg { "better than" } else if hi < lg { "worse than" } else { "not told apart from" };
-    assert!(d.verdict.starts_with(&format!("Verdict: {} is {word} the league here", PASSERS[3])), "{}", d.verdict);
-    assert!(d.verdict.contains(&m.estimate), "{}", d.verdict);
+    let word = if lo > lg { "is better than" } else if hi < lg { "is worse than" } else { "shows no clear difference from" };
+    assert!(d.verdict.starts_with(&format!("Verdict: {} {word} the league here", PASSERS[3])), "{}", d.verdict);
+    assert!(d.verdict.contains(&m.estimate) && d.verdict.contains(&m.league), "{}", d.verdict);
     let html = report::html(&d, Paper::Letter);
     let esc = |t: &str| t.replace('&', "&amp;").replace('<', "&lt;").replace('>', "&gt;").replace('\'', "&#39;");
     assert!(html.contains(&format!("Situation: {}", esc(&d.definition))), "{}", d.definition);
@@ -486,9 +485,12 @@ fn the_report_defines_the_situation_gives_a_verdict_and_a_glossary() {
     }
     let path = write_pdf(&dir, "glossary.pdf", &report::render_pdf(&d, Paper::Letter).unwrap());
     let text = tool("pdftotext", &[&path, "-"]).split_whitespace().collect::<Vec<_>>().join(" ");
-    for term in ["EPA: expected points added", "CPOE: completion % over expected", "ANY/A: adjusted net yards", "WPA: win probability added", "Estimate: our number", "Verdict:", "Situation: quarters"] {
+    for term in ["EPA: expected points added", "CPOE: completion % over expected", "ANY/A: adjusted net yards", "WPA: win probability added", "Estimate: his number", "Verdict:", "Situation: 4th quarter, 7:30 or less, or overtime; within 8 points"] {
         assert!(text.contains(term), "{term} missing from the PDF:\n{text}");
     }
     assert!(!text.contains('…'), "something is cut off:\n{text}");
+    // The verdict is one line on the page.
+    let layout = tool("pdftotext", &["-layout", &path, "-"]);
+    assert!(layout.lines().any(|l| l.trim_start().starts_with("Verdict:") && l.trim_end().ends_with(").")), "{layout}");
     assert_on_page_without_overlaps(&path);
 }

@@ -30,9 +30,9 @@ fn shrunk_late_and_close_rates_beat_raw_rates_against_the_truth() {
     let min = 10;
     let t = splits::split_table(&p, &v, &Preset::EndOfGame.situation(8), min);
     for (key, pick) in [
-        ("comp_pct", (|r: &lategame::sim::TruthRow| r.late_close_complete) as fn(&lategame::sim::TruthRow) -> Option<f64>),
-        ("int_rate", |r| r.late_close_interception),
-        ("sack_rate", |r| r.late_close_sack),
+        ("comp_pct", (|r: &lategame::sim::TruthRow| r.end_of_game_complete) as fn(&lategame::sim::TruthRow) -> Option<f64>),
+        ("int_rate", |r| r.end_of_game_interception),
+        ("sack_rate", |r| r.end_of_game_sack),
     ] {
         let j = metric_index(key).unwrap();
         let (mut raw, mut shrunk) = (Vec::new(), Vec::new());

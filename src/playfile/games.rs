@@ -3,7 +3,8 @@
 //! running backwards, scores never going down). A row that breaks one is dropped.
 
 use super::read::RawTable;
-use super::report::{group, Issue, IssueKind, LoadReport};
+use super::report::{Issue, IssueKind, LoadReport};
+use crate::numfmt::thousands as group;
 use super::{format_clock, PlayRow, COLUMNS};
 use crate::plays::Source;
 use std::collections::HashMap;

@@ -20,7 +20,7 @@ pub use mapping::{Mapping, MappingError, OffenseForm};
 pub use mapping_draft::draft_mapping;
 pub use mapping_values::{ClockForm, YardForm};
 pub use read::{fingerprint, list_files, read_frame, read_table, Mapped, RawTable};
-pub use report::{group, Issue, IssueKind, LoadError, LoadOptions, LoadReport, KEPT_ISSUES, LISTED_ISSUES};
+pub use report::{Issue, IssueKind, LoadError, LoadOptions, LoadReport, KEPT_ISSUES, LISTED_ISSUES};
 pub use write::{rows_frame, write_frame, write_rows, FileFormat, WriteError};
 
 // The column layout lives at the bottom of the crate (`plays` reads it too);

@@ -3,7 +3,8 @@
 //! can name the row. Listing the files of a folder; the data fingerprint.
 //! Columns beyond ours are kept as the staff's tags.
 
-use super::report::{group, Issue, IssueKind};
+use super::report::{Issue, IssueKind};
+use crate::numfmt::thousands as group;
 use super::{FileFormat, COLUMNS};
 use polars::prelude::*;
 use sha2::{Digest, Sha256};

@@ -6,6 +6,7 @@ use serde::Serialize;
 use std::collections::BTreeMap;
 use std::fmt;
 use std::path::Path;
+use crate::numfmt::thousands as group;
 
 /// What sort of problem an issue is; the report counts issues per kind.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize)]
@@ -119,21 +120,28 @@ impl LoadReport {
     }
     /// The printed report: totals, the first 20 issues, counts per kind.
     pub fn summary(&self, lenient: bool) -> String {
-        let mut s = format!(
-            "{} file(s), {} rows read, {} games, {} rows kept",
-            self.files.len(),
-            group(self.rows_read),
-            group(self.games),
-            group(self.rows_kept)
-        );
+        let files = match self.files.len() {
+            1 => "1 file".to_string(),
+            n => format!("{n} files"),
+        };
+        let mut s = if self.issue_count > 0 && !(lenient && !self.fatal) {
+            // Refused: no games were built, so say what was read and what was wrong.
+            format!(
+                "{files}, {} rows read; refused: {} problem(s); {} of the rows are fine{}\n",
+                group(self.rows_read),
+                group(self.issue_count),
+                group(self.rows_kept),
+                if self.fatal { "" } else { " (--lenient skips the others)" }
+            )
+        } else {
+            format!("{files}, {} rows read, {} games, {} rows kept", group(self.rows_read), group(self.games), group(self.rows_kept))
+        };
         if self.issue_count == 0 {
             s.push_str("; no problems found\n");
             return s;
         }
         if lenient && !self.fatal {
             s.push_str(&format!("; {} rows skipped\n", group(self.rows_skipped)));
-        } else {
-            s.push_str(&format!("; refused: {} problem(s)\n", group(self.issue_count)));
         }
         for issue in self.issues.iter().take(LISTED_ISSUES) {
             s.push_str(&format!("  {issue}\n"));
@@ -162,16 +170,3 @@ impl fmt::Display for LoadError {
     }
 }
 impl std::error::Error for LoadError {}
-
-/// 1204 → "1,204".
-pub fn group(n: usize) -> String {
-    let s = n.to_string();
-    let mut out = String::new();
-    for (i, ch) in s.chars().enumerate() {
-        if i > 0 && (s.len() - i) % 3 == 0 {
-            out.push(',');
-        }
-        out.push(ch);
-    }
-    out
-}

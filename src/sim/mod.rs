@@ -16,7 +16,7 @@ pub use game::{KICK_TRY_SPOT, TWO_POINT_SPOT};
 pub use habits::ThrowShort;
 pub use league::{PasserSkills, TeamStrength};
 pub use names::LEAGUE_NAME;
-pub use truth::{write_truth, TruthRow};
+pub use truth::{write_truth, TruthError, TruthRow};
 
 use crate::playfile::PlayRow;
 use game::{play_game, GameSetup};

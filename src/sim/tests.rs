@@ -348,8 +348,8 @@ fn sim_truth_covers_the_passers() {
             assert!((0.0..=1.0).contains(&p), "{}: {p}", t.passer);
         }
         assert!(t.complete + t.interception <= 1.0);
-        assert_eq!(t.late_close_complete.is_some(), t.late_close_dropbacks > 0);
-        lc_total += t.late_close_dropbacks;
+        assert_eq!(t.end_of_game_complete.is_some(), t.end_of_game_dropbacks > 0);
+        lc_total += t.end_of_game_dropbacks;
         let n = out.rows.iter().filter(|r| r.kind.is_dropback() && r.passer.as_deref() == Some(t.passer.as_str())).count();
         assert_eq!(n as u32, t.dropbacks, "{}", t.passer);
     }
@@ -387,7 +387,7 @@ fn sim_writes_truth_csv() {
     let _ = std::fs::remove_dir_all(&dir);
     let mut lines = text.lines();
     let header = lines.next().expect("header");
-    assert!(header.starts_with("passer,last_team,seasons,late_close_dropbacks,"));
+    assert!(header.starts_with("passer,last_team,seasons,end_of_game_dropbacks,"));
     let cols = header.split(',').count();
     let body: Vec<&str> = lines.collect();
     assert_eq!(body.len(), out.truth.len());

@@ -1,15 +1,22 @@
 //! The truth file: each passer's true rates, the mean of the very probabilities
-//! the engine drew his dropbacks with. Reference situation "late and close":
-//! 4th quarter with 7:30 or less on the clock, or overtime, offense margin within ±8 at the snap.
+//! the engine drew his dropbacks with. Reference situation "end of game" (the
+//! `end-of-game` preset's window): 4th quarter with 7:30 or less on the clock,
+//! or overtime, offense margin within ±8 at the snap.
 
-use anyhow::{Context, Result};
 use serde::Serialize;
 use std::io::Write;
-use std::path::Path;
+use std::path::{Path, PathBuf};
+
+/// The truth file could not be written.
+#[derive(Debug, thiserror::Error)]
+pub enum TruthError {
+    #[error("could not write the truth file {}: {source}", path.display())]
+    Write { path: PathBuf, source: std::io::Error },
+}
 
 /// One passer's true rates. `complete` and `interception` are per pass
 /// attempt (P(complete | pass), P(interception | pass)); `sack` and
-/// `scramble` are per dropback. Late-and-close rates are `None` for a passer
+/// `scramble` are per dropback. End-of-game rates are `None` for a passer
 /// with no such dropback.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct TruthRow {
@@ -18,11 +25,11 @@ pub struct TruthRow {
     pub last_team: String,
     /// Seasons with at least one dropback.
     pub seasons: u32,
-    pub late_close_dropbacks: u32,
-    pub late_close_complete: Option<f64>,
-    pub late_close_interception: Option<f64>,
-    pub late_close_sack: Option<f64>,
-    pub late_close_scramble: Option<f64>,
+    pub end_of_game_dropbacks: u32,
+    pub end_of_game_complete: Option<f64>,
+    pub end_of_game_interception: Option<f64>,
+    pub end_of_game_sack: Option<f64>,
+    pub end_of_game_scramble: Option<f64>,
     pub dropbacks: u32,
     pub complete: f64,
     pub interception: f64,
@@ -106,11 +113,11 @@ impl TruthBook {
                     passer: name(pid),
                     last_team: team_code(t.last_team),
                     seasons: t.seasons,
-                    late_close_dropbacks: t.lc_n,
-                    late_close_complete: lc(0),
-                    late_close_interception: lc(1),
-                    late_close_sack: lc(2),
-                    late_close_scramble: lc(3),
+                    end_of_game_dropbacks: t.lc_n,
+                    end_of_game_complete: lc(0),
+                    end_of_game_interception: lc(1),
+                    end_of_game_sack: lc(2),
+                    end_of_game_scramble: lc(3),
                     dropbacks: t.n,
                     complete: t.sum[0] / n,
                     interception: t.sum[1] / n,
@@ -124,19 +131,23 @@ impl TruthBook {
 }
 
 /// Write the truth rows as CSV with a header line; empty cells for missing
-/// late-and-close rates.
-pub fn write_truth(truth: &[TruthRow], path: &Path) -> Result<()> {
+/// end-of-game rates.
+pub fn write_truth(truth: &[TruthRow], path: &Path) -> Result<(), TruthError> {
+    let failed = |at: &Path| {
+        let at = at.to_path_buf();
+        move |source| TruthError::Write { path: at, source }
+    };
     if let Some(dir) = path.parent() {
         if !dir.as_os_str().is_empty() {
-            std::fs::create_dir_all(dir).with_context(|| format!("creating {}", dir.display()))?;
+            std::fs::create_dir_all(dir).map_err(failed(dir))?;
         }
     }
-    let file = std::fs::File::create(path).with_context(|| format!("creating {}", path.display()))?;
+    let file = std::fs::File::create(path).map_err(failed(path))?;
     let mut w = std::io::BufWriter::new(file);
     let opt = |v: Option<f64>| v.map(|v| format!("{v:.6}")).unwrap_or_default();
     let mut body = String::from(
-        "passer,last_team,seasons,late_close_dropbacks,late_close_complete,late_close_interception,\
-         late_close_sack,late_close_scramble,dropbacks,complete,interception,sack,scramble,late_trailing_depth_shift\n",
+        "passer,last_team,seasons,end_of_game_dropbacks,end_of_game_complete,end_of_game_interception,\
+         end_of_game_sack,end_of_game_scramble,dropbacks,complete,interception,sack,scramble,late_trailing_depth_shift\n",
     );
     for r in truth {
         body.push_str(&format!(
@@ -144,11 +155,11 @@ pub fn write_truth(truth: &[TruthRow], path: &Path) -> Result<()> {
             r.passer,
             r.last_team,
             r.seasons,
-            r.late_close_dropbacks,
-            opt(r.late_close_complete),
-            opt(r.late_close_interception),
-            opt(r.late_close_sack),
-            opt(r.late_close_scramble),
+            r.end_of_game_dropbacks,
+            opt(r.end_of_game_complete),
+            opt(r.end_of_game_interception),
+            opt(r.end_of_game_sack),
+            opt(r.end_of_game_scramble),
             r.dropbacks,
             r.complete,
             r.interception,
@@ -157,7 +168,7 @@ pub fn write_truth(truth: &[TruthRow], path: &Path) -> Result<()> {
             r.late_trailing_depth_shift
         ));
     }
-    w.write_all(body.as_bytes()).with_context(|| format!("writing {}", path.display()))?;
-    w.flush().with_context(|| format!("writing {}", path.display()))?;
+    w.write_all(body.as_bytes()).map_err(failed(path))?;
+    w.flush().map_err(failed(path))?;
     Ok(())
 }

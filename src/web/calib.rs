@@ -4,7 +4,7 @@
 
 use crate::models::strata::{Banded, EpGroup, StratumBin, StratumScore};
 use crate::models::{Calibration, FitReport, ModelReport, Plan};
-use crate::playfile::group;
+use crate::numfmt::thousands as group;
 
 /// One stratum as the page shows it.
 pub struct StratumView {
@@ -177,7 +177,7 @@ pub fn view(c: &Calibration) -> CalibrationView {
     CalibrationView {
         headline: headline(c),
         holdout: format!("Every number below is out of sample: held out {}, {} snaps in {} games.", c.holdout, group(c.test_snaps), group(c.test_games)),
-        title: "Late and close, held out: predicted vs observed win share (five equal-count bins)".into(),
+        title: "End of game (final 7:30 or overtime, one score), held out: predicted vs observed win share (five equal-count bins)".into(),
         bins,
         strata: c.strata.iter().map(stratum_view).collect(),
         wp_rows,

@@ -97,6 +97,24 @@ try {
       await page.screenshot({ path: `${shotDir}/${name}-${size}.png`, fullPage: false });
     }
   }
+  // The report: nothing cut off or run past the sheet, in either view.
+  for (const view of ["", "&view=projector"]) {
+    await page.goto(base + "/report?preset=end-of-game&passer=" + enc + view, { waitUntil: "load" });
+    const cut = await page.evaluate(() => {
+      const sheet = document.querySelector(".sheet").getBoundingClientRect();
+      const out = [];
+      for (const el of document.querySelectorAll(".sheet p, .sheet td, .sheet th, .sheet h1, .sheet h2")) {
+        if (el.scrollWidth > el.clientWidth + 1 && getComputedStyle(el).overflow !== "visible") out.push("cut: " + el.textContent.slice(0, 40));
+        const r = el.getBoundingClientRect();
+        if (r.bottom > sheet.bottom + 1 || r.right > sheet.right + 1) out.push("past the sheet: " + el.textContent.slice(0, 40));
+      }
+      if (document.querySelector(".sheet").textContent.includes("\u2026")) out.push("an ellipsis in the text");
+      const foot = document.querySelector(".foot").getBoundingClientRect();
+      if (foot.bottom > sheet.bottom + 1) out.push("the glossary runs past the sheet");
+      return out;
+    });
+    if (cut.length) fail("report" + view + ": " + cut.slice(0, 5).join(" | "));
+  }
   // projector axis labels are at least 14 px
   await page.goto(base + "/passer?passer=" + enc + "&view=projector", { waitUntil: "load" });
   const tick = await page.evaluate(() => {

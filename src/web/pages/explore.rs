@@ -93,7 +93,7 @@ pub(super) struct ExplorePage {
     pub(super) by_raw: bool,
     pub(super) description: String,
     pub(super) seasons: String,
-    pub(super) league_dropbacks: u32,
+    pub(super) league_dropbacks: String,
     pub(super) qualified: usize,
     pub(super) columns: Vec<Column>,
     pub(super) league: Vec<String>,
@@ -161,7 +161,7 @@ pub fn number_query(situation: &Situation, passer: &str, metric: &str) -> Vec<(S
 pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
     let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
-        Err(e) => return bad_query(&st, &headers, &e, &format!("/explore?preset={}", Preset::DEFAULT.key())),
+        Err(e) => return refused(&st, &headers, &e, "/explore", q.as_deref()),
     };
     let mut params = params;
     if !asks_situation(&params.raw) {
@@ -171,6 +171,15 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     }
     let ch = chrome(&st, &headers, Some(&params), "Situation explorer".into(), "explore", "/explore");
     let table = split_for(&st, &params, ch.our_passer.as_deref());
+    let tags = tag_fields(st.league().plays(), &params.situation);
+    html(&explore_view(ch, &params, &table, tags))
+}
+
+/// The explorer's view of a split table: presets, the form, the column
+/// groups, the league row and a row per ranked passer (ours too), every
+/// number linked to its snaps, the staff's tag filters. Pure: no request,
+/// no league.
+pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTable, tags: Vec<TagField>) -> ExplorePage {
     let sq = params.situation_query();
     let current_preset = params.situation.preset;
     let presets = Preset::ALL
@@ -260,7 +269,7 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                         sub,
                         signal,
                         sort: sort_value(sortv),
-                        href: format!("/plays{}", to_query_string(&number_query(&params.situation, &r.passer, m.key))),
+                        href: format!("/plays{}", viewed(number_query(&params.situation, &r.passer, m.key), params.projector)),
                         title: format!("{} {}; pct {}", c.n, m.unit.label(), fixed(c.percentile, 0)),
                     }
                 })
@@ -276,7 +285,7 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         ),
         None => "sorted by dropbacks".into(),
     };
-    let page = ExplorePage {
+    ExplorePage {
         presets,
         groups,
         cols_value: params.cols.clone().unwrap_or_default(),
@@ -285,23 +294,22 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         os_value: params.situation.one_score.to_string(),
         site_value: own_get("site"),
         fields,
-        tag_fields: tag_fields(st.league().plays(), &params.situation),
+        tag_fields: tags,
         min: params.min_dropbacks,
         by_raw: params.sort_by == SortBy::Value,
         description: table.situation.clone(),
         seasons: seasons_text(&table.seasons),
-        league_dropbacks: table.league_dropbacks,
+        league_dropbacks: crate::numfmt::thousands(table.league_dropbacks as usize),
         qualified: table.qualified().count(),
         columns,
         league,
         rows,
         api_href: format!("/api/splits{}", params.with(&[("view", None)])),
         csv_href: format!("/api/splits.csv{}", params.with(&[("view", None)])),
-        plays_href: format!("/plays{}", to_query_string(&sq)),
+        plays_href: format!("/plays{}", viewed(sq.clone(), params.projector)),
         sort_note,
         chrome: ch,
-    };
-    html(&page)
+    }
 }
 
 pub(super) fn stability_note(mi: &MetricInfo) -> String {

@@ -31,7 +31,7 @@ fn period_labels(last_period: i32) -> Vec<(f64, String)> {
 pub async fn game(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
     let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
-        Err(e) => return bad_query(&st, &headers, &e, "/"),
+        Err(e) => return refused(&st, &headers, &e, "/game", q.as_deref()),
     };
     let lg = st.league();
     let p = lg.plays();
@@ -41,14 +41,25 @@ pub async fn game(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Raw
     let Some(gi) = p.games.iter().position(|g| g.key == key) else {
         return error_page(&st, &headers, StatusCode::NOT_FOUND, "No such game", format!("game={key}: no game with that key in this league."), "/");
     };
+    let (our_team, _) = ours(&st, &headers);
     let g = &p.games[gi];
+    let ch = chrome(&st, &headers, Some(&params), format!("Game flow: {} at {}", p.teams[g.away as usize], p.teams[g.home as usize]), "game", "/game");
+    html(&game_view(ch, &params, p, &lg.values(), gi, our_team.as_deref()))
+}
+
+/// The game page's view: the chart of win probability from one side (our
+/// team when it plays, else the home team) with the passer's biggest
+/// swings, and the swings table signed from the same side. Pure: the
+/// league's plays and values in, no request.
+pub(super) fn game_view(ch: Chrome, params: &Params, p: &crate::plays::Plays, v: &splits::SnapValues, gi: usize, our_team: Option<&str>) -> GamePage {
+    let g = &p.games[gi];
+    let key = g.key.clone();
     let home = p.teams[g.home as usize].clone();
     let away = p.teams[g.away as usize].clone();
-    let snaps = splits::game_snaps(p, &lg.values(), gi);
+    let snaps = splits::game_snaps(p, v, gi);
     let passer = params.situation.passer.clone().unwrap_or_default();
     // Win probability from one side: our team when it plays, else the home team.
-    let (our_team, _) = ours(&st, &headers);
-    let ours_plays = our_team.as_deref().and_then(|t| [&home, &away].into_iter().find(|s| s.eq_ignore_ascii_case(t)).cloned());
+    let ours_plays = our_team.and_then(|t| [&home, &away].into_iter().find(|s| s.eq_ignore_ascii_case(t)).cloned());
     let side = ours_plays.clone().unwrap_or_else(|| home.clone());
     let side_home = side == home;
     let side_word = if ours_plays.is_some() { "our team" } else { "home team" };
@@ -61,8 +72,7 @@ pub async fn game(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Raw
             (3600 + (per - 5) * 600 + (600 - p.clock[i].min(600))) as f64
         }
     };
-    let wp = &lg.scored.scores.wp;
-    let wpa = &lg.scored.scores.wpa;
+    let (wp, wpa) = (v.wp, v.wpa);
     // The offense's win probability and WPA, turned to the side's.
     let side_sign = |i: usize| if p.off_home[i] == side_home { 1.0 } else { -1.0 };
     let side_wp = |i: usize| if side_sign(i) > 0.0 { wp[i] } else { 1.0 - wp[i] };
@@ -102,18 +112,17 @@ pub async fn game(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Raw
         .map(|&k| {
             let s = &snaps[k];
             let signed = if s.offense == side { s.wpa } else { -s.wpa };
-            SnapView { wpa: fixed(Some(signed), 3), wpa_sort: sort_value(Some(signed)), ..snap_view(s) }
+            SnapView { wpa: fixed(Some(signed), 3), wpa_sort: sort_value(Some(signed)), ..snap_view(s, params.projector) }
         })
         .collect();
-    let page = GamePage {
-        chrome: chrome(&st, &headers, Some(&params), format!("Game flow: {away} at {home}"), "game", "/game"),
+    GamePage {
+        chrome: ch,
         heading: format!("{} week {}: {away} {} at {home} {}", g.season, g.week, g.away_final, g.home_final),
         chart,
         swings,
         passer,
         side,
-        review_href: review_href(&key),
+        review_href: format!("{}{}", review_href(&key), if params.projector { "&view=projector" } else { "" }),
         api_href: format!("/api/game{}", to_query_string(&[("game".into(), key)])),
-    };
-    html(&page)
+    }
 }

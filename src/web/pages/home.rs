@@ -27,11 +27,33 @@ pub(super) struct HomePage {
 pub async fn home(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
     let params = Params::parse(q.as_deref()).ok();
     let lg = st.league();
-    let p = lg.plays();
+    let facts = HomeFacts {
+        file: lg.source.display().to_string(),
+        fingerprint: lg.scored.fingerprint.clone(),
+        calibration_line: super::super::calib::summary(&lg.scored.calibration),
+        fit_lines: super::super::calib::fit_lines(&lg.scored.models.report),
+        reload_note: st.reload_note(),
+    };
+    let ch = chrome(&st, &headers, params.as_ref(), "What is loaded".into(), "home", "/");
+    html(&home_view(ch, lg.plays(), &lg.report, facts))
+}
+
+/// What the home page says about the loaded league besides its plays.
+pub(super) struct HomeFacts {
+    pub(super) file: String,
+    pub(super) fingerprint: String,
+    pub(super) calibration_line: String,
+    pub(super) fit_lines: Vec<String>,
+    pub(super) reload_note: Option<String>,
+}
+
+/// The home page's view: what is loaded, the checks, the models in brief,
+/// and the team and passer lists (by name) to choose ours from. Pure.
+pub(super) fn home_view(ch: Chrome, p: &crate::plays::Plays, report: &crate::playfile::LoadReport, facts: HomeFacts) -> HomePage {
     let seasons = p.seasons();
     let mut teams = p.teams.clone();
     teams.sort();
-    // passers with at least one dropback, most dropbacks first
+    // passers with at least one dropback, by name
     let mut counts = vec![0usize; p.passers.len()];
     for i in 0..p.len() {
         if p.dropback[i] && p.passer[i] != crate::plays::NO_PASSER {
@@ -39,12 +61,12 @@ pub async fn home(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Raw
         }
     }
     let mut passers: Vec<(usize, String)> = counts.iter().enumerate().filter(|(_, c)| **c > 0).map(|(i, c)| (*c, p.passers[i].clone())).collect();
-    passers.sort_by(|a, b| b.0.cmp(&a.0).then(a.1.cmp(&b.1)));
-    let presets = Preset::ALL.iter().map(|pr| (pr.label().to_string(), format!("/explore?preset={}", pr.key()))).collect();
-    let page = HomePage {
-        chrome: chrome(&st, &headers, params.as_ref(), "What is loaded".into(), "home", "/"),
-        file: lg.source.display().to_string(),
-        fingerprint: lg.scored.fingerprint.clone(),
+    passers.sort_by(|a, b| a.1.cmp(&b.1));
+    let presets = Preset::ALL.iter().map(|pr| (pr.label().to_string(), format!("/explore{}", viewed(vec![("preset".into(), pr.key().into())], ch.projector)))).collect();
+    HomePage {
+        chrome: ch,
+        file: facts.file,
+        fingerprint: facts.fingerprint,
         model_version: crate::models::MODEL_VERSION,
         seasons: match (seasons.first(), seasons.last()) {
             (Some(a), Some(b)) if a != b => format!("{a}–{b} ({} seasons)", seasons.len()),
@@ -55,16 +77,15 @@ pub async fn home(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Raw
         snaps: p.len(),
         teams,
         passers: passers.into_iter().map(|(_, n)| n).collect(),
-        files: lg.report.files.clone(),
-        rows_skipped: lg.report.rows_skipped,
-        issue_lines: lg.report.issues.iter().take(20).map(|i| i.to_string()).collect(),
-        issue_counts: lg.report.counts.iter().map(|(k, v)| (k.clone(), *v)).collect(),
-        calibration_line: super::super::calib::summary(&lg.scored.calibration),
-        reload_note: st.reload_note(),
+        files: report.files.clone(),
+        rows_skipped: report.rows_skipped,
+        issue_lines: report.issues.iter().take(20).map(|i| i.to_string()).collect(),
+        issue_counts: report.counts.iter().map(|(k, v)| (k.clone(), *v)).collect(),
+        calibration_line: facts.calibration_line,
+        reload_note: facts.reload_note,
         presets,
-        fit_lines: super::super::calib::fit_lines(&lg.scored.models.report),
-    };
-    html(&page)
+        fit_lines: facts.fit_lines,
+    }
 }
 
 /// Remember our team and passer in cookies, then go home.

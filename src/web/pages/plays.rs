@@ -51,14 +51,12 @@ pub(super) struct PlaysPage {
 
 pub(super) const PLAY_PAGE_LIMIT: usize = 2000;
 
-pub(super) fn snap_view(s: &splits::Snap) -> SnapView {
+/// One snap for a table; its game link keeps the projector view.
+pub(super) fn snap_view(s: &splits::Snap, projector: bool) -> SnapView {
     SnapView {
         game: s.game.clone(),
         seq: s.seq,
-        game_href: format!(
-            "/game{}",
-            to_query_string(&[("game".into(), s.game.clone()), ("passer".into(), s.passer.clone().unwrap_or_default())])
-        ),
+        game_href: format!("/game{}", viewed(vec![("game".into(), s.game.clone()), ("passer".into(), s.passer.clone().unwrap_or_default())], projector)),
         when: format!("{} wk {}", s.season, s.week),
         quarter: s.quarter.clone(),
         clock: s.clock.clone(),
@@ -103,7 +101,13 @@ pub(super) fn list_note(params: &Params, snaps: &[splits::Snap], counted: &[bool
     let exact = PlayResult::counted_by(m.key).is_some_and(|r| params.situation.results.as_deref() == Some(&[r][..]));
     let n_counted = counted.iter().filter(|c| **c).count();
     match m.stat {
-        Stat::Count if exact => ListNote { text: format!("{} snaps: exactly the ones counted in {}", snaps.len(), m.label), marking: false },
+        Stat::Count if exact => ListNote {
+            text: match snaps.len() {
+                1 => format!("1 snap: exactly the one counted in {}", m.label),
+                n => format!("{n} snaps: exactly the ones counted in {}", m.label),
+            },
+            marking: false,
+        },
         Stat::Count if PlayResult::counted_by(m.key).is_some() => ListNote {
             text: format!("{} {unit}; the {n_counted} counted in {} are marked ● (sort on Counted to list them first)", snaps.len(), m.label),
             marking: true,
@@ -120,37 +124,42 @@ pub(super) fn list_note(params: &Params, snaps: &[splits::Snap], counted: &[bool
 pub async fn plays(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
     let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
-        Err(e) => return bad_query(&st, &headers, &e, "/explore"),
+        Err(e) => return refused(&st, &headers, &e, "/plays", q.as_deref()),
     };
     let snaps = play_list_for(&st, &params);
     let counted = super::super::service::counted(st.as_ref(), &params, &snaps).unwrap_or_else(|| vec![false; snaps.len()]);
-    let note = list_note(&params, &snaps, &counted);
-    let page = PlaysPage {
-        chrome: chrome(&st, &headers, Some(&params), "Snaps behind the number".into(), "plays", "/plays"),
+    let ch = chrome(&st, &headers, Some(&params), "Snaps behind the number".into(), "plays", "/plays");
+    let tag_names = st.league().plays().tags.names.clone();
+    html(&plays_view(ch, &params, &snaps, &counted, tag_names))
+}
+
+/// The play list's view: what the list is against the number it came
+/// from, the snaps (the first `PLAY_PAGE_LIMIT`) with the counted ones
+/// marked, and the links out. Pure: no request, no league.
+pub(super) fn plays_view(ch: Chrome, params: &Params, snaps: &[splits::Snap], counted: &[bool], tag_names: Vec<String>) -> PlaysPage {
+    let note = list_note(params, snaps, counted);
+    PlaysPage {
+        chrome: ch,
         description: params.situation.describe(),
         count: snaps.len(),
         shown: snaps.len().min(PLAY_PAGE_LIMIT),
         note: note.text,
         marking: note.marking,
-        tag_names: st.league().plays().tags.names.clone(),
-        snaps: snaps.iter().zip(&counted).take(PLAY_PAGE_LIMIT).map(|(s, c)| SnapView { counted: *c, ..snap_view(s) }).collect(),
+        tag_names,
+        snaps: snaps.iter().zip(counted).take(PLAY_PAGE_LIMIT).map(|(s, c)| SnapView { counted: *c, ..snap_view(s, params.projector) }).collect(),
         csv_href: format!("/plays.csv{}", params.with(&[("view", None)])),
         api_href: format!("/api/plays{}", params.with(&[("view", None)])),
-        back_href: format!("/explore{}", to_query_string(&Situation { passer: None, results: None, ..params.situation.clone() }.to_query())),
-    };
-    html(&page)
+        back_href: format!("/explore{}", viewed(Situation { passer: None, results: None, ..params.situation.clone() }.to_query(), params.projector)),
+    }
 }
 
 /// The cut-up export for the video staff.
 pub async fn plays_csv(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
     let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
-        Err(e) => return bad_query(&st, &headers, &e, "/explore"),
+        Err(e) => return refused(&st, &headers, &e, "/plays", q.as_deref()),
     };
     let snaps = play_list_for(&st, &params);
-    (
-        [(header::CONTENT_TYPE, "text/csv; charset=utf-8"), (header::CONTENT_DISPOSITION, "attachment; filename=\"cutup.csv\"")],
-        crate::export::cutup_csv(&snaps),
-    )
-        .into_response()
+    let name = crate::export::file_name("cutup", &crate::export::name_parts(&params.situation, &snaps), "csv");
+    ([(header::CONTENT_TYPE, "text/csv; charset=utf-8".to_string()), (header::CONTENT_DISPOSITION, format!("attachment; filename=\"{name}\""))], crate::export::cutup_csv(&snaps)).into_response()
 }

@@ -36,6 +36,9 @@ pub(super) struct ProfilePage {
     pub(super) charts: Vec<(String, String)>,
     pub(super) trend_chart: String,
     pub(super) trend_label: String,
+    /// The trend's and the EPA histogram's titles, shown above them.
+    pub(super) trend_title: String,
+    pub(super) epa_title: String,
     pub(super) epa_chart: String,
     pub(super) table_heads: Vec<(&'static str, &'static str)>,
     pub(super) rows: Vec<ProfileRowView>,
@@ -121,7 +124,7 @@ pub(super) const PROFILE_KEYS: &[&str] = &["epa", "success", "cpoe", "rating", "
 pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
     let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
-        Err(e) => return bad_query(&st, &headers, &e, "/passer"),
+        Err(e) => return refused(&st, &headers, &e, "/passer", q.as_deref()),
     };
     let lg = st.league();
     let p = lg.plays();
@@ -135,6 +138,29 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         return error_page(&st, &headers, StatusCode::NOT_FOUND, "No such passer", format!("No passer named {name} in this league."), "/");
     };
     let ch = chrome(&st, &headers, Some(&params), format!("Passer profile: {name}"), "passer", "/passer");
+    let asked_tag = params.raw.iter().rev().find(|(k, v)| k == "by-tag" && !v.trim().is_empty()).map(|(_, v)| v.trim().to_string());
+    if let Some(t) = &asked_tag {
+        // An unknown tag is refused like any filter: the nearest name.
+        let probe = crate::situation::TagFilter { name: t.to_ascii_lowercase(), keep: crate::situation::TagMatch::Contains(String::new()) };
+        if let Err(mut e) = probe.check(p) {
+            e.param = "by-tag".into();
+            e.value = t.clone();
+            return bad_query(&st, &headers, &e, "/passer");
+        }
+    }
+    let tag_situation = Situation { seasons: params.situation.seasons.clone(), ..trend.clone() };
+    let width = if ch.projector { 560.0 } else { 420.0 };
+    let by_tag = tag_section(p, &lg.values(), &name, &tag_situation, asked_tag.as_deref(), params.min_dropbacks, width);
+    let dist = splits::epa_distribution(p, &lg.values(), &Situation { passer: None, ..trend.clone() }, &name);
+    html(&profile_view(ch, &params, &name, &prof, &dist, p, by_tag))
+}
+
+/// The passer page's view: a dot-and-interval chart per key metric across
+/// the presets, the season trend, the EPA distribution against the league,
+/// the decision and every-metric tables and his recent games. Pure: the
+/// split engine's profile, distribution and tag breakdown in, no request.
+pub(super) fn profile_view(ch: Chrome, params: &Params, name: &str, prof: &splits::Profile, dist: &splits::EpaDistribution, p: &crate::plays::Plays, by_tag: Option<TagSection>) -> ProfilePage {
+    let name = name.to_string();
     let keys: Vec<usize> = PROFILE_KEYS.iter().filter_map(|k| metric_index(k)).collect();
     let width = if ch.projector { 560.0 } else { 420.0 };
     let dot_chart = |j: usize| {
@@ -173,7 +199,6 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     } else {
         String::new()
     };
-    let dist = splits::epa_distribution(p, &lg.values(), &Situation { passer: None, ..trend.clone() }, &name);
     let epa_chart = charts::histogram(
         &format!("EPA per dropback, {}: league (n = {}) vs {name} (n = {})", prof.trend_situation, dist.league_n, dist.passer_n),
         &dist.edges,
@@ -199,7 +224,7 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                 href: {
                     let mut q = line.query.clone();
                     q.push(("passer".into(), name.clone()));
-                    format!("/plays{}", to_query_string(&q))
+                    format!("/plays{}", viewed(q, params.projector))
                 },
                 dropbacks: line.row.as_ref().map(|r| r.dropbacks.to_string()).unwrap_or_else(|| "0".into()),
                 cells: ks
@@ -226,27 +251,15 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     for g in p.games.iter().rev() {
         if (g.start..g.end).any(|i| Some(p.passer[i]) == who) {
             let label = format!("{} wk {}: {} at {} ({}–{})", g.season, g.week, p.teams[g.away as usize], p.teams[g.home as usize], g.away_final, g.home_final);
-            games.push((format!("/game{}", to_query_string(&[("game".into(), g.key.clone()), ("passer".into(), name.clone())])), label));
+            games.push((format!("/game{}", viewed(vec![("game".into(), g.key.clone()), ("passer".into(), name.clone())], params.projector)), label));
             if games.len() >= 12 {
                 break;
             }
         }
     }
-    let asked_tag = params.raw.iter().rev().find(|(k, v)| k == "by-tag" && !v.trim().is_empty()).map(|(_, v)| v.trim().to_string());
-    if let Some(t) = &asked_tag {
-        // An unknown tag is refused like any filter: the nearest name.
-        let probe = crate::situation::TagFilter { name: t.to_ascii_lowercase(), keep: crate::situation::TagMatch::Contains(String::new()) };
-        if let Err(mut e) = probe.check(p) {
-            e.param = "by-tag".into();
-            e.value = t.clone();
-            return bad_query(&st, &headers, &e, "/passer");
-        }
-    }
-    let tag_situation = Situation { seasons: params.situation.seasons.clone(), ..trend.clone() };
-    let by_tag = tag_section(p, &lg.values(), &name, &tag_situation, asked_tag.as_deref(), params.min_dropbacks, width);
     let mut all: Vec<(String, bool)> = p.passers.iter().map(|n| (n.clone(), *n == name)).collect();
     all.sort();
-    let page = ProfilePage {
+    ProfilePage {
         passer: name.clone(),
         team: prof.team.clone().unwrap_or_default(),
         passers: all,
@@ -258,6 +271,8 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         charts,
         trend_chart,
         trend_label: prof.trend_situation.clone(),
+        trend_title: format!("EPA per dropback by season, {}: {name} (solid) and the league (dashed)", prof.trend_situation),
+        epa_title: format!("EPA per dropback, {}: the league (light, n = {}) and {name} (dark, n = {})", prof.trend_situation, dist.league_n, dist.passer_n),
         epa_chart,
         table_heads: heads(&table_keys),
         rows: build_rows(&table_keys),
@@ -265,10 +280,9 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         decision_rows: build_rows(&decision_keys),
         throw_charts,
         api_href: format!("/api/profile{}", params.with(&[("passer", Some(&name)), ("view", None)])),
-        report_href: format!("/report{}", to_query_string(&Situation { passer: Some(name.clone()), seasons: params.situation.seasons.clone(), ..Preset::DEFAULT.situation(params.situation.one_score) }.to_query())),
+        report_href: format!("/report{}", viewed(Situation { passer: Some(name.clone()), seasons: params.situation.seasons.clone(), ..Preset::DEFAULT.situation(params.situation.one_score) }.to_query(), params.projector)),
         games,
         by_tag,
         chrome: ch,
-    };
-    html(&page)
+    }
 }

@@ -1,0 +1,157 @@
+//! The pages' view-model builders, called without HTTP on a small seeded
+//! league (`models::testkit`) with made-up per-snap values.
+
+use super::*;
+use crate::models::testkit;
+use crate::plays::Plays;
+use crate::splits::SnapValues;
+
+struct Fixture {
+    plays: Plays,
+    epa: Vec<f64>,
+    wp: Vec<f64>,
+    wpa: Vec<f64>,
+    cp: Vec<f64>,
+}
+
+impl Fixture {
+    fn new() -> Fixture {
+        let plays = testkit::league(240, 2, 11);
+        let n = plays.len();
+        // Values that vary by snap, so the tables have spread.
+        let epa: Vec<f64> = (0..n).map(|i| ((i * 37) % 23) as f64 / 10.0 - 1.1).collect();
+        let wp: Vec<f64> = (0..n).map(|i| ((i * 13) % 97) as f64 / 100.0 + 0.005).collect();
+        let wpa: Vec<f64> = (0..n).map(|i| ((i * 7) % 11) as f64 / 100.0 - 0.05).collect();
+        let cp: Vec<f64> = vec![0.62; n];
+        Fixture { plays, epa, wp, wpa, cp }
+    }
+    fn values(&self) -> SnapValues<'_> {
+        SnapValues { epa: &self.epa, wp: &self.wp, wpa: &self.wpa, cp: &self.cp, choice: &[], execution: &[], league_sticks: &[] }
+    }
+}
+
+fn chrome_for(params: &Params, our_team: Option<&str>, our_passer: Option<&str>) -> Chrome {
+    Chrome {
+        title: "test".into(),
+        projector: params.projector,
+        toggle_href: String::new(),
+        toggle_label: "Projector view",
+        our_team: our_team.map(str::to_string),
+        our_passer: our_passer.map(str::to_string),
+        menu: menu("", Some(params), our_passer),
+    }
+}
+
+fn params(q: &str) -> Params {
+    Params::parse(Some(q)).expect("query")
+}
+
+#[test]
+fn explorer_rows_link_counts_to_exactly_their_snaps_and_keep_the_view() {
+    let f = Fixture::new();
+    let pr = params("preset=every-snap&min=5&view=projector&season=2001");
+    let table = splits::split_table(&f.plays, &f.values(), &pr.situation, pr.min_dropbacks);
+    let page = explore_view(chrome_for(&pr, None, None), &pr, &table, Vec::new());
+    assert!(!page.rows.is_empty());
+    assert_eq!(page.league_dropbacks, crate::numfmt::thousands(table.league_dropbacks as usize));
+    // The projector's short set of columns; the league row has one cell per column.
+    assert_eq!(page.league.len(), page.columns.len() - 2);
+    let row = &page.rows[0];
+    assert!(row.profile_href.contains("season=2001") && row.profile_href.contains("view=projector"), "{}", row.profile_href);
+    for (c, col) in row.cells.iter().zip(&page.columns[2..]) {
+        assert!(c.href.contains("view=projector") && c.href.contains("season=2001"), "{}", c.href);
+        if col.key == "int" {
+            assert!(c.href.contains("result=interception"), "{}", c.href);
+        }
+    }
+    // The league row's count columns are per passer: none shows a league total.
+    for (v, col) in page.league.iter().zip(&page.columns[2..]) {
+        if METRICS[metric_index(col.key).unwrap()].stat == Stat::Count {
+            assert_eq!(v, "–", "{}", col.key);
+        }
+    }
+    // The menu's report opens on this situation and seasons, in the view.
+    let report = page.chrome.menu.iter().find(|m| m.0 == "Report").map(|m| m.1.clone()).unwrap_or_default();
+    assert!(report.contains("preset=every-snap") && report.contains("season=2001") && report.contains("view=projector"), "{report}");
+}
+
+#[test]
+fn explorer_marks_our_passer_and_sorts_as_asked() {
+    let f = Fixture::new();
+    let pr = params("preset=every-snap&min=5&sort=epa&dir=asc&by=raw");
+    let table = splits::split_table(&f.plays, &f.values(), &pr.situation, pr.min_dropbacks);
+    let ours = table.rows[0].passer.clone();
+    let page = explore_view(chrome_for(&pr, None, Some(&ours)), &pr, &table, Vec::new());
+    assert!(page.rows.iter().any(|r| r.ours && r.passer == ours));
+    assert_eq!(page.sort_note, "sorted by EPA per dropback (raw value, low to high)");
+    let epa = page.columns.iter().find(|c| c.key == "epa").expect("EPA column");
+    assert_eq!(epa.aria_sort, "ascending");
+}
+
+#[test]
+fn play_list_says_what_it_shows() {
+    let f = Fixture::new();
+    let table = splits::split_table(&f.plays, &f.values(), &params("preset=every-snap").situation, 5);
+    let who = table.rows[0].passer.clone();
+    let q = to_query_string(&number_query(&params("preset=every-snap").situation, &who, "int"));
+    let pr = params(q.trim_start_matches('?'));
+    let snaps = splits::play_list(&f.plays, &f.values(), &pr.situation, pr.situation.passer.as_deref(), None);
+    let counted = vec![true; snaps.len()];
+    let page = plays_view(chrome_for(&pr, None, None), &pr, &snaps, &counted, Vec::new());
+    assert_eq!(page.count, table.rows[0].cells[metric_index("int").unwrap()].value.unwrap_or(0.0) as usize);
+    assert!(page.note.contains("exactly the one"), "{}", page.note);
+    assert!(!page.marking);
+    assert!(!page.back_href.contains("result=") && !page.back_href.contains("passer="), "{}", page.back_href);
+}
+
+#[test]
+fn game_chart_is_drawn_from_our_side() {
+    let f = Fixture::new();
+    let g = &f.plays.games[0];
+    let away = f.plays.teams[g.away as usize].clone();
+    let pr = params(&format!("game={}", g.key));
+    let page = game_view(chrome_for(&pr, Some(&away), None), &pr, &f.plays, &f.values(), 0, Some(&away.to_lowercase()));
+    assert_eq!(page.side, away);
+    assert!(page.chart.contains(&format!("{away} win probability through the game (our team)")), "{}", &page.chart[..300.min(page.chart.len())]);
+    // The swings are signed from our side: each is the offense's WPA, turned when we defend.
+    let v = f.values();
+    for s in &page.swings {
+        let i = (g.start..g.end).find(|&i| f.plays.seq[i] == s.seq).expect("the snap");
+        let ours = f.plays.teams[f.plays.offense[i] as usize] == away;
+        assert_eq!(s.wpa, crate::numfmt::fixed(Some(if ours { v.wpa[i] } else { -v.wpa[i] }), 3));
+    }
+    let neutral = game_view(chrome_for(&pr, None, None), &pr, &f.plays, &f.values(), 0, None);
+    assert_eq!(neutral.side, f.plays.teams[g.home as usize]);
+}
+
+#[test]
+fn home_lists_teams_and_passers_by_name() {
+    let f = Fixture::new();
+    let pr = params("");
+    let report = crate::playfile::LoadReport::default();
+    let facts = HomeFacts { file: "f.csv".into(), fingerprint: "abc".into(), calibration_line: String::new(), fit_lines: Vec::new(), reload_note: None };
+    let page = home_view(chrome_for(&pr, None, None), &f.plays, &report, facts);
+    let mut sorted = page.passers.clone();
+    sorted.sort();
+    assert_eq!(page.passers, sorted);
+    assert!(!page.passers.is_empty());
+    assert_eq!(page.snaps, f.plays.len());
+}
+
+#[test]
+fn profile_charts_have_titles_and_rows_link_with_the_view() {
+    let f = Fixture::new();
+    let table = splits::split_table(&f.plays, &f.values(), &params("preset=every-snap").situation, 5);
+    let who = table.rows[0].passer.clone();
+    let pr = params(&format!("passer={who}&view=projector"));
+    let trend = crate::web::service::trend_situation(&pr);
+    let base = Situation { passer: None, ..pr.situation.clone() };
+    let prof = splits::profile(&f.plays, &f.values(), &who, &base, &trend, 5).expect("a profile");
+    let dist = splits::epa_distribution(&f.plays, &f.values(), &Situation { passer: None, ..trend.clone() }, &who);
+    let page = profile_view(chrome_for(&pr, None, None), &pr, &who, &prof, &dist, &f.plays, None);
+    assert!(page.trend_title.starts_with("EPA per dropback by season") && page.epa_title.contains(&format!("n = {}", dist.passer_n)));
+    assert_eq!(page.charts.len(), PROFILE_KEYS.len());
+    assert!(page.rows.iter().all(|r| r.href.contains("view=projector") && r.href.contains("passer=")));
+    assert!(page.report_href.contains("view=projector"));
+    assert_eq!(page.seasons_note, "All seasons (2000–2001)");
+}
