@@ -46,6 +46,11 @@ pub async fn summary(State(st): State<Shared>) -> Response {
 }
 
 pub async fn splits(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
+    let st2 = st.clone();
+    super::service::engine(&st, move || splits_now(st2, q)).await
+}
+
+fn splits_now(st: Shared, q: Option<String>) -> Response {
     match parse(&st, &q) {
         Ok(params) => Json(split_for(&st, &params, None)).into_response(),
         Err(r) => r,
@@ -53,6 +58,11 @@ pub async fn splits(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response
 }
 
 pub async fn splits_csv(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
+    let st2 = st.clone();
+    super::service::engine(&st, move || splits_csv_now(st2, q)).await
+}
+
+fn splits_csv_now(st: Shared, q: Option<String>) -> Response {
     match parse(&st, &q) {
         Ok(params) => (
             [(header::CONTENT_TYPE, "text/csv; charset=utf-8"), (header::CONTENT_DISPOSITION, "attachment; filename=\"splits.csv\"")],
@@ -64,6 +74,11 @@ pub async fn splits_csv(State(st): State<Shared>, RawQuery(q): RawQuery) -> Resp
 }
 
 pub async fn profile(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
+    let st2 = st.clone();
+    super::service::engine(&st, move || profile_now(st2, q)).await
+}
+
+fn profile_now(st: Shared, q: Option<String>) -> Response {
     let params = match parse(&st, &q) {
         Ok(p) => p,
         Err(r) => return r,
@@ -71,16 +86,22 @@ pub async fn profile(State(st): State<Shared>, RawQuery(q): RawQuery) -> Respons
     let Some(passer) = params.situation.passer.clone() else {
         return bad_request(&crate::situation::SituationError { param: "passer".into(), value: String::new(), reason: "a passer name is required".into() });
     };
-    let lg = st.league();
+    let loaded = st.loaded();
+    let lg = &loaded.league;
     let trend = super::service::trend_situation(&params);
     let base = crate::situation::Situation { passer: None, ..params.situation.clone() };
-    match splits::profile(lg.plays(), &lg.values(), &passer, &base, &trend, params.min_dropbacks) {
+    match splits::profile_in(&loaded.index, lg.plays(), &lg.values(), &passer, &base, &trend, params.min_dropbacks) {
         Some(p) => Json(p).into_response(),
         None => not_found(&format!("no passer named {passer} in this league")),
     }
 }
 
 pub async fn plays(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
+    let st2 = st.clone();
+    super::service::engine(&st, move || plays_now(st2, q)).await
+}
+
+fn plays_now(st: Shared, q: Option<String>) -> Response {
     let params = match parse(&st, &q) {
         Ok(p) => p,
         Err(r) => return r,

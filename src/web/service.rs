@@ -7,7 +7,8 @@ use super::query::{self, to_query_string, Params};
 use super::Shared;
 use crate::situation::{Preset, Situation};
 use crate::splits::{self, metric_index, METRICS};
-use axum::http::HeaderMap;
+use axum::http::{HeaderMap, StatusCode};
+use axum::response::{IntoResponse, Response};
 
 pub const TEAM_COOKIE: &str = "lg_team";
 pub const PASSER_COOKIE: &str = "lg_passer";
@@ -19,6 +20,28 @@ pub fn ours(st: &Shared, headers: &HeaderMap) -> (Option<String>, Option<String>
     (team, passer)
 }
 
+
+/// Run a handler's engine work on tokio's blocking pool, at most
+/// `HEAVY_AT_ONCE` at a time: the async worker threads stay free for
+/// cheap requests while a big export or a new view is computed.
+pub async fn engine(st: &Shared, work: impl FnOnce() -> Response + Send + 'static) -> Response {
+    let Ok(permit) = st.heavy.clone().acquire_owned().await else {
+        return (StatusCode::SERVICE_UNAVAILABLE, "503: the server is shutting down").into_response();
+    };
+    match tokio::task::spawn_blocking(move || {
+        let answer = work();
+        drop(permit);
+        answer
+    })
+    .await
+    {
+        Ok(answer) => answer,
+        Err(e) => {
+            tracing::error!("engine work failed: {e}");
+            (StatusCode::INTERNAL_SERVER_ERROR, "500: the engine failed on this request").into_response()
+        }
+    }
+}
 
 /// The split table; `sort`/`dir`/`by` order the rows as on the page.
 pub fn split_for(st: &Shared, params: &Params, focus: Option<&str>) -> splits::SplitTable {

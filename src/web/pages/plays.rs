@@ -104,6 +104,11 @@ pub(super) fn list_note(params: &Params, snaps: &[splits::Snap], counted: &[bool
 }
 
 pub async fn plays(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let st2 = st.clone();
+    super::super::service::engine(&st, move || plays_now(st2, headers, q)).await
+}
+
+fn plays_now(st: Shared, headers: HeaderMap, q: Option<String>) -> Response {
     let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
         Err(e) => return bad_query(&st, &headers, &e, "/explore"),
@@ -128,6 +133,11 @@ pub async fn plays(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): Ra
 
 /// The cut-up export for the video staff.
 pub async fn plays_csv(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let st2 = st.clone();
+    super::super::service::engine(&st, move || plays_csv_now(st2, headers, q)).await
+}
+
+fn plays_csv_now(st: Shared, headers: HeaderMap, q: Option<String>) -> Response {
     let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
         Err(e) => return bad_query(&st, &headers, &e, "/explore"),

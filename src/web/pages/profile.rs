@@ -36,11 +36,17 @@ pub(super) struct ProfilePage {
 pub(super) const PROFILE_KEYS: &[&str] = &["epa", "success", "cpoe", "rating", "anya", "sack_rate", "int_rate", "wpa"];
 
 pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let st2 = st.clone();
+    super::super::service::engine(&st, move || profile_now(st2, headers, q)).await
+}
+
+fn profile_now(st: Shared, headers: HeaderMap, q: Option<String>) -> Response {
     let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
         Err(e) => return bad_query(&st, &headers, &e, "/passer"),
     };
-    let lg = st.league();
+    let loaded = st.loaded();
+    let (lg, ix) = (&loaded.league, &loaded.index);
     let p = lg.plays();
     let (_, our_passer) = ours(&st, &headers);
     let Some(name) = params.situation.passer.clone().or(our_passer) else {
@@ -48,7 +54,7 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     };
     let trend = trend_situation(&params);
     let base = Situation { passer: None, ..params.situation.clone() };
-    let Some(prof) = splits::profile(p, &lg.values(), &name, &base, &trend, params.min_dropbacks) else {
+    let Some(prof) = splits::profile_in(ix, p, &lg.values(), &name, &base, &trend, params.min_dropbacks) else {
         return error_page(&st, &headers, StatusCode::NOT_FOUND, "No such passer", format!("No passer named {name} in this league."), "/");
     };
     let ch = chrome(&st, &headers, Some(&params), format!("Passer profile: {name}"), "passer", "/passer");
@@ -91,7 +97,7 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     } else {
         String::new()
     };
-    let dist = splits::epa_distribution(p, &lg.values(), &Situation { passer: None, ..trend.clone() }, &name);
+    let dist = splits::epa_distribution_in(ix, p, &lg.values(), &Situation { passer: None, ..trend.clone() }, &name);
     let epa_chart = charts::histogram(
         &format!("EPA per dropback, {}: league (n = {}) vs {name} (n = {})", prof.trend_situation, dist.league_n, dist.passer_n),
         &dist.edges,

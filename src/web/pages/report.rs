@@ -23,6 +23,11 @@ pub(super) fn report_data(st: &Shared, headers: &HeaderMap, q: Option<&str>) -> 
 }
 
 pub async fn report_html(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let st2 = st.clone();
+    super::super::service::engine(&st, move || report_html_now(st2, headers, q)).await
+}
+
+fn report_html_now(st: Shared, headers: HeaderMap, q: Option<String>) -> Response {
     match report_data(&st, &headers, q.as_deref()) {
         Ok((data, paper)) => Html(crate::report::html(&data, paper)).into_response(),
         Err(r) => r,
@@ -30,13 +35,17 @@ pub async fn report_html(State(st): State<Shared>, headers: HeaderMap, RawQuery(
 }
 
 pub async fn report_pdf(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let st2 = st.clone();
+    super::super::service::engine(&st, move || report_pdf_now(st2, headers, q)).await
+}
+
+fn report_pdf_now(st: Shared, headers: HeaderMap, q: Option<String>) -> Response {
     let (data, paper) = match report_data(&st, &headers, q.as_deref()) {
         Ok(x) => x,
         Err(r) => return r,
     };
-    match tokio::task::spawn_blocking(move || crate::report::render_pdf(&data, paper)).await {
-        Ok(Ok(bytes)) => ([(header::CONTENT_TYPE, "application/pdf"), (header::CONTENT_DISPOSITION, "inline; filename=\"report.pdf\"")], bytes).into_response(),
-        Ok(Err(e)) => error_page(&st, &headers, StatusCode::INTERNAL_SERVER_ERROR, "The PDF could not be made", e.to_string(), "/"),
-        Err(_) => error_page(&st, &headers, StatusCode::INTERNAL_SERVER_ERROR, "The PDF could not be made", "the worker stopped".into(), "/"),
+    match crate::report::render_pdf(&data, paper) {
+        Ok(bytes) => ([(header::CONTENT_TYPE, "application/pdf"), (header::CONTENT_DISPOSITION, "inline; filename=\"report.pdf\"")], bytes).into_response(),
+        Err(e) => error_page(&st, &headers, StatusCode::INTERNAL_SERVER_ERROR, "The PDF could not be made", e.to_string(), "/"),
     }
 }
