@@ -55,13 +55,24 @@ pub fn safe_cell(s: &str) -> String {
 /// The cut-up: one row per snap for the video staff, each thing the video
 /// operator cues by in its own column.
 pub fn cutup_csv(snaps: &[Snap]) -> String {
-    cutup_rows(snaps, None)
+    cutup_rows(snaps, None, true)
+}
+
+/// The cut-up in pieces, for streaming a long list: the header line, then
+/// `cutup_piece` for each run of snaps, concatenated, equal `cutup_csv`.
+pub fn cutup_head() -> String {
+    cutup_rows(&[], None, true)
+}
+
+/// Rows of the cut-up without the header line.
+pub fn cutup_piece(snaps: &[Snap]) -> String {
+    cutup_rows(snaps, None, false)
 }
 
 /// A saved cut-up list: the cut-up with the staff's notes on each snap
 /// (`notes[k]` belongs to `snaps[k]`).
 pub fn cutup_csv_with_notes(snaps: &[Snap], notes: &[String]) -> String {
-    cutup_rows(snaps, Some(notes))
+    cutup_rows(snaps, Some(notes), true)
 }
 
 /// The cut-up's column names, in order (without the notes column).
@@ -70,13 +81,15 @@ pub const CUTUP_COLUMNS: [&str; 20] = [
     "passer", "result", "epa", "wpa", "down_distance",
 ];
 
-fn cutup_rows(snaps: &[Snap], notes: Option<&[String]>) -> String {
+fn cutup_rows(snaps: &[Snap], notes: Option<&[String]>, with_head: bool) -> String {
     let mut out = CsvText::new();
     let mut head: Vec<&str> = CUTUP_COLUMNS.to_vec();
     if notes.is_some() {
         head.push("notes");
     }
-    out.row(&head);
+    if with_head {
+        out.row(&head);
+    }
     let opt = |v: Option<i32>| v.map(|x| x.to_string()).unwrap_or_default();
     for (k, s) in snaps.iter().enumerate() {
         let mut cells = vec![

@@ -190,8 +190,17 @@ impl SplitIndex {
         assert!(nm <= 64, "the per-snap metric mask holds 64 metrics");
         let unit_of: Vec<usize> = METRICS.iter().map(|m| m.unit as usize).collect();
         let group = |i: usize| p.period[i].min(OT);
-        let mut snaps: Vec<u32> = (0..p.len()).filter(|&i| p.dropback[i] && p.passer[i] != NO_PASSER).map(|i| i as u32).collect();
-        snaps.par_sort_unstable_by_key(|&i| (group(i as usize), p.secs_half[i as usize], i));
+        // Sort keys packed in one word (period group, seconds left in the
+        // half, snap), computed in one pass in snap order.
+        let key = |i: usize| {
+            let g = (group(i).clamp(-1, 14) + 1) as u64;
+            let secs = (p.secs_half[i].clamp(-32_768, 32_767) + 32_768) as u64;
+            g << 48 | secs << 32 | i as u64
+        };
+        let mut keys: Vec<u64> = (0..p.len()).filter(|&i| p.dropback[i] && p.passer[i] != NO_PASSER).map(key).collect();
+        keys.par_sort_unstable();
+        let snaps: Vec<u32> = keys.iter().map(|&k| k as u32).collect();
+        drop(keys);
 
         // Pass 1: which metrics are constant, 0/1, whole numbers, or equal.
         let seen = snaps

@@ -2,9 +2,13 @@
 //! Bad input is a 400 with `{"error", "param", "value", "reason"}`.
 
 use super::query::Params;
-pub use super::service::{counted, split_for};
+pub use super::service::split_for;
+
+/// Snaps per `/api/plays` page unless `limit=` says otherwise (the `next`
+/// link carries the cursor to the following page).
+pub const PLAYS_PAGE: usize = 1000;
 use super::Shared;
-use crate::splits::{self, metric_index, METRICS};
+use crate::splits;
 use axum::extract::{RawQuery, State};
 use axum::http::{header, StatusCode};
 use axum::response::{IntoResponse, Response};
@@ -102,16 +106,27 @@ pub async fn plays(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response 
 }
 
 fn plays_now(st: Shared, q: Option<String>) -> Response {
-    let params = match parse(&st, &q) {
+    let (rest, cursor) = match super::service::take_cursor(q.as_deref(), PLAYS_PAGE) {
+        Ok(x) => x,
+        Err(e) => return bad_request(&e),
+    };
+    let params = match parse(&st, &rest) {
         Ok(p) => p,
         Err(r) => return r,
     };
-    let lg = st.league();
-    let metric = params.metric.as_deref().and_then(metric_index).map(|j| &METRICS[j]);
-    let snaps = splits::play_list(lg.plays(), &lg.values(), &params.situation, params.situation.passer.as_deref(), metric);
-    let counted = counted(st.as_ref(), &params, &snaps);
-    let n_counted = counted.as_ref().map(|c| c.iter().filter(|c| **c).count());
-    Json(json!({ "situation": params.situation.describe(), "count": snaps.len(), "counted": n_counted, "counted_snaps": counted, "snaps": snaps })).into_response()
+    let page = super::service::play_page(&st, &params, cursor);
+    let next = page.next_after.map(|a| format!("/api/plays{}", params.with(&[("after", Some(&a.to_string())), ("limit", Some(&cursor.limit.to_string()))])));
+    Json(json!({
+        "situation": params.situation.describe(),
+        "count": page.total,
+        "counted": page.counted_total,
+        "offset": page.offset,
+        "limit": cursor.limit,
+        "next": next,
+        "counted_snaps": page.counted,
+        "snaps": page.snaps,
+    }))
+    .into_response()
 }
 
 pub async fn game(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
