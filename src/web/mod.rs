@@ -85,6 +85,8 @@ pub enum ServeError {
 pub struct Loaded {
     pub league: Arc<League>,
     pub index: Arc<crate::splits::SplitIndex>,
+    /// The league's distributions the game review ranks snaps in.
+    pub review: crate::splits::review::LeagueStates,
 }
 
 impl Loaded {
@@ -92,7 +94,7 @@ impl Loaded {
         let t = std::time::Instant::now();
         let index = crate::splits::SplitIndex::build(league.plays(), &league.values());
         tracing::info!(rows = index.len(), "split index built in {:.0} ms", t.elapsed().as_secs_f64() * 1000.0);
-        Loaded { league: Arc::new(league), index: Arc::new(index) }
+        Loaded { league: Arc::new(league), index: Arc::new(index), review: crate::splits::review::LeagueStates::new() }
     }
 }
 
