@@ -18,5 +18,5 @@ mod table;
 pub use metrics::{metric_group, metric_index, MetricDef, SnapValues, Stat, Unit, METRICS, METRIC_GROUPS};
 pub use snaps::{coach_spot, down_distance, game_snaps, play_indices, play_list, quarter, result_text, snap_at, Snap};
 pub use index::SplitIndex;
-pub use profile::{epa_distribution, epa_distribution_in, profile, profile_in, EpaDistribution, Profile, ProfileLine, SeasonLine};
+pub use profile::{epa_distribution, epa_distribution_in, profile, profile_in, profile_with, EpaDistribution, Profile, ProfileLine, SeasonLine};
 pub use table::{split_table, split_table_for, split_table_in, Cell, MetricInfo, PasserRow, SortBy, SplitTable, DEFAULT_MIN_DROPBACKS};

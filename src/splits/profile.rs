@@ -4,7 +4,8 @@
 use super::metrics::{metric_index, SnapValues, METRICS};
 use super::index::SplitIndex;
 use super::scan::{accumulate, matching_snaps, raw_value};
-use super::table::{split_table_in, MetricInfo, PasserRow};
+use super::table::{split_table_in, MetricInfo, PasserRow, SplitTable};
+use std::sync::Arc;
 use crate::plays::Plays;
 use crate::situation::{Preset, Situation};
 use serde::Serialize;
@@ -50,6 +51,21 @@ pub fn profile(p: &Plays, v: &SnapValues, passer: &str, base: &Situation, trend:
 
 /// `profile` on a league already indexed (`ix` built from `p`, `v`).
 pub fn profile_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, passer: &str, base: &Situation, trend: &Situation, min_dropbacks: u32) -> Option<Profile> {
+    let table = |s: &Situation| Arc::new(split_table_in(ix, p, v, s, min_dropbacks, Some(passer)));
+    profile_with(ix, p, v, passer, base, trend, &table)
+}
+
+/// `profile_in` with each preset's table (focused on `passer`) from
+/// `table`, e.g. a cache of tables already computed.
+pub fn profile_with(
+    ix: &SplitIndex,
+    p: &Plays,
+    v: &SnapValues,
+    passer: &str,
+    base: &Situation,
+    trend: &Situation,
+    table: &dyn Fn(&Situation) -> Arc<SplitTable>,
+) -> Option<Profile> {
     let who = p.passer_index(passer)?;
     let mut metrics = Vec::new();
     let mut presets = Vec::new();
@@ -57,7 +73,7 @@ pub fn profile_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, passer: &str, base
     for preset in Preset::ALL {
         let mut s = preset.situation(base.one_score);
         s.seasons = base.seasons.clone();
-        let t = split_table_in(ix, p, v, &s, min_dropbacks, Some(passer));
+        let t = table(&s);
         let row = t.row(passer).cloned();
         if team.is_none() {
             team = row.as_ref().map(|r| r.team.clone());

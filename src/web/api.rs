@@ -56,7 +56,7 @@ pub async fn splits(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response
 
 fn splits_now(st: Shared, q: Option<String>) -> Response {
     match parse(&st, &q) {
-        Ok(params) => Json(split_for(&st, &params, None)).into_response(),
+        Ok(params) => Json(&*split_for(&st, &params, None)).into_response(),
         Err(r) => r,
     }
 }
@@ -94,7 +94,8 @@ fn profile_now(st: Shared, q: Option<String>) -> Response {
     let lg = &loaded.league;
     let trend = super::service::trend_situation(&params);
     let base = crate::situation::Situation { passer: None, ..params.situation.clone() };
-    match splits::profile_in(&loaded.index, lg.plays(), &lg.values(), &passer, &base, &trend, params.min_dropbacks) {
+    let table = |s: &crate::situation::Situation| st.split_table(s, params.min_dropbacks, Some(&passer));
+    match splits::profile_with(&loaded.index, lg.plays(), &lg.values(), &passer, &base, &trend, &table) {
         Some(p) => Json(p).into_response(),
         None => not_found(&format!("no passer named {passer} in this league")),
     }

@@ -202,6 +202,14 @@ impl AppState {
     /// The split table for a situation, minimum and focus passer, computed
     /// once per loaded league. The key is the situation's canonical query.
     pub fn split_table(&self, situation: &crate::situation::Situation, min: u32, focus: Option<&str>) -> Arc<crate::splits::SplitTable> {
+        if let Some(f) = focus {
+            // A focus passer who is qualified (or absent) changes nothing:
+            // share the table without one.
+            let plain = self.split_table(situation, min, None);
+            if plain.rows.iter().find(|r| r.passer == f).is_none_or(|r| r.qualified) {
+                return plain;
+            }
+        }
         let loaded = self.loaded();
         let league = &loaded.league;
         let key = format!("{:?}|{min}|{focus:?}|{:p}", situation.to_query(), Arc::as_ptr(league));

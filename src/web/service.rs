@@ -45,12 +45,17 @@ pub async fn engine(st: &Shared, work: impl FnOnce() -> Response + Send + 'stati
 }
 
 /// The split table; `sort`/`dir`/`by` order the rows as on the page.
-pub fn split_for(st: &Shared, params: &Params, focus: Option<&str>) -> splits::SplitTable {
-    let mut t = (*st.split_table(&params.situation, params.min_dropbacks, focus)).clone();
-    if let Some(key) = &params.sort {
-        t.sort(key, params.sort_by, params.descending);
+/// The cached table itself unless a sort asks for a copy.
+pub fn split_for(st: &Shared, params: &Params, focus: Option<&str>) -> Arc<splits::SplitTable> {
+    let t = st.split_table(&params.situation, params.min_dropbacks, focus);
+    match &params.sort {
+        Some(key) => {
+            let mut t = (*t).clone();
+            t.sort(key, params.sort_by, params.descending);
+            Arc::new(t)
+        }
+        None => t,
     }
-    t
 }
 
 /// The situation of the season trend (default late & close).
