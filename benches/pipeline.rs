@@ -189,13 +189,15 @@ fn main() -> anyhow::Result<()> {
     let (e50, e99) = time_n(30, || render("/explore?preset=end-of-game".to_string()));
     println!("explorer page, cached view                        p50 {e50:>7.2} ms   p99 {e99:>7.2} ms");
 
-    let league = state.league();
+    let loaded = state.loaded();
+    let league = loaded.league.clone();
     // The report covers the latest season: take its busiest end-of-game passer.
     let last = league.plays().seasons().last().copied();
     let latest = lategame::situation::Situation { seasons: last.map(|x| vec![x]), ..s.clone() };
-    let passer = splits::split_table(league.plays(), &league.values(), &latest, 20).rows.first().map(|r| r.passer.clone()).unwrap_or_default();
+    let passer = splits::split_table_in(&loaded.index, league.plays(), &league.values(), &latest, 20, None).rows.first().map(|r| r.passer.clone()).unwrap_or_default();
     let (r50, r99) = time_n(10, || {
-        let pdf = lategame::report::pdf(&league, &s, &passer, lategame::report::Paper::Letter).unwrap();
+        let data = lategame::report::ReportData::build_in(&league, &loaded.index, &s, &passer, splits::DEFAULT_MIN_DROPBACKS).unwrap();
+        let pdf = lategame::report::render_pdf(&data, lategame::report::Paper::Letter).unwrap();
         std::hint::black_box(pdf);
     });
     println!("PDF report                 p50 {r50:>7.2} ms   p99 {r99:>7.2} ms");

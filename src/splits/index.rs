@@ -94,11 +94,29 @@ pub struct SplitIndex {
     pub(super) ints: Vec<i32>,
     pub(super) reals: Vec<f64>,
     /// Pass results per situation without its season and passer filters.
-    pub(super) memo: Mutex<HashMap<String, Arc<super::scan::Memo>>>,
+    pub(super) memo: Mutex<HashMap<String, Arc<Memo>>>,
+}
+
+/// A situation's pass over the index, its season filter aside: base sums
+/// (see `Layout`) per passer-season and per season × state cell, unit
+/// counts per passer-season × cell, and each passer-season's last snap.
+pub(crate) struct Memo {
+    pub(super) width: usize,
+    /// n_ps × width.
+    pub(super) ps: Vec<f64>,
+    /// n_seasons × CELLS × width.
+    pub(super) season_cells: Vec<f64>,
+    /// Nonzero (passer-season × CELLS + cell) keys, ascending, and their
+    /// unit counts (units each).
+    pub(super) ps_cell_keys: Vec<u32>,
+    pub(super) ps_cell_counts: Vec<u32>,
+    /// Per passer-season: (last snap + 1, its offense); 0 when none.
+    pub(super) last: Vec<(u32, u16)>,
 }
 
 /// How many situations' passes the index keeps before it starts over.
-pub(super) const MEMO_SIZE: usize = 48;
+/// (A pass over 25 seasons keeps about 1-4 MB.)
+pub(super) const MEMO_SIZE: usize = 16;
 
 /// What the classification pass learns about each metric's values.
 #[derive(Clone)]

@@ -2,7 +2,7 @@
 //! sums per passer, per state cell, per season and for the league (`Sums`),
 //! and the raw value of a metric from sums.
 
-use super::index::{memo_key, Layout, Plan, SplitIndex, MEMO_SIZE};
+use super::index::{memo_key, Layout, Memo, Plan, SplitIndex, MEMO_SIZE};
 use super::metrics::{metric_index, SnapValues, Stat, CELLS, METRICS};
 use crate::plays::Plays;
 use crate::situation::Situation;
@@ -78,23 +78,6 @@ pub(super) struct PasserSums {
     /// The passer's count of snaps per state cell, per metric.
     pub(super) cells: Vec<f64>,
     pub(super) team: u16,
-}
-
-/// A situation's pass over the index, its season filter aside: base sums
-/// (see `Layout`) per passer-season and per season × state cell, unit
-/// counts per passer-season × cell, and each passer-season's last snap.
-pub(crate) struct Memo {
-    width: usize,
-    /// n_ps × width.
-    ps: Vec<f64>,
-    /// n_seasons × CELLS × width.
-    season_cells: Vec<f64>,
-    /// Nonzero (passer-season × CELLS + cell) keys, ascending, and their
-    /// unit counts (units each).
-    ps_cell_keys: Vec<u32>,
-    ps_cell_counts: Vec<u32>,
-    /// Per passer-season: (last snap + 1, its offense); 0 when none.
-    last: Vec<(u32, u16)>,
 }
 
 /// One piece's running sums while the pass is made.
@@ -193,23 +176,33 @@ fn memo(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Arc<Memo> 
     let pieces = plan.pieces();
     // In pieces on rayon's threads, merged in row order (the same pieces on
     // every machine, so the same sums). A panic in a piece reaches the caller.
-    let parts: Vec<Partial> = pieces
-        .par_iter()
-        .map(|piece| {
-            let mut part = Partial::new(ix);
-            for (k, rows) in piece {
-                for r in rows.clone() {
-                    if plan.keeps(ix, p, v, *k, r) {
-                        part.add(ix, r);
+    // Pieces go out `AT_ONCE` at a time, so only a few partial sums are
+    // alive at once.
+    const AT_ONCE: usize = 4;
+    let mut all: Option<Partial> = None;
+    for batch in pieces.chunks(AT_ONCE) {
+        let parts: Vec<Partial> = batch
+            .par_iter()
+            .map(|piece| {
+                let mut part = Partial::new(ix);
+                for (k, rows) in piece {
+                    for r in rows.clone() {
+                        if plan.keeps(ix, p, v, *k, r) {
+                            part.add(ix, r);
+                        }
                     }
                 }
-            }
-            part
-        })
-        .collect();
-    let mut parts = parts.into_iter();
-    let first = parts.next().unwrap_or_else(|| Partial::new(ix));
-    let all = parts.fold(first, Partial::merge);
+                part
+            })
+            .collect();
+        for part in parts {
+            all = Some(match all {
+                None => part,
+                Some(a) => a.merge(part),
+            });
+        }
+    }
+    let all = all.unwrap_or_else(|| Partial::new(ix));
     let units = ix.layout.units;
     let (mut keys, mut counts) = (Vec::new(), Vec::new());
     for (k, uc) in all.ps_cells.chunks(units.max(1)).enumerate() {

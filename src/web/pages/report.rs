@@ -15,8 +15,8 @@ pub(super) fn report_data(st: &Shared, headers: &HeaderMap, q: Option<&str>) -> 
         situation = Situation { passer: situation.passer.clone(), ..Preset::DEFAULT.situation(situation.one_score) };
     }
     let paper = params.paper.as_deref().and_then(crate::report::Paper::parse).unwrap_or(crate::report::Paper::Letter);
-    let lg = st.league();
-    match crate::report::ReportData::build(&lg, &situation, &passer, params.min_dropbacks) {
+    let loaded = st.loaded();
+    match crate::report::ReportData::build_in(&loaded.league, &loaded.index, &situation, &passer, params.min_dropbacks) {
         Ok(d) => Ok((d, paper)),
         Err(e) => Err(error_page(st, headers, StatusCode::BAD_REQUEST, "No report for that", e.to_string(), "/")),
     }
