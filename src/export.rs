@@ -55,13 +55,27 @@ pub fn safe_cell(s: &str) -> String {
 /// The cut-up: one row per snap for the video staff, each thing the video
 /// operator cues by in its own column.
 pub fn cutup_csv(snaps: &[Snap]) -> String {
-    cutup_rows(snaps, None)
+    cutup_rows(snaps, None, true)
+}
+
+/// The cut-up in pieces, for streaming a long list: the header line, then
+/// `cutup_piece` for each run of snaps, concatenated, equal `cutup_csv`.
+pub fn cutup_head(tag_names: &[String]) -> String {
+    let mut out = CsvText::new();
+    let head: Vec<String> = CUTUP_COLUMNS.iter().map(|c| c.to_string()).chain(tag_names.iter().map(|n| format!("tag.{n}"))).collect();
+    out.row(&head);
+    out.finish()
+}
+
+/// Rows of the cut-up without the header line.
+pub fn cutup_piece(snaps: &[Snap]) -> String {
+    cutup_rows(snaps, None, false)
 }
 
 /// A saved cut-up list: the cut-up with the staff's notes on each snap
 /// (`notes[k]` belongs to `snaps[k]`).
 pub fn cutup_csv_with_notes(snaps: &[Snap], notes: &[String]) -> String {
-    cutup_rows(snaps, Some(notes))
+    cutup_rows(snaps, Some(notes), true)
 }
 
 /// A file name in words a video staff can sort by: `prefix`, then each
@@ -86,10 +100,14 @@ pub fn file_name(prefix: &str, parts: &[String], ext: &str) -> String {
 /// preset's key or "custom", and the play results asked for) and the
 /// seasons (asked for, else those the snaps span).
 pub fn name_parts(s: &crate::situation::Situation, snaps: &[Snap]) -> Vec<String> {
-    let team = s.offense.clone().or_else(|| {
-        let first = snaps.first().map(|x| x.offense.clone())?;
-        snaps.iter().all(|x| x.offense == first).then_some(first)
-    });
+    let shared = snaps.first().map(|x| x.offense.clone()).filter(|first| snaps.iter().all(|x| &x.offense == first));
+    name_parts_from(s, shared, &snaps.iter().map(|x| x.season).collect::<Vec<_>>())
+}
+
+/// `name_parts` from what the snaps share: the one offense they all have
+/// (if any) and their seasons.
+pub fn name_parts_from(s: &crate::situation::Situation, shared_offense: Option<String>, snap_seasons: &[i32]) -> Vec<String> {
+    let team = s.offense.clone().or(shared_offense);
     // The preset's window untouched (who, when and the result aside) keeps its key.
     let window = crate::situation::Situation { seasons: None, weeks: None, site: None, offense: None, opponent: None, passer: None, results: None, ..s.clone() };
     let situation = match s.preset {
@@ -100,7 +118,7 @@ pub fn name_parts(s: &crate::situation::Situation, snaps: &[Snap]) -> Vec<String
     let results = s.results.as_ref().map(|rs| rs.iter().map(|r| r.key()).collect::<Vec<_>>().join("-")).unwrap_or_default();
     let seasons = match &s.seasons {
         Some(v) => span(v),
-        None => span(&snaps.iter().map(|x| x.season).collect::<Vec<_>>()),
+        None => span(snap_seasons),
     };
     vec![team.unwrap_or_default(), s.passer.clone().unwrap_or_default(), situation, results, seasons]
 }
@@ -120,7 +138,7 @@ pub const CUTUP_COLUMNS: [&str; 20] = [
     "passer", "result", "epa", "wpa", "down_distance",
 ];
 
-fn cutup_rows(snaps: &[Snap], notes: Option<&[String]>) -> String {
+fn cutup_rows(snaps: &[Snap], notes: Option<&[String]>, with_head: bool) -> String {
     let mut out = CsvText::new();
     let mut head: Vec<String> = CUTUP_COLUMNS.iter().map(|c| c.to_string()).collect();
     // The staff's tags after our columns, as `tag.NAME` (the query's spelling).
@@ -130,7 +148,9 @@ fn cutup_rows(snaps: &[Snap], notes: Option<&[String]>) -> String {
     if notes.is_some() {
         head.push("notes".into());
     }
-    out.row(&head);
+    if with_head {
+        out.row(&head);
+    }
     let opt = |v: Option<i32>| v.map(|x| x.to_string()).unwrap_or_default();
     for (k, s) in snaps.iter().enumerate() {
         let mut cells = vec![

@@ -129,10 +129,33 @@ impl ReportData {
         ReportData::from_parts(league.plays(), &league.values(), provenance, situation, passer, min_dropbacks)
     }
 
+    /// `build` on a league already indexed (the server keeps its index).
+    pub fn build_in(league: &League, ix: &splits::SplitIndex, situation: &Situation, passer: &str, min_dropbacks: u32) -> Result<ReportData, ReportError> {
+        let provenance = Provenance {
+            fingerprint: league.scored.fingerprint.clone(),
+            model_version: crate::models::MODEL_VERSION.to_string(),
+            date: super::date::today(),
+        };
+        ReportData::from_parts_in(ix, league.plays(), &league.values(), provenance, situation, passer, min_dropbacks)
+    }
+
     /// The report from plays and their model values. Calls the split
     /// engine once for the table (focused on `passer`) and once for the
     /// snaps behind it.
     pub fn from_parts(
+        p: &Plays,
+        v: &SnapValues,
+        provenance: Provenance,
+        situation: &Situation,
+        passer: &str,
+        min_dropbacks: u32,
+    ) -> Result<ReportData, ReportError> {
+        ReportData::from_parts_in(&splits::SplitIndex::build(p, v), p, v, provenance, situation, passer, min_dropbacks)
+    }
+
+    /// `from_parts` on a league already indexed (`ix` built from `p`, `v`).
+    pub fn from_parts_in(
+        ix: &splits::SplitIndex,
         p: &Plays,
         v: &SnapValues,
         provenance: Provenance,
@@ -146,7 +169,7 @@ impl ReportData {
         let s = report_situation(p, situation);
         // Focus on the subject: he gets estimates even below the minimum,
         // exactly as the API gives them for `passer=` in the query.
-        let table = splits::split_table_for(p, v, &s, min_dropbacks, Some(passer));
+        let table = splits::split_table_in(ix, p, v, &s, min_dropbacks, Some(passer));
         let Some(row) = table.row(passer) else {
             return Err(ReportError::NoDropbacks { passer: passer.to_string(), situation: table.situation.clone() });
         };

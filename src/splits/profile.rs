@@ -2,9 +2,11 @@
 //! EPA distribution of a passer's dropbacks beside the league's.
 
 use super::metrics::{metric_index, SnapValues, METRICS};
-use super::scan::{accumulate, raw_value};
-use super::table::{split_table_for, MetricInfo, PasserRow};
-use crate::plays::{Plays, NO_PASSER};
+use super::index::SplitIndex;
+use super::scan::{accumulate, matching_snaps, raw_value};
+use super::table::{split_table_in, MetricInfo, PasserRow, SplitTable};
+use std::sync::Arc;
+use crate::plays::Plays;
 use crate::situation::{Preset, Situation};
 use serde::Serialize;
 
@@ -44,6 +46,26 @@ pub struct ProfileLine {
 /// The profile of `passer`. `base` carries the seasons and one-score bound;
 /// `trend` is the situation of the season trend.
 pub fn profile(p: &Plays, v: &SnapValues, passer: &str, base: &Situation, trend: &Situation, min_dropbacks: u32) -> Option<Profile> {
+    profile_in(&SplitIndex::build(p, v), p, v, passer, base, trend, min_dropbacks)
+}
+
+/// `profile` on a league already indexed (`ix` built from `p`, `v`).
+pub fn profile_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, passer: &str, base: &Situation, trend: &Situation, min_dropbacks: u32) -> Option<Profile> {
+    let table = |s: &Situation| Arc::new(split_table_in(ix, p, v, s, min_dropbacks, Some(passer)));
+    profile_with(ix, p, v, passer, base, trend, &table)
+}
+
+/// `profile_in` with each preset's table (focused on `passer`) from
+/// `table`, e.g. a cache of tables already computed.
+pub fn profile_with(
+    ix: &SplitIndex,
+    p: &Plays,
+    v: &SnapValues,
+    passer: &str,
+    base: &Situation,
+    trend: &Situation,
+    table: &dyn Fn(&Situation) -> Arc<SplitTable>,
+) -> Option<Profile> {
     let who = p.passer_index(passer)?;
     let mut metrics = Vec::new();
     let mut presets = Vec::new();
@@ -51,7 +73,7 @@ pub fn profile(p: &Plays, v: &SnapValues, passer: &str, base: &Situation, trend:
     for preset in Preset::ALL {
         let mut s = preset.situation(base.one_score);
         s.seasons = base.seasons.clone();
-        let t = split_table_for(p, v, &s, min_dropbacks, Some(passer));
+        let t = table(&s);
         let row = t.row(passer).cloned();
         if team.is_none() {
             team = row.as_ref().map(|r| r.team.clone());
@@ -69,7 +91,7 @@ pub fn profile(p: &Plays, v: &SnapValues, passer: &str, base: &Situation, trend:
             row,
         });
     }
-    let sums = accumulate(p, v, &trend.with_seasons(None));
+    let sums = accumulate(ix, p, v, &trend.with_seasons(None));
     let nm = METRICS.len();
     let db = metric_index("dropbacks").unwrap_or(0);
     let trend_lines = sums
@@ -108,14 +130,20 @@ pub struct EpaDistribution {
 }
 
 pub fn epa_distribution(p: &Plays, v: &SnapValues, s: &Situation, passer: &str) -> EpaDistribution {
+    epa_distribution_in(&SplitIndex::build(p, v), p, v, s, passer)
+}
+
+/// `epa_distribution` on a league already indexed (`ix` built from `p`, `v`).
+pub fn epa_distribution_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, passer: &str) -> EpaDistribution {
     let (lo, hi, width) = (-4.0, 4.0, 0.5);
     let bins = ((hi - lo) / width) as usize;
     let edges: Vec<f64> = (0..=bins).map(|k| lo + k as f64 * width).collect();
     let (mut mine, mut all) = (vec![0.0; bins], vec![0.0; bins]);
     let (mut nm, mut na) = (0usize, 0usize);
     let who = p.passer_index(passer);
-    for i in 0..p.len() {
-        if !p.dropback[i] || p.passer[i] == NO_PASSER || !s.matches(p, v.wp, i) {
+    let only = s.passer.as_deref();
+    for i in matching_snaps(ix, p, v, s) {
+        if only.is_some_and(|name| p.passer_name(i) != Some(name)) {
             continue;
         }
         let e = v.epa.get(i).copied().unwrap_or(0.0);

@@ -2,7 +2,8 @@
 //! late-game preset, each with EPA and WPA and where they stand in the
 //! league's distribution for the same state (EPA: same down, distance band
 //! and field zone; WPA: same preset window), and its win probability
-//! through the game from its own side.
+//! through the game from its own side. The league's distributions are
+//! computed once per league (`LeagueStates`).
 
 use super::metrics::{cell, SnapValues, CELLS};
 use super::snaps::{snap_at, Snap};
@@ -10,6 +11,8 @@ use crate::playfile::Kind;
 use crate::plays::Plays;
 use crate::situation::Preset;
 use serde::Serialize;
+use std::collections::HashMap;
+use std::sync::{Arc, Mutex, OnceLock};
 
 #[derive(Debug, Clone, Serialize)]
 pub struct ReviewSnap {
@@ -73,23 +76,61 @@ fn sorted(mut v: Vec<f64>) -> Vec<f64> {
     v
 }
 
+/// The league's distributions a review ranks a team's snaps in: EPA by
+/// state cell over every scrimmage snap, and WPA in each preset window.
+/// Each is computed on first use and kept: hold one per loaded league.
+#[derive(Default)]
+pub struct LeagueStates {
+    by_cell: OnceLock<Vec<Vec<f64>>>,
+    windows: Mutex<HashMap<(&'static str, i32), Arc<Vec<f64>>>>,
+}
+
+impl LeagueStates {
+    pub fn new() -> LeagueStates {
+        LeagueStates::default()
+    }
+
+    fn by_cell(&self, p: &Plays, v: &SnapValues) -> &[Vec<f64>] {
+        self.by_cell.get_or_init(|| {
+            let mut by_cell: Vec<Vec<f64>> = vec![Vec::new(); CELLS];
+            for i in 0..p.len() {
+                if scrimmage(p.kind[i]) && (1..=4).contains(&p.down[i]) {
+                    by_cell[cell(p, i)].push(v.epa.get(i).copied().unwrap_or(f64::NAN));
+                }
+            }
+            by_cell.into_iter().map(sorted).collect()
+        })
+    }
+
+    fn window(&self, p: &Plays, v: &SnapValues, preset: Preset, one_score: i32) -> Arc<Vec<f64>> {
+        let key = (preset.key(), one_score);
+        if let Some(w) = self.windows.lock().ok().and_then(|m| m.get(&key).cloned()) {
+            return w;
+        }
+        let s = preset.situation(one_score);
+        let w = Arc::new(sorted((0..p.len()).filter(|&i| scrimmage(p.kind[i]) && s.matches(p, v.wp, i)).map(|i| v.wpa.get(i).copied().unwrap_or(f64::NAN)).collect()));
+        if let Ok(mut m) = self.windows.lock() {
+            m.insert(key, w.clone());
+        }
+        w
+    }
+}
+
 /// The review of `game` for `team` (an index into `p.teams`); `None` when
 /// the team did not play in it.
 pub fn game_review(p: &Plays, v: &SnapValues, game: usize, team: u16, one_score: i32) -> Option<GameReview> {
+    game_review_with(&LeagueStates::new(), p, v, game, team, one_score)
+}
+
+/// `game_review` with the league's distributions from `states` (built from
+/// the same `p` and `v`; kept between reviews).
+pub fn game_review_with(states: &LeagueStates, p: &Plays, v: &SnapValues, game: usize, team: u16, one_score: i32) -> Option<GameReview> {
     let g = p.games.get(game)?;
     if g.home != team && g.away != team {
         return None;
     }
     let home = g.home == team;
     let opponent = if home { g.away } else { g.home };
-    // The league's EPA by state cell, over every scrimmage snap.
-    let mut by_cell: Vec<Vec<f64>> = vec![Vec::new(); CELLS];
-    for i in 0..p.len() {
-        if scrimmage(p.kind[i]) && (1..=4).contains(&p.down[i]) {
-            by_cell[cell(p, i)].push(v.epa.get(i).copied().unwrap_or(f64::NAN));
-        }
-    }
-    let by_cell: Vec<Vec<f64>> = by_cell.into_iter().map(sorted).collect();
     let mut sections = Vec::new();
     for preset in Preset::situations() {
         let s = preset.situation(one_score);
@@ -98,7 +139,8 @@ pub fn game_review(p: &Plays, v: &SnapValues, game: usize, team: u16, one_score:
             sections.push(ReviewSection { preset: preset.key(), label: preset.label(), snaps: Vec::new() });
             continue;
         }
-        let window = sorted((0..p.len()).filter(|&i| scrimmage(p.kind[i]) && s.matches(p, v.wp, i)).map(|i| v.wpa.get(i).copied().unwrap_or(f64::NAN)).collect());
+        let by_cell = states.by_cell(p, v);
+        let window = states.window(p, v, preset, one_score);
         let snaps = ours
             .into_iter()
             .map(|i| ReviewSnap {

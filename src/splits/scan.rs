@@ -1,12 +1,15 @@
-//! One pass over the league for a situation: running sums per passer, per
-//! state cell, per season and for the league (`Sums`), and the raw value of
-//! a metric from sums.
+//! One pass over the league for a situation, on the split index: running
+//! sums per passer, per state cell, per season and for the league (`Sums`),
+//! and the raw value of a metric from sums.
 
-use super::metrics::{cell, contributions, metric_index, SnapValues, Stat, CELLS, METRICS};
-use crate::plays::{Plays, NO_PASSER};
+use super::index::{memo_key, Layout, Memo, Plan, SplitIndex, MEMO_SIZE};
+use super::metrics::{metric_index, SnapValues, Stat, CELLS, METRICS};
+use crate::plays::Plays;
 use crate::situation::Situation;
 use crate::stats;
+use rayon::prelude::*;
 use std::collections::{BTreeMap, HashMap};
+use std::sync::Arc;
 
 /// Running sums for one metric.
 #[derive(Debug, Clone, Copy, Default)]
@@ -17,6 +20,7 @@ pub(super) struct Acc {
 }
 
 impl Acc {
+    #[cfg_attr(not(test), allow(dead_code))]
     pub(super) fn add(&mut self, x: f64) {
         self.n += 1.0;
         self.sum += x;
@@ -31,14 +35,6 @@ pub(super) type Accs = Vec<Acc>;
 
 fn new_accs() -> Accs {
     vec![Acc::default(); METRICS.len()]
-}
-
-fn add_masked(accs: &mut [Acc], vals: &[f64], mask: u64) {
-    for (j, a) in accs.iter_mut().enumerate() {
-        if mask & (1 << j) != 0 {
-            a.add(vals[j]);
-        }
-    }
 }
 
 /// A multiply-rotate hasher for the small integer keys of the per-season
@@ -84,91 +80,264 @@ pub(super) struct PasserSums {
     pub(super) team: u16,
 }
 
-/// The pass over the league, in two halves on rayon's threads, merged in
-/// snap order (the same halves on every machine, so the same sums). A panic
-/// in either half reaches the caller.
-pub(super) fn accumulate(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
-    let n = p.len();
-    let mid = n / 2;
-    let (first, second) = rayon::join(|| accumulate_range(p, v, s, 0..mid), || accumulate_range(p, v, s, mid..n));
-    merge(first, second)
+/// One piece's running sums while the pass is made.
+struct Partial {
+    ps: Vec<f64>,
+    season_cells: Vec<f64>,
+    ps_cells: Vec<u32>,
+    last: Vec<(u32, u16)>,
 }
 
-fn merge_accs(a: &mut [Acc], b: &[Acc]) {
-    for (x, y) in a.iter_mut().zip(b) {
-        x.n += y.n;
-        x.sum += y.sum;
-        x.sumsq += y.sumsq;
+impl Partial {
+    fn new(ix: &SplitIndex) -> Partial {
+        let w = ix.layout.width();
+        let n_ps = ix.ps_key.len();
+        Partial {
+            ps: vec![0.0; n_ps * w],
+            season_cells: vec![0.0; ix.seasons.len() * CELLS * w],
+            ps_cells: vec![0; n_ps * CELLS * ix.layout.units],
+            last: vec![(0, 0); n_ps],
+        }
     }
-}
 
-/// `a` then `b` (b's snaps come later, so its team wins).
-fn merge(mut a: Sums, b: Sums) -> Sums {
-    for (who, ps) in b.passers {
-        match a.passers.get_mut(&who) {
-            Some(mine) => {
-                merge_accs(&mut mine.accs, &ps.accs);
-                for (x, y) in mine.cells.iter_mut().zip(&ps.cells) {
-                    *x += y;
-                }
-                mine.team = ps.team;
+    /// Row `r` of the index, into its passer-season and its season's cell.
+    #[inline]
+    fn add(&mut self, ix: &SplitIndex, r: usize) {
+        let lay = &ix.layout;
+        let w = lay.width();
+        let ps = ix.ps[r] as usize;
+        let c = ix.cell[r] as usize;
+        let season = ix.ps_key[ps].1 as usize;
+        let snap = ix.snap[r] + 1;
+        if snap > self.last[ps].0 {
+            self.last[ps] = (snap, ix.team[r]);
+        }
+        let units = ix.units[r];
+        let uc = &mut self.ps_cells[(ps * CELLS + c) * lay.units..][..lay.units];
+        for (u, n) in uc.iter_mut().enumerate() {
+            *n += u32::from(units >> u & 1 == 1);
+        }
+        let ints = &ix.ints[r * lay.ints..][..lay.ints];
+        let reals = &ix.reals[r * lay.reals..][..lay.reals];
+        let bits = ix.bits[r];
+        let sc = (season * CELLS + c) * w;
+        for base in [&mut self.ps[ps * w..][..w], &mut self.season_cells[sc..][..w]] {
+            base[0] += 1.0;
+            for u in 0..lay.units {
+                base[1 + u] += f64::from(units >> u & 1);
             }
-            None => {
-                a.passers.insert(who, ps);
+            let o = 1 + lay.units;
+            for k in 0..lay.bits {
+                base[o + k] += f64::from(bits >> k & 1);
+            }
+            let o = o + lay.bits;
+            for (k, &x) in ints.iter().enumerate() {
+                let x = x as f64;
+                base[o + 2 * k] += x;
+                base[o + 2 * k + 1] += x * x;
+            }
+            let o = o + 2 * lay.ints;
+            for (k, &x) in reals.iter().enumerate() {
+                base[o + 2 * k] += x;
+                base[o + 2 * k + 1] += x * x;
             }
         }
     }
-    merge_accs(&mut a.league, &b.league);
-    merge_accs(&mut a.league_cells, &b.league_cells);
-    for (k, accs) in b.by_season {
-        merge_accs(a.by_season.entry(k).or_insert_with(new_accs), &accs);
+
+    /// `self` then `b` (later rows).
+    fn merge(mut self, b: Partial) -> Partial {
+        add_into(&mut self.ps, &b.ps);
+        add_into(&mut self.season_cells, &b.season_cells);
+        for (x, y) in self.ps_cells.iter_mut().zip(&b.ps_cells) {
+            *x += y;
+        }
+        for (x, y) in self.last.iter_mut().zip(&b.last) {
+            if y.0 > x.0 {
+                *x = *y;
+            }
+        }
+        self
     }
-    for (k, accs) in b.league_by_season {
-        merge_accs(a.league_by_season.entry(k).or_insert_with(new_accs), &accs);
-    }
-    a
 }
 
-fn accumulate_range(p: &Plays, v: &SnapValues, s: &Situation, range: std::ops::Range<usize>) -> Sums {
-    // The passer filter picks the rows shown, not the league they are
-    // measured against: match on the situation without it.
-    let unseasoned = Situation { passer: None, ..s.with_seasons(None) };
-    let seasons = s.seasons.as_deref();
-    let mut out = Sums {
+fn add_into(a: &mut [f64], b: &[f64]) {
+    for (x, y) in a.iter_mut().zip(b) {
+        *x += y;
+    }
+}
+
+/// The pass for `s` (its seasons and passer aside), memoised in the index.
+fn memo(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Arc<Memo> {
+    let key = memo_key(s);
+    if let Some(m) = ix.memo.lock().ok().and_then(|c| c.get(&key).cloned()) {
+        return m;
+    }
+    let plan = Plan::new(ix, s);
+    let pieces = plan.pieces();
+    // In pieces on rayon's threads, merged in row order (the same pieces on
+    // every machine, so the same sums). A panic in a piece reaches the caller.
+    // Pieces go out `AT_ONCE` at a time, so only a few partial sums are
+    // alive at once.
+    const AT_ONCE: usize = 4;
+    let mut all: Option<Partial> = None;
+    for batch in pieces.chunks(AT_ONCE) {
+        let parts: Vec<Partial> = batch
+            .par_iter()
+            .map(|piece| {
+                let mut part = Partial::new(ix);
+                for (k, rows) in piece {
+                    for r in rows.clone() {
+                        if plan.keeps(ix, p, v, *k, r) {
+                            part.add(ix, r);
+                        }
+                    }
+                }
+                part
+            })
+            .collect();
+        for part in parts {
+            all = Some(match all {
+                None => part,
+                Some(a) => a.merge(part),
+            });
+        }
+    }
+    let all = all.unwrap_or_else(|| Partial::new(ix));
+    let units = ix.layout.units;
+    let (mut keys, mut counts) = (Vec::new(), Vec::new());
+    for (k, uc) in all.ps_cells.chunks(units.max(1)).enumerate() {
+        if uc.iter().any(|&n| n > 0) {
+            keys.push(k as u32);
+            counts.extend_from_slice(uc);
+        }
+    }
+    let m = Arc::new(Memo {
+        width: ix.layout.width(),
+        ps: all.ps,
+        season_cells: all.season_cells,
+        ps_cell_keys: keys,
+        ps_cell_counts: counts,
+        last: all.last,
+    });
+    if let Ok(mut c) = ix.memo.lock() {
+        if c.len() >= MEMO_SIZE {
+            c.clear();
+        }
+        c.insert(key, m.clone());
+    }
+    m
+}
+
+fn expand(lay: &Layout, base: &[f64]) -> Accs {
+    (0..METRICS.len())
+        .map(|j| {
+            let (n, sum, sumsq) = lay.acc(base, j);
+            Acc { n, sum, sumsq }
+        })
+        .collect()
+}
+
+/// The sums for a situation: the memoised pass (situation without seasons
+/// and passer), then its season filter on passer-seasons. The passer
+/// filter picks the rows shown, not the league they are measured against,
+/// so it is left to the caller. `ix` must be built from `p` and `v`.
+pub(super) fn accumulate(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
+    debug_assert!(ix.fits(p), "the split index was built from another league");
+    let m = memo(ix, p, v, s);
+    let lay = &ix.layout;
+    let (w, nm) = (m.width, METRICS.len());
+    let chosen: Vec<bool> = ix.seasons.iter().map(|y| s.seasons.as_ref().is_none_or(|ss| ss.contains(y))).collect();
+    let mut sums = Sums {
         passers: BTreeMap::new(),
         league: new_accs(),
-        league_cells: vec![Acc::default(); CELLS * METRICS.len()],
+        league_cells: vec![Acc::default(); CELLS * nm],
         by_season: IntMap::default(),
         league_by_season: BTreeMap::new(),
     };
-    let mut vals = vec![0.0f64; METRICS.len()];
-    for i in range {
-        if !p.dropback[i] || p.passer[i] == NO_PASSER || !unseasoned.matches(p, v.wp, i) {
+    // Per passer: sums over the chosen seasons, the team of the last snap.
+    let mut mine: Vec<Option<(Vec<f64>, (u32, u16))>> = vec![None; ix.n_passers];
+    for (k, &(who, season)) in ix.ps_key.iter().enumerate() {
+        let base = &m.ps[k * w..][..w];
+        if base[0] == 0.0 {
             continue;
         }
-        let who = p.passer[i];
-        let season = p.season[i];
-        let mask = contributions(p, v, i, &mut vals);
-        add_masked(out.by_season.entry((who, season)).or_insert_with(new_accs), &vals, mask);
-        add_masked(out.league_by_season.entry(season).or_insert_with(new_accs), &vals, mask);
-        if seasons.is_some_and(|ss| !ss.contains(&season)) {
+        sums.by_season.insert((who, ix.seasons[season as usize]), expand(lay, base));
+        if !chosen[season as usize] {
             continue;
         }
-        let c = cell(p, i);
-        let ps = out.passers.entry(who).or_insert_with(|| PasserSums {
-            accs: new_accs(),
-            cells: vec![0.0; CELLS * METRICS.len()],
-            team: p.offense[i],
-        });
-        ps.team = p.offense[i];
-        let nm = METRICS.len();
-        for j in 0..nm {
-            if mask & (1 << j) != 0 {
-                let x = vals[j];
-                ps.accs[j].add(x);
-                out.league[j].add(x);
-                out.league_cells[c * nm + j].add(x);
-                ps.cells[c * nm + j] += 1.0;
+        let slot = mine[who as usize].get_or_insert_with(|| (vec![0.0; w], (0, 0)));
+        add_into(&mut slot.0, base);
+        if m.last[k].0 > slot.1 .0 {
+            slot.1 = m.last[k];
+        }
+    }
+    // Per passer: unit counts per cell over the chosen seasons.
+    let units = lay.units;
+    let mut cells: Vec<Vec<u32>> = vec![Vec::new(); ix.n_passers];
+    for (k, &key) in m.ps_cell_keys.iter().enumerate() {
+        let (ps, c) = (key as usize / CELLS, key as usize % CELLS);
+        let (who, season) = ix.ps_key[ps];
+        if !chosen[season as usize] {
+            continue;
+        }
+        let mc = &mut cells[who as usize];
+        if mc.is_empty() {
+            mc.resize(CELLS * units, 0);
+        }
+        for (x, y) in mc[c * units..][..units].iter_mut().zip(&m.ps_cell_counts[k * units..][..units]) {
+            *x += y;
+        }
+    }
+    for (who, slot) in mine.into_iter().enumerate() {
+        let Some((base, (_, team))) = slot else { continue };
+        let uc = &cells[who];
+        let mut pc = vec![0.0; CELLS * nm];
+        if !uc.is_empty() {
+            for c in 0..CELLS {
+                for j in 0..nm {
+                    pc[c * nm + j] = f64::from(uc[c * units + lay.unit_of[j]]);
+                }
+            }
+        }
+        sums.passers.insert(who as u32, PasserSums { accs: expand(lay, &base), cells: pc, team });
+    }
+    // The league: per cell over the chosen seasons; per season over cells.
+    let mut league = vec![0.0; w];
+    for c in 0..CELLS {
+        let mut cb = vec![0.0; w];
+        for (y, &on) in chosen.iter().enumerate() {
+            if on {
+                add_into(&mut cb, &m.season_cells[(y * CELLS + c) * w..][..w]);
+            }
+        }
+        add_into(&mut league, &cb);
+        for (j, a) in expand(lay, &cb).into_iter().enumerate() {
+            sums.league_cells[c * nm + j] = a;
+        }
+    }
+    sums.league = expand(lay, &league);
+    for (y, &season) in ix.seasons.iter().enumerate() {
+        let mut sb = vec![0.0; w];
+        for c in 0..CELLS {
+            add_into(&mut sb, &m.season_cells[(y * CELLS + c) * w..][..w]);
+        }
+        if sb[0] > 0.0 {
+            sums.league_by_season.insert(season, expand(lay, &sb));
+        }
+    }
+    sums
+}
+
+/// The rows of the index a situation keeps (its passer filter aside), as
+/// snap positions in the league, in no particular order.
+pub(super) fn matching_snaps(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Vec<usize> {
+    let plan = Plan::new(ix, s);
+    let chosen: Vec<bool> = ix.seasons.iter().map(|y| s.seasons.as_ref().is_none_or(|ss| ss.contains(y))).collect();
+    let mut out = Vec::new();
+    for (k, rows) in plan.ranges.iter().enumerate() {
+        for r in rows.clone() {
+            if chosen[ix.ps_key[ix.ps[r] as usize].1 as usize] && plan.keeps(ix, p, v, k, r) {
+                out.push(ix.snap[r] as usize);
             }
         }
     }

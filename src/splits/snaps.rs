@@ -148,6 +148,12 @@ pub fn snap_at(p: &Plays, v: &SnapValues, i: usize) -> Snap {
 /// The dropbacks behind a split: in situation `s`, by `passer` (any when
 /// None), counted by `metric` (every dropback when None), in game order.
 pub fn play_list(p: &Plays, v: &SnapValues, s: &Situation, passer: Option<&str>, metric: Option<&MetricDef>) -> Vec<Snap> {
+    play_indices(p, v, s, passer, metric).into_iter().map(|i| snap_at(p, v, i)).collect()
+}
+
+/// The positions of `play_list`'s snaps (ascending), without writing them
+/// out: a page of a long list writes only its own snaps.
+pub fn play_indices(p: &Plays, v: &SnapValues, s: &Situation, passer: Option<&str>, metric: Option<&MetricDef>) -> Vec<usize> {
     let who = match passer {
         Some(name) => match p.passer_index(name) {
             Some(w) => Some(w),
@@ -159,7 +165,6 @@ pub fn play_list(p: &Plays, v: &SnapValues, s: &Situation, passer: Option<&str>,
         .filter(|&i| p.dropback[i] && who.is_none_or(|w| p.passer[i] == w))
         .filter(|&i| metric.is_none_or(|m| in_unit(p, v, m.unit, i)))
         .filter(|&i| s.matches(p, v.wp, i))
-        .map(|i| snap_at(p, v, i))
         .collect()
 }
 

@@ -3,6 +3,7 @@
 //! metric descriptions that travel with it.
 
 use super::metrics::{metric_index, SnapValues, Stat, METRICS};
+use super::index::SplitIndex;
 use super::scan::{accumulate, raw_value, Sums};
 use super::shrink::{adjusted, shrink, stability};
 use crate::plays::Plays;
@@ -140,12 +141,13 @@ pub enum SortBy {
 /// Default minimum dropbacks to qualify.
 pub const DEFAULT_MIN_DROPBACKS: u32 = 20;
 
-/// The split table for a situation.
 /// The league row's per-passer quantities: rates and means; counts blank.
 pub fn league_row(league: &[Option<f64>]) -> Vec<Option<f64>> {
     METRICS.iter().zip(league).map(|(m, v)| if m.stat == Stat::Count { None } else { *v }).collect()
 }
 
+/// The split table for a situation (indexes the league first: callers that
+/// ask for more than one table keep a `SplitIndex` and call `split_table_in`).
 pub fn split_table(p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32) -> SplitTable {
     split_table_for(p, v, s, min_dropbacks, None)
 }
@@ -154,7 +156,12 @@ pub fn split_table(p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32)
 /// passer) when he falls short of the minimum. Other unqualified passers get
 /// raw numbers only.
 pub fn split_table_for(p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32, focus: Option<&str>) -> SplitTable {
-    let sums = accumulate(p, v, s);
+    split_table_in(&SplitIndex::build(p, v), p, v, s, min_dropbacks, focus)
+}
+
+/// `split_table_for` on a league already indexed (`ix` built from `p`, `v`).
+pub fn split_table_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32, focus: Option<&str>) -> SplitTable {
+    let sums = accumulate(ix, p, v, s);
     build_table(p, &sums, s, min_dropbacks, focus)
 }
 

@@ -4,7 +4,8 @@
 //! filter added, once per value).
 
 use super::metrics::SnapValues;
-use super::table::{split_table_for, MetricInfo, PasserRow};
+use super::index::SplitIndex;
+use super::table::{split_table_in, MetricInfo, PasserRow};
 use crate::plays::Plays;
 use crate::situation::{Situation, TagFilter, TagMatch};
 use serde::Serialize;
@@ -48,6 +49,11 @@ pub enum TagBreakdownError {
 /// without a value are left out). Passers qualify at `min_dropbacks`
 /// within each value, as in the explorer.
 pub fn tag_breakdown(p: &Plays, v: &SnapValues, passer: &str, situation: &Situation, tag: &str, min_dropbacks: u32) -> Result<TagBreakdown, TagBreakdownError> {
+    tag_breakdown_in(&SplitIndex::build(p, v), p, v, passer, situation, tag, min_dropbacks)
+}
+
+/// `tag_breakdown` on a league already indexed (`ix` built from `p`, `v`).
+pub fn tag_breakdown_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, passer: &str, situation: &Situation, tag: &str, min_dropbacks: u32) -> Result<TagBreakdown, TagBreakdownError> {
     let t = p.tags.index(tag).ok_or_else(|| TagBreakdownError::UnknownTag(tag.to_string()))?;
     if !p.tags.is_list(t) {
         return Err(TagBreakdownError::TooManyValues(p.tags.names[t].clone()));
@@ -64,7 +70,7 @@ pub fn tag_breakdown(p: &Plays, v: &SnapValues, passer: &str, situation: &Situat
         s.tags.retain(|f| f.name != name);
         s.tags.push(TagFilter { name: name.clone(), keep: TagMatch::Any(vec![value.clone()]) });
         s.tags.sort_by(|a, b| a.name.cmp(&b.name));
-        let table = split_table_for(p, v, &s, min_dropbacks, Some(passer));
+        let table = split_table_in(ix, p, v, &s, min_dropbacks, Some(passer));
         if metrics.is_empty() {
             metrics = table.metrics.clone();
         }

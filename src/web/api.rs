@@ -2,9 +2,13 @@
 //! Bad input is a 400 with `{"error", "param", "value", "reason"}`.
 
 use super::query::Params;
-pub use super::service::{counted, split_for};
+pub use super::service::split_for;
+
+/// Snaps per `/api/plays` page unless `limit=` says otherwise (the `next`
+/// link carries the cursor to the following page).
+pub const PLAYS_PAGE: usize = 1000;
 use super::Shared;
-use crate::splits::{self, metric_index, METRICS};
+use crate::splits;
 use axum::extract::{RawQuery, State};
 use axum::http::{header, StatusCode};
 use axum::response::{IntoResponse, Response};
@@ -46,13 +50,23 @@ pub async fn summary(State(st): State<Shared>) -> Response {
 }
 
 pub async fn splits(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
+    let st2 = st.clone();
+    super::service::engine(&st, move || splits_now(st2, q)).await
+}
+
+fn splits_now(st: Shared, q: Option<String>) -> Response {
     match parse(&st, &q) {
-        Ok(params) => Json(split_for(&st, &params, None)).into_response(),
+        Ok(params) => Json(&*split_for(&st, &params, None)).into_response(),
         Err(r) => r,
     }
 }
 
 pub async fn splits_csv(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
+    let st2 = st.clone();
+    super::service::engine(&st, move || splits_csv_now(st2, q)).await
+}
+
+fn splits_csv_now(st: Shared, q: Option<String>) -> Response {
     match parse(&st, &q) {
         Ok(params) => (
             [(header::CONTENT_TYPE, "text/csv; charset=utf-8"), (header::CONTENT_DISPOSITION, "attachment; filename=\"splits.csv\"")],
@@ -64,6 +78,11 @@ pub async fn splits_csv(State(st): State<Shared>, RawQuery(q): RawQuery) -> Resp
 }
 
 pub async fn profile(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
+    let st2 = st.clone();
+    super::service::engine(&st, move || profile_now(st2, q)).await
+}
+
+fn profile_now(st: Shared, q: Option<String>) -> Response {
     let params = match parse(&st, &q) {
         Ok(p) => p,
         Err(r) => return r,
@@ -71,26 +90,44 @@ pub async fn profile(State(st): State<Shared>, RawQuery(q): RawQuery) -> Respons
     let Some(passer) = params.situation.passer.clone() else {
         return bad_request(&crate::situation::SituationError { param: "passer".into(), value: String::new(), reason: "a passer name is required".into() });
     };
-    let lg = st.league();
+    let loaded = st.loaded();
+    let lg = &loaded.league;
     let trend = super::service::trend_situation(&params);
     let base = crate::situation::Situation { passer: None, ..params.situation.clone() };
-    match splits::profile(lg.plays(), &lg.values(), &passer, &base, &trend, params.min_dropbacks) {
+    let table = |s: &crate::situation::Situation| st.split_table(s, params.min_dropbacks, Some(&passer));
+    match splits::profile_with(&loaded.index, lg.plays(), &lg.values(), &passer, &base, &trend, &table) {
         Some(p) => Json(p).into_response(),
         None => not_found(&format!("no passer named {passer} in this league")),
     }
 }
 
 pub async fn plays(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {
-    let params = match parse(&st, &q) {
+    let st2 = st.clone();
+    super::service::engine(&st, move || plays_now(st2, q)).await
+}
+
+fn plays_now(st: Shared, q: Option<String>) -> Response {
+    let (rest, cursor) = match super::service::take_cursor(q.as_deref(), PLAYS_PAGE) {
+        Ok(x) => x,
+        Err(e) => return bad_request(&e),
+    };
+    let params = match parse(&st, &rest) {
         Ok(p) => p,
         Err(r) => return r,
     };
-    let lg = st.league();
-    let metric = params.metric.as_deref().and_then(metric_index).map(|j| &METRICS[j]);
-    let snaps = splits::play_list(lg.plays(), &lg.values(), &params.situation, params.situation.passer.as_deref(), metric);
-    let counted = counted(st.as_ref(), &params, &snaps);
-    let n_counted = counted.as_ref().map(|c| c.iter().filter(|c| **c).count());
-    Json(json!({ "situation": params.situation.describe(), "count": snaps.len(), "counted": n_counted, "counted_snaps": counted, "snaps": snaps })).into_response()
+    let page = super::service::play_page(&st, &params, cursor);
+    let next = page.next_after.map(|a| format!("/api/plays{}", params.with(&[("after", Some(&a.to_string())), ("limit", Some(&cursor.limit.to_string()))])));
+    Json(json!({
+        "situation": params.situation.describe(),
+        "count": page.total,
+        "counted": page.counted_total,
+        "offset": page.offset,
+        "limit": cursor.limit,
+        "next": next,
+        "counted_snaps": page.counted,
+        "snaps": page.snaps,
+    }))
+    .into_response()
 }
 
 pub async fn game(State(st): State<Shared>, RawQuery(q): RawQuery) -> Response {

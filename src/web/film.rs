@@ -9,7 +9,7 @@ use super::Shared;
 use crate::charts::{self, Series};
 use crate::notes::{self, Cutup, Note};
 use crate::numfmt;
-use crate::splits::review::{game_review, GameReview, ReviewSnap};
+use crate::splits::review::{game_review_with, GameReview, ReviewSnap};
 use crate::splits::Snap;
 use askama::Template;
 use axum::extract::{RawQuery, State};
@@ -95,8 +95,8 @@ async fn build_review(st: &Shared, headers: &HeaderMap, params: &Params) -> Resu
     let asked = params.situation.offense.clone().or_else(|| super::service::ours(st, headers).0);
     let team = asked.and_then(|code| p.team_index(&code)).filter(|t| *t == g.home || *t == g.away).unwrap_or(g.home);
     let one_score = params.situation.one_score;
-    let lg2 = lg.clone();
-    match tokio::task::spawn_blocking(move || game_review(lg2.plays(), &lg2.values(), gi, team, one_score)).await {
+    let loaded = st.loaded();
+    match tokio::task::spawn_blocking(move || game_review_with(&loaded.review, loaded.league.plays(), &loaded.league.values(), gi, team, one_score)).await {
         Ok(Some(r)) => Ok(r),
         _ => Err((StatusCode::INTERNAL_SERVER_ERROR, "the game review could not be built".into())),
     }

@@ -81,9 +81,26 @@ pub enum ServeError {
     Io(#[from] std::io::Error),
 }
 
+/// A loaded league with its split index (swapped together on reload).
+pub struct Loaded {
+    pub league: Arc<League>,
+    pub index: Arc<crate::splits::SplitIndex>,
+    /// The league's distributions the game review ranks snaps in.
+    pub review: crate::splits::review::LeagueStates,
+}
+
+impl Loaded {
+    fn new(league: League) -> Loaded {
+        let t = std::time::Instant::now();
+        let index = crate::splits::SplitIndex::build(league.plays(), &league.values());
+        tracing::info!(rows = index.len(), "split index built in {:.0} ms", t.elapsed().as_secs_f64() * 1000.0);
+        Loaded { league: Arc::new(league), index: Arc::new(index), review: crate::splits::review::LeagueStates::new() }
+    }
+}
+
 /// What every handler sees.
 pub struct AppState {
-    league: RwLock<Arc<League>>,
+    league: RwLock<Arc<Loaded>>,
     /// Where the league came from and how, for reloading.
     config: LeagueConfig,
     /// Defaults for "our team" and "our passer" (a cookie overrides them).
@@ -99,10 +116,17 @@ pub struct AppState {
     /// The staff's film notes and cut-up lists (None when the database
     /// could not be opened; the rest of the server still works).
     notes: Option<Arc<NoteStore>>,
+    /// Permits for engine work on the blocking pool (`service::engine`).
+    heavy: Arc<tokio::sync::Semaphore>,
 }
 
-/// How many split tables the cache keeps before it starts over.
-const SPLITS_CACHE_SIZE: usize = 128;
+/// How many split tables the cache keeps before it starts over (a table of
+/// 25 seasons is a few MB; the index's memo makes a new one cheap).
+const SPLITS_CACHE_SIZE: usize = 32;
+
+/// Engine requests computed at once; the rest wait their turn without
+/// holding an async worker thread.
+pub const HEAVY_AT_ONCE: usize = 4;
 
 impl AppState {
     fn new(league: League, cfg: AppConfig) -> AppState {
@@ -117,7 +141,8 @@ impl AppState {
             }
         });
         AppState {
-            league: RwLock::new(Arc::new(league)),
+            league: RwLock::new(Arc::new(Loaded::new(league))),
+            heavy: Arc::new(tokio::sync::Semaphore::new(HEAVY_AT_ONCE)),
             config: LeagueConfig { refit: false, ..cfg.league },
             team: cfg.team,
             passer: cfg.passer,
@@ -135,6 +160,11 @@ impl AppState {
     /// The league as loaded now (a reload swaps it; requests in flight keep
     /// the one they started with).
     pub fn league(&self) -> Arc<League> {
+        self.loaded().league.clone()
+    }
+
+    /// The league and its split index as loaded now.
+    pub fn loaded(&self) -> Arc<Loaded> {
         match self.league.read() {
             Ok(g) => g.clone(),
             Err(p) => p.into_inner().clone(),
@@ -148,9 +178,10 @@ impl AppState {
         let note = match result {
             Ok(new) => {
                 let msg = format!("reloaded {}: {} snaps", self.config.path.display(), new.plays().len());
+                let new = Arc::new(Loaded::new(new));
                 match self.league.write() {
-                    Ok(mut g) => *g = Arc::new(new),
-                    Err(p) => *p.into_inner() = Arc::new(new),
+                    Ok(mut g) => *g = new,
+                    Err(p) => *p.into_inner() = new,
                 }
                 if let Ok(mut c) = self.splits_cache.lock() {
                     c.clear();
@@ -171,12 +202,21 @@ impl AppState {
     /// The split table for a situation, minimum and focus passer, computed
     /// once per loaded league. The key is the situation's canonical query.
     pub fn split_table(&self, situation: &crate::situation::Situation, min: u32, focus: Option<&str>) -> Arc<crate::splits::SplitTable> {
-        let league = self.league();
-        let key = format!("{:?}|{min}|{focus:?}|{:p}", situation.to_query(), Arc::as_ptr(&league));
+        if let Some(f) = focus {
+            // A focus passer who is qualified (or absent) changes nothing:
+            // share the table without one.
+            let plain = self.split_table(situation, min, None);
+            if plain.rows.iter().find(|r| r.passer == f).is_none_or(|r| r.qualified) {
+                return plain;
+            }
+        }
+        let loaded = self.loaded();
+        let league = &loaded.league;
+        let key = format!("{:?}|{min}|{focus:?}|{:p}", situation.to_query(), Arc::as_ptr(league));
         if let Some(t) = self.splits_cache.lock().ok().and_then(|c| c.get(&key).cloned()) {
             return t;
         }
-        let t = Arc::new(crate::splits::split_table_for(league.plays(), &league.values(), situation, min, focus));
+        let t = Arc::new(crate::splits::split_table_in(&loaded.index, league.plays(), &league.values(), situation, min, focus));
         if let Ok(mut c) = self.splits_cache.lock() {
             if c.len() >= SPLITS_CACHE_SIZE {
                 c.clear();

@@ -159,6 +159,11 @@ pub fn number_query(situation: &Situation, passer: &str, metric: &str) -> Vec<(S
 }
 
 pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let st2 = st.clone();
+    super::super::service::engine(&st, move || explore_now(st2, headers, q)).await
+}
+
+fn explore_now(st: Shared, headers: HeaderMap, q: Option<String>) -> Response {
     let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
         Err(e) => return refused(&st, &headers, &e, "/explore", q.as_deref()),

@@ -56,7 +56,7 @@ pub(super) const TAG_KEYS: &[&str] = &["epa", "success", "comp_pct", "sack_rate"
 
 /// The passer by the values of tag `asked` (default: the file's first tag
 /// with a list), in `situation`. None when the file has no tags.
-fn tag_section(p: &crate::plays::Plays, v: &splits::SnapValues, name: &str, situation: &Situation, asked: Option<&str>, min: u32, width: f64) -> Option<TagSection> {
+fn tag_section(ix: &splits::SplitIndex, p: &crate::plays::Plays, v: &splits::SnapValues, name: &str, situation: &Situation, asked: Option<&str>, min: u32, width: f64) -> Option<TagSection> {
     let tags = &p.tags;
     if tags.is_empty() {
         return None;
@@ -65,7 +65,7 @@ fn tag_section(p: &crate::plays::Plays, v: &splits::SnapValues, name: &str, situ
     let tag = asked.map(str::to_string).or_else(|| listed.first().map(|&t| tags.names[t].clone())).unwrap_or_default();
     let choices = listed.iter().map(|&t| (tags.names[t].clone(), tags.headers[t].clone(), tags.names[t].eq_ignore_ascii_case(&tag))).collect();
     let mut section = TagSection { tag: tag.clone(), header: tag.clone(), choices, situation: situation.describe(), chart: String::new(), heads: Vec::new(), rows: Vec::new(), note: String::new() };
-    let b = match splits::tag_breakdown(p, v, name, situation, &tag, min) {
+    let b = match splits::tag_breakdown_in(ix, p, v, name, situation, &tag, min) {
         Ok(b) => b,
         Err(e) => {
             section.note = e.to_string();
@@ -122,11 +122,17 @@ pub(super) const BESIDE_KEYS: &[&str] = &["sack_rate", "scramble_rate"];
 pub(super) const PROFILE_KEYS: &[&str] = &["epa", "success", "cpoe", "rating", "anya", "sack_rate", "int_rate", "wpa"];
 
 pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let st2 = st.clone();
+    super::super::service::engine(&st, move || profile_now(st2, headers, q)).await
+}
+
+fn profile_now(st: Shared, headers: HeaderMap, q: Option<String>) -> Response {
     let params = match Params::parse_in(q.as_deref(), st.league().plays()) {
         Ok(p) => p,
         Err(e) => return refused(&st, &headers, &e, "/passer", q.as_deref()),
     };
-    let lg = st.league();
+    let loaded = st.loaded();
+    let (lg, ix) = (&loaded.league, &loaded.index);
     let p = lg.plays();
     let (_, our_passer) = ours(&st, &headers);
     let Some(name) = params.situation.passer.clone().or(our_passer) else {
@@ -134,7 +140,7 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     };
     let trend = trend_situation(&params);
     let base = Situation { passer: None, ..params.situation.clone() };
-    let Some(prof) = splits::profile(p, &lg.values(), &name, &base, &trend, params.min_dropbacks) else {
+    let Some(prof) = splits::profile_with(ix, p, &lg.values(), &name, &base, &trend, &|s: &Situation| st.split_table(s, params.min_dropbacks, Some(&name))) else {
         return error_page(&st, &headers, StatusCode::NOT_FOUND, "No such passer", format!("No passer named {name} in this league."), "/");
     };
     let ch = chrome(&st, &headers, Some(&params), format!("Passer profile: {name}"), "passer", "/passer");
@@ -150,8 +156,8 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     }
     let tag_situation = Situation { seasons: params.situation.seasons.clone(), ..trend.clone() };
     let width = if ch.projector { 560.0 } else { 420.0 };
-    let by_tag = tag_section(p, &lg.values(), &name, &tag_situation, asked_tag.as_deref(), params.min_dropbacks, width);
-    let dist = splits::epa_distribution(p, &lg.values(), &Situation { passer: None, ..trend.clone() }, &name);
+    let by_tag = tag_section(ix, p, &lg.values(), &name, &tag_situation, asked_tag.as_deref(), params.min_dropbacks, width);
+    let dist = splits::epa_distribution_in(ix, p, &lg.values(), &Situation { passer: None, ..trend.clone() }, &name);
     html(&profile_view(ch, &params, &name, &prof, &dist, p, by_tag))
 }
 

@@ -15,9 +15,9 @@ pub(super) fn report_data(st: &Shared, headers: &HeaderMap, q: Option<&str>) -> 
         situation = Situation { passer: situation.passer.clone(), ..Preset::DEFAULT.situation(situation.one_score) };
     }
     let paper = params.paper.as_deref().and_then(crate::report::Paper::parse).unwrap_or(crate::report::Paper::Letter);
-    let lg = st.league();
+    let loaded = st.loaded();
     let screen = report_screen(&params, &situation, &passer);
-    match crate::report::ReportData::build(&lg, &situation, &passer, params.min_dropbacks) {
+    match crate::report::ReportData::build_in(&loaded.league, &loaded.index, &situation, &passer, params.min_dropbacks) {
         Ok(d) => Ok((d, paper, screen)),
         Err(e) => Err(error_page(st, headers, StatusCode::BAD_REQUEST, "No report for that", e.to_string(), "/")),
     }
@@ -55,6 +55,11 @@ pub fn report_screen(params: &Params, situation: &Situation, passer: &str) -> cr
 }
 
 pub async fn report_html(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let st2 = st.clone();
+    super::super::service::engine(&st, move || report_html_now(st2, headers, q)).await
+}
+
+fn report_html_now(st: Shared, headers: HeaderMap, q: Option<String>) -> Response {
     match report_data(&st, &headers, q.as_deref()) {
         Ok((data, paper, screen)) => Html(crate::report::html_with(&data, paper, &screen)).into_response(),
         Err(r) => r,
@@ -62,6 +67,11 @@ pub async fn report_html(State(st): State<Shared>, headers: HeaderMap, RawQuery(
 }
 
 pub async fn report_pdf(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
+    let st2 = st.clone();
+    super::super::service::engine(&st, move || report_pdf_now(st2, headers, q)).await
+}
+
+fn report_pdf_now(st: Shared, headers: HeaderMap, q: Option<String>) -> Response {
     let (data, paper, _) = match report_data(&st, &headers, q.as_deref()) {
         Ok(x) => x,
         Err(r) => return r,
@@ -70,9 +80,8 @@ pub async fn report_pdf(State(st): State<Shared>, headers: HeaderMap, RawQuery(q
     parts.extend(data.query.iter().filter(|(k, _)| k == "preset").map(|(_, v)| v.clone()));
     parts.push(data.seasons_label.clone());
     let name = crate::export::file_name("report", &parts, "pdf");
-    match tokio::task::spawn_blocking(move || crate::report::render_pdf(&data, paper)).await {
-        Ok(Ok(bytes)) => ([(header::CONTENT_TYPE, "application/pdf".to_string()), (header::CONTENT_DISPOSITION, format!("inline; filename=\"{name}\""))], bytes).into_response(),
-        Ok(Err(e)) => error_page(&st, &headers, StatusCode::INTERNAL_SERVER_ERROR, "The PDF could not be made", e.to_string(), "/"),
-        Err(_) => error_page(&st, &headers, StatusCode::INTERNAL_SERVER_ERROR, "The PDF could not be made", "the worker stopped".into(), "/"),
+    match crate::report::render_pdf(&data, paper) {
+        Ok(bytes) => ([(header::CONTENT_TYPE, "application/pdf".to_string()), (header::CONTENT_DISPOSITION, format!("inline; filename=\"{name}\""))], bytes).into_response(),
+        Err(e) => error_page(&st, &headers, StatusCode::INTERNAL_SERVER_ERROR, "The PDF could not be made", e.to_string(), "/"),
     }
 }

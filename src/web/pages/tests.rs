@@ -97,7 +97,9 @@ fn play_list_says_what_it_shows() {
     let pr = params(q.trim_start_matches('?'));
     let snaps = splits::play_list(&f.plays, &f.values(), &pr.situation, pr.situation.passer.as_deref(), None);
     let counted = vec![true; snaps.len()];
-    let page = plays_view(chrome_for(&pr, None, None), &pr, &snaps, &counted, Vec::new());
+    let n = counted.iter().filter(|c| **c).count();
+    let list = crate::web::service::PlayPage { total: snaps.len(), counted_total: Some(n), offset: 0, snaps, counted: Some(counted), next_after: None };
+    let page = plays_view(chrome_for(&pr, None, None), &pr, &list, PLAY_PAGE_LIMIT, Vec::new());
     assert_eq!(page.count, table.rows[0].cells[metric_index("int").unwrap()].value.unwrap_or(0.0) as usize);
     assert!(page.note.contains("exactly the one"), "{}", page.note);
     assert!(!page.marking);

@@ -1,0 +1,180 @@
+//! A load test for `lategame serve`: N clients on keep-alive connections
+//! (plain std threads and TCP, HTTP/1.1) for a while, each asking in turn
+//! for the explorer (all seasons and one season), `/api/splits` and
+//! passer profiles; prints p50/p99, errors and timeouts per endpoint, and
+//! the server's peak RSS when its pid is given.
+//!
+//! `cargo run --release --example loadtest -- http://127.0.0.1:8750 [clients] [seconds] [server pid]`
+
+use std::io::{BufRead, BufReader, Read, Write};
+use std::net::TcpStream;
+use std::sync::{Arc, Mutex};
+use std::time::{Duration, Instant};
+
+/// A request that took longer than this counts as a timeout.
+const TIMEOUT: Duration = Duration::from_secs(10);
+
+#[derive(Default)]
+struct Tally {
+    times_ms: Vec<f64>,
+    errors: usize,
+    timeouts: usize,
+}
+
+/// Read one HTTP/1.1 response (Content-Length or chunked); its status.
+fn read_response(r: &mut BufReader<TcpStream>) -> std::io::Result<u16> {
+    let mut line = String::new();
+    r.read_line(&mut line)?;
+    let status: u16 = line.split_whitespace().nth(1).and_then(|s| s.parse().ok()).ok_or_else(|| std::io::Error::other(format!("bad status line {line:?}")))?;
+    let (mut length, mut chunked) = (None, false);
+    loop {
+        line.clear();
+        r.read_line(&mut line)?;
+        let l = line.trim_end();
+        if l.is_empty() {
+            break;
+        }
+        let lower = l.to_ascii_lowercase();
+        if let Some(v) = lower.strip_prefix("content-length:") {
+            length = v.trim().parse::<usize>().ok();
+        } else if lower.starts_with("transfer-encoding:") && lower.contains("chunked") {
+            chunked = true;
+        }
+    }
+    if chunked {
+        loop {
+            line.clear();
+            r.read_line(&mut line)?;
+            let size = usize::from_str_radix(line.trim(), 16).map_err(std::io::Error::other)?;
+            let mut skip = vec![0u8; size + 2];
+            r.read_exact(&mut skip)?;
+            if size == 0 {
+                break;
+            }
+        }
+    } else if let Some(n) = length {
+        let mut body = vec![0u8; n];
+        r.read_exact(&mut body)?;
+    }
+    Ok(status)
+}
+
+fn connect(host: &str) -> std::io::Result<BufReader<TcpStream>> {
+    let s = TcpStream::connect(host)?;
+    s.set_read_timeout(Some(TIMEOUT))?;
+    s.set_nodelay(true)?;
+    Ok(BufReader::new(s))
+}
+
+fn peak_rss_mib(pid: &str) -> Option<f64> {
+    let s = std::fs::read_to_string(format!("/proc/{pid}/status")).ok()?;
+    let kb: f64 = s.lines().find(|l| l.starts_with("VmHWM:"))?.split_whitespace().nth(1)?.parse().ok()?;
+    Some(kb / 1024.0)
+}
+
+fn pct(v: &[f64], p: f64) -> f64 {
+    if v.is_empty() {
+        return f64::NAN;
+    }
+    v[(((v.len() - 1) as f64) * p).round() as usize]
+}
+
+fn main() {
+    let args: Vec<String> = std::env::args().collect();
+    let base = args.get(1).cloned().unwrap_or_else(|| "http://127.0.0.1:8750".into());
+    let clients: usize = args.get(2).and_then(|s| s.parse().ok()).unwrap_or(32);
+    let secs: u64 = args.get(3).and_then(|s| s.parse().ok()).unwrap_or(30);
+    let pid = args.get(4).cloned();
+    let host = base.trim_start_matches("http://").trim_end_matches('/').to_string();
+
+    // The league's seasons and busiest passers, from the API.
+    let fetch = |path: &str| -> String {
+        let mut body = Vec::new();
+        let got = TcpStream::connect(&host).and_then(|mut s| {
+            write!(s, "GET {path} HTTP/1.0\r\nHost: {host}\r\n\r\n")?;
+            s.read_to_end(&mut body)
+        });
+        let text = String::from_utf8_lossy(&body).into_owned();
+        match (got, text.split_once("\r\n\r\n")) {
+            (Ok(_), Some((_, b))) => b.to_string(),
+            _ => String::new(),
+        }
+    };
+    let summary: serde_json::Value = serde_json::from_str(&fetch("/api/summary")).unwrap_or_default();
+    let last = summary["seasons"].as_array().and_then(|a| a.last()).and_then(|s| s.as_i64()).unwrap_or(2024);
+    let table: serde_json::Value = serde_json::from_str(&fetch(&format!("/api/splits?preset=every-snap&season={last}"))).unwrap_or_default();
+    let passers: Vec<String> = table["rows"].as_array().map(|r| r.iter().take(6).filter_map(|x| x["passer"].as_str().map(str::to_string)).collect()).unwrap_or_default();
+    let enc = |s: &str| s.bytes().map(|b| if b.is_ascii_alphanumeric() { (b as char).to_string() } else { format!("%{b:02X}") }).collect::<String>();
+    let mut endpoints: Vec<(String, Vec<String>)> = vec![
+        ("explore, all seasons".into(), vec!["/explore?preset=end-of-game".into()]),
+        ("explore, one season".into(), vec![format!("/explore?preset=end-of-game&season={last}")]),
+        ("/api/splits".into(), vec!["/api/splits?preset=end-of-game".into(), format!("/api/splits?preset=two-minute-drill&season={last}")]),
+    ];
+    endpoints.push(("passer profile".into(), passers.iter().map(|p| format!("/passer?passer={}", enc(p))).collect()));
+    println!("load test: {clients} clients, {secs} s, {base}; passers: {}", passers.join(", "));
+
+    let tallies: Arc<Vec<Mutex<Tally>>> = Arc::new(endpoints.iter().map(|_| Mutex::new(Tally::default())).collect());
+    let endpoints = Arc::new(endpoints);
+    let stop = Instant::now() + Duration::from_secs(secs);
+    let threads: Vec<_> = (0..clients)
+        .map(|c| {
+            let (tallies, endpoints, host) = (tallies.clone(), endpoints.clone(), host.clone());
+            std::thread::spawn(move || {
+                let mut conn = connect(&host).ok();
+                let mut k = c;
+                while Instant::now() < stop {
+                    let e = k % endpoints.len();
+                    let urls = &endpoints[e].1;
+                    let url = &urls[(k / endpoints.len()) % urls.len().max(1)];
+                    k += 1;
+                    let t = Instant::now();
+                    let result = (|| -> std::io::Result<u16> {
+                        if conn.is_none() {
+                            conn = Some(connect(&host)?);
+                        }
+                        let r = conn.as_mut().ok_or_else(|| std::io::Error::other("no connection"))?;
+                        write!(r.get_mut(), "GET {url} HTTP/1.1\r\nHost: {host}\r\nConnection: keep-alive\r\n\r\n")?;
+                        read_response(r)
+                    })();
+                    let ms = t.elapsed().as_secs_f64() * 1000.0;
+                    let mut tally = tallies[e].lock().unwrap_or_else(|p| p.into_inner());
+                    match result {
+                        Ok(200) => tally.times_ms.push(ms),
+                        Ok(_) => tally.errors += 1,
+                        Err(err) if matches!(err.kind(), std::io::ErrorKind::WouldBlock | std::io::ErrorKind::TimedOut) => {
+                            tally.timeouts += 1;
+                            conn = None;
+                        }
+                        Err(_) => {
+                            tally.errors += 1;
+                            conn = None;
+                        }
+                    }
+                }
+            })
+        })
+        .collect();
+    for t in threads {
+        let _ = t.join();
+    }
+    println!("{:<22} {:>9} {:>8} {:>9} {:>9} {:>7} {:>9}", "endpoint", "requests", "req/s", "p50 ms", "p99 ms", "errors", "timeouts");
+    for (e, (name, _)) in endpoints.iter().enumerate() {
+        let mut t = tallies[e].lock().unwrap_or_else(|p| p.into_inner());
+        t.times_ms.sort_by(f64::total_cmp);
+        let n = t.times_ms.len();
+        println!(
+            "{name:<22} {n:>9} {:>8.1} {:>9.1} {:>9.1} {:>7} {:>9}",
+            n as f64 / secs as f64,
+            pct(&t.times_ms, 0.5),
+            pct(&t.times_ms, 0.99),
+            t.errors,
+            t.timeouts
+        );
+    }
+    if let Some(pid) = pid {
+        match peak_rss_mib(&pid) {
+            Some(mib) => println!("server peak RSS (VmHWM) {mib:.0} MiB"),
+            None => println!("server peak RSS: /proc/{pid}/status not readable"),
+        }
+    }
+}

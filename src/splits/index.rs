@@ -1,0 +1,469 @@
+//! The split index, built once per loaded league: its dropbacks with a
+//! passer in compact columns, ordered by period and clock left in the half
+//! (so clock windows are ranges of rows), dense passer-season ids, and each
+//! snap's metric contributions folded into a few distinct columns. The
+//! pass over a situation (`pass`) reads it; filters it does not cover fall
+//! back to `Situation::matches` on each candidate row.
+
+use super::metrics::{cell, contributions, SnapValues, METRICS};
+use crate::plays::{Plays, NO_PASSER};
+use crate::situation::{Range, Situation, OT};
+use rayon::prelude::*;
+use std::collections::HashMap;
+use std::sync::{Arc, Mutex};
+
+/// Rows per piece of work handed to rayon (fixed, so the pieces and hence
+/// the sums are the same on every machine).
+pub(super) const CHUNK: usize = 32_768;
+
+/// How a metric's per-snap value is kept.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(super) enum Col {
+    /// Always 1 on the metric's snaps: its sum is its unit's count.
+    One,
+    /// 0 or 1: bit `k` of the row's flags.
+    Bit(usize),
+    /// A whole number: `ints[row * n_ints + k]`.
+    Int(usize),
+    /// Any other number: `reals[row * n_reals + k]`.
+    Real(usize),
+}
+
+/// Where each metric's running sums live in a base vector: `[rows, unit
+/// counts.., bit sums.., (int sum, int sum of squares).., (real sum, real
+/// sum of squares)..]`.
+#[derive(Debug, Clone)]
+pub(super) struct Layout {
+    pub(super) units: usize,
+    pub(super) unit_of: Vec<usize>,
+    pub(super) col_of: Vec<Col>,
+    pub(super) bits: usize,
+    pub(super) ints: usize,
+    pub(super) reals: usize,
+}
+
+impl Layout {
+    pub(super) fn width(&self) -> usize {
+        1 + self.units + self.bits + 2 * self.ints + 2 * self.reals
+    }
+    /// (count, sum, sum of squares) of metric `j` in base vector `b`.
+    pub(super) fn acc(&self, b: &[f64], j: usize) -> (f64, f64, f64) {
+        let n = b[1 + self.unit_of[j]];
+        let o_bit = 1 + self.units;
+        let o_int = o_bit + self.bits;
+        let o_real = o_int + 2 * self.ints;
+        match self.col_of[j] {
+            Col::One => (n, n, n),
+            Col::Bit(k) => (n, b[o_bit + k], b[o_bit + k]),
+            Col::Int(k) => (n, b[o_int + 2 * k], b[o_int + 2 * k + 1]),
+            Col::Real(k) => (n, b[o_real + 2 * k], b[o_real + 2 * k + 1]),
+        }
+    }
+}
+
+/// The league's dropbacks with a passer, for the split engine.
+pub struct SplitIndex {
+    pub(super) layout: Layout,
+    /// Snaps in the league it was built from (a check that it still fits).
+    pub(super) n_snaps: usize,
+    /// Dense season id → season, ascending.
+    pub(super) seasons: Vec<i32>,
+    /// Dense passer-season id → (passer, dense season id), ascending.
+    pub(super) ps_key: Vec<(u32, u16)>,
+    pub(super) n_passers: usize,
+    /// Row ranges per period group (`period.min(OT)`), rows within a group
+    /// ascending by seconds left in the half, then by snap.
+    blocks: Vec<(i32, std::ops::Range<usize>)>,
+    /// Per block: seconds left in regulation minus in the half, when it is
+    /// the same on every row of the block (then a game-clock window is a
+    /// half-clock window).
+    game_offset: Vec<Option<i32>>,
+    // ---- per row ----
+    pub(super) snap: Vec<u32>,
+    pub(super) ps: Vec<u32>,
+    pub(super) team: Vec<u16>,
+    pub(super) cell: Vec<u8>,
+    secs_half: Vec<i32>,
+    secs_game: Vec<i32>,
+    margin: Vec<i32>,
+    down: Vec<i32>,
+    to_go: Vec<i32>,
+    ball_on: Vec<i32>,
+    pub(super) units: Vec<u16>,
+    pub(super) bits: Vec<u32>,
+    pub(super) ints: Vec<i32>,
+    pub(super) reals: Vec<f64>,
+    /// Pass results per situation without its season and passer filters.
+    pub(super) memo: Mutex<HashMap<String, Arc<Memo>>>,
+}
+
+/// A situation's pass over the index, its season filter aside: base sums
+/// (see `Layout`) per passer-season and per season × state cell, unit
+/// counts per passer-season × cell, and each passer-season's last snap.
+pub(crate) struct Memo {
+    pub(super) width: usize,
+    /// n_ps × width.
+    pub(super) ps: Vec<f64>,
+    /// n_seasons × CELLS × width.
+    pub(super) season_cells: Vec<f64>,
+    /// Nonzero (passer-season × CELLS + cell) keys, ascending, and their
+    /// unit counts (units each).
+    pub(super) ps_cell_keys: Vec<u32>,
+    pub(super) ps_cell_counts: Vec<u32>,
+    /// Per passer-season: (last snap + 1, its offense); 0 when none.
+    pub(super) last: Vec<(u32, u16)>,
+}
+
+/// How many situations' passes the index keeps before it starts over.
+/// (A pass over 25 seasons keeps about 1-4 MB.)
+pub(super) const MEMO_SIZE: usize = 16;
+
+/// What the classification pass learns about each metric's values.
+#[derive(Clone)]
+struct Seen {
+    one: Vec<bool>,
+    bit: Vec<bool>,
+    int: Vec<bool>,
+    /// Bit k: metric k (earlier, same unit) had the same value on every row.
+    same: Vec<u64>,
+}
+
+impl Seen {
+    fn new(unit_of: &[usize]) -> Seen {
+        let nm = unit_of.len();
+        let same = (0..nm).map(|j| (0..j).filter(|&k| unit_of[k] == unit_of[j]).fold(0u64, |m, k| m | (1 << k))).collect();
+        Seen { one: vec![true; nm], bit: vec![true; nm], int: vec![true; nm], same }
+    }
+    fn see(&mut self, vals: &[f64], mask: u64) {
+        for j in 0..vals.len() {
+            if mask & (1 << j) == 0 {
+                continue;
+            }
+            let x = vals[j];
+            self.one[j] &= x == 1.0;
+            self.bit[j] &= x == 0.0 || x == 1.0;
+            self.int[j] &= x.is_finite() && x.fract() == 0.0 && x.abs() < 2e9;
+            let mut s = self.same[j];
+            while s != 0 {
+                let k = s.trailing_zeros() as usize;
+                s &= s - 1;
+                if vals[k] != x || x.is_nan() {
+                    self.same[j] &= !(1 << k);
+                }
+            }
+        }
+    }
+    fn merge(mut self, o: &Seen) -> Seen {
+        for j in 0..self.one.len() {
+            self.one[j] &= o.one[j];
+            self.bit[j] &= o.bit[j];
+            self.int[j] &= o.int[j];
+            self.same[j] &= o.same[j];
+        }
+        self
+    }
+}
+
+/// Every metric's contribution of snap `i`, zero outside its unit.
+fn row_values(p: &Plays, v: &SnapValues, i: usize, vals: &mut [f64]) -> u64 {
+    let mask = contributions(p, v, i, vals);
+    for (j, x) in vals.iter_mut().enumerate() {
+        if mask & (1 << j) == 0 {
+            *x = 0.0;
+        }
+    }
+    mask
+}
+
+fn layout_from(seen: &Seen, unit_of: Vec<usize>) -> Layout {
+    let nm = unit_of.len();
+    let units = unit_of.iter().max().map_or(0, |u| u + 1);
+    let (mut bits, mut ints, mut reals) = (0, 0, 0);
+    let mut col_of: Vec<Col> = Vec::with_capacity(nm);
+    for j in 0..nm {
+        let col = if seen.same[j] != 0 {
+            col_of[seen.same[j].trailing_zeros() as usize]
+        } else if seen.one[j] {
+            Col::One
+        } else if seen.bit[j] && bits < 32 {
+            bits += 1;
+            Col::Bit(bits - 1)
+        } else if seen.int[j] {
+            ints += 1;
+            Col::Int(ints - 1)
+        } else {
+            reals += 1;
+            Col::Real(reals - 1)
+        };
+        col_of.push(col);
+    }
+    Layout { units, unit_of, col_of, bits, ints, reals }
+}
+
+impl SplitIndex {
+    /// Index the league `p` with its model values `v` (a few tenths of a
+    /// second on 25 seasons; once per load).
+    pub fn build(p: &Plays, v: &SnapValues) -> SplitIndex {
+        let nm = METRICS.len();
+        assert!(nm <= 64, "the per-snap metric mask holds 64 metrics");
+        let unit_of: Vec<usize> = METRICS.iter().map(|m| m.unit as usize).collect();
+        let group = |i: usize| p.period[i].min(OT);
+        // Sort keys packed in one word (period group, seconds left in the
+        // half, snap), computed in one pass in snap order.
+        let key = |i: usize| {
+            let g = (group(i).clamp(-1, 14) + 1) as u64;
+            let secs = (p.secs_half[i].clamp(-32_768, 32_767) + 32_768) as u64;
+            g << 48 | secs << 32 | i as u64
+        };
+        let mut keys: Vec<u64> = (0..p.len()).filter(|&i| p.dropback[i] && p.passer[i] != NO_PASSER).map(key).collect();
+        keys.par_sort_unstable();
+        let snaps: Vec<u32> = keys.iter().map(|&k| k as u32).collect();
+        drop(keys);
+
+        // Pass 1: which metrics are constant, 0/1, whole numbers, or equal.
+        let seen = snaps
+            .par_chunks(CHUNK)
+            .map(|rows| {
+                let mut seen = Seen::new(&unit_of);
+                let mut vals = vec![0.0; nm];
+                for &i in rows {
+                    let mask = row_values(p, v, i as usize, &mut vals);
+                    seen.see(&vals, mask);
+                }
+                seen
+            })
+            .collect::<Vec<_>>()
+            .into_iter()
+            .fold(Seen::new(&unit_of), |a, b| a.merge(&b));
+        let layout = layout_from(&seen, unit_of);
+
+        // Dense seasons and passer-seasons.
+        let mut seasons: Vec<i32> = snaps.iter().map(|&i| p.season[i as usize]).collect();
+        seasons.par_sort_unstable();
+        seasons.dedup();
+        let season_id = |s: i32| seasons.binary_search(&s).unwrap_or(0) as u16;
+        let mut ps_key: Vec<(u32, u16)> = snaps.iter().map(|&i| (p.passer[i as usize], season_id(p.season[i as usize]))).collect();
+        ps_key.par_sort_unstable();
+        ps_key.dedup();
+
+        // Pass 2: the columns.
+        let n = snaps.len();
+        let mut ix = SplitIndex {
+            n_snaps: p.len(),
+            seasons: Vec::new(),
+            ps_key: Vec::new(),
+            n_passers: p.passers.len(),
+            blocks: Vec::new(),
+            game_offset: Vec::new(),
+            snap: Vec::with_capacity(n),
+            ps: Vec::with_capacity(n),
+            team: Vec::with_capacity(n),
+            cell: Vec::with_capacity(n),
+            secs_half: Vec::with_capacity(n),
+            secs_game: Vec::with_capacity(n),
+            margin: Vec::with_capacity(n),
+            down: Vec::with_capacity(n),
+            to_go: Vec::with_capacity(n),
+            ball_on: Vec::with_capacity(n),
+            units: Vec::with_capacity(n),
+            bits: Vec::with_capacity(n),
+            ints: Vec::with_capacity(n * layout.ints),
+            reals: Vec::with_capacity(n * layout.reals),
+            memo: Mutex::new(HashMap::new()),
+            layout,
+        };
+        let lay = &ix.layout;
+        let parts: Vec<(Vec<u32>, Vec<u16>, Vec<u32>, Vec<i32>, Vec<f64>)> = snaps
+            .par_chunks(CHUNK)
+            .map(|rows| {
+                let mut vals = vec![0.0; nm];
+                let (mut ps, mut units, mut bits) = (Vec::with_capacity(rows.len()), Vec::with_capacity(rows.len()), Vec::with_capacity(rows.len()));
+                let (mut ints, mut reals) = (vec![0; rows.len() * lay.ints], vec![0.0; rows.len() * lay.reals]);
+                for (r, &i) in rows.iter().enumerate() {
+                    let i = i as usize;
+                    let mask = row_values(p, v, i, &mut vals);
+                    let key = (p.passer[i], season_id(p.season[i]));
+                    ps.push(ps_key.binary_search(&key).unwrap_or(0) as u32);
+                    let (mut u, mut b) = (0u16, 0u32);
+                    for j in 0..nm {
+                        if mask & (1 << j) == 0 {
+                            continue;
+                        }
+                        u |= 1 << lay.unit_of[j];
+                        match lay.col_of[j] {
+                            Col::One => {}
+                            Col::Bit(k) => b |= u32::from(vals[j] == 1.0) << k,
+                            Col::Int(k) => ints[r * lay.ints + k] = vals[j] as i32,
+                            Col::Real(k) => reals[r * lay.reals + k] = vals[j],
+                        }
+                    }
+                    units.push(u);
+                    bits.push(b);
+                }
+                (ps, units, bits, ints, reals)
+            })
+            .collect();
+        for (ps, units, bits, ints, reals) in parts {
+            ix.ps.extend(ps);
+            ix.units.extend(units);
+            ix.bits.extend(bits);
+            ix.ints.extend(ints);
+            ix.reals.extend(reals);
+        }
+        for &i in &snaps {
+            let i = i as usize;
+            ix.snap.push(i as u32);
+            ix.team.push(p.offense[i]);
+            ix.cell.push(cell(p, i) as u8);
+            ix.secs_half.push(p.secs_half[i]);
+            ix.secs_game.push(p.secs_game[i]);
+            ix.margin.push(p.margin[i]);
+            ix.down.push(p.down[i]);
+            ix.to_go.push(p.to_go[i]);
+            ix.ball_on.push(p.ball_on[i]);
+        }
+        let mut start = 0;
+        while start < n {
+            let g = group(snaps[start] as usize);
+            let end = start + snaps[start..].partition_point(|&i| group(i as usize) == g);
+            let off = ix.secs_game[start] - ix.secs_half[start];
+            let same = (start..end).all(|r| ix.secs_game[r] - ix.secs_half[r] == off);
+            ix.blocks.push((g, start..end));
+            ix.game_offset.push(same.then_some(off));
+            start = end;
+        }
+        ix.seasons = seasons;
+        ix.ps_key = ps_key;
+        ix
+    }
+
+    /// Rows in the index.
+    pub fn len(&self) -> usize {
+        self.snap.len()
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.snap.is_empty()
+    }
+
+    /// Was it built from a league of this many snaps?
+    pub fn fits(&self, p: &Plays) -> bool {
+        self.n_snaps == p.len()
+    }
+
+    /// Forget every memoised pass (tests time the pass itself with it).
+    pub fn forget(&self) {
+        if let Ok(mut m) = self.memo.lock() {
+            m.clear();
+        }
+    }
+}
+
+/// The rows a situation (its season and passer filters aside) keeps: row
+/// ranges from the clock windows, the filters the index holds checked on
+/// its columns, and `Situation::matches` on what is left over.
+pub(super) struct Plan {
+    pub(super) ranges: Vec<std::ops::Range<usize>>,
+    margin: Option<Range>,
+    downs: Option<Vec<i32>>,
+    to_go: Option<Range>,
+    ball_on: Option<Range>,
+    game_secs: Vec<Option<Range>>,
+    /// The filters the index does not hold; None when there are none.
+    rest: Option<Situation>,
+}
+
+/// `s` without the filters the index holds (and without seasons and
+/// passer, which the pass leaves to its caller).
+fn leftover(s: &Situation) -> Situation {
+    Situation {
+        preset: None,
+        one_score: 8,
+        periods: None,
+        half_secs: None,
+        game_secs: None,
+        margin: None,
+        downs: None,
+        to_go: None,
+        ball_on: None,
+        seasons: None,
+        passer: None,
+        ..s.clone()
+    }
+}
+
+/// The key of a situation's pass: everything but seasons and passer.
+pub(super) fn memo_key(s: &Situation) -> String {
+    format!("{:?}", Situation { preset: None, one_score: 8, seasons: None, passer: None, ..s.clone() })
+}
+
+impl Plan {
+    pub(super) fn new(ix: &SplitIndex, s: &Situation) -> Plan {
+        let rest = leftover(s);
+        let rest = (rest != Situation::default()).then_some(rest);
+        let mut ranges = Vec::new();
+        let mut game_secs = Vec::new();
+        for (b, (g, rows)) in ix.blocks.iter().enumerate() {
+            if s.periods.as_ref().is_some_and(|ps| !ps.contains(g)) {
+                continue;
+            }
+            // Seconds left in the half: a range of rows.
+            let mut lo = s.half_secs.and_then(|r| r.lo).map_or(f64::NEG_INFINITY, |x| x);
+            let mut hi = s.half_secs.and_then(|r| r.hi).map_or(f64::INFINITY, |x| x);
+            let mut check_game = None;
+            if *g < OT {
+                if let Some(r) = s.game_secs {
+                    match ix.game_offset[b] {
+                        Some(off) => {
+                            lo = lo.max(r.lo.map_or(f64::NEG_INFINITY, |x| x - off as f64));
+                            hi = hi.min(r.hi.map_or(f64::INFINITY, |x| x - off as f64));
+                        }
+                        None => check_game = Some(r),
+                    }
+                }
+            }
+            let secs = &ix.secs_half[rows.clone()];
+            let a = rows.start + secs.partition_point(|&x| (x as f64) < lo);
+            let z = rows.start + secs.partition_point(|&x| (x as f64) <= hi);
+            if a < z {
+                ranges.push(a..z);
+                game_secs.push(check_game);
+            }
+        }
+        Plan { ranges, margin: s.margin, downs: s.downs.clone(), to_go: s.to_go, ball_on: s.ball_on, game_secs, rest }
+    }
+
+    /// Does row `r` of range number `k` belong?
+    #[inline]
+    pub(super) fn keeps(&self, ix: &SplitIndex, p: &Plays, v: &SnapValues, k: usize, r: usize) -> bool {
+        let within = |range: &Option<Range>, x: i32| range.as_ref().is_none_or(|q| q.contains(x as f64));
+        within(&self.game_secs[k], ix.secs_game[r])
+            && within(&self.margin, ix.margin[r])
+            && self.downs.as_ref().is_none_or(|d| d.contains(&ix.down[r]))
+            && (self.to_go.is_none() || (ix.down[r] != 0 && within(&self.to_go, ix.to_go[r])))
+            && within(&self.ball_on, ix.ball_on[r])
+            && self.rest.as_ref().is_none_or(|s| s.matches(p, v.wp, ix.snap[r] as usize))
+    }
+
+    /// The ranges cut into pieces of at most `CHUNK` rows, in row order.
+    pub(super) fn pieces(&self) -> Vec<Vec<(usize, std::ops::Range<usize>)>> {
+        let mut out = vec![Vec::new()];
+        let mut room = CHUNK;
+        for (k, r) in self.ranges.iter().enumerate() {
+            let mut a = r.start;
+            while a < r.end {
+                if room == 0 {
+                    out.push(Vec::new());
+                    room = CHUNK;
+                }
+                let z = (a + room).min(r.end);
+                if let Some(last) = out.last_mut() {
+                    last.push((k, a..z));
+                }
+                room -= z - a;
+                a = z;
+            }
+        }
+        out
+    }
+}
