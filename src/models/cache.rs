@@ -17,7 +17,9 @@ pub struct Entry {
     pub fingerprint: String,
     pub model_version: String,
     pub models: Models,
-    pub calibration: Calibration,
+    /// `None` until the held-out calibration has been computed.
+    #[serde(default)]
+    pub calibration: Option<Calibration>,
 }
 
 /// The cache folder: `$LATEGAME_CACHE_DIR` if set and non-empty, else
@@ -63,7 +65,7 @@ pub fn store(
     dir: &Path,
     fingerprint: &str,
     models: &Models,
-    calibration: &Calibration,
+    calibration: Option<&Calibration>,
 ) -> anyhow::Result<PathBuf> {
     std::fs::create_dir_all(dir)
         .with_context(|| format!("creating model cache folder {}", dir.display()))?;
@@ -71,7 +73,7 @@ pub fn store(
         fingerprint: fingerprint.to_string(),
         model_version: MODEL_VERSION.to_string(),
         models: models.clone(),
-        calibration: calibration.clone(),
+        calibration: calibration.cloned(),
     };
     let path = dir.join(file_name(fingerprint));
     let tmp = dir.join(format!(

@@ -87,11 +87,20 @@ pub struct Calibration {
     pub headline: StratumBin,
 }
 
+/// Most seasons held out in turn: the latest ones. Each is one refit of
+/// every model, so a long file would otherwise spend minutes on them.
+pub const MAX_HELDOUT_SEASONS: usize = 6;
+
+/// Told after each held-out fit: (fits done, fits in all); returns false
+/// to stop the calibration (it then ends in `CalibError::Cancelled`).
+pub type Progress<'a> = &'a dyn Fn(usize, usize) -> bool;
+
 /// Options for `calibrate_with`.
 #[derive(Debug, Clone, Copy, Default)]
 pub struct CalibOptions {
-    /// `None`: leave one season out with >= 3 seasons, the last season with
-    /// 2, the last fifth of games with 1.
+    /// `None`: leave one season out with >= 3 seasons (the latest
+    /// `MAX_HELDOUT_SEASONS` of them), the last season with 2, the last
+    /// fifth of games with 1.
     pub plan: Option<Plan>,
 }
 
@@ -175,17 +184,30 @@ fn folds(plays: &Plays, plan: Option<Plan>) -> anyhow::Result<(Plan, Vec<Fold>, 
         Fold { train, test, season: Some(s) }
     };
     Ok(match plan {
-        Plan::LeaveOneSeasonOut => (
-            plan,
-            seasons.iter().map(|&s| season_fold(s)).collect(),
-            format!(
-                "each of the {} seasons in turn ({}-{}), predicted by models fit on the other {}",
-                seasons.len(),
-                seasons[0],
-                last,
-                seasons.len() - 1
-            ),
-        ),
+        Plan::LeaveOneSeasonOut => {
+            let held = &seasons[seasons.len().saturating_sub(MAX_HELDOUT_SEASONS)..];
+            let words = if held.len() == seasons.len() {
+                format!(
+                    "each of the {} seasons in turn ({}-{}), predicted by models fit on the other {}",
+                    seasons.len(),
+                    seasons[0],
+                    last,
+                    seasons.len() - 1
+                )
+            } else {
+                format!(
+                    "each of the last {} of the {} seasons in turn ({}-{}), predicted by models fit on the other {}; seasons {}-{} are only trained on",
+                    held.len(),
+                    seasons.len(),
+                    held[0],
+                    last,
+                    seasons.len() - 1,
+                    seasons[0],
+                    seasons[seasons.len() - held.len() - 1]
+                )
+            };
+            (plan, held.iter().map(|&s| season_fold(s)).collect(), words)
+        }
         Plan::LastSeason => (
             plan,
             vec![season_fold(last)],
@@ -257,13 +279,29 @@ pub fn calibrate_from(
     opts: &CalibOptions,
     init: Option<&Models>,
 ) -> anyhow::Result<Calibration> {
+    calibrate_watched(plays, opts, init, &|_, _| true)
+}
+
+/// `calibrate_from`, telling `progress` after each held-out fit.
+pub fn calibrate_watched(
+    plays: &Plays,
+    opts: &CalibOptions,
+    init: Option<&Models>,
+    progress: Progress,
+) -> anyhow::Result<Calibration> {
     let (plan, folds, holdout) = folds(plays, opts.plan)?;
     let mut preds = Vec::new();
     let mut cp = (Vec::new(), Vec::new());
     let mut by_season = Vec::new();
-    for f in &folds {
+    if !progress(0, folds.len()) {
+        anyhow::bail!("calibration cancelled");
+    }
+    for (k, f) in folds.iter().enumerate() {
         let from = preds.len();
         predict(plays, f, init, &mut preds, &mut cp)?;
+        if !progress(k + 1, folds.len()) {
+            anyhow::bail!("calibration cancelled");
+        }
         if let (Plan::LeaveOneSeasonOut, Some(season)) = (plan, f.season) {
             let p = &preds[from..];
             let actual: Vec<f64> = p.iter().map(|x| x.actual).collect();

@@ -8,6 +8,7 @@ pub mod clock;
 pub mod cp;
 pub mod ep;
 pub mod logit;
+pub mod pending;
 pub mod score;
 pub mod strata;
 #[cfg(test)]
@@ -16,12 +17,14 @@ pub mod wp;
 
 pub use calib::{calibrate_with, CalibOptions, Calibration, Plan};
 pub use logit::FitStats as ModelReport;
+pub use pending::{CalibStatus, CalibrationCell};
 
 use crate::playfile::{rows_frame, PlayRow};
 use crate::plays::Plays;
 use anyhow::Context;
 use polars::prelude::{Column, DataFrame};
 use serde::{Deserialize, Serialize};
+use std::sync::Arc;
 
 /// Bumped whenever features, labels or conventions change; part of the cache key.
 pub const MODEL_VERSION: &str = "lategame-models-4";
@@ -67,13 +70,22 @@ pub struct Scores {
 
 /// A league with its scores and the models and calibration behind them.
 pub struct Scored {
-    pub plays: Plays,
+    /// Shared with the background calibration while it runs.
+    pub plays: Arc<Plays>,
     pub scores: Scores,
     pub models: Models,
-    pub calibration: Calibration,
+    /// Ready when cached; else computed in the background (`pending`).
+    pub calibration: CalibrationCell,
     pub fingerprint: String,
-    /// True when models and calibration came from the cache.
+    /// True when the models came from the cache.
     pub from_cache: bool,
+}
+
+impl Drop for Scored {
+    /// A league no longer served stops calibrating.
+    fn drop(&mut self) {
+        self.calibration.cancel();
+    }
 }
 
 fn options() -> logit::FitOptions {
@@ -163,9 +175,11 @@ pub fn calibrate(plays: &Plays) -> anyhow::Result<Calibration> {
     calibrate_with(plays, &CalibOptions::default())
 }
 
-/// Models and calibration from the cache when an entry for `fingerprint`
-/// exists (unless `refit`), else fitted and stored; then every snap scored.
-/// A cache that cannot be read or written is logged and otherwise ignored.
+/// Models from the cache when an entry for `fingerprint` exists (unless
+/// `refit`), else fitted and stored; then every snap scored. The
+/// calibration comes from the same entry, or is computed on a background
+/// thread once the snaps are scored and then stored beside the models. A
+/// cache that cannot be read or written is logged and otherwise ignored.
 pub fn fit_and_score(plays: Plays, fingerprint: &str, refit: bool) -> anyhow::Result<Scored> {
     let dir = cache::cache_dir();
     fit_and_score_in(plays, fingerprint, refit, dir.as_deref())
@@ -192,18 +206,24 @@ pub fn fit_and_score_in(
         Some(e) => (e.models, e.calibration, true),
         None => {
             let models = fit(&plays)?;
-            let calibration =
-                calib::calibrate_from(&plays, &CalibOptions::default(), Some(&models))?;
             if let Some(d) = dir {
-                match cache::store(d, fingerprint, &models, &calibration) {
+                match cache::store(d, fingerprint, &models, None) {
                     Ok(p) => tracing::info!("fitted models cached in {}", p.display()),
                     Err(e) => tracing::warn!("could not cache the fitted models: {e:#}"),
                 }
             }
-            (models, calibration, false)
+            (models, None, false)
         }
     };
     let scores = models.score(&plays);
+    let plays = Arc::new(plays);
+    let calibration = match calibration {
+        Some(c) => CalibrationCell::ready(c),
+        None => {
+            let store = dir.map(|d| (d.to_path_buf(), fingerprint.to_string()));
+            CalibrationCell::spawn(plays.clone(), models.clone(), store)
+        }
+    };
     Ok(Scored {
         plays,
         scores,
@@ -213,7 +233,6 @@ pub fn fit_and_score_in(
         from_cache,
     })
 }
-
 
 /// The scored league as one frame: every column of the play file (same
 /// names and layout as `playfile::rows_frame`; `complete`/`intercepted`
@@ -372,8 +391,11 @@ mod tests {
         let _ = std::fs::remove_dir_all(&dir);
         let first = fit_and_score_in(small(), "synthetic-42", false, Some(&dir)).expect("first");
         assert!(!first.from_cache);
+        // The calibration is computed in the background, then cached.
+        let cal1 = first.calibration.wait().expect("calibration");
         let second = fit_and_score_in(small(), "synthetic-42", false, Some(&dir)).expect("second");
         assert!(second.from_cache);
+        let cal2 = second.calibration.get().expect("the calibration came from the cache");
         // JSON keeps coefficients to the last bit or so (serde_json's
         // default float parser may differ by one unit in the last place).
         let close = |a: &[f64], b: &[f64]| {
@@ -389,16 +411,19 @@ mod tests {
             first.models.report.ep.iterations,
             second.models.report.ep.iterations
         );
-        assert!((first.calibration.wp.brier - second.calibration.wp.brier).abs() < 1e-12);
+        assert!((cal1.wp.brier - cal2.wp.brier).abs() < 1e-12);
         let forced = fit_and_score_in(small(), "synthetic-42", true, Some(&dir)).expect("refit");
         assert!(!forced.from_cache);
+        forced.calibration.wait().expect("calibration");
         let other = fit_and_score_in(small(), "another-file", false, Some(&dir)).expect("other");
         assert!(!other.from_cache);
+        other.calibration.wait().expect("calibration");
         // A corrupt entry is a miss, not an error.
         std::fs::write(dir.join(cache::file_name("synthetic-42")), "{not json").expect("write");
         let again =
             fit_and_score_in(small(), "synthetic-42", false, Some(&dir)).expect("corrupt cache");
         assert!(!again.from_cache);
+        drop(again);
         let _ = std::fs::remove_dir_all(&dir);
     }
 
@@ -445,6 +470,15 @@ mod tests {
         let last = calibrate_with(&plays, &CalibOptions { plan: Some(Plan::LastSeason) }).expect("last");
         assert_eq!(last.holdout_season, Some(2002));
         assert_eq!(last.train_snaps + last.test_snaps, plays.len());
+        // Many seasons: only the latest MAX_HELDOUT_SEASONS are held out.
+        let many = testkit::league(160, 8, 3);
+        let c = calibrate(&many).expect("eight seasons");
+        assert_eq!(c.plan, Plan::LeaveOneSeasonOut);
+        let held: Vec<i32> = c.by_season.iter().map(|s| s.season).collect();
+        assert_eq!(held, (2002..=2007).collect::<Vec<_>>());
+        assert!(c.holdout.starts_with("each of the last 6 of the 8 seasons in turn (2002-2007)"), "{}", c.holdout);
+        assert!(c.holdout.contains("seasons 2000-2001 are only trained on"), "{}", c.holdout);
+        assert_eq!(c.test_snaps, (0..many.len()).filter(|&i| many.season[i] >= 2002).count());
         // One season: the last fifth of games, said plainly.
         let one = testkit::league(60, 1, 9);
         let c = calibrate(&one).expect("one season");
@@ -500,7 +534,7 @@ mod tests {
             cal.wp.brier,
             cal.baseline.brier
         );
-        cache::store(&dir, "timing", &models, &cal).expect("store");
+        cache::store(&dir, "timing", &models, Some(&cal)).expect("store");
         let t = std::time::Instant::now();
         let warm = fit_and_score_in(plays, "timing", false, Some(&dir)).expect("warm");
         eprintln!(
