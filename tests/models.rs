@@ -184,7 +184,7 @@ fn pregame_gap(d: &Demo, sigma: f64) -> f64 {
                 margin: 0.0,
                 secs_game: 3600.0,
                 overtime: false,
-                ep: m.ep.kickoff(1800),
+                ep: m.ep.kickoff(1800, models::ep::ScoreClock::NEUTRAL),
                 off_timeouts: 3.0,
                 def_timeouts: 3.0,
                 off_home,
@@ -378,8 +378,13 @@ fn held_out_seasons_are_calibrated() {
 /// within 8), every season held out in turn: each of five equal-count WP
 /// bins within 0.04 of the observed win share (the project's own target).
 /// The target for the Brier score is 12% below the margin-and-time
-/// baseline's; it is NOT met: 10.5% on the bundled file (band 8.8-12.1%), so
-/// this checks 8% to catch regressions and prints the figure.
+/// baseline's; it is NOT met: 10.6% on the bundled file (band 8.9-12.1%),
+/// so this checks 10% to catch regressions and prints the figure. Tried
+/// and dropped (held out by season, same stratum): a late-game model fit on
+/// the final 10:00 and overtime alone (10.1%), the next score's outcome
+/// against the margin (10.6%), the line against late time (10.4%), key
+/// margins and EP on a finer time basis (10.5%) with timeouts (10.2%), a
+/// hundredfold L2 (9.8%), late snaps weighed 3x or 10x (10.4%, 10.2%).
 #[test]
 fn late_and_close_is_calibrated() {
     let Some(d) = demo() else { return };
@@ -402,7 +407,7 @@ fn late_and_close_is_calibrated() {
     let gain = late.brier_gain.value;
     eprintln!("late and close: worst bin gap {worst:.3}, Brier {:.1}% below the baseline", 100.0 * gain);
     assert!(worst <= 0.04, "worst late-and-close bin is {worst:.3} from the observed share");
-    assert!(gain >= 0.08, "late-and-close Brier only {:.1}% below the baseline", 100.0 * gain);
+    assert!(gain >= 0.10, "late-and-close Brier only {:.1}% below the baseline", 100.0 * gain);
 }
 
 /// From the home side, WP before the first snap plus every snap's WPA ends
@@ -558,6 +563,7 @@ mod monotone {
             let m = &d.scored.models;
             let to_go = to_go.min(100 - ball_on);
             let secs_half = if ot { secs % 600 } else { secs % 1800 };
+            // WP takes the score-blind EP (see `EpModel::score_all_blind`).
             let ep = m.ep.situation(down, to_go, ball_on, secs_half);
             let (secs_game, period) = if ot { ((secs % 600) as f64, 5) } else { (secs as f64, (4 - (secs - 1) / 900).clamp(1, 4)) };
             let mut last = 0.0;

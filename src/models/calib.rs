@@ -240,9 +240,10 @@ fn folds(plays: &Plays, plan: Option<Plan>) -> anyhow::Result<(Plan, Vec<Fold>, 
 fn predict(plays: &Plays, fold: &Fold, init: Option<&Models>, out: &mut Vec<Pred>, cp: &mut (Vec<f64>, Vec<f64>)) -> anyhow::Result<()> {
     let models: Models = fit_rows_from(plays, &fold.train, init)?;
     let ep = models.ep.score_all(plays);
+    let blind = models.ep.score_all_blind(plays);
     for &i in &fold.test {
         let i = i as usize;
-        let s = super::wp::Situation::of_snap(plays, &ep, i);
+        let s = super::wp::Situation::of_snap(plays, &blind, i);
         let has_down = plays.down[i] > 0;
         out.push(Pred {
             snap: i as u32,

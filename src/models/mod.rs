@@ -112,7 +112,7 @@ pub fn fit_rows_from(plays: &Plays, rows: &[u32], init: Option<&Models>) -> anyh
     }
     let opts = options();
     let ep = ep::fit(plays, rows, &opts, init.map(|m| &m.ep))?;
-    let ep_all = ep.score_all(plays);
+    let ep_all = ep.score_all_blind(plays);
     let wp = wp::fit(
         plays,
         &ep_all,
@@ -153,7 +153,7 @@ impl Models {
     pub fn score(&self, plays: &Plays) -> Scores {
         let ep = self.ep.score_all(plays);
         let epa = ep::epa(plays, &ep);
-        let wp = self.wp.score_all(plays, &ep);
+        let wp = self.wp.score_all(plays, &self.ep.score_all_blind(plays));
         let wpa = wp::wpa(plays, &wp);
         let cp = match &self.cp {
             Some(m) => m.score_all(plays),
@@ -355,7 +355,7 @@ mod tests {
         }
         assert!((0..plays.len()).all(|i| plays.kind[i] != Kind::Kickoff
             || ep::is_free_kick(&plays, i)
-            || s.ep[i] == models.ep.kickoff(plays.secs_half[i])));
+            || s.ep[i] == models.ep.kickoff(plays.secs_half[i], ep::ScoreClock::of_snap(&plays, i))));
     }
 
     /// Touchdown + try (+ kickoff) and safety + free kick sequences,
@@ -377,7 +377,7 @@ mod tests {
                 seen = true;
             }
             if ep::is_safety(&plays, i) && ep::is_free_kick(&plays, i + 1) {
-                let fk = models.ep.free_kick(plays.secs_half[i + 1]);
+                let fk = models.ep.free_kick(plays.secs_half[i + 1], ep::ScoreClock::of_snap(&plays, i + 1));
                 assert!((s.epa[i] - (-2.0 + fk - s.ep[i])).abs() < 1e-12);
             }
         }
