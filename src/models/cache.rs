@@ -3,7 +3,7 @@
 //! `LATEGAME_CACHE_DIR`); never beside the play file.
 
 use super::{Calibration, Models, MODEL_VERSION};
-use anyhow::Context;
+use super::error::{ModelError, Result};
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
 use std::path::{Path, PathBuf};
@@ -44,15 +44,14 @@ pub fn file_name(fingerprint: &str) -> String {
 
 /// Read the entry for `fingerprint` from `dir`. A missing, unreadable or
 /// mismatched file is a miss (`Ok(None)` or an error the caller may log).
-pub fn load(dir: &Path, fingerprint: &str) -> anyhow::Result<Option<Entry>> {
+pub fn load(dir: &Path, fingerprint: &str) -> Result<Option<Entry>> {
     let path = dir.join(file_name(fingerprint));
     let text = match std::fs::read_to_string(&path) {
         Ok(t) => t,
         Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(None),
-        Err(e) => return Err(e).with_context(|| format!("reading model cache {}", path.display())),
+        Err(source) => return Err(ModelError::CacheIo { path, source }),
     };
-    let entry: Entry = serde_json::from_str(&text)
-        .with_context(|| format!("model cache {}: not a cache entry", path.display()))?;
+    let entry: Entry = serde_json::from_str(&text).map_err(|source| ModelError::CacheEntry { path: path.clone(), source })?;
     if entry.fingerprint != fingerprint || entry.model_version != MODEL_VERSION {
         return Ok(None);
     }
@@ -66,9 +65,8 @@ pub fn store(
     fingerprint: &str,
     models: &Models,
     calibration: Option<&Calibration>,
-) -> anyhow::Result<PathBuf> {
-    std::fs::create_dir_all(dir)
-        .with_context(|| format!("creating model cache folder {}", dir.display()))?;
+) -> Result<PathBuf> {
+    std::fs::create_dir_all(dir).map_err(|source| ModelError::CacheIo { path: dir.to_path_buf(), source })?;
     let entry = Entry {
         fingerprint: fingerprint.to_string(),
         model_version: MODEL_VERSION.to_string(),
@@ -81,9 +79,8 @@ pub fn store(
         file_name(fingerprint),
         std::process::id()
     ));
-    let text = serde_json::to_string(&entry).context("serializing the fitted models")?;
-    std::fs::write(&tmp, text).with_context(|| format!("writing {}", tmp.display()))?;
-    std::fs::rename(&tmp, &path)
-        .with_context(|| format!("renaming {} to {}", tmp.display(), path.display()))?;
+    let text = serde_json::to_string(&entry).map_err(ModelError::Serialize)?;
+    std::fs::write(&tmp, text).map_err(|source| ModelError::CacheIo { path: tmp.clone(), source })?;
+    std::fs::rename(&tmp, &path).map_err(|source| ModelError::CacheIo { path: path.clone(), source })?;
     Ok(path)
 }

@@ -6,6 +6,7 @@
 use super::strata::{ep_groups, stratum_score, wp_window, EpGroup, Pred, StratumBin, StratumScore, WpStratum};
 pub use super::score::{prob_score, ProbScore};
 use super::{fit_rows_from, Models};
+use super::error::{ModelError, Result};
 use crate::plays::Plays;
 use serde::{Deserialize, Serialize};
 
@@ -166,10 +167,10 @@ struct Fold {
 }
 
 /// The folds of a plan and the words for what they hold out.
-fn folds(plays: &Plays, plan: Option<Plan>) -> anyhow::Result<(Plan, Vec<Fold>, String)> {
+fn folds(plays: &Plays, plan: Option<Plan>) -> Result<(Plan, Vec<Fold>, String)> {
     let seasons = plays.seasons();
     let Some(&last) = seasons.last() else {
-        anyhow::bail!("calibration needs at least one game; the league is empty");
+        return Err(ModelError::EmptyLeague);
     };
     let plan = match plan {
         Some(Plan::LeaveOneSeasonOut | Plan::LastSeason) if seasons.len() < 2 => Plan::LastGames,
@@ -217,7 +218,7 @@ fn folds(plays: &Plays, plan: Option<Plan>) -> anyhow::Result<(Plan, Vec<Fold>, 
             let ng = plays.games.len();
             let cut = ng - (ng / 5).max(1);
             if cut == 0 {
-                anyhow::bail!("calibration needs at least two games; the league has {ng}");
+                return Err(ModelError::TooFewGames(ng));
             }
             let at = plays.games[cut].start as u32;
             (
@@ -237,7 +238,7 @@ fn folds(plays: &Plays, plan: Option<Plan>) -> anyhow::Result<(Plan, Vec<Fold>, 
 }
 
 /// Out-of-sample predictions of one fold.
-fn predict(plays: &Plays, fold: &Fold, init: Option<&Models>, out: &mut Vec<Pred>, cp: &mut (Vec<f64>, Vec<f64>)) -> anyhow::Result<()> {
+fn predict(plays: &Plays, fold: &Fold, init: Option<&Models>, out: &mut Vec<Pred>, cp: &mut (Vec<f64>, Vec<f64>)) -> Result<()> {
     let models: Models = fit_rows_from(plays, &fold.train, init)?;
     let ep = models.ep.score_all(plays);
     let blind = models.ep.score_all_blind(plays);
@@ -269,7 +270,7 @@ fn predict(plays: &Plays, fold: &Fold, init: Option<&Models>, out: &mut Vec<Pred
 }
 
 /// Hold out snaps as the plan says, fit on the rest, score the held-out snaps.
-pub fn calibrate_with(plays: &Plays, opts: &CalibOptions) -> anyhow::Result<Calibration> {
+pub fn calibrate_with(plays: &Plays, opts: &CalibOptions) -> Result<Calibration> {
     calibrate_from(plays, opts, None)
 }
 
@@ -279,7 +280,7 @@ pub fn calibrate_from(
     plays: &Plays,
     opts: &CalibOptions,
     init: Option<&Models>,
-) -> anyhow::Result<Calibration> {
+) -> Result<Calibration> {
     calibrate_watched(plays, opts, init, &|_, _| true)
 }
 
@@ -289,19 +290,19 @@ pub fn calibrate_watched(
     opts: &CalibOptions,
     init: Option<&Models>,
     progress: Progress,
-) -> anyhow::Result<Calibration> {
+) -> Result<Calibration> {
     let (plan, folds, holdout) = folds(plays, opts.plan)?;
     let mut preds = Vec::new();
     let mut cp = (Vec::new(), Vec::new());
     let mut by_season = Vec::new();
     if !progress(0, folds.len()) {
-        anyhow::bail!("calibration cancelled");
+        return Err(ModelError::Cancelled);
     }
     for (k, f) in folds.iter().enumerate() {
         let from = preds.len();
         predict(plays, f, init, &mut preds, &mut cp)?;
         if !progress(k + 1, folds.len()) {
-            anyhow::bail!("calibration cancelled");
+            return Err(ModelError::Cancelled);
         }
         if let (Plan::LeaveOneSeasonOut, Some(season)) = (plan, f.season) {
             let p = &preds[from..];

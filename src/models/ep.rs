@@ -3,6 +3,7 @@
 //! class points; kickoff, free-kick and try values; EPA per snap, with
 //! touchdowns, tries and safeties credited in full.
 
+use super::error::{ModelError, Result};
 use super::logit::{self, FitOptions, FnDesign, Labels};
 use crate::playfile::Kind;
 use crate::plays::{NextScore, Plays};
@@ -199,7 +200,7 @@ pub fn fit(
     rows: &[u32],
     opts: &FitOptions,
     init: Option<&EpModel>,
-) -> anyhow::Result<EpModel> {
+) -> Result<EpModel> {
     let sub = |kind: Kind| -> Option<f64> {
         let (mut s, mut n) = (0.0, 0usize);
         for &i in rows {
@@ -252,11 +253,8 @@ pub fn fit(
         classes: NextScore::ALL.len(),
         reference: REFERENCE,
     };
-    let fit = logit::fit_from(&design, labels, None, opts, init.map(|m| &m.fit)).map_err(|e| {
-        anyhow::anyhow!(
-            "expected-points model on {} snaps with a down: {e}",
-            train.len()
-        )
+    let fit = logit::fit_from(&design, labels, None, opts, init.map(|m| &m.fit)).map_err(|source| {
+        ModelError::Fit { model: "expected-points model", rows: train.len(), what: "snaps with a down", source }
     })?;
     let mut model = EpModel {
         fit,
