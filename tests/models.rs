@@ -384,7 +384,8 @@ fn held_out_seasons_are_calibrated() {
 /// the final 10:00 and overtime alone (10.1%), the next score's outcome
 /// against the margin (10.6%), the line against late time (10.4%), key
 /// margins and EP on a finer time basis (10.5%) with timeouts (10.2%), a
-/// thousandfold L2 (9.8%); earlier, late snaps weighed 3x (10.4%).
+/// thousandfold L2 (9.8%), each unit's EPA per snap in the season's earlier
+/// games (10.2%); earlier, late snaps weighed 3x (10.4%).
 #[test]
 fn late_and_close_is_calibrated() {
     let Some(d) = demo() else { return };
