@@ -5,7 +5,8 @@
 //! The league is `demo-data/league.parquet` (or `$LATEGAME_DEMO`). When the
 //! file is absent these tests say so and pass, unless `LATEGAME_REQUIRE_DEMO=1`.
 
-use lategame::models::{self, wp::Situation, Scored};
+use lategame::models::{self, wp::Situation, Calibration, Scored};
+use std::sync::Arc;
 use lategame::playfile::{self, Kind, LoadOptions};
 use std::path::PathBuf;
 use std::sync::OnceLock;
@@ -20,7 +21,10 @@ fn demo_path() -> PathBuf {
 
 struct Demo {
     scored: Scored,
+    /// Held out, computed in the background after the first open.
+    calibration: Arc<Calibration>,
     fit_seconds: f64,
+    calib_seconds: f64,
     warm_seconds: f64,
 }
 
@@ -47,21 +51,24 @@ fn demo() -> Option<&'static Demo> {
         let scored = models::fit_and_score_in(loaded.plays, &loaded.fingerprint, false, Some(&dir)).expect("fit");
         let fit_seconds = t.elapsed().as_secs_f64();
         assert!(!scored.from_cache);
+        let calibration = scored.calibration.wait().expect("calibration");
+        let calib_seconds = t.elapsed().as_secs_f64() - fit_seconds;
         let again = load(&path);
         let t = Instant::now();
         let warm = models::fit_and_score_in(again.plays, &again.fingerprint, false, Some(&dir)).expect("warm");
         let warm_seconds = t.elapsed().as_secs_f64();
         assert!(warm.from_cache, "the second open must come from the cache");
+        assert!(warm.calibration.get().is_some(), "the calibration must come from the cache too");
         let _ = std::fs::remove_dir_all(&dir);
         let r = &scored.models.report;
         eprintln!(
-            "demo league: {} snaps, {} games; fit + calibrate + score {fit_seconds:.2}s (fit alone {:.2}s); \
-             from cache + score {warm_seconds:.2}s",
+            "demo league: {} snaps, {} games; fit + score {fit_seconds:.2}s (fit alone {:.2}s), then calibration \
+             {calib_seconds:.2}s in the background; from cache + score {warm_seconds:.2}s",
             scored.plays.len(),
             scored.plays.games.len(),
             r.seconds
         );
-        Some(Demo { scored, fit_seconds, warm_seconds })
+        Some(Demo { scored, calibration, fit_seconds, calib_seconds, warm_seconds })
     })
     .as_ref()
 }
@@ -177,7 +184,7 @@ fn pregame_gap(d: &Demo, sigma: f64) -> f64 {
                 margin: 0.0,
                 secs_game: 3600.0,
                 overtime: false,
-                ep: m.ep.kickoff(1800),
+                ep: m.ep.kickoff(1800, models::ep::ScoreClock::NEUTRAL),
                 off_timeouts: 3.0,
                 def_timeouts: 3.0,
                 off_home,
@@ -330,7 +337,7 @@ fn touchback_kickoffs_move_wp_little() {
 #[test]
 fn held_out_seasons_are_calibrated() {
     let Some(d) = demo() else { return };
-    let c = &d.scored.calibration;
+    let c = &d.calibration;
     eprintln!(
         "held out {}: {} snaps; Brier {:.4} (baseline {:.4}, constant {:.4}); log loss {:.4} (baseline {:.4}, constant {:.4})",
         c.holdout, c.test_snaps, c.wp.brier, c.baseline.brier, c.constant.brier, c.wp.log_loss, c.baseline.log_loss, c.constant.log_loss
@@ -371,12 +378,18 @@ fn held_out_seasons_are_calibrated() {
 /// within 8), every season held out in turn: each of five equal-count WP
 /// bins within 0.04 of the observed win share (the project's own target).
 /// The target for the Brier score is 12% below the margin-and-time
-/// baseline's; it is NOT met: 10.5% on the bundled file (band 8.8-12.1%), so
-/// this checks 8% to catch regressions and prints the figure.
+/// baseline's; it is NOT met: 10.6% on the bundled file (band 8.9-12.1%),
+/// so this checks 10% to catch regressions and prints the figure. Tried
+/// and dropped (held out by season, same stratum): a late-game model fit on
+/// the final 10:00 and overtime alone (10.1%), the next score's outcome
+/// against the margin (10.6%), the line against late time (10.4%), key
+/// margins and EP on a finer time basis (10.5%) with timeouts (10.2%), a
+/// thousandfold L2 (9.8%), each unit's EPA per snap in the season's earlier
+/// games (10.2%); earlier, late snaps weighed 3x (10.4%).
 #[test]
 fn late_and_close_is_calibrated() {
     let Some(d) = demo() else { return };
-    let c = &d.scored.calibration;
+    let c = &d.calibration;
     for s in &c.strata {
         eprintln!(
             "{}: {} snaps in {} games; Brier {:.4} [{:.4}, {:.4}] vs baseline {:.4} [{:.4}, {:.4}]; gain {:.1}% [{:.1}%, {:.1}%]",
@@ -395,7 +408,7 @@ fn late_and_close_is_calibrated() {
     let gain = late.brier_gain.value;
     eprintln!("late and close: worst bin gap {worst:.3}, Brier {:.1}% below the baseline", 100.0 * gain);
     assert!(worst <= 0.04, "worst late-and-close bin is {worst:.3} from the observed share");
-    assert!(gain >= 0.08, "late-and-close Brier only {:.1}% below the baseline", 100.0 * gain);
+    assert!(gain >= 0.10, "late-and-close Brier only {:.1}% below the baseline", 100.0 * gain);
 }
 
 /// From the home side, WP before the first snap plus every snap's WPA ends
@@ -441,8 +454,8 @@ fn fits_converge_and_cache_is_fast() {
         assert!(cp.converged);
     }
     eprintln!(
-        "first open {:.2}s, cached open {:.2}s",
-        d.fit_seconds, d.warm_seconds
+        "first open {:.2}s (calibration {:.2}s more in the background), cached open {:.2}s",
+        d.fit_seconds, d.calib_seconds, d.warm_seconds
     );
     assert!(d.fit_seconds < 120.0);
     assert!(d.warm_seconds < 15.0);
@@ -551,6 +564,7 @@ mod monotone {
             let m = &d.scored.models;
             let to_go = to_go.min(100 - ball_on);
             let secs_half = if ot { secs % 600 } else { secs % 1800 };
+            // WP takes the score-blind EP (see `EpModel::score_all_blind`).
             let ep = m.ep.situation(down, to_go, ball_on, secs_half);
             let (secs_game, period) = if ot { ((secs % 600) as f64, 5) } else { (secs as f64, (4 - (secs - 1) / 900).clamp(1, 4)) };
             let mut last = 0.0;

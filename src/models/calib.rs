@@ -6,6 +6,7 @@
 use super::strata::{ep_groups, stratum_score, wp_window, EpGroup, Pred, StratumBin, StratumScore, WpStratum};
 pub use super::score::{prob_score, ProbScore};
 use super::{fit_rows_from, Models};
+use super::error::{ModelError, Result};
 use crate::plays::Plays;
 use serde::{Deserialize, Serialize};
 
@@ -87,11 +88,20 @@ pub struct Calibration {
     pub headline: StratumBin,
 }
 
+/// Most seasons held out in turn: the latest ones. Each is one refit of
+/// every model, so a long file would otherwise spend minutes on them.
+pub const MAX_HELDOUT_SEASONS: usize = 6;
+
+/// Told after each held-out fit: (fits done, fits in all); returns false
+/// to stop the calibration (it then ends in `CalibError::Cancelled`).
+pub type Progress<'a> = &'a dyn Fn(usize, usize) -> bool;
+
 /// Options for `calibrate_with`.
 #[derive(Debug, Clone, Copy, Default)]
 pub struct CalibOptions {
-    /// `None`: leave one season out with >= 3 seasons, the last season with
-    /// 2, the last fifth of games with 1.
+    /// `None`: leave one season out with >= 3 seasons (the latest
+    /// `MAX_HELDOUT_SEASONS` of them), the last season with 2, the last
+    /// fifth of games with 1.
     pub plan: Option<Plan>,
 }
 
@@ -157,10 +167,10 @@ struct Fold {
 }
 
 /// The folds of a plan and the words for what they hold out.
-fn folds(plays: &Plays, plan: Option<Plan>) -> anyhow::Result<(Plan, Vec<Fold>, String)> {
+fn folds(plays: &Plays, plan: Option<Plan>) -> Result<(Plan, Vec<Fold>, String)> {
     let seasons = plays.seasons();
     let Some(&last) = seasons.last() else {
-        anyhow::bail!("calibration needs at least one game; the league is empty");
+        return Err(ModelError::EmptyLeague);
     };
     let plan = match plan {
         Some(Plan::LeaveOneSeasonOut | Plan::LastSeason) if seasons.len() < 2 => Plan::LastGames,
@@ -175,17 +185,30 @@ fn folds(plays: &Plays, plan: Option<Plan>) -> anyhow::Result<(Plan, Vec<Fold>, 
         Fold { train, test, season: Some(s) }
     };
     Ok(match plan {
-        Plan::LeaveOneSeasonOut => (
-            plan,
-            seasons.iter().map(|&s| season_fold(s)).collect(),
-            format!(
-                "each of the {} seasons in turn ({}-{}), predicted by models fit on the other {}",
-                seasons.len(),
-                seasons[0],
-                last,
-                seasons.len() - 1
-            ),
-        ),
+        Plan::LeaveOneSeasonOut => {
+            let held = &seasons[seasons.len().saturating_sub(MAX_HELDOUT_SEASONS)..];
+            let words = if held.len() == seasons.len() {
+                format!(
+                    "each of the {} seasons in turn ({}-{}), predicted by models fit on the other {}",
+                    seasons.len(),
+                    seasons[0],
+                    last,
+                    seasons.len() - 1
+                )
+            } else {
+                format!(
+                    "each of the last {} of the {} seasons in turn ({}-{}), predicted by models fit on the other {}; seasons {}-{} are only trained on",
+                    held.len(),
+                    seasons.len(),
+                    held[0],
+                    last,
+                    seasons.len() - 1,
+                    seasons[0],
+                    seasons[seasons.len() - held.len() - 1]
+                )
+            };
+            (plan, held.iter().map(|&s| season_fold(s)).collect(), words)
+        }
         Plan::LastSeason => (
             plan,
             vec![season_fold(last)],
@@ -195,7 +218,7 @@ fn folds(plays: &Plays, plan: Option<Plan>) -> anyhow::Result<(Plan, Vec<Fold>, 
             let ng = plays.games.len();
             let cut = ng - (ng / 5).max(1);
             if cut == 0 {
-                anyhow::bail!("calibration needs at least two games; the league has {ng}");
+                return Err(ModelError::TooFewGames(ng));
             }
             let at = plays.games[cut].start as u32;
             (
@@ -215,12 +238,13 @@ fn folds(plays: &Plays, plan: Option<Plan>) -> anyhow::Result<(Plan, Vec<Fold>, 
 }
 
 /// Out-of-sample predictions of one fold.
-fn predict(plays: &Plays, fold: &Fold, init: Option<&Models>, out: &mut Vec<Pred>, cp: &mut (Vec<f64>, Vec<f64>)) -> anyhow::Result<()> {
+fn predict(plays: &Plays, fold: &Fold, init: Option<&Models>, out: &mut Vec<Pred>, cp: &mut (Vec<f64>, Vec<f64>)) -> Result<()> {
     let models: Models = fit_rows_from(plays, &fold.train, init)?;
     let ep = models.ep.score_all(plays);
+    let blind = models.ep.score_all_blind(plays);
     for &i in &fold.test {
         let i = i as usize;
-        let s = super::wp::Situation::of_snap(plays, &ep, i);
+        let s = super::wp::Situation::of_snap(plays, &blind, i);
         let has_down = plays.down[i] > 0;
         out.push(Pred {
             snap: i as u32,
@@ -246,7 +270,7 @@ fn predict(plays: &Plays, fold: &Fold, init: Option<&Models>, out: &mut Vec<Pred
 }
 
 /// Hold out snaps as the plan says, fit on the rest, score the held-out snaps.
-pub fn calibrate_with(plays: &Plays, opts: &CalibOptions) -> anyhow::Result<Calibration> {
+pub fn calibrate_with(plays: &Plays, opts: &CalibOptions) -> Result<Calibration> {
     calibrate_from(plays, opts, None)
 }
 
@@ -256,14 +280,30 @@ pub fn calibrate_from(
     plays: &Plays,
     opts: &CalibOptions,
     init: Option<&Models>,
-) -> anyhow::Result<Calibration> {
+) -> Result<Calibration> {
+    calibrate_watched(plays, opts, init, &|_, _| true)
+}
+
+/// `calibrate_from`, telling `progress` after each held-out fit.
+pub fn calibrate_watched(
+    plays: &Plays,
+    opts: &CalibOptions,
+    init: Option<&Models>,
+    progress: Progress,
+) -> Result<Calibration> {
     let (plan, folds, holdout) = folds(plays, opts.plan)?;
     let mut preds = Vec::new();
     let mut cp = (Vec::new(), Vec::new());
     let mut by_season = Vec::new();
-    for f in &folds {
+    if !progress(0, folds.len()) {
+        return Err(ModelError::Cancelled);
+    }
+    for (k, f) in folds.iter().enumerate() {
         let from = preds.len();
         predict(plays, f, init, &mut preds, &mut cp)?;
+        if !progress(k + 1, folds.len()) {
+            return Err(ModelError::Cancelled);
+        }
         if let (Plan::LeaveOneSeasonOut, Some(season)) = (plan, f.season) {
             let p = &preds[from..];
             let actual: Vec<f64> = p.iter().map(|x| x.actual).collect();

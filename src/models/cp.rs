@@ -2,6 +2,7 @@
 //! yards (piecewise-linear), down, distance, field position and the clock;
 //! fit and scored on passes that carry air yards.
 
+use super::error::{ModelError, Result};
 use super::logit::{self, FitOptions, FnDesign, Labels};
 use crate::playfile::Kind;
 use crate::plays::Plays;
@@ -74,7 +75,7 @@ pub fn fit(
     rows: &[u32],
     opts: &FitOptions,
     init: Option<&CpModel>,
-) -> anyhow::Result<Option<CpModel>> {
+) -> Result<Option<CpModel>> {
     let train: Vec<u32> = rows
         .iter()
         .copied()
@@ -99,12 +100,7 @@ pub fn fit(
         opts,
         init.map(|m| &m.fit),
     )
-    .map_err(|e| {
-        anyhow::anyhow!(
-            "completion model on {} passes with air yards: {e}",
-            train.len()
-        )
-    })?;
+    .map_err(|source| ModelError::Fit { model: "completion model", rows: train.len(), what: "passes with air yards", source })?;
     Ok(Some(CpModel {
         features: FEATURES.iter().map(|s| s.to_string()).collect(),
         fit,

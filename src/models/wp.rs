@@ -6,6 +6,7 @@
 //! margin-and-time baseline; WPA per snap.
 
 use super::clock::{ClockRules, KillState};
+use super::error::{ModelError, Result};
 use super::logit::{self, FitOptions, FnDesign, Labels};
 use crate::playfile::Kind;
 use crate::plays::Plays;
@@ -273,7 +274,7 @@ pub fn fit(
     kind: WpKind,
     opts: &FitOptions,
     init: Option<&WpModel>,
-) -> anyhow::Result<WpModel> {
+) -> Result<WpModel> {
     let names = kind.features();
     let y: Vec<f64> = rows
         .iter()
@@ -295,11 +296,14 @@ pub fn fit(
         opts,
         init.map(|m| &m.fit),
     )
-    .map_err(|e| {
-        anyhow::anyhow!(
-            "win-probability model ({kind:?}) on {} snaps: {e}",
-            rows.len()
-        )
+    .map_err(|source| ModelError::Fit {
+        model: match kind {
+            WpKind::Full => "win-probability model",
+            WpKind::Baseline => "margin-and-time win-probability model",
+        },
+        rows: rows.len(),
+        what: "snaps",
+        source,
     })?;
     Ok(WpModel {
         kind,

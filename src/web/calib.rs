@@ -3,7 +3,7 @@
 //! computed; computes none.
 
 use crate::models::strata::{Banded, EpGroup, StratumBin, StratumScore};
-use crate::models::{Calibration, FitReport, ModelReport, Plan};
+use crate::models::{CalibStatus, Calibration, CalibrationCell, FitReport, ModelReport, Plan};
 use crate::numfmt::thousands as group;
 
 /// One stratum as the page shows it.
@@ -66,8 +66,13 @@ pub fn headline(c: &Calibration) -> String {
     )
 }
 
-/// One line for the home page: what was held out and how WP did.
-pub fn summary(c: &Calibration) -> String {
+/// One line for the home page: what was held out and how WP did, or how
+/// long until that is known.
+pub fn summary(cell: &CalibrationCell) -> String {
+    let c = match cell.status() {
+        CalibStatus::Ready(c) => c,
+        other => return other.sentence(),
+    };
     let what = if c.plan == Plan::LastGames { "Held out (one season in the file)" } else { "Held out" };
     format!(
         "{what} {} ({} snaps in {} games): win-probability Brier score {:.4} against {:.4} for a margin-and-time model and {:.4} for a coin flip.",
@@ -208,6 +213,6 @@ mod tests {
         let one = calibrate(&testkit::league(60, 1, 5)).expect("one season");
         let v = view(&one);
         assert!(v.holdout.contains("the last 12 of the 60 games") && v.holdout.contains("no season can be held out"), "{}", v.holdout);
-        assert!(!v.holdout.contains("in-sample") && !summary(&one).contains("in-sample"));
+        assert!(!v.holdout.contains("in-sample") && !summary(&CalibrationCell::ready(one)).contains("in-sample"));
     }
 }

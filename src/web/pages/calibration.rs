@@ -8,7 +8,9 @@ pub(super) struct CalibrationPage {
     pub(super) chrome: Chrome,
     pub(super) fingerprint: String,
     pub(super) model_version: &'static str,
-    pub(super) view: super::super::calib::CalibrationView,
+    /// `None` while the calibration is being computed (`pending` says how long).
+    pub(super) view: Option<super::super::calib::CalibrationView>,
+    pub(super) pending: String,
     pub(super) chart: String,
     pub(super) fit_lines: Vec<String>,
 }
@@ -16,13 +18,18 @@ pub(super) struct CalibrationPage {
 pub async fn calibration(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
     let params = Params::parse(q.as_deref()).ok();
     let lg = st.league();
-    let view = super::super::calib::view(&lg.scored.calibration);
-    let chart = charts::reliability(&view.title, &view.bins, 420.0, 360.0).to_svg();
+    let status = lg.scored.calibration.status();
+    let view = match &status {
+        crate::models::CalibStatus::Ready(c) => Some(super::super::calib::view(c)),
+        _ => None,
+    };
+    let chart = view.as_ref().map(|v| charts::reliability(&v.title, &v.bins, 420.0, 360.0).to_svg()).unwrap_or_default();
     let page = CalibrationPage {
         chrome: chrome(&st, &headers, params.as_ref(), "Model calibration".into(), "calibration", "/calibration"),
         fingerprint: lg.scored.fingerprint.clone(),
         model_version: crate::models::MODEL_VERSION,
         view,
+        pending: status.sentence(),
         chart,
         fit_lines: super::super::calib::fit_lines(&lg.scored.models.report),
     };
