@@ -6,6 +6,7 @@ mod draw;
 mod game;
 mod league;
 mod names;
+mod shift;
 mod truth;
 
 #[cfg(test)]
@@ -14,6 +15,7 @@ mod tests;
 pub use game::{KICK_TRY_SPOT, TWO_POINT_SPOT};
 pub use league::{PasserSkills, TeamStrength};
 pub use names::LEAGUE_NAME;
+pub use shift::{LateShift, LateShifts};
 pub use truth::{write_truth, TruthRow};
 
 use crate::playfile::PlayRow;
@@ -115,7 +117,13 @@ pub fn simulate(cfg: &SimConfig) -> SimOutput {
 
 /// As `simulate`, calling `on_game(done, total)` after every game.
 pub fn simulate_with_progress(cfg: &SimConfig, on_game: &dyn Fn(usize, usize)) -> SimOutput {
-    run(cfg, on_game, None)
+    run(cfg, on_game, None, &LateShifts::default())
+}
+
+/// As `simulate`, with true late-and-close shifts per passer (`LateShifts`);
+/// the truth file carries each passer's shifts and his true rates elsewhere.
+pub fn simulate_with_shifts(cfg: &SimConfig, shifts: &LateShifts) -> SimOutput {
+    run(cfg, &|_, _| {}, None, shifts)
 }
 
 // ---- the home line ----
@@ -187,7 +195,8 @@ fn rating(s: &TeamStrength, q: &PasserSkills) -> f64 {
 /// Per game: the pregame features (for the pilot regression).
 pub(crate) type FeatureLog = Vec<[f64; FEATURES]>;
 
-pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Option<&mut FeatureLog>) -> SimOutput {
+pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Option<&mut FeatureLog>, shifts: &LateShifts) -> SimOutput {
+    let shift = |pid: usize| shifts.of(cfg.seed, pid);
     let league_rng = ChaCha8Rng::seed_from_u64(cfg.seed);
     let mut league = League::new(league_rng, cfg.first_season);
     let total = cfg.seasons as usize * GAMES_PER_SEASON;
@@ -244,6 +253,7 @@ pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Opti
                         [league.passers[qa[0]].name.as_str(), league.passers[qa[1]].name.as_str()],
                     ],
                     qb_skills: [skills(qh), skills(qa)],
+                    late_shift: [[shift(qh[0]), shift(qh[1])], [shift(qa[0]), shift(qa[1])]],
                     home_line: (line_of(&f) * 10.0).round() / 10.0,
                 };
                 let mut rng = ChaCha8Rng::seed_from_u64(cfg.seed ^ 0x5EED_6A3E_0F1E_1D00);
@@ -258,7 +268,7 @@ pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Opti
         }
     }
     team_seasons.sort_by(|a, b| (a.season, &a.code).cmp(&(b.season, &b.code)));
-    let truth = book.rows(|pid| league.passers[pid].name.clone(), |t| league.teams[t].code.to_string());
+    let truth = book.rows(|pid| league.passers[pid].name.clone(), |t| league.teams[t].code.to_string(), shift);
     let seen: std::collections::HashSet<&str> = truth.iter().map(|t| t.passer.as_str()).collect();
     let passers = league
         .passers

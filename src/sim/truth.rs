@@ -2,6 +2,7 @@
 //! the engine drew his dropbacks with. Reference situation "late and close":
 //! 4th quarter with 7:30 or less on the clock, or overtime, offense margin within ±8 at the snap.
 
+use super::shift::LateShift;
 use anyhow::{Context, Result};
 use serde::Serialize;
 use std::io::Write;
@@ -28,6 +29,17 @@ pub struct TruthRow {
     pub interception: f64,
     pub sack: f64,
     pub scramble: f64,
+    /// True rates on his other dropbacks (not late and close); `None`
+    /// when every dropback of his was late and close. His true lift is the
+    /// late-and-close rate minus this.
+    pub other_complete: Option<f64>,
+    pub other_interception: Option<f64>,
+    pub other_sack: Option<f64>,
+    /// His simulated late-and-close shifts on the logit scale (0 unless the
+    /// league was drawn with `LateShifts`).
+    pub late_shift_complete: f64,
+    pub late_shift_interception: f64,
+    pub late_shift_sack: f64,
 }
 
 /// The engine's probabilities at one dropback.
@@ -92,7 +104,12 @@ impl TruthBook {
     }
 
     /// One row per passer with at least one dropback, in order of passer id.
-    pub(crate) fn rows(&self, name: impl Fn(usize) -> String, team_code: impl Fn(usize) -> String) -> Vec<TruthRow> {
+    pub(crate) fn rows(
+        &self,
+        name: impl Fn(usize) -> String,
+        team_code: impl Fn(usize) -> String,
+        shift: impl Fn(usize) -> LateShift,
+    ) -> Vec<TruthRow> {
         self.tally
             .iter()
             .enumerate()
@@ -100,6 +117,8 @@ impl TruthBook {
             .map(|(pid, t)| {
                 let n = t.n as f64;
                 let lc = |k: usize| (t.lc_n > 0).then(|| t.lc_sum[k] / t.lc_n as f64);
+                let other = |k: usize| (t.n > t.lc_n).then(|| (t.sum[k] - t.lc_sum[k]) / (t.n - t.lc_n) as f64);
+                let sh = shift(pid);
                 TruthRow {
                     passer: name(pid),
                     last_team: team_code(t.last_team),
@@ -114,6 +133,12 @@ impl TruthBook {
                     interception: t.sum[1] / n,
                     sack: t.sum[2] / n,
                     scramble: t.sum[3] / n,
+                    other_complete: other(0),
+                    other_interception: other(1),
+                    other_sack: other(2),
+                    late_shift_complete: sh.complete,
+                    late_shift_interception: sh.interception,
+                    late_shift_sack: sh.sack,
                 }
             })
             .collect()
@@ -133,11 +158,12 @@ pub fn write_truth(truth: &[TruthRow], path: &Path) -> Result<()> {
     let opt = |v: Option<f64>| v.map(|v| format!("{v:.6}")).unwrap_or_default();
     let mut body = String::from(
         "passer,last_team,seasons,late_close_dropbacks,late_close_complete,late_close_interception,\
-         late_close_sack,late_close_scramble,dropbacks,complete,interception,sack,scramble\n",
+         late_close_sack,late_close_scramble,dropbacks,complete,interception,sack,scramble,\
+         other_complete,other_interception,other_sack,late_shift_complete,late_shift_interception,late_shift_sack\n",
     );
     for r in truth {
         body.push_str(&format!(
-            "{},{},{},{},{},{},{},{},{},{:.6},{:.6},{:.6},{:.6}\n",
+            "{},{},{},{},{},{},{},{},{},{:.6},{:.6},{:.6},{:.6},{},{},{},{:.6},{:.6},{:.6}\n",
             r.passer,
             r.last_team,
             r.seasons,
@@ -150,7 +176,13 @@ pub fn write_truth(truth: &[TruthRow], path: &Path) -> Result<()> {
             r.complete,
             r.interception,
             r.sack,
-            r.scramble
+            r.scramble,
+            opt(r.other_complete),
+            opt(r.other_interception),
+            opt(r.other_sack),
+            r.late_shift_complete,
+            r.late_shift_interception,
+            r.late_shift_sack
         ));
     }
     w.write_all(body.as_bytes()).with_context(|| format!("writing {}", path.display()))?;

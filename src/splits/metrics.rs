@@ -155,6 +155,17 @@ pub const METRICS: &[MetricDef] = &[
     m(Id::Pace, "pace", "Hurry-up pace: seconds to the next snap when trailing late in a half", "Hurry-up secs", HurryUp, Mean, false, 1.0, 1, false, true),
 ];
 
+/// Style metrics: how often he does a thing, with no better direction (a
+/// scramble or a throw past the sticks can be right or wrong). Their
+/// percentile runs 100 = most often, their lift reads "more/less often", and
+/// `higher_is_better` only orders their columns.
+pub const STYLE: &[&str] = &["scrambles", "scramble_rate", "sticks"];
+
+/// Is the metric `key` a style metric (no better direction)?
+pub fn is_style(key: &str) -> bool {
+    STYLE.contains(&key)
+}
+
 pub fn metric_index(key: &str) -> Option<usize> {
     METRICS.iter().position(|m| m.key == key)
 }

@@ -1,18 +1,21 @@
 //! The split engine: for a situation, every passer's metrics against the
 //! league in the same spots, with a state-mix adjusted baseline,
-//! empirical-Bayes estimates and intervals, percentiles, z-scores and
-//! season-to-season stability; the passer profile; the snaps behind a number.
+//! two-level estimates centred on each passer's own level, lift (his value
+//! here minus his normal) with intervals, percentiles, the chance of beating the
+//! league and season-to-season stability; the passer profile; the snaps behind a number.
 //! Pages, JSON, CSV and the PDF report are all views of these values.
 
 pub mod metrics;
 pub mod review;
+mod lift;
+mod normal;
 mod profile;
 mod scan;
 mod shrink;
 mod snaps;
 mod table;
 
-pub use metrics::{metric_group, metric_index, MetricDef, SnapValues, Stat, Unit, METRICS, METRIC_GROUPS};
+pub use metrics::{is_style, metric_group, metric_index, MetricDef, SnapValues, Stat, Unit, METRICS, METRIC_GROUPS};
 pub use snaps::{coach_spot, down_distance, game_snaps, play_list, quarter, result_text, snap_at, Snap};
 pub use profile::{epa_distribution, profile, EpaDistribution, Profile, ProfileLine, SeasonLine};
 pub use table::{split_table, split_table_for, Cell, MetricInfo, PasserRow, SortBy, SplitTable, DEFAULT_MIN_DROPBACKS};

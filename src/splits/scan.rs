@@ -81,6 +81,9 @@ pub(super) struct PasserSums {
     pub(super) accs: Accs,
     /// The passer's count of snaps per state cell, per metric.
     pub(super) cells: Vec<f64>,
+    /// The passer's sum of values per state cell, per metric (to leave his
+    /// own snaps out of the league's cell values).
+    pub(super) cell_sums: Vec<f64>,
     pub(super) team: u16,
 }
 
@@ -109,6 +112,9 @@ fn merge(mut a: Sums, b: Sums) -> Sums {
             Some(mine) => {
                 merge_accs(&mut mine.accs, &ps.accs);
                 for (x, y) in mine.cells.iter_mut().zip(&ps.cells) {
+                    *x += y;
+                }
+                for (x, y) in mine.cell_sums.iter_mut().zip(&ps.cell_sums) {
                     *x += y;
                 }
                 mine.team = ps.team;
@@ -158,6 +164,7 @@ fn accumulate_range(p: &Plays, v: &SnapValues, s: &Situation, range: std::ops::R
         let ps = out.passers.entry(who).or_insert_with(|| PasserSums {
             accs: new_accs(),
             cells: vec![0.0; CELLS * METRICS.len()],
+            cell_sums: vec![0.0; CELLS * METRICS.len()],
             team: p.offense[i],
         });
         ps.team = p.offense[i];
@@ -169,6 +176,7 @@ fn accumulate_range(p: &Plays, v: &SnapValues, s: &Situation, range: std::ops::R
                 out.league[j].add(x);
                 out.league_cells[c * nm + j].add(x);
                 ps.cells[c * nm + j] += 1.0;
+                ps.cell_sums[c * nm + j] += x;
             }
         }
     }

@@ -179,6 +179,14 @@ pub struct PasserPost {
     /// Share of the variance of his raw situation value that is true
     /// difference between passers, `E[τ² + ω²] / (E[τ² + ω²] + v)`.
     pub signal: f64,
+    /// `E[τ² + ω²]`: the between-passer variance of situation values.
+    pub prior_var: f64,
+    /// `v`: the sampling variance of his raw situation value (0 without snaps).
+    pub here_var: f64,
+    /// `E[ω²]`: the between-passer variance of lifts (0 without the lift model).
+    pub lift_prior_var: f64,
+    /// `v + v'`: the sampling variance of his raw difference.
+    pub raw_diff_var: f64,
 }
 
 /// A passer's data: other snaps (`None` when he has none), the situation
@@ -290,6 +298,10 @@ impl Model {
             lift: has_lift.then_some(lift),
             lift_signal: has_lift.then(|| self.mean_lift_var / (self.mean_lift_var + raw_diff_var)),
             signal,
+            prior_var: between,
+            here_var: d.here.map(|o| o.v).unwrap_or(0.0),
+            lift_prior_var: self.mean_lift_var,
+            raw_diff_var,
         })
     }
 }
