@@ -67,7 +67,7 @@ pub const KEY_METRICS: [&str; 8] = ["epa", "success", "cpoe", "rating", "anya", 
 pub const FOOTNOTES: [&str; 4] = [
     "EPA: expected points added, the change in the offense's expected points over the snap. CPOE: completion % over expected, caught % minus the model's completion chance of each throw.",
     "ANY/A: adjusted net yards per attempt: pass yards less sack yards, +20 per touchdown pass, -45 per interception, over throws plus sacks. WPA: win probability added, the change in the offense's chance of winning over the snap.",
-    "Estimate: our number pulled toward the league by as much as it could be luck (empirical Bayes); 90% range: where his true level likely sits. League: every passer in the same situation and seasons.",
+    "Estimate: our number pulled toward his own level on his other snaps plus the league's shift here, by as much as it could be luck (a two-level model); 90% range: where his true level likely sits. Lift: his value here minus his normal. League: every passer in the same situation and seasons.",
     "Pct: percentile among qualified passers, 100 = best (for sacked % and INT %, low is good). Signal: how much of the estimate rests on his own snaps rather than the league.",
 ];
 
@@ -100,6 +100,10 @@ pub struct KeyMetric {
     pub n: String,
     /// The same with their kind, e.g. "58 attempts".
     pub basis: String,
+    /// His lift with its 90% range, "-0.13 (-0.24 to -0.02)", or "–".
+    pub lift: String,
+    /// The lift in words under `splits::LIFT_RULE`, or "–".
+    pub lift_words: String,
 }
 
 /// One snap in the biggest-plays lists.
@@ -152,6 +156,8 @@ pub struct ReportData {
     pub qualified_passers: usize,
     pub metrics: Vec<KeyMetric>,
     pub sample_note: String,
+    /// The key numbers where he is not about his normal, in a sentence.
+    pub lift_note: String,
     pub best: Vec<SnapLine>,
     pub worst: Vec<SnapLine>,
     pub games: Vec<GameWpa>,
@@ -248,6 +254,7 @@ impl ReportData {
             passers: table.rows.len(),
             qualified_passers: table.qualified().count(),
             sample_note: sample_note(row.dropbacks, row.qualified, min_dropbacks),
+            lift_note: lift_note(&metrics),
             metrics,
             best,
             worst,
@@ -329,6 +336,29 @@ fn key_metric(j: usize, c: &Cell) -> KeyMetric {
         signal: c.signal.map(|x| format!("{:.0}%", x * 100.0)).unwrap_or_else(|| "–".into()),
         n: format!("{}", c.n as u64),
         basis: format!("{} {}", c.n as u64, m.unit.label()),
+        lift: match (c.lift, c.lift_lo, c.lift_hi) {
+            (Some(l), Some(lo), Some(hi)) => format!("{} ({} to {})", fmt_metric(Some(l), d), fmt_metric(Some(lo), d), fmt_metric(Some(hi), d)),
+            _ => "–".to_string(),
+        },
+        lift_words: splits::lift_words(m, c).unwrap_or("–").to_string(),
+    }
+}
+
+/// Against his normal, in one sentence: the key numbers whose lift is not
+/// "about his normal" (the rule of `splits::LIFT_RULE`).
+fn lift_note(metrics: &[KeyMetric]) -> String {
+    if metrics.iter().all(|m| m.cell.lift.is_none()) {
+        return "Against his normal: no lift here (no snaps elsewhere to compare with, or too few snaps).".into();
+    }
+    let off: Vec<String> = metrics
+        .iter()
+        .filter(|m| m.cell.lift.is_some() && m.lift_words != "about his normal")
+        .map(|m| format!("{} {} ({})", m.short, m.lift_words, m.lift))
+        .collect();
+    if off.is_empty() {
+        "Against his normal (his other snaps): about his normal on every key number.".into()
+    } else {
+        format!("Against his normal (his other snaps; lift, 90% range): {}; about his normal on the rest.", off.join("; "))
     }
 }
 

@@ -15,8 +15,9 @@ pub enum Unit {
     AttemptWithCp,
     /// 3rd and 4th down attempts with air yards.
     LateDownAttempt,
-    /// Dropbacks while trailing in the final 2:00 of a half, with a next
-    /// snap by the same offense in the same period.
+    /// Dropbacks while trailing in the final 2:00 of a half that the clock
+    /// ran through, with a next snap by the same offense in the same period
+    /// and no timeout between (`hurry_up_gap`).
     HurryUp,
 }
 
@@ -28,7 +29,7 @@ impl Unit {
             Unit::PassOrSack => "attempts + sacks",
             Unit::AttemptWithCp => "attempts with air yards",
             Unit::LateDownAttempt => "3rd/4th-down attempts",
-            Unit::HurryUp => "hurry-up snaps",
+            Unit::HurryUp => "hurry-up snaps (clock running)",
         }
     }
 }
@@ -152,7 +153,7 @@ pub const METRICS: &[MetricDef] = &[
     m(Id::Cpoe, "cpoe", "Completion % over expected", "CPOE", AttemptWithCp, Mean, true, 1.0, 1, true, false),
     m(Id::Turnover, "turnover", "Giveaways per dropback (%): interceptions and lost fumbles", "Giveaway %", Dropback, Rate, false, 100.0, 1, false, true),
     m(Id::Sticks, "sticks", "Thrown past the sticks on 3rd/4th down (%)", "Past sticks %", LateDownAttempt, Rate, true, 100.0, 1, false, true),
-    m(Id::Pace, "pace", "Hurry-up pace: seconds to the next snap when trailing late in a half", "Hurry-up secs", HurryUp, Mean, false, 1.0, 1, false, true),
+    m(Id::Pace, "pace", "Hurry-up pace: seconds to the next snap when trailing late in a half, after plays the clock ran through", "Hurry-up secs", HurryUp, Mean, false, 1.0, 1, false, true),
 ];
 
 /// Style metrics: how often he does a thing, with no better direction (a
@@ -186,14 +187,31 @@ pub fn pass_yards(p: &Plays, i: usize) -> f64 {
     }
 }
 
-/// Seconds from dropback `i` to the same offense's next snap in the same
-/// period, when trailing in the final 2:00 of a half (or overtime).
+/// Hurry-up pace: seconds of game clock from dropback `i` to the same
+/// offense's next snap in the same period, when trailing in the final 2:00
+/// of a half (or overtime), over dropbacks the clock ran through: a catch
+/// (not a touchdown), a sack or a scramble, with no timeout taken by either
+/// side before the next snap. Incompletions and interceptions stop the clock,
+/// so they are left out rather than counted as instant snaps. The file does
+/// not say when a catch or a run ended out of bounds; those stay in and read
+/// faster than they were.
 pub fn hurry_up_gap(p: &Plays, i: usize) -> Option<f64> {
     if p.margin[i] >= 0 || p.secs_half[i] > 120 || !matches!(p.period[i], 2 | 4 | 5..) {
         return None;
     }
+    let ran = match p.kind[i] {
+        Kind::Pass => p.complete[i] && !p.intercepted[i],
+        Kind::Sack | Kind::Scramble => true,
+        _ => false,
+    };
+    if !ran || p.points[i] != 0 || p.fumble_lost[i] {
+        return None;
+    }
     let j = i + 1;
     if j >= p.len() || p.game[j] != p.game[i] || p.period[j] != p.period[i] || p.offense[j] != p.offense[i] {
+        return None;
+    }
+    if p.off_timeouts[j] != p.off_timeouts[i] || p.def_timeouts[j] != p.def_timeouts[i] {
         return None;
     }
     Some((p.clock[i] - p.clock[j]).max(0) as f64)

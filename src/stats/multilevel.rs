@@ -122,8 +122,10 @@ fn reml(units: &[(Obs, f64)], var: f64, slope: bool) -> Option<(f64, [f64; 2], [
 /// flat priors on β (REML). `units` are `(observation, covariate)`; with
 /// `slope` false the covariate is ignored. The grid's upper end starts at
 /// `max(2.5·SD(y), √median(v))` and doubles (up to three times) while the top
-/// point still carries weight. `None` with fewer than `2 + slope` units, a
-/// non-finite value or a non-positive sampling variance.
+/// point still carries a thousandth of the largest weight; with very few units
+/// the third doubling stays (the prior is then bounded there). `None` with
+/// fewer than `2 + slope` units, a non-finite value or a non-positive sampling
+/// variance.
 pub fn fit_variance(units: &[(Obs, f64)], slope: bool) -> Option<VarFit> {
     let need = if slope { 3 } else { 2 };
     if units.len() < need || units.iter().any(|(o, x)| !finite(&[o.y, o.v, *x]) || o.v <= 0.0) {
@@ -136,7 +138,7 @@ pub fn fit_variance(units: &[(Obs, f64)], slope: bool) -> Option<VarFit> {
     vs.sort_by(|a, b| a.total_cmp(b));
     let median_v = vs[vs.len() / 2];
     let mut upper = (2.5 * var_y.sqrt()).max(median_v.sqrt());
-    for _ in 0..4 {
+    for round in 0..4 {
         let step = upper / GRID as f64;
         let mut pts = Vec::with_capacity(GRID);
         for g in 0..GRID {
@@ -155,7 +157,9 @@ pub fn fit_variance(units: &[(Obs, f64)], slope: bool) -> Option<VarFit> {
         points.iter_mut().for_each(|g| g.weight /= total);
         let last = points.last().map(|g| g.weight).unwrap_or(0.0);
         let most = points.iter().map(|g| g.weight).fold(0.0, f64::max);
-        if last < 1e-3 * most {
+        // With few units the posterior's tail falls slowly (∝ sd^(2−K)): the
+        // last round keeps its end, so the prior is p(sd) ∝ sd on [0, 8 × first end].
+        if last < 1e-3 * most || round == 3 {
             return Some(VarFit { points, slope });
         }
         upper *= 2.0;

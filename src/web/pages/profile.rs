@@ -20,6 +20,12 @@ pub(super) struct ProfilePage {
     pub(super) seasons_note: String,
     pub(super) season_value: String,
     pub(super) charts: Vec<(String, String)>,
+    /// Per key metric: his lift in each game-on-the-line preset (dot and interval).
+    pub(super) lift_charts: Vec<(String, String)>,
+    /// Lift in words: heads (short, label), then per preset its cells (words, numbers).
+    pub(super) lift_heads: Vec<(&'static str, &'static str)>,
+    pub(super) lift_rows: Vec<(&'static str, Vec<(String, String)>)>,
+    pub(super) lift_rule: &'static str,
     pub(super) trend_chart: String,
     pub(super) trend_label: String,
     pub(super) epa_chart: String,
@@ -78,6 +84,51 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                 format!("{}{unit}", m.label),
                 charts::dot_interval(&format!("{} — {name} by situation (dot: estimate, bar: 90% interval, tick: league)", m.label), &rows, width).to_svg(),
             )
+        })
+        .collect();
+    let on_the_line: Vec<&splits::ProfileLine> = prof.presets.iter().filter(|l| l.preset != Preset::EverySnap.key()).collect();
+    let lift_charts = keys
+        .iter()
+        .map(|&j| {
+            let m = &METRICS[j];
+            let rows: Vec<DotRow> = on_the_line
+                .iter()
+                .map(|line| {
+                    let c = line.row.as_ref().map(|r| &r.cells[j]);
+                    DotRow {
+                        label: line.label.to_string(),
+                        estimate: c.and_then(|c| c.lift),
+                        lo: c.and_then(|c| c.lift_lo),
+                        hi: c.and_then(|c| c.lift_hi),
+                        raw: None,
+                        league: Some(0.0),
+                    }
+                })
+                .collect();
+            let unit = if m.scale == 100.0 { " (points of %)" } else { "" };
+            (
+                format!("{}: lift{unit}", m.short),
+                charts::dot_interval(&format!("{} — {name}'s lift by situation (dot: lift, bar: 90% interval, tick at 0: his normal)", m.label), &rows, width).to_svg(),
+            )
+        })
+        .collect();
+    let lift_rows = on_the_line
+        .iter()
+        .map(|line| {
+            let cells = keys
+                .iter()
+                .map(|&j| {
+                    let m = &METRICS[j];
+                    match line.row.as_ref().map(|r| &r.cells[j]) {
+                        Some(c) => (
+                            splits::lift_words(m, c).unwrap_or("no lift: too few snaps").to_string(),
+                            super::explore::lift_text(c, m.decimals),
+                        ),
+                        None => ("no dropbacks here".to_string(), String::new()),
+                    }
+                })
+                .collect();
+            (line.label, cells)
         })
         .collect();
     let ej = metric_index("epa").unwrap_or(0);
@@ -156,6 +207,10 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         },
         season_value: params.situation.show(Field::Seasons).unwrap_or_default(),
         charts,
+        lift_charts,
+        lift_heads: keys.iter().map(|&j| (METRICS[j].short, METRICS[j].label)).collect(),
+        lift_rows,
+        lift_rule: splits::LIFT_RULE,
         trend_chart,
         trend_label: prof.trend_situation.clone(),
         epa_chart,
