@@ -107,6 +107,10 @@ pub struct SplitTable {
     #[serde(rename = "league")]
     pub league_row: Vec<Option<f64>>,
     pub league_dropbacks: u32,
+    /// The league's raw lift: its value here minus its value on every other
+    /// snap of the same seasons (rates and means; `None` for counts, the
+    /// rating and when there are no other snaps).
+    pub league_lift: Vec<Option<f64>>,
     /// Every passer with a dropback in the situation; `qualified` marks
     /// those at or above the minimum.
     pub rows: Vec<PasserRow>,
@@ -334,6 +338,17 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
         metrics,
         league_dropbacks: sums.league[db].n as u32,
         league_row: league_row(&league),
+        league_lift: (0..nm)
+            .map(|j| {
+                let m = &METRICS[j];
+                if m.stat == Stat::Count || Some(j) == rating_j {
+                    return None;
+                }
+                let (here, all) = (&sums.league[j], &normal.league[j]);
+                let other_n = all.n - here.n;
+                (other_n >= 0.5 && here.n > 0.0).then(|| (here.sum / here.n - (all.sum - here.sum) / other_n) * m.scale)
+            })
+            .collect(),
         league,
         rows,
     }

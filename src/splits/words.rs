@@ -8,7 +8,7 @@ use statrs::distribution::{ContinuousCDF, Normal};
 
 /// The rule, as the pages print it.
 pub const LIFT_RULE: &str = "Lift is his value here minus his normal (his other snaps in the same seasons), \
-with his own part shrunk toward 0. Better or worse (than his normal), fairly sure: the 90% interval of the lift \
+with his own part shrunk toward 0 (so it leans toward the league's lift, shown beside it). Better or worse (than his normal), fairly sure: the 90% interval of the lift \
 lies wholly on one side of 0. Leaning better or worse: a 4-in-5 chance or more that the lift is on that side. \
 About his normal: anything less. For style numbers (scrambles, throws past the sticks): more or less often.";
 

@@ -122,7 +122,7 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                     match line.row.as_ref().map(|r| &r.cells[j]) {
                         Some(c) => (
                             splits::lift_words(m, c).unwrap_or("no lift: too few snaps").to_string(),
-                            super::explore::lift_text(c, m.decimals),
+                            format!("{} · league {}", super::explore::lift_text(c, m.decimals), crate::numfmt::signed(line.league_lift[j], m.decimals, "")),
                         ),
                         None => ("no dropbacks here".to_string(), String::new()),
                     }
