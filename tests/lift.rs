@@ -38,7 +38,9 @@ fn lift_recovers_true_late_game_shifts() {
         ("int_rate", |r| Some((r.late_close_interception?, r.other_interception?))),
         ("comp_pct", |r| Some((r.late_close_complete?, r.other_complete?))),
     ];
-    let mut pooled: Vec<(Vec<(f64, f64)>, Vec<(f64, f64)>, usize)> = vec![(Vec::new(), Vec::new(), 0); 3];
+    // Per metric: (lift, truth) pairs, (raw difference, truth) pairs, hits.
+    type Tally = (Vec<(f64, f64)>, Vec<(f64, f64)>, usize);
+    let mut pooled: Vec<Tally> = vec![(Vec::new(), Vec::new(), 0); 3];
     for seed in [21, 22] {
         let out = simulate_with_shifts(&SimConfig { seasons: 6, seed, first_season: 2020 }, &shifts);
         let p = plays(&out.rows);

@@ -5,7 +5,7 @@
 use super::lift::{self, posteriors, Derived, RATING_PARTS};
 use super::metrics::{is_style, metric_index, SnapValues, Stat, METRICS};
 use super::normal::every_snap;
-use super::scan::{accumulate, raw_value, Sums};
+use super::scan::{accumulate, rating_from, raw_value, Acc, Sums};
 use super::shrink::{adjusted, stability};
 use crate::stats::multilevel::{normal_interval, prob_above, PasserPost};
 use crate::plays::Plays;
@@ -108,8 +108,8 @@ pub struct SplitTable {
     pub league_row: Vec<Option<f64>>,
     pub league_dropbacks: u32,
     /// The league's raw lift: its value here minus its value on every other
-    /// snap of the same seasons (rates and means; `None` for counts, the
-    /// rating and when there are no other snaps).
+    /// snap of the same seasons (`None` for counts and when there are no
+    /// other snaps; the rating's from totals, capped).
     pub league_lift: Vec<Option<f64>>,
     /// Every passer with a dropback in the situation; `qualified` marks
     /// those at or above the minimum.
@@ -341,8 +341,12 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
         league_lift: (0..nm)
             .map(|j| {
                 let m = &METRICS[j];
-                if m.stat == Stat::Count || Some(j) == rating_j {
+                if m.stat == Stat::Count {
                     return None;
+                }
+                if Some(j) == rating_j {
+                    let other: Vec<Acc> = normal.league.iter().zip(&sums.league).map(|(a, h)| Acc { n: a.n - h.n, sum: a.sum - h.sum, sumsq: a.sumsq - h.sumsq }).collect();
+                    return rating_from(&sums.league).zip(rating_from(&other)).map(|(h, o)| h - o);
                 }
                 let (here, all) = (&sums.league[j], &normal.league[j]);
                 let other_n = all.n - here.n;

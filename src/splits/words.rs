@@ -18,7 +18,7 @@ pub fn lift_above_zero(c: &Cell) -> Option<f64> {
     let (l, lo, hi) = (c.lift?, c.lift_lo?, c.lift_hi?);
     let z = Normal::new(0.0, 1.0).ok()?.inverse_cdf(0.5 + INTERVAL_LEVEL / 2.0);
     let sd = (hi - lo) / (2.0 * z);
-    if !(sd > 0.0) {
+    if sd.is_nan() || sd <= 0.0 {
         return None;
     }
     Some(1.0 - Normal::new(l, sd).ok()?.cdf(0.0))

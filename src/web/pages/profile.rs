@@ -9,6 +9,9 @@ pub struct ProfileRowView {
     pub cells: Vec<(String, String, String)>,
 }
 
+/// One cell of the lift-in-words table: the words, "lift +x [lo, hi]", "league +y".
+pub type LiftWords = (String, String, String);
+
 #[derive(Template)]
 #[template(path = "profile.html")]
 pub(super) struct ProfilePage {
@@ -24,7 +27,7 @@ pub(super) struct ProfilePage {
     pub(super) lift_charts: Vec<(String, String)>,
     /// Lift in words: heads (short, label), then per preset its cells (words, numbers).
     pub(super) lift_heads: Vec<(&'static str, &'static str)>,
-    pub(super) lift_rows: Vec<(&'static str, Vec<(String, String)>)>,
+    pub(super) lift_rows: Vec<(&'static str, Vec<LiftWords>)>,
     pub(super) lift_rule: &'static str,
     pub(super) trend_chart: String,
     pub(super) trend_label: String,
@@ -38,6 +41,9 @@ pub(super) struct ProfilePage {
     pub(super) games: Vec<(String, String)>,
 }
 
+
+/// The metrics of the lift-in-words table (fewer than the charts, so it fits a laptop).
+const LIFT_WORD_KEYS: &[&str] = &["epa", "success", "cpoe", "rating", "sack_rate", "int_rate"];
 
 pub(super) const PROFILE_KEYS: &[&str] = &["epa", "success", "cpoe", "rating", "anya", "sack_rate", "int_rate", "wpa"];
 
@@ -112,19 +118,21 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
             )
         })
         .collect();
+    let word_keys: Vec<usize> = LIFT_WORD_KEYS.iter().filter_map(|k| metric_index(k)).collect();
     let lift_rows = on_the_line
         .iter()
         .map(|line| {
-            let cells = keys
+            let cells = word_keys
                 .iter()
                 .map(|&j| {
                     let m = &METRICS[j];
                     match line.row.as_ref().map(|r| &r.cells[j]) {
                         Some(c) => (
                             splits::lift_words(m, c).unwrap_or("no lift: too few snaps").to_string(),
-                            format!("{} · league {}", super::explore::lift_text(c, m.decimals), crate::numfmt::signed(line.league_lift[j], m.decimals, "")),
+                            super::explore::lift_text(c, m.decimals),
+                            format!("league {}", crate::numfmt::signed(line.league_lift[j], m.decimals, "")),
                         ),
-                        None => ("no dropbacks here".to_string(), String::new()),
+                        None => ("no dropbacks here".to_string(), String::new(), String::new()),
                     }
                 })
                 .collect();
@@ -208,7 +216,7 @@ pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         season_value: params.situation.show(Field::Seasons).unwrap_or_default(),
         charts,
         lift_charts,
-        lift_heads: keys.iter().map(|&j| (METRICS[j].short, METRICS[j].label)).collect(),
+        lift_heads: word_keys.iter().map(|&j| (METRICS[j].short, METRICS[j].label)).collect(),
         lift_rows,
         lift_rule: splits::LIFT_RULE,
         trend_chart,
