@@ -232,3 +232,35 @@ fn no_interval_in_the_splits_json_has_zero_width() {
     println!("{checked} intervals checked");
     assert!(checked > 10_000, "only {checked} intervals");
 }
+
+/// Lift through the front doors: JSON sorted by lift, the CSV's lift
+/// columns, the explorer's sort option, the profile's words and rule, the
+/// report's lift column, and a clear error for an unknown `by`.
+#[test]
+fn lift_reaches_json_csv_pages_and_report() {
+    let base = common::demo_server();
+    let j = common::get(&format!("{base}/api/splits?preset=end-of-game&sort=epa&by=lift&dir=desc")).json();
+    let lifts: Vec<f64> = j["rows"].as_array().unwrap().iter().filter_map(|r| r["cells"].as_array().unwrap().iter().find(|c| c["key"] == "epa")?["lift"].as_f64()).collect();
+    assert!(lifts.len() >= 20 && lifts.windows(2).all(|w| w[0] >= w[1]), "not sorted by lift: {:?}", &lifts[..lifts.len().min(5)]);
+    assert!(j["league_lift"].as_array().unwrap().iter().any(|x| x.is_number()));
+
+    let csv = common::get(&format!("{base}/api/splits.csv?preset=end-of-game")).body;
+    let head: Vec<&str> = csv.lines().next().unwrap().split(',').collect();
+    for col in ["epa_lift", "epa_lift_lo90", "epa_lift_hi90", "sack_rate_lift", "rating_lift", "comp_pct_p_better"] {
+        assert!(head.contains(&col), "CSV lacks {col}");
+    }
+    assert!(!head.iter().any(|h| h.ends_with("_z")));
+
+    let page = common::get(&format!("{base}/explore?preset=end-of-game&sort=epa&by=lift")).body;
+    assert!(page.contains(r#"<option value="lift" selected>"#) && page.contains("lift: his value here minus his normal"));
+    let bad = common::get(&format!("{base}/explore?by=lifted"));
+    assert_eq!(bad.status, 400);
+    assert!(bad.body.contains("lift"), "the error names the valid choices");
+
+    let prof = common::get(&format!("{base}/passer?passer={}", common::enc("Wendell Jastennox"))).body;
+    assert!(prof.contains("Is he different when it matters?") && prof.contains("fairly sure: the 90% interval of the lift"));
+    assert!(["about his normal", "leaning better", "leaning worse", "better, fairly sure", "worse, fairly sure"].iter().any(|w| prof.contains(w)));
+
+    let report = common::get(&format!("{base}/report?preset=end-of-game&passer={}", common::enc("Wendell Jastennox"))).body;
+    assert!(report.contains("Lift vs his normal") && report.contains("Against his normal"));
+}
