@@ -19,5 +19,5 @@ mod words;
 pub use metrics::{is_style, metric_group, metric_index, MetricDef, SnapValues, Stat, Unit, METRICS, METRIC_GROUPS};
 pub use snaps::{coach_spot, down_distance, game_snaps, play_list, quarter, result_text, snap_at, Snap};
 pub use profile::{epa_distribution, profile, EpaDistribution, Profile, ProfileLine, SeasonLine};
-pub use words::{lift_above_zero, lift_words, LIFT_RULE};
+pub use words::{lift_above_zero, lift_words, stability_words, LIFT_RULE};
 pub use table::{split_table, split_table_for, Cell, MetricInfo, PasserRow, SortBy, SplitTable, DEFAULT_MIN_DROPBACKS};

@@ -52,11 +52,22 @@ pub(super) fn adjusted(sums: &Sums, ps: &PasserSums, j: usize, snap_var: f64) ->
     Some(Baseline { value: num / den, var })
 }
 
-/// Pooled season-to-season correlation of a metric's raw value among
-/// passers qualified in both seasons of each consecutive pair.
-pub(super) fn stability(sums: &Sums, j: usize, min_dropbacks: u32) -> (Option<f64>, usize) {
+/// Season-to-season stability of a metric's raw value: among passers
+/// qualified in both seasons of each consecutive pair, each season's values
+/// centred on that pair's mean for the season (so league-wide drift between
+/// seasons does not count as carry-over), pooled over pairs; with its 90%
+/// interval by Fisher's z (`atanh r ± 1.645/√(n − 3)`; Fisher 1921, "On the
+/// probable error of a coefficient of correlation deduced from a small sample").
+pub(super) struct Stability {
+    pub r: Option<f64>,
+    pub lo: Option<f64>,
+    pub hi: Option<f64>,
+    pub pairs: usize,
+}
+
+pub(super) fn stability(sums: &Sums, j: usize, min_dropbacks: u32) -> Stability {
     let db = metric_index("dropbacks").unwrap_or(0);
-    let (mut xs, mut ys) = (Vec::new(), Vec::new());
+    let mut by_pair: std::collections::BTreeMap<i32, Vec<(f64, f64)>> = std::collections::BTreeMap::new();
     for (&(who, season), accs) in &sums.by_season {
         if (accs[db].n as u32) < min_dropbacks.max(1) {
             continue;
@@ -66,9 +77,27 @@ pub(super) fn stability(sums: &Sums, j: usize, min_dropbacks: u32) -> (Option<f6
             continue;
         }
         if let (Some(a), Some(b)) = (raw_value(accs, j), raw_value(next, j)) {
-            xs.push(a);
-            ys.push(b);
+            by_pair.entry(season).or_default().push((a, b));
         }
     }
-    (stats::pearson(&xs, &ys), xs.len())
+    let (mut xs, mut ys) = (Vec::new(), Vec::new());
+    for pairs in by_pair.values() {
+        let n = pairs.len() as f64;
+        let (mx, my) = (pairs.iter().map(|p| p.0).sum::<f64>() / n, pairs.iter().map(|p| p.1).sum::<f64>() / n);
+        for (a, b) in pairs {
+            xs.push(a - mx);
+            ys.push(b - my);
+        }
+    }
+    let r = stats::pearson(&xs, &ys);
+    let n = xs.len();
+    let (lo, hi) = match r {
+        Some(r) if n > 3 => {
+            let z = r.clamp(-0.999_999, 0.999_999).atanh();
+            let half = 1.644_853_6 / ((n - 3) as f64).sqrt();
+            (Some((z - half).tanh()), Some((z + half).tanh()))
+        }
+        _ => (None, None),
+    };
+    Stability { r, lo, hi, pairs: n }
 }

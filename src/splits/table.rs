@@ -87,8 +87,11 @@ pub struct MetricInfo {
     pub projector: bool,
     pub decision: bool,
     /// Season-to-season correlation among passers qualified in both
-    /// seasons of a consecutive pair, pooled over pairs.
+    /// seasons of a consecutive pair, each season centred, pooled over pairs.
     pub stability: Option<f64>,
+    /// Its 90% interval (Fisher's z).
+    pub stability_lo: Option<f64>,
+    pub stability_hi: Option<f64>,
     pub stability_pairs: usize,
 }
 
@@ -310,7 +313,7 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
     let metrics = (0..nm)
         .map(|j| {
             let m = &METRICS[j];
-            let (r, pairs) = if m.stat == Stat::Count { (None, 0) } else { stability(sums, j, min_dropbacks) };
+            let st = if m.stat == Stat::Count { None } else { Some(stability(sums, j, min_dropbacks)) };
             MetricInfo {
                 key: m.key,
                 label: m.label,
@@ -321,8 +324,10 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
                 decimals: m.decimals,
                 projector: m.projector,
                 decision: m.decision,
-                stability: r,
-                stability_pairs: pairs,
+                stability: st.as_ref().and_then(|x| x.r),
+                stability_lo: st.as_ref().and_then(|x| x.lo),
+                stability_hi: st.as_ref().and_then(|x| x.hi),
+                stability_pairs: st.as_ref().map(|x| x.pairs).unwrap_or(0),
             }
         })
         .collect();

@@ -59,3 +59,17 @@ pub fn lift_words(m: &MetricDef, c: &Cell) -> Option<&'static str> {
     };
     Some(words)
 }
+
+/// What a season-to-season correlation means for a coach, from its 90%
+/// interval: whether last season's number says much about next season's.
+pub fn stability_words(lo: f64, hi: f64) -> &'static str {
+    if hi < 0.2 {
+        "mostly noise: last season's number says little about next season's"
+    } else if lo >= 0.5 {
+        "a lasting trait: last season's number carries over"
+    } else if lo >= 0.2 {
+        "partly carries over: lean on it, with care"
+    } else {
+        "unclear: too few seasons of passers to say whether it carries over"
+    }
+}

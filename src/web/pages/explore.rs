@@ -285,7 +285,14 @@ pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
 
 pub(super) fn stability_note(mi: &MetricInfo) -> String {
     match mi.stability {
-        Some(r) => format!("season-to-season r = {r:.2} over {} passer pairs", mi.stability_pairs),
+        Some(r) => match (mi.stability_lo, mi.stability_hi) {
+            (Some(lo), Some(hi)) => format!(
+                "season-to-season r = {r:.2} (90% interval {lo:.2} to {hi:.2}) over {} passer pairs: {}",
+                mi.stability_pairs,
+                splits::stability_words(lo, hi)
+            ),
+            _ => format!("season-to-season r = {r:.2} over {} passer pairs", mi.stability_pairs),
+        },
         None if mi.stat == Stat::Count => "a total".into(),
         None => "too few passers qualified in consecutive seasons to judge".into(),
     }
