@@ -3,7 +3,7 @@
 //! neutralised.
 
 use crate::numfmt::plain;
-use crate::splits::{Snap, SplitTable, Stat, METRICS};
+use crate::splits::{Cell, Snap, SplitTable, Stat, METRICS};
 use std::borrow::Cow;
 
 /// Text a spreadsheet could take for a formula (beginning with `=`, `+`,
@@ -205,13 +205,35 @@ mod name_tests {
     }
 }
 
-/// The split table: per passer, each metric's value, estimate and interval.
+
+/// What follows each rate or mean metric's value in the split CSV: column
+/// suffix, the cell's number, and whether it is in the metric's units (else a
+/// share or a percentile, with its own decimals).
+type CellCol = (&'static str, fn(&Cell) -> Option<f64>, Option<usize>);
+const CELL_COLS: &[CellCol] = &[
+    ("league", |c| c.league, None),
+    ("adjusted_league", |c| c.adjusted_league, None),
+    ("estimate", |c| c.estimate, None),
+    ("lo90", |c| c.lo, None),
+    ("hi90", |c| c.hi, None),
+    ("signal", |c| c.signal, Some(3)),
+    ("percentile", |c| c.percentile, Some(0)),
+    ("p_better", |c| c.p_better, Some(3)),
+    ("normal", |c| c.normal, None),
+    ("lift", |c| c.lift, None),
+    ("lift_lo90", |c| c.lift_lo, None),
+    ("lift_hi90", |c| c.lift_hi, None),
+    ("lift_signal", |c| c.lift_signal, Some(3)),
+];
+
+/// The split table: per passer, each metric's value, estimate and interval,
+/// his normal and his lift with its interval.
 pub fn split_csv(t: &SplitTable) -> String {
     let mut head = vec!["passer".to_string(), "team".to_string(), "qualified".to_string()];
     for m in METRICS {
         head.push(m.key.to_string());
         if m.stat != Stat::Count {
-            for suffix in ["league", "adjusted_league", "estimate", "lo90", "hi90", "signal", "percentile"] {
+            for (suffix, _, _) in CELL_COLS {
                 head.push(format!("{}_{suffix}", m.key));
             }
         }
@@ -224,7 +246,7 @@ pub fn split_csv(t: &SplitTable) -> String {
     for (j, m) in METRICS.iter().enumerate() {
         league.push(plain(t.league_row[j], places(m)));
         if m.stat != Stat::Count {
-            league.extend(std::iter::repeat_n(String::new(), 7));
+            league.extend(std::iter::repeat_n(String::new(), CELL_COLS.len()));
         }
     }
     out.row(&league);
@@ -235,13 +257,9 @@ pub fn split_csv(t: &SplitTable) -> String {
             let d = places(m);
             cells.push(plain(c.value, d));
             if m.stat != Stat::Count {
-                cells.push(plain(c.league, d));
-                cells.push(plain(c.adjusted_league, d));
-                cells.push(plain(c.estimate, d));
-                cells.push(plain(c.lo, d));
-                cells.push(plain(c.hi, d));
-                cells.push(plain(c.signal, 3));
-                cells.push(plain(c.percentile, 0));
+                for (_, get, own) in CELL_COLS {
+                    cells.push(plain(get(c), own.unwrap_or(d)));
+                }
             }
         }
         out.row(&cells);

@@ -2,6 +2,8 @@
 //! empirical-Bayes shrinkage (beta-binomial, normal-normal, James–Stein), ranks,
 //! correlation and direct standardization. Pure functions over plain `f64`.
 
+pub mod multilevel;
+
 use serde::Serialize;
 use statrs::distribution::{Beta, ContinuousCDF, Normal};
 use statrs::function::gamma::ln_gamma;

@@ -309,4 +309,32 @@ mod tests {
         assert_eq!(scores.ep.len(), warm.scores.ep.len());
         let _ = std::fs::remove_dir_all(&dir);
     }
+
+    /// A league restored from the cache must score exactly as the fit it
+    /// was written from: every coefficient reads back bit for bit.
+    #[test]
+    fn cached_coefficients_read_back_bit_for_bit() {
+        let plays = testkit::league(120, 2, 9);
+        let models = fit(&plays).expect("fit");
+        let dir = std::env::temp_dir().join(format!("lategame-cache-test-{}", std::process::id()));
+        cache::store(&dir, "fp-roundtrip", &models, None).expect("store");
+        let back = cache::load(&dir, "fp-roundtrip").expect("load").expect("an entry");
+        let _ = std::fs::remove_dir_all(&dir);
+        fn numbers(v: &serde_json::Value, out: &mut Vec<u64>) {
+            match v {
+                serde_json::Value::Number(n) => out.push(n.as_f64().map(f64::to_bits).unwrap_or(0)),
+                serde_json::Value::Array(xs) => xs.iter().for_each(|x| numbers(x, out)),
+                serde_json::Value::Object(m) => m.values().for_each(|x| numbers(x, out)),
+                _ => {}
+            }
+        }
+        let bits = |m: &Models| {
+            let mut out = Vec::new();
+            numbers(&serde_json::to_value(m).expect("json"), &mut out);
+            out
+        };
+        let (a, b) = (bits(&models), bits(&back.models));
+        assert!(a.len() > 50, "only {} numbers: the test would prove little", a.len());
+        assert_eq!(a, b);
+    }
 }

@@ -43,6 +43,10 @@ pub struct KeyMetric {
     pub n: String,
     /// The same with their kind, e.g. "58 attempts".
     pub basis: String,
+    /// His lift with its 90% range, "-0.13 (-0.24 to -0.02)", or "–".
+    pub lift: String,
+    /// The lift in words under `splits::LIFT_RULE`, or "–".
+    pub lift_words: String,
 }
 
 /// One snap in the biggest-plays lists.
@@ -95,6 +99,8 @@ pub struct ReportData {
     pub qualified_passers: usize,
     pub metrics: Vec<KeyMetric>,
     pub sample_note: String,
+    /// The key numbers where he is not about his normal, in a sentence.
+    pub lift_note: String,
     pub best: Vec<SnapLine>,
     pub worst: Vec<SnapLine>,
     pub games: Vec<GameWpa>,
@@ -211,6 +217,7 @@ impl ReportData {
             passers: table.rows.len(),
             qualified_passers: table.qualified().count(),
             sample_note: sample_note(row.dropbacks, row.qualified, min_dropbacks),
+            lift_note: lift_note(&metrics),
             metrics,
             best,
             worst,
@@ -277,6 +284,11 @@ fn key_metric(j: usize, c: &Cell) -> KeyMetric {
         signal: c.signal.map(|x| format!("{:.0}%", x * 100.0)).unwrap_or_else(|| "–".into()),
         n: format!("{}", c.n as u64),
         basis: format!("{} {}", c.n as u64, m.unit.label()),
+        lift: match (c.lift, c.lift_lo, c.lift_hi) {
+            (Some(l), Some(lo), Some(hi)) => format!("{} ({} to {})", fmt_metric(Some(l), d), fmt_metric(Some(lo), d), fmt_metric(Some(hi), d)),
+            _ => "–".to_string(),
+        },
+        lift_words: splits::lift_words(m, c).unwrap_or("–").to_string(),
     }
 }
 
@@ -393,5 +405,23 @@ mod tests {
         assert_eq!(ordinal_period(6), "2OT");
         assert_eq!(fmt_metric(Some(-0.1234), 3), "-0.123");
         assert_eq!(fmt_metric(None, 1), "–");
+    }
+}
+
+/// Against his normal, in one sentence: the key numbers whose lift is not
+/// "about his normal" (the rule of `splits::LIFT_RULE`).
+fn lift_note(metrics: &[KeyMetric]) -> String {
+    if metrics.iter().all(|m| m.cell.lift.is_none()) {
+        return "Against his normal: no lift here (no snaps elsewhere to compare with, or too few snaps).".into();
+    }
+    let off: Vec<String> = metrics
+        .iter()
+        .filter(|m| m.cell.lift.is_some() && m.lift_words != "about his normal")
+        .map(|m| format!("{} {} ({})", m.short, m.lift_words, m.lift))
+        .collect();
+    if off.is_empty() {
+        "Against his normal (his other snaps): about his normal on every key number.".into()
+    } else {
+        format!("Against his normal (his other snaps; lift, 90% range): {}; about his normal on the rest.", off.join("; "))
     }
 }

@@ -77,7 +77,7 @@ pub const KEY_METRICS: [&str; 8] = ["epa", "success", "cpoe", "rating", "anya", 
 pub const FOOTNOTES: [&str; 3] = [
     "EPA: expected points added on the snap. CPOE: completion % over expected, caught % minus the model's chance of each throw. WPA: win probability added on the snap.",
     "ANY/A: adjusted net yards per attempt, (pass yards - sack yards + 20 per TD - 45 per INT) / (throws + sacks). Pct: percentile among qualified passers, 100 = best.",
-    "Estimate: his number pulled toward the league as far as luck could explain it (empirical Bayes); 90% range: where his true level likely sits; signal: the share resting on his own snaps.",
+    "Estimate: his number pulled toward his own level elsewhere plus the league's shift here, as far as luck could explain it (a two-level model); 90% range: where his true level likely sits; lift: here minus his normal.",
 ];
 
 /// The one-page PDF for `passer` in `situation` (every season when it

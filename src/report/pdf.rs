@@ -94,7 +94,7 @@ fn draw(pen: &mut Pen, d: &ReportData, pw: f32, ph: f32) {
         );
     }
     ty += 14.0;
-    for line in pen.regular.wrap(7.4, &d.sample_note, lw, 2) {
+    for line in pen.regular.wrap(7.4, &d.sample_note, lw, 2).into_iter().chain(pen.regular.wrap(7.4, &d.lift_note, lw, 3)) {
         pen.text(x0, ty, 7.4, false, INK, &line, lw, Align::Left);
         ty += 9.5;
     }

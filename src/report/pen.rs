@@ -226,6 +226,9 @@ impl Pen<'_, '_> {
     pub(super) fn figure(&mut self, fig: &Figure, x0: f32, y0: f32, w: f32) -> f32 {
         let k = if fig.width > 0.0 { w / fig.width as f32 } else { 1.0 };
         let at = |x: f64, y: f64| (x0 + k * x as f32, y0 + k * y as f32);
+        // Text sizes are fixed in points while the figure scales: a label that
+        // would run into the one before it on the same line is left out.
+        let mut last_text: Option<(f32, f32)> = None;
         for shape in &fig.shapes {
             match shape {
                 Shape::Line { x1, y1, x2, y2, class } => {
@@ -271,6 +274,10 @@ impl Pen<'_, '_> {
                         Anchor::Middle => px - tw / 2.0,
                         Anchor::End => px - tw,
                     };
+                    if last_text.is_some_and(|(ly, right)| (ly - py).abs() < 0.5 && left < right + 2.0) {
+                        continue;
+                    }
+                    last_text = Some((py, left + tw));
                     // Figure text sits a little above its baseline at small sizes.
                     self.text(left, py - 1.0, size, false, color, text, w.max(tw), Align::Left);
                 }

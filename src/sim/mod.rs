@@ -7,6 +7,7 @@ mod game;
 mod habits;
 mod league;
 mod names;
+mod shift;
 mod truth;
 
 #[cfg(test)]
@@ -16,6 +17,7 @@ pub use game::{KICK_TRY_SPOT, TWO_POINT_SPOT};
 pub use habits::ThrowShort;
 pub use league::{PasserSkills, TeamStrength};
 pub use names::LEAGUE_NAME;
+pub use shift::{LateShift, LateShifts};
 pub use truth::{write_truth, TruthError, TruthRow};
 
 use crate::playfile::PlayRow;
@@ -118,12 +120,18 @@ pub fn simulate(cfg: &SimConfig) -> SimOutput {
 /// Simulate with some passers throwing short when trailing late (`habits`);
 /// the truth file records each passer's tilt shift.
 pub fn simulate_throw_short(cfg: &SimConfig, short: ThrowShort) -> SimOutput {
-    run_with(cfg, &|_, _| {}, None, short)
+    run_with(cfg, &|_, _| {}, None, short, &LateShifts::default())
 }
 
 /// As `simulate`, calling `on_game(done, total)` after every game.
 pub fn simulate_with_progress(cfg: &SimConfig, on_game: &dyn Fn(usize, usize)) -> SimOutput {
-    run(cfg, on_game, None)
+    run(cfg, on_game, None, &LateShifts::default())
+}
+
+/// As `simulate`, with true late-and-close shifts per passer (`LateShifts`);
+/// the truth file carries each passer's shifts and his true rates elsewhere.
+pub fn simulate_with_shifts(cfg: &SimConfig, shifts: &LateShifts) -> SimOutput {
+    run(cfg, &|_, _| {}, None, shifts)
 }
 
 // ---- the home line ----
@@ -195,11 +203,12 @@ fn rating(s: &TeamStrength, q: &PasserSkills) -> f64 {
 /// Per game: the pregame features (for the pilot regression).
 pub(crate) type FeatureLog = Vec<[f64; FEATURES]>;
 
-pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), log: Option<&mut FeatureLog>) -> SimOutput {
-    run_with(cfg, on_game, log, ThrowShort::default())
+pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), log: Option<&mut FeatureLog>, shifts: &LateShifts) -> SimOutput {
+    run_with(cfg, on_game, log, ThrowShort::default(), shifts)
 }
 
-fn run_with(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Option<&mut FeatureLog>, short: ThrowShort) -> SimOutput {
+fn run_with(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Option<&mut FeatureLog>, short: ThrowShort, shifts: &LateShifts) -> SimOutput {
+    let shift = |pid: usize| shifts.of(cfg.seed, pid);
     let league_rng = ChaCha8Rng::seed_from_u64(cfg.seed);
     let mut league = League::new(league_rng, cfg.first_season);
     let total = cfg.seasons as usize * GAMES_PER_SEASON;
@@ -257,6 +266,7 @@ fn run_with(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Option<&mu
                     ],
                     qb_skills: [skills(qh), skills(qa)],
                     throw_short: [qh.map(|q| short.shift(q)), qa.map(|q| short.shift(q))],
+                    late_shift: [[shift(qh[0]), shift(qh[1])], [shift(qa[0]), shift(qa[1])]],
                     home_line: (line_of(&f) * 10.0).round() / 10.0,
                 };
                 let mut rng = ChaCha8Rng::seed_from_u64(cfg.seed ^ 0x5EED_6A3E_0F1E_1D00);
@@ -271,7 +281,7 @@ fn run_with(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Option<&mu
         }
     }
     team_seasons.sort_by(|a, b| (a.season, &a.code).cmp(&(b.season, &b.code)));
-    let truth = book.rows(|pid| league.passers[pid].name.clone(), |t| league.teams[t].code.to_string(), |pid| short.shift(pid));
+    let truth = book.rows(|pid| league.passers[pid].name.clone(), |t| league.teams[t].code.to_string(), |pid| short.shift(pid), shift);
     let seen: std::collections::HashSet<&str> = truth.iter().map(|t| t.passer.as_str()).collect();
     let passers = league
         .passers

@@ -449,7 +449,7 @@ fn sim_time_25_seasons() {
 fn pilot_home_line_weights() {
     let league = |seed: u64| {
         let mut log = FeatureLog::new();
-        let out = run(&SimConfig { seasons: 10, seed, first_season: 2000 }, &|_, _| {}, Some(&mut log));
+        let out = run(&SimConfig { seasons: 10, seed, first_season: 2000 }, &|_, _| {}, Some(&mut log), &LateShifts::default());
         let plays = plays_of(&out.rows);
         let y: Vec<f64> = plays.games.iter().map(|g| (g.home_final - g.away_final) as f64).collect();
         (log, y)

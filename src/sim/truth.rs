@@ -3,6 +3,7 @@
 //! `end-of-game` preset's window): 4th quarter with 7:30 or less on the clock,
 //! or overtime, offense margin within ±8 at the snap.
 
+use super::shift::LateShift;
 use serde::Serialize;
 use std::io::Write;
 use std::path::{Path, PathBuf};
@@ -37,6 +38,17 @@ pub struct TruthRow {
     pub scramble: f64,
     /// Shift of his depth tilt when trailing late (`ThrowShort`; 0: none).
     pub late_trailing_depth_shift: f64,
+    /// True rates on his other dropbacks (not late and close); `None`
+    /// when every dropback of his was late and close. His true lift is the
+    /// late-and-close rate minus this.
+    pub other_complete: Option<f64>,
+    pub other_interception: Option<f64>,
+    pub other_sack: Option<f64>,
+    /// His simulated late-and-close shifts on the logit scale (0 unless the
+    /// league was drawn with `LateShifts`).
+    pub late_shift_complete: f64,
+    pub late_shift_interception: f64,
+    pub late_shift_sack: f64,
 }
 
 /// The engine's probabilities at one dropback.
@@ -101,7 +113,13 @@ impl TruthBook {
     }
 
     /// One row per passer with at least one dropback, in order of passer id.
-    pub(crate) fn rows(&self, name: impl Fn(usize) -> String, team_code: impl Fn(usize) -> String, shift: impl Fn(usize) -> f64) -> Vec<TruthRow> {
+    pub(crate) fn rows(
+        &self,
+        name: impl Fn(usize) -> String,
+        team_code: impl Fn(usize) -> String,
+        depth_shift: impl Fn(usize) -> f64,
+        shift: impl Fn(usize) -> LateShift,
+    ) -> Vec<TruthRow> {
         self.tally
             .iter()
             .enumerate()
@@ -109,6 +127,8 @@ impl TruthBook {
             .map(|(pid, t)| {
                 let n = t.n as f64;
                 let lc = |k: usize| (t.lc_n > 0).then(|| t.lc_sum[k] / t.lc_n as f64);
+                let other = |k: usize| (t.n > t.lc_n).then(|| (t.sum[k] - t.lc_sum[k]) / (t.n - t.lc_n) as f64);
+                let sh = shift(pid);
                 TruthRow {
                     passer: name(pid),
                     last_team: team_code(t.last_team),
@@ -123,7 +143,13 @@ impl TruthBook {
                     interception: t.sum[1] / n,
                     sack: t.sum[2] / n,
                     scramble: t.sum[3] / n,
-                    late_trailing_depth_shift: shift(pid),
+                    late_trailing_depth_shift: depth_shift(pid),
+                    other_complete: other(0),
+                    other_interception: other(1),
+                    other_sack: other(2),
+                    late_shift_complete: sh.complete,
+                    late_shift_interception: sh.interception,
+                    late_shift_sack: sh.sack,
                 }
             })
             .collect()
@@ -147,11 +173,12 @@ pub fn write_truth(truth: &[TruthRow], path: &Path) -> Result<(), TruthError> {
     let opt = |v: Option<f64>| v.map(|v| format!("{v:.6}")).unwrap_or_default();
     let mut body = String::from(
         "passer,last_team,seasons,end_of_game_dropbacks,end_of_game_complete,end_of_game_interception,\
-         end_of_game_sack,end_of_game_scramble,dropbacks,complete,interception,sack,scramble,late_trailing_depth_shift\n",
+         end_of_game_sack,end_of_game_scramble,dropbacks,complete,interception,sack,scramble,late_trailing_depth_shift,\
+         other_complete,other_interception,other_sack,late_shift_complete,late_shift_interception,late_shift_sack\n",
     );
     for r in truth {
         body.push_str(&format!(
-            "{},{},{},{},{},{},{},{},{},{:.6},{:.6},{:.6},{:.6},{}\n",
+            "{},{},{},{},{},{},{},{},{},{:.6},{:.6},{:.6},{:.6},{},{},{},{},{:.6},{:.6},{:.6}\n",
             r.passer,
             r.last_team,
             r.seasons,
@@ -165,7 +192,13 @@ pub fn write_truth(truth: &[TruthRow], path: &Path) -> Result<(), TruthError> {
             r.interception,
             r.sack,
             r.scramble,
-            r.late_trailing_depth_shift
+            r.late_trailing_depth_shift,
+            opt(r.other_complete),
+            opt(r.other_interception),
+            opt(r.other_sack),
+            r.late_shift_complete,
+            r.late_shift_interception,
+            r.late_shift_sack
         ));
     }
     w.write_all(body.as_bytes()).map_err(failed(path))?;

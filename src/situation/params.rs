@@ -90,7 +90,7 @@ pub const PARAMS: &[ParamSpec] = &[
     p("min", Field::Page, "Min. dropbacks", "table: dropbacks a passer needs to be ranked (default 20)", "30", "", false),
     p("sort", Field::Page, "Sort", "table: column to sort on: passer, team or a metric key such as epa", "epa", "", false),
     p("dir", Field::Page, "Direction", "table: desc (high to low, default) or asc", "asc", "", false),
-    p("by", Field::Page, "Sort on", "table: sort on the estimate (est, default) or the raw number (raw)", "raw", "", false),
+    p("by", Field::Page, "Sort on", "table: sort on the estimate (est, default), the raw number (raw) or the lift, his value here minus his normal (lift)", "raw", "", false),
     p("view", Field::Page, "View", "laptop (default) or projector: large type, fewer columns", "projector", "", false),
     p("metric", Field::Page, "Metric", "play list: only the snaps a metric is taken over (its key, e.g. int_rate)", "int_rate", "", false),
     p("game", Field::Page, "Game", "game page: the game's key", "KEY", "", false),

@@ -98,8 +98,8 @@ pub struct SplitIndex {
 }
 
 /// A situation's pass over the index, its season filter aside: base sums
-/// (see `Layout`) per passer-season and per season × state cell, unit
-/// counts per passer-season × cell, and each passer-season's last snap.
+/// (see `Layout`) per passer-season, per season × state cell and per
+/// passer-season × state cell, and each passer-season's last snap.
 pub(crate) struct Memo {
     pub(super) width: usize,
     /// n_ps × width.
@@ -107,9 +107,10 @@ pub(crate) struct Memo {
     /// n_seasons × CELLS × width.
     pub(super) season_cells: Vec<f64>,
     /// Nonzero (passer-season × CELLS + cell) keys, ascending, and their
-    /// unit counts (units each).
+    /// base sums (width each): unit counts for the state-mix weights, sums
+    /// for leaving a passer's own snaps out of the league's cell values.
     pub(super) ps_cell_keys: Vec<u32>,
-    pub(super) ps_cell_counts: Vec<u32>,
+    pub(super) ps_cell_sums: Vec<f64>,
     /// Per passer-season: (last snap + 1, its offense); 0 when none.
     pub(super) last: Vec<(u32, u16)>,
 }

@@ -15,8 +15,9 @@ pub enum Unit {
     AttemptWithCp,
     /// 3rd and 4th down attempts with air yards.
     LateDownAttempt,
-    /// Dropbacks while trailing in the final 2:00 of a half, with a next
-    /// snap by the same offense in the same period.
+    /// Dropbacks while trailing in the final 2:00 of a half that the clock
+    /// ran through, with a next snap by the same offense in the same period
+    /// and no timeout between (`hurry_up_gap`).
     HurryUp,
     /// Attempts with air yards the throw-value model priced.
     ThrowValued,
@@ -30,7 +31,7 @@ impl Unit {
             Unit::PassOrSack => "attempts + sacks",
             Unit::AttemptWithCp => "attempts with air yards",
             Unit::LateDownAttempt => "3rd/4th-down attempts",
-            Unit::HurryUp => "hurry-up snaps",
+            Unit::HurryUp => "hurry-up snaps (clock running)",
             Unit::ThrowValued => "attempts with air yards",
         }
     }
@@ -159,10 +160,21 @@ pub const METRICS: &[MetricDef] = &[
     m(Id::Turnover, "turnover", "Giveaways per dropback (%): interceptions and lost fumbles", "Giveaway %", Dropback, Rate, false, 100.0, 1, false, true),
     m(Id::Sticks, "sticks", "Thrown past the sticks on 3rd/4th down (%)", "Past sticks %", LateDownAttempt, Rate, true, 100.0, 1, false, true),
     m(Id::SticksOver, "sticks_over", "Past the sticks on 3rd/4th down over the league's depths in the same spots (% points)", "Sticks vs league", LateDownAttempt, Mean, true, 100.0, 1, false, true),
-    m(Id::Pace, "pace", "Hurry-up pace: seconds to the next snap when trailing late in a half", "Hurry-up secs", HurryUp, Mean, false, 1.0, 1, false, true),
+    m(Id::Pace, "pace", "Hurry-up pace: seconds to the next snap when trailing late in a half, after plays the clock ran through", "Hurry-up secs", HurryUp, Mean, false, 1.0, 1, false, true),
     m(Id::Choice, "choice", "Depth choice: WPA per throw of the depth he picked over the depths the league picks in the same spot", "Depth choice", ThrowValued, Mean, true, 1.0, 4, false, true),
     m(Id::Execution, "execution", "Execution: WPA per throw over what the league gets at the depth he picked", "Execution", ThrowValued, Mean, true, 1.0, 4, false, true),
 ];
+
+/// Style metrics: how often he does a thing, with no better direction (a
+/// scramble or a throw past the sticks can be right or wrong). Their
+/// percentile runs 100 = most often, their lift reads "more/less often", and
+/// `higher_is_better` only orders their columns.
+pub const STYLE: &[&str] = &["scrambles", "scramble_rate", "sticks", "sticks_over"];
+
+/// Is the metric `key` a style metric (no better direction)?
+pub fn is_style(key: &str) -> bool {
+    STYLE.contains(&key)
+}
 
 pub fn metric_index(key: &str) -> Option<usize> {
     METRICS.iter().position(|m| m.key == key)
@@ -184,14 +196,31 @@ pub fn pass_yards(p: &Plays, i: usize) -> f64 {
     }
 }
 
-/// Seconds from dropback `i` to the same offense's next snap in the same
-/// period, when trailing in the final 2:00 of a half (or overtime).
+/// Hurry-up pace: seconds of game clock from dropback `i` to the same
+/// offense's next snap in the same period, when trailing in the final 2:00
+/// of a half (or overtime), over dropbacks the clock ran through: a catch
+/// (not a touchdown), a sack or a scramble, with no timeout taken by either
+/// side before the next snap. Incompletions and interceptions stop the clock,
+/// so they are left out rather than counted as instant snaps. The file does
+/// not say when a catch or a run ended out of bounds; those stay in and read
+/// faster than they were.
 pub fn hurry_up_gap(p: &Plays, i: usize) -> Option<f64> {
     if p.margin[i] >= 0 || p.secs_half[i] > 120 || !matches!(p.period[i], 2 | 4 | 5..) {
         return None;
     }
+    let ran = match p.kind[i] {
+        Kind::Pass => p.complete[i] && !p.intercepted[i],
+        Kind::Sack | Kind::Scramble => true,
+        _ => false,
+    };
+    if !ran || p.points[i] != 0 || p.fumble_lost[i] {
+        return None;
+    }
     let j = i + 1;
     if j >= p.len() || p.game[j] != p.game[i] || p.period[j] != p.period[i] || p.offense[j] != p.offense[i] {
+        return None;
+    }
+    if p.off_timeouts[j] != p.off_timeouts[i] || p.def_timeouts[j] != p.def_timeouts[i] {
         return None;
     }
     Some((p.clock[i] - p.clock[j]).max(0) as f64)

@@ -1,12 +1,15 @@
 //! The split engine: for a situation, every passer's metrics against the
 //! league in the same spots, with a state-mix adjusted baseline,
-//! empirical-Bayes estimates and intervals, percentiles, z-scores and
-//! season-to-season stability; the passer profile; the snaps behind a number.
+//! two-level estimates centred on each passer's own level, lift (his value
+//! here minus his normal) with intervals, percentiles, the chance of beating the
+//! league and season-to-season stability; the passer profile; the snaps behind a number.
 //! Pages, JSON, CSV and the PDF report are all views of these values.
 
 mod index;
 pub mod metrics;
 pub mod review;
+mod lift;
+mod normal;
 mod profile;
 #[cfg(test)]
 mod reference;
@@ -15,10 +18,12 @@ mod shrink;
 mod snaps;
 mod table;
 mod tags;
+mod words;
 
-pub use metrics::{metric_group, metric_index, MetricDef, SnapValues, Stat, Unit, METRICS, METRIC_GROUPS};
+pub use metrics::{is_style, metric_group, metric_index, MetricDef, SnapValues, Stat, Unit, METRICS, METRIC_GROUPS};
 pub use snaps::{coach_spot, down_distance, game_snaps, play_indices, play_list, quarter, result_text, snap_at, Snap};
 pub use index::SplitIndex;
 pub use profile::{epa_distribution, epa_distribution_in, profile, profile_in, profile_with, EpaDistribution, Profile, ProfileLine, SeasonLine};
 pub use table::{split_table, split_table_for, split_table_in, Cell, MetricInfo, PasserRow, SortBy, SplitTable, DEFAULT_MIN_DROPBACKS};
 pub use tags::{tag_breakdown, tag_breakdown_in, TagBreakdown, TagBreakdownError, TagLine};
+pub use words::{lift_above_zero, lift_words, stability_words, LIFT_RULE};

@@ -37,6 +37,8 @@ pub struct ProfileLine {
     pub label: &'static str,
     pub query: Vec<(String, String)>,
     pub league: Vec<Option<f64>>,
+    /// The league's raw lift here (its value here minus on its other snaps).
+    pub league_lift: Vec<Option<f64>>,
     pub league_dropbacks: u32,
     pub qualified_passers: usize,
     /// None when the passer has no dropback in the preset.
@@ -86,6 +88,7 @@ pub fn profile_with(
             label: preset.label(),
             query: s.to_query(),
             league: t.league.clone(),
+            league_lift: t.league_lift.clone(),
             league_dropbacks: t.league_dropbacks,
             qualified_passers: t.qualified().count(),
             row,

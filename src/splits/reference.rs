@@ -45,7 +45,7 @@ fn reference(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
             continue;
         }
         let c = cell(p, i);
-        let ps = out.passers.entry(who).or_insert_with(|| PasserSums { accs: new_accs(), cells: vec![0.0; CELLS * nm], team: 0 });
+        let ps = out.passers.entry(who).or_insert_with(|| PasserSums { accs: new_accs(), cells: vec![0.0; CELLS * nm], cell_sums: vec![0.0; CELLS * nm], team: 0 });
         ps.team = p.offense[i];
         for j in 0..nm {
             if mask & (1 << j) != 0 {
@@ -53,6 +53,7 @@ fn reference(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
                 out.league[j].add(vals[j]);
                 out.league_cells[c * nm + j].add(vals[j]);
                 ps.cells[c * nm + j] += 1.0;
+                ps.cell_sums[c * nm + j] += vals[j];
             }
         }
     }
@@ -80,6 +81,11 @@ fn same(fast: &Sums, slow: &Sums) -> Result<(), String> {
         same_accs(&format!("passer {who}"), &f.accs, &s.accs)?;
         if f.cells != s.cells {
             return Err(format!("passer {who}: cell counts differ"));
+        }
+        for (k, (a, b)) in f.cell_sums.iter().zip(&s.cell_sums).enumerate() {
+            if (a - b).abs() > 1e-9 * b.abs().max(1.0) {
+                return Err(format!("passer {who}: cell sum {k} is {a}, reference {b}"));
+            }
         }
         if f.team != s.team {
             return Err(format!("passer {who}: team {} vs {}", f.team, s.team));

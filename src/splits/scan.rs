@@ -77,6 +77,9 @@ pub(super) struct PasserSums {
     pub(super) accs: Accs,
     /// The passer's count of snaps per state cell, per metric.
     pub(super) cells: Vec<f64>,
+    /// The passer's sum of values per state cell, per metric (to leave his
+    /// own snaps out of the league's cell values).
+    pub(super) cell_sums: Vec<f64>,
     pub(super) team: u16,
 }
 
@@ -84,7 +87,7 @@ pub(super) struct PasserSums {
 struct Partial {
     ps: Vec<f64>,
     season_cells: Vec<f64>,
-    ps_cells: Vec<u32>,
+    ps_cells: Vec<f64>,
     last: Vec<(u32, u16)>,
 }
 
@@ -95,7 +98,7 @@ impl Partial {
         Partial {
             ps: vec![0.0; n_ps * w],
             season_cells: vec![0.0; ix.seasons.len() * CELLS * w],
-            ps_cells: vec![0; n_ps * CELLS * ix.layout.units],
+            ps_cells: vec![0.0; n_ps * CELLS * w],
             last: vec![(0, 0); n_ps],
         }
     }
@@ -113,15 +116,12 @@ impl Partial {
             self.last[ps] = (snap, ix.team[r]);
         }
         let units = ix.units[r];
-        let uc = &mut self.ps_cells[(ps * CELLS + c) * lay.units..][..lay.units];
-        for (u, n) in uc.iter_mut().enumerate() {
-            *n += u32::from(units >> u & 1 == 1);
-        }
         let ints = &ix.ints[r * lay.ints..][..lay.ints];
         let reals = &ix.reals[r * lay.reals..][..lay.reals];
         let bits = ix.bits[r];
         let sc = (season * CELLS + c) * w;
-        for base in [&mut self.ps[ps * w..][..w], &mut self.season_cells[sc..][..w]] {
+        let pc = (ps * CELLS + c) * w;
+        for base in [&mut self.ps[ps * w..][..w], &mut self.season_cells[sc..][..w], &mut self.ps_cells[pc..][..w]] {
             base[0] += 1.0;
             for u in 0..lay.units {
                 base[1 + u] += f64::from(units >> u & 1);
@@ -148,9 +148,7 @@ impl Partial {
     fn merge(mut self, b: Partial) -> Partial {
         add_into(&mut self.ps, &b.ps);
         add_into(&mut self.season_cells, &b.season_cells);
-        for (x, y) in self.ps_cells.iter_mut().zip(&b.ps_cells) {
-            *x += y;
-        }
+        add_into(&mut self.ps_cells, &b.ps_cells);
         for (x, y) in self.last.iter_mut().zip(&b.last) {
             if y.0 > x.0 {
                 *x = *y;
@@ -203,12 +201,12 @@ fn memo(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Arc<Memo> 
         }
     }
     let all = all.unwrap_or_else(|| Partial::new(ix));
-    let units = ix.layout.units;
-    let (mut keys, mut counts) = (Vec::new(), Vec::new());
-    for (k, uc) in all.ps_cells.chunks(units.max(1)).enumerate() {
-        if uc.iter().any(|&n| n > 0) {
+    let w = ix.layout.width();
+    let (mut keys, mut cell_sums) = (Vec::new(), Vec::new());
+    for (k, b) in all.ps_cells.chunks(w).enumerate() {
+        if b[0] > 0.0 {
             keys.push(k as u32);
-            counts.extend_from_slice(uc);
+            cell_sums.extend_from_slice(b);
         }
     }
     let m = Arc::new(Memo {
@@ -216,7 +214,7 @@ fn memo(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Arc<Memo> 
         ps: all.ps,
         season_cells: all.season_cells,
         ps_cell_keys: keys,
-        ps_cell_counts: counts,
+        ps_cell_sums: cell_sums,
         last: all.last,
     });
     if let Ok(mut c) = ix.memo.lock() {
@@ -271,9 +269,8 @@ pub(super) fn accumulate(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situati
             slot.1 = m.last[k];
         }
     }
-    // Per passer: unit counts per cell over the chosen seasons.
-    let units = lay.units;
-    let mut cells: Vec<Vec<u32>> = vec![Vec::new(); ix.n_passers];
+    // Per passer: base sums per cell over the chosen seasons.
+    let mut cells: Vec<Vec<f64>> = vec![Vec::new(); ix.n_passers];
     for (k, &key) in m.ps_cell_keys.iter().enumerate() {
         let (ps, c) = (key as usize / CELLS, key as usize % CELLS);
         let (who, season) = ix.ps_key[ps];
@@ -282,24 +279,24 @@ pub(super) fn accumulate(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situati
         }
         let mc = &mut cells[who as usize];
         if mc.is_empty() {
-            mc.resize(CELLS * units, 0);
+            mc.resize(CELLS * w, 0.0);
         }
-        for (x, y) in mc[c * units..][..units].iter_mut().zip(&m.ps_cell_counts[k * units..][..units]) {
-            *x += y;
-        }
+        add_into(&mut mc[c * w..][..w], &m.ps_cell_sums[k * w..][..w]);
     }
     for (who, slot) in mine.into_iter().enumerate() {
         let Some((base, (_, team))) = slot else { continue };
-        let uc = &cells[who];
-        let mut pc = vec![0.0; CELLS * nm];
-        if !uc.is_empty() {
+        let cb = &cells[who];
+        let (mut pc, mut cs) = (vec![0.0; CELLS * nm], vec![0.0; CELLS * nm]);
+        if !cb.is_empty() {
             for c in 0..CELLS {
                 for j in 0..nm {
-                    pc[c * nm + j] = f64::from(uc[c * units + lay.unit_of[j]]);
+                    let (n, sum, _) = lay.acc(&cb[c * w..][..w], j);
+                    pc[c * nm + j] = n;
+                    cs[c * nm + j] = sum;
                 }
             }
         }
-        sums.passers.insert(who as u32, PasserSums { accs: expand(lay, &base), cells: pc, team });
+        sums.passers.insert(who as u32, PasserSums { accs: expand(lay, &base), cells: pc, cell_sums: cs, team });
     }
     // The league: per cell over the chosen seasons; per season over cells.
     let mut league = vec![0.0; w];

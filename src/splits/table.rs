@@ -1,43 +1,64 @@
 //! The split table: every passer's cells (raw value, league, state-mix
-//! baseline, estimate and interval, percentile, z) for a situation, and the
-//! metric descriptions that travel with it.
+//! baseline, estimate, lift and their intervals, percentile, chance of beating
+//! the league) for a situation, and the metric descriptions that travel with it.
 
-use super::metrics::{metric_index, SnapValues, Stat, METRICS};
 use super::index::SplitIndex;
-use super::scan::{accumulate, raw_value, Sums};
-use super::shrink::{adjusted, shrink, stability};
+use super::lift::{self, posteriors, Derived, RATING_PARTS};
+use super::metrics::{is_style, metric_index, SnapValues, Stat, METRICS};
+use super::normal::every_snap;
+use super::scan::{accumulate, rating_from, raw_value, Acc, Sums};
+use super::shrink::{adjusted, stability};
+use crate::stats::multilevel::{normal_interval, prob_above, PasserPost};
 use crate::plays::Plays;
 use crate::situation::Situation;
 use crate::stats;
 use rayon::prelude::*;
 use serde::Serialize;
 
-/// One number in the table, with everything said about it.
+/// One number in the table, with everything said about it. Every interval
+/// is a 90% interval; values are in display units (percentages ×100).
 #[derive(Debug, Clone, Serialize, Default)]
 pub struct Cell {
     pub key: &'static str,
-    /// The passer's raw value (display units: percentages ×100).
+    /// The passer's raw value.
     pub value: Option<f64>,
     /// Snaps it is taken over.
     pub n: f64,
     /// League value in the same situation and seasons.
     pub league: Option<f64>,
     pub diff: Option<f64>,
-    /// League value re-weighted to this passer's down × distance × field
-    /// zone mix (direct standardization).
+    /// What the league does on his mix of downs, distances and field zones:
+    /// each cell's league value without his own snaps (thin cells smoothed),
+    /// weighted by his count of snaps there.
     pub adjusted_league: Option<f64>,
     pub adjusted_diff: Option<f64>,
-    /// Empirical-Bayes estimate and 90% interval.
+    /// 90% interval of `adjusted_diff` (his sampling noise and the baseline's).
+    pub adjusted_diff_lo: Option<f64>,
+    pub adjusted_diff_hi: Option<f64>,
+    /// Estimate from the two-level model: centred on his own level elsewhere
+    /// plus the situation's effect, with its 90% interval.
     pub estimate: Option<f64>,
     pub lo: Option<f64>,
     pub hi: Option<f64>,
-    /// τ² / (τ² + σ²/n): the share of the spread in such numbers that is
-    /// real difference between passers rather than sampling noise.
+    /// The share of the spread in such raw numbers that is real difference
+    /// between passers rather than sampling noise.
     pub signal: Option<f64>,
-    /// Among qualified passers, 100 = best (on the estimate).
+    /// His level on his other snaps in the same seasons (estimated).
+    pub normal: Option<f64>,
+    /// Lift: his value here minus his own level on his other snaps, with its
+    /// 90% interval; the passer × situation part is shrunk toward 0.
+    pub lift: Option<f64>,
+    pub lift_lo: Option<f64>,
+    pub lift_hi: Option<f64>,
+    /// The share of the spread in raw differences (here minus elsewhere) that
+    /// is real lift rather than noise: often small.
+    pub lift_signal: Option<f64>,
+    /// Among qualified passers, 100 = best (on the estimate); for style
+    /// metrics (no better direction) 100 = most.
     pub percentile: Option<f64>,
-    /// (raw − mean of qualified passers) / their standard deviation.
-    pub z: Option<f64>,
+    /// The posterior probability that his true value is better than the
+    /// league value (for style metrics: higher than it).
+    pub p_better: Option<f64>,
 }
 
 #[derive(Debug, Clone, Serialize)]
@@ -67,8 +88,11 @@ pub struct MetricInfo {
     pub projector: bool,
     pub decision: bool,
     /// Season-to-season correlation among passers qualified in both
-    /// seasons of a consecutive pair, pooled over pairs.
+    /// seasons of a consecutive pair, each season centred, pooled over pairs.
     pub stability: Option<f64>,
+    /// Its 90% interval (Fisher's z).
+    pub stability_lo: Option<f64>,
+    pub stability_hi: Option<f64>,
     pub stability_pairs: usize,
 }
 
@@ -87,6 +111,10 @@ pub struct SplitTable {
     #[serde(rename = "league")]
     pub league_row: Vec<Option<f64>>,
     pub league_dropbacks: u32,
+    /// The league's raw lift: its value here minus its value on every other
+    /// snap of the same seasons (`None` for counts and when there are no
+    /// other snaps; the rating's from totals, capped).
+    pub league_lift: Vec<Option<f64>>,
     /// Every passer with a dropback in the situation; `qualified` marks
     /// those at or above the minimum.
     pub rows: Vec<PasserRow>,
@@ -117,6 +145,7 @@ impl SplitTable {
             match by {
                 SortBy::Value => c.value,
                 SortBy::Estimate => c.estimate.or(c.value),
+                SortBy::Lift => c.lift,
             }
         };
         self.rows.sort_by(|a, b| match (pick(a), pick(b)) {
@@ -136,6 +165,8 @@ impl SplitTable {
 pub enum SortBy {
     Value,
     Estimate,
+    /// The lift (his value here minus his normal).
+    Lift,
 }
 
 /// Default minimum dropbacks to qualify.
@@ -162,10 +193,11 @@ pub fn split_table_for(p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: 
 /// `split_table_for` on a league already indexed (`ix` built from `p`, `v`).
 pub fn split_table_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32, focus: Option<&str>) -> SplitTable {
     let sums = accumulate(ix, p, v, s);
-    build_table(p, &sums, s, min_dropbacks, focus)
+    let normal = every_snap(ix, p, v, s);
+    build_table(p, &sums, &normal, s, min_dropbacks, focus)
 }
 
-pub(super) fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: u32, focus: Option<&str>) -> SplitTable {
+pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, min_dropbacks: u32, focus: Option<&str>) -> SplitTable {
     let nm = METRICS.len();
     let db = metric_index("dropbacks").unwrap_or(0);
     let league: Vec<Option<f64>> = (0..nm).map(|j| raw_value(&sums.league, j)).collect();
@@ -181,7 +213,14 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: 
             }
         }
     }
-    let sigma2: Vec<f64> = (0..nm).map(|j| if within_df[j] > 0.0 { within[j] / within_df[j] } else { f64::NAN }).collect();
+    // Per-snap variance: p(1 − p) at the league rate for shares, the pooled
+    // within-passer variance for means (the baselines' intervals).
+    let snap_var: Vec<f64> = (0..nm)
+        .map(|j| match METRICS[j].stat {
+            Stat::Mean => if within_df[j] > 0.0 { within[j] / within_df[j] } else { f64::NAN },
+            _ => sums.league[j].mean().map(|p| p * (1.0 - p)).unwrap_or(f64::NAN),
+        })
+        .collect();
 
     let mut rows: Vec<PasserRow> = sums
         .passers
@@ -197,8 +236,14 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: 
                     if m.stat != Stat::Count {
                         c.league = lg;
                         c.diff = value.zip(lg).map(|(a, b)| a - b);
-                        c.adjusted_league = adjusted(sums, ps, j).map(|x| x * m.scale);
-                        c.adjusted_diff = value.zip(c.adjusted_league).map(|(a, b)| a - b);
+                        if let Some(b) = adjusted(sums, ps, j, snap_var[j]) {
+                            c.adjusted_league = Some(b.value * m.scale);
+                            c.adjusted_diff = value.map(|a| a - b.value * m.scale);
+                            let var = (snap_var[j] / ps.accs[j].n.max(1.0) + b.var) * m.scale * m.scale;
+                            if let Some((lo, hi)) = c.adjusted_diff.and_then(|d| normal_interval(d, var, stats::INTERVAL_LEVEL)) {
+                                (c.adjusted_diff_lo, c.adjusted_diff_hi) = (Some(lo), Some(hi));
+                            }
+                        }
                     }
                     c
                 })
@@ -213,35 +258,57 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: 
         })
         .collect();
 
-    // Empirical Bayes per metric, priors from the qualified passers; the
-    // metrics are independent, so rayon's threads share them (results in
-    // metric order; a panic in one reaches the caller).
+    // The two-level model per metric, priors from every passer; the metrics
+    // are independent, so rayon's threads share them (results in metric
+    // order; a panic in one reaches the caller). The rating is put together
+    // from its shrunk parts afterwards.
     let wanted: Vec<bool> = rows.iter().map(|r| r.qualified || focus == Some(r.passer.as_str()) || s.passer.as_deref() == Some(r.passer.as_str())).collect();
-    let jobs: Vec<usize> = (0..nm).filter(|&j| METRICS[j].stat != Stat::Count).collect();
-    let results: Vec<(usize, Vec<Option<stats::Posterior>>)> =
-        jobs.par_iter().map(|&j| (j, shrink(sums, j, &sigma2, &wanted, min_dropbacks))).collect();
+    let rating_j = metric_index("rating");
+    let parts: Vec<usize> = RATING_PARTS.iter().filter_map(|k| metric_index(k)).collect();
+    let jobs: Vec<usize> = (0..nm).filter(|&j| METRICS[j].stat != Stat::Count && Some(j) != rating_j).chain(parts.iter().copied()).collect();
+    let mut posts: Vec<Option<Vec<Option<PasserPost>>>> = vec![None; nm];
+    let results: Vec<(usize, Vec<Option<PasserPost>>)> = jobs.par_iter().map(|&j| (j, posteriors(sums, normal, j, &wanted))).collect();
     for (j, post) in results {
-        let m = &METRICS[j];
-        for (row, post) in rows.iter_mut().zip(post) {
-            let Some(post) = post else { continue };
-            let c = &mut row.cells[j];
-            let clamp = |x: f64| if m.key == "rating" { x.clamp(0.0, 158.3) } else { x };
-            c.estimate = Some(clamp(post.estimate) * m.scale);
-            c.lo = Some(clamp(post.lo) * m.scale);
-            c.hi = Some(clamp(post.hi) * m.scale);
-            c.signal = Some(post.signal_share);
+        posts[j] = Some(post);
+    }
+    let mut derived: Vec<Option<Vec<Option<Derived>>>> =
+        posts.iter().enumerate().map(|(j, p)| (METRICS[j].stat != Stat::Count).then(|| p.as_ref().map(|v| v.iter().map(|x| x.as_ref().map(Derived::from)).collect())).flatten()).collect();
+    if let (Some(rj), [a, b, c, d]) = (rating_j, parts.as_slice()) {
+        if let (Some(pa), Some(pb), Some(pc), Some(pd)) = (&posts[*a], &posts[*b], &posts[*c], &posts[*d]) {
+            derived[rj] = Some((0..rows.len()).map(|i| Some(lift::rating([pa[i].as_ref()?, pb[i].as_ref()?, pc[i].as_ref()?, pd[i].as_ref()?]))).collect());
         }
-        // Percentile (on the estimate) and z (on the raw value), qualified only.
+    }
+    for (j, est) in derived.into_iter().enumerate() {
+        let Some(est) = est else { continue };
+        let m = &METRICS[j];
+        let rate = m.stat == Stat::Rate;
+        let is_rating = Some(j) == rating_j;
+        let bound = |x: f64| if rate { x.clamp(0.0, 1.0) } else if is_rating { x.clamp(0.0, 158.3) } else { x };
+        let league_raw = league[j].map(|x| x / m.scale);
+        for (row, d) in rows.iter_mut().zip(est) {
+            let Some(d) = d else { continue };
+            let c = &mut row.cells[j];
+            c.estimate = Some(bound(d.value.0) * m.scale);
+            if let Some((lo, hi)) = normal_interval(d.value.0, d.value.1, stats::INTERVAL_LEVEL) {
+                (c.lo, c.hi) = (Some(bound(lo) * m.scale), Some(bound(hi) * m.scale));
+            }
+            c.signal = Some(d.signal);
+            c.normal = Some(bound(d.level.0) * m.scale);
+            if let Some((l, lv)) = d.lift {
+                c.lift = Some(l * m.scale);
+                if let Some((lo, hi)) = normal_interval(l, lv, stats::INTERVAL_LEVEL) {
+                    (c.lift_lo, c.lift_hi) = (Some(lo * m.scale), Some(hi * m.scale));
+                }
+                c.lift_signal = d.lift_signal;
+            }
+            c.p_better = league_raw.and_then(|lg| prob_above(d.value.0, d.value.1, lg)).map(|pa| if m.higher_is_better || is_style(m.key) { pa } else { 1.0 - pa });
+        }
+        // Percentile on the estimate, among qualified passers.
         let ests: Vec<f64> = rows.iter().filter(|r| r.qualified).filter_map(|r| r.cells[j].estimate).collect();
-        let raws: Vec<f64> = rows.iter().filter(|r| r.qualified).filter_map(|r| r.cells[j].value).collect();
-        let spread = stats::mean_sd(&raws);
         for row in rows.iter_mut() {
             let c = &mut row.cells[j];
             if let Some(pr) = c.estimate.and_then(|e| stats::percentile_rank(&ests, e)) {
-                c.percentile = Some(if m.higher_is_better { pr } else { 100.0 - pr });
-            }
-            if let (Some(x), Some((mean, sd))) = (c.value, spread) {
-                c.z = stats::z_score(x, mean, sd);
+                c.percentile = Some(if m.higher_is_better || is_style(m.key) { pr } else { 100.0 - pr });
             }
         }
     }
@@ -253,7 +320,7 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: 
     let metrics = (0..nm)
         .map(|j| {
             let m = &METRICS[j];
-            let (r, pairs) = if m.stat == Stat::Count { (None, 0) } else { stability(sums, j, min_dropbacks) };
+            let st = if m.stat == Stat::Count { None } else { Some(stability(sums, j, min_dropbacks)) };
             MetricInfo {
                 key: m.key,
                 label: m.label,
@@ -264,8 +331,10 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: 
                 decimals: m.decimals,
                 projector: m.projector,
                 decision: m.decision,
-                stability: r,
-                stability_pairs: pairs,
+                stability: st.as_ref().and_then(|x| x.r),
+                stability_lo: st.as_ref().and_then(|x| x.lo),
+                stability_hi: st.as_ref().and_then(|x| x.hi),
+                stability_pairs: st.as_ref().map(|x| x.pairs).unwrap_or(0),
             }
         })
         .collect();
@@ -281,6 +350,21 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, s: &Situation, min_dropbacks: 
         metrics,
         league_dropbacks: sums.league[db].n as u32,
         league_row: league_row(&league),
+        league_lift: (0..nm)
+            .map(|j| {
+                let m = &METRICS[j];
+                if m.stat == Stat::Count {
+                    return None;
+                }
+                if Some(j) == rating_j {
+                    let other: Vec<Acc> = normal.league.iter().zip(&sums.league).map(|(a, h)| Acc { n: a.n - h.n, sum: a.sum - h.sum, sumsq: a.sumsq - h.sumsq }).collect();
+                    return rating_from(&sums.league).zip(rating_from(&other)).map(|(h, o)| h - o);
+                }
+                let (here, all) = (&sums.league[j], &normal.league[j]);
+                let other_n = all.n - here.n;
+                (other_n >= 0.5 && here.n > 0.0).then(|| (here.sum / here.n - (all.sum - here.sum) / other_n) * m.scale)
+            })
+            .collect(),
         league,
         rows,
     }

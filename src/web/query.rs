@@ -91,7 +91,8 @@ impl Params {
         let sort_by = match get("by").as_deref() {
             None | Some("") | Some("est") => SortBy::Estimate,
             Some("raw") => SortBy::Value,
-            Some(v) => return Err(bad("by", v, "expected est or raw")),
+            Some("lift") => SortBy::Lift,
+            Some(v) => return Err(bad("by", v, "expected est, raw or lift")),
         };
         let projector = match get("view").as_deref() {
             None | Some("") | Some("laptop") => false,

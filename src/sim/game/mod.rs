@@ -6,6 +6,7 @@
 
 use super::draw::{chance, exp_mean, int_in, logistic, normal, pick, unit, SimRng};
 use super::league::{PasserSkills, TeamStrength};
+use super::shift::LateShift;
 use super::truth::{late_and_close, DropbackTruth, TruthBook};
 use crate::playfile::{Kind, PlayRow};
 use tuning::*;
@@ -33,6 +34,8 @@ pub(crate) struct GameSetup<'a> {
     pub qb_skills: [[PasserSkills; 2]; 2],
     /// Each dressed passer's depth-tilt shift when trailing late (`habits`).
     pub throw_short: [[f64; 2]; 2],
+    /// Each dressed passer's true late-and-close shifts (0 when off).
+    pub late_shift: [[LateShift; 2]; 2],
     pub home_line: f64,
 }
 

@@ -119,6 +119,7 @@ impl Engine<'_, '_> {
         let prevent = (self.period >= 4 && m <= -9 && self.clock <= 300) || self.soft_defense();
         let long = self.down >= 3 && self.to_go >= 7;
         let poise = if late_close { s.poise } else { 0.0 };
+        let shift = if late_close { self.g.late_shift[off][self.qb[off]] } else { LateShift::default() };
         let dist = 100 - self.ball_on;
 
         let cramped = if self.backed_up() { BACKED_UP_SACK_LOGIT } else { 0.0 };
@@ -129,6 +130,7 @@ impl Engine<'_, '_> {
         if desperate {
             sack += 0.2;
         }
+        sack += shift.sack;
         let mut scr = SCRAMBLE_LOGIT + s.scrambling;
         if self.down >= 3 {
             scr += 0.3;
@@ -166,10 +168,12 @@ impl Engine<'_, '_> {
         if dist <= 10 {
             comp_shift -= 0.35;
         }
+        comp_shift += shift.complete;
         let mut int_shift = s.interceptions + 0.8 * (sd.pass_def - so.pass_off) - poise;
         if desperate {
             int_shift += 0.35;
         }
+        int_shift += shift.interception;
         let mut comp = [0.0; BANDS];
         let mut int = [0.0; BANDS];
         for c in 0..BANDS {

@@ -63,6 +63,8 @@ pub struct CellView {
     pub main: String,
     pub sub: String,
     pub signal: String,
+    /// His lift with its 90% interval ("lift +2.1 [−1.0, +5.3]"), empty for counts.
+    pub lift: String,
     pub sort: String,
     pub href: String,
     pub title: String,
@@ -90,7 +92,8 @@ pub(super) struct ExplorePage {
     pub(super) fields: Vec<FormField>,
     pub(super) tag_fields: Vec<TagField>,
     pub(super) min: u32,
-    pub(super) by_raw: bool,
+    /// The `by` setting: est, raw or lift.
+    pub(super) by: &'static str,
     pub(super) description: String,
     pub(super) seasons: String,
     pub(super) league_dropbacks: String,
@@ -257,22 +260,25 @@ pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTab
                 .map(|&j| {
                     let m = &METRICS[j];
                     let c = &r.cells[j];
-                    let (sub, signal) = if m.stat == Stat::Count {
-                        (String::new(), String::new())
+                    let (sub, signal, lift) = if m.stat == Stat::Count {
+                        (String::new(), String::new(), String::new())
                     } else {
                         (
                             format!("{} [{}, {}]", fixed(c.estimate, m.decimals), fixed(c.lo, m.decimals), fixed(c.hi, m.decimals)),
                             c.signal.map(|s| format!("signal {:.0}%", s * 100.0)).unwrap_or_else(|| "signal –".into()),
+                            lift_text(c, m.decimals),
                         )
                     };
                     let sortv = match params.sort_by {
                         SortBy::Estimate if m.stat != Stat::Count => c.estimate.or(c.value),
+                        SortBy::Lift => c.lift,
                         _ => c.value,
                     };
                     CellView {
                         main: fixed(c.value, m.decimals),
                         sub,
                         signal,
+                        lift,
                         sort: sort_value(sortv),
                         href: format!("/plays{}", viewed(number_query(&params.situation, &r.passer, m.key), params.projector)),
                         title: format!("{} {}; pct {}", c.n, m.unit.label(), fixed(c.percentile, 0)),
@@ -285,7 +291,11 @@ pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTab
         Some(k) => format!(
             "sorted by {} ({}, {})",
             metric_index(k).map(|j| METRICS[j].label).unwrap_or(k.as_str()),
-            if params.sort_by == SortBy::Estimate { "estimate" } else { "raw value" },
+            match params.sort_by {
+                SortBy::Estimate => "estimate",
+                SortBy::Value => "raw value",
+                SortBy::Lift => "lift: his value here minus his normal",
+            },
             if params.descending { "high to low" } else { "low to high" }
         ),
         None => "sorted by dropbacks".into(),
@@ -301,7 +311,11 @@ pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTab
         fields,
         tag_fields: tags,
         min: params.min_dropbacks,
-        by_raw: params.sort_by == SortBy::Value,
+        by: match params.sort_by {
+            SortBy::Estimate => "est",
+            SortBy::Value => "raw",
+            SortBy::Lift => "lift",
+        },
         description: table.situation.clone(),
         seasons: seasons_text(&table.seasons),
         league_dropbacks: crate::numfmt::thousands(table.league_dropbacks as usize),
@@ -319,7 +333,14 @@ pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTab
 
 pub(super) fn stability_note(mi: &MetricInfo) -> String {
     match mi.stability {
-        Some(r) => format!("season-to-season r = {r:.2} over {} passer pairs", mi.stability_pairs),
+        Some(r) => match (mi.stability_lo, mi.stability_hi) {
+            (Some(lo), Some(hi)) => format!(
+                "season-to-season r = {r:.2} (90% interval {lo:.2} to {hi:.2}) over {} passer pairs: {}",
+                mi.stability_pairs,
+                splits::stability_words(lo, hi)
+            ),
+            _ => format!("season-to-season r = {r:.2} over {} passer pairs", mi.stability_pairs),
+        },
         None if mi.stat == Stat::Count => "a total".into(),
         None => "too few passers qualified in consecutive seasons to judge".into(),
     }
@@ -330,5 +351,17 @@ pub(super) fn seasons_text(s: &[i32]) -> String {
         (Some(a), Some(b)) if a != b && s.len() == (b - a + 1) as usize => format!("{a}–{b}"),
         (Some(_), Some(_)) => s.iter().map(|x| x.to_string()).collect::<Vec<_>>().join(", "),
         _ => "none".into(),
+    }
+}
+
+/// "lift +2.1 [−1.0, +5.3]": his value here minus his normal, with its 90%
+/// interval; "lift –" when there is none (no other snaps, or no estimate).
+pub(super) fn lift_text(c: &crate::splits::Cell, decimals: usize) -> String {
+    match (c.lift, c.lift_lo, c.lift_hi) {
+        (Some(l), Some(lo), Some(hi)) => {
+            let f = |x: f64| crate::numfmt::signed(Some(x), decimals, "");
+            format!("lift {} [{}, {}]", f(l), f(lo), f(hi))
+        }
+        _ => "lift –".into(),
     }
 }

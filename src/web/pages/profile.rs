@@ -23,6 +23,9 @@ pub struct TagSection {
     pub note: String,
 }
 
+/// One cell of the lift-in-words table: the words, "lift +x [lo, hi]", "league +y".
+pub type LiftWords = (String, String, String);
+
 #[derive(Template)]
 #[template(path = "profile.html")]
 pub(super) struct ProfilePage {
@@ -34,6 +37,12 @@ pub(super) struct ProfilePage {
     pub(super) seasons_note: String,
     pub(super) season_value: String,
     pub(super) charts: Vec<(String, String)>,
+    /// Per key metric: his lift in each game-on-the-line preset (dot and interval).
+    pub(super) lift_charts: Vec<(String, String)>,
+    /// Lift in words: heads (short, label), then per preset its cells (words, numbers).
+    pub(super) lift_heads: Vec<(&'static str, &'static str)>,
+    pub(super) lift_rows: Vec<(&'static str, Vec<LiftWords>)>,
+    pub(super) lift_rule: &'static str,
     pub(super) trend_chart: String,
     pub(super) trend_label: String,
     /// The trend's and the EPA histogram's titles, shown above them.
@@ -119,6 +128,9 @@ fn tag_section(ix: &splits::SplitIndex, p: &crate::plays::Plays, v: &splits::Sna
 pub(super) const THROW_KEYS: &[&str] = &["choice", "execution"];
 pub(super) const BESIDE_KEYS: &[&str] = &["sack_rate", "scramble_rate"];
 
+/// The metrics of the lift-in-words table (fewer than the charts, so it fits a laptop).
+const LIFT_WORD_KEYS: &[&str] = &["epa", "success", "cpoe", "rating", "sack_rate", "int_rate"];
+
 pub(super) const PROFILE_KEYS: &[&str] = &["epa", "success", "cpoe", "rating", "anya", "sack_rate", "int_rate", "wpa"];
 
 pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
@@ -194,6 +206,54 @@ pub(super) fn profile_view(ch: Chrome, params: &Params, name: &str, prof: &split
     };
     let charts: Vec<(String, String)> = keys.iter().map(|&j| dot_chart(j)).collect();
     let throw_charts: Vec<(String, String)> = THROW_KEYS.iter().filter_map(|k| metric_index(k)).map(dot_chart).collect();
+
+    let on_the_line: Vec<&splits::ProfileLine> = prof.presets.iter().filter(|l| l.preset != Preset::EverySnap.key()).collect();
+    let lift_charts = keys
+        .iter()
+        .map(|&j| {
+            let m = &METRICS[j];
+            let rows: Vec<DotRow> = on_the_line
+                .iter()
+                .map(|line| {
+                    let c = line.row.as_ref().map(|r| &r.cells[j]);
+                    DotRow {
+                        label: line.label.to_string(),
+                        estimate: c.and_then(|c| c.lift),
+                        lo: c.and_then(|c| c.lift_lo),
+                        hi: c.and_then(|c| c.lift_hi),
+                        raw: None,
+                        league: Some(0.0),
+                    }
+                })
+                .collect();
+            let unit = if m.scale == 100.0 { " (points of %)" } else { "" };
+            (
+                format!("{}: lift{unit}", m.short),
+                charts::dot_interval(&format!("{} — {name}'s lift by situation (dot: lift, bar: 90% interval, tick at 0: his normal)", m.label), &rows, width).to_svg(),
+            )
+        })
+        .collect();
+    let word_keys: Vec<usize> = LIFT_WORD_KEYS.iter().filter_map(|k| metric_index(k)).collect();
+    let lift_rows = on_the_line
+        .iter()
+        .map(|line| {
+            let cells = word_keys
+                .iter()
+                .map(|&j| {
+                    let m = &METRICS[j];
+                    match line.row.as_ref().map(|r| &r.cells[j]) {
+                        Some(c) => (
+                            splits::lift_words(m, c).unwrap_or("no lift: too few snaps").to_string(),
+                            super::explore::lift_text(c, m.decimals),
+                            format!("league {}", crate::numfmt::signed(line.league_lift[j], m.decimals, "")),
+                        ),
+                        None => ("no dropbacks here".to_string(), String::new(), String::new()),
+                    }
+                })
+                .collect();
+            (line.label, cells)
+        })
+        .collect();
     let ej = metric_index("epa").unwrap_or(0);
     let trend_series = vec![
         Series { name: format!("{name} EPA per dropback"), class: "passer", points: prof.trend.iter().filter_map(|s| s.values[ej].map(|v| (s.season as f64, v))).collect() },
@@ -275,6 +335,10 @@ pub(super) fn profile_view(ch: Chrome, params: &Params, name: &str, prof: &split
         },
         season_value: params.situation.show(Field::Seasons).unwrap_or_default(),
         charts,
+        lift_charts,
+        lift_heads: word_keys.iter().map(|&j| (METRICS[j].short, METRICS[j].label)).collect(),
+        lift_rows,
+        lift_rule: splits::LIFT_RULE,
         trend_chart,
         trend_label: prof.trend_situation.clone(),
         trend_title: format!("EPA per dropback by season, {}: {name} (solid) and the league (dashed)", prof.trend_situation),

@@ -1,0 +1,334 @@
+//! A two-level normal model fitted on sufficient statistics: each passer's
+//! level on his other snaps (prior mean a line in his volume), the
+//! situation's effect, and his own shift in the situation (the lift).
+//! Between-passer SDs are integrated over a grid, never set to zero.
+//!
+//! For one metric and one situation, passer `i` gives two observed means with
+//! known sampling variances: `y'_i` (his other snaps, variance `v'_i`) and `y_i`
+//! (the situation, `v_i`). The model:
+//!
+//! ```text
+//! y'_i = θ_i + e'_i,            θ_i ~ N(β₀ + β₁·x_i, τ²)     (his level elsewhere)
+//! y_i  = θ_i + δ + λ_i + e_i,   λ_i ~ N(0, ω²)               (δ: the situation's effect)
+//! ```
+//!
+//! The lift is `δ + λ_i` (his situation value minus his level elsewhere): the
+//! passer × situation part is shrunk toward 0, so the lift is pulled toward the
+//! league's lift `δ`. The hyperparameters come from the marginals:
+//! `y'_i ~ N(xβ, τ² + v'_i)` (REML in β) and `d_i = y_i − y'_i ~ N(δ, ω² + v_i + v'_i)`
+//! (REML in δ; θ cancels). Each SD gets the boundary-avoiding prior
+//! `p(sd) ∝ sd` (the gamma(2, λ→0) penalty of Chung, Rabe-Hesketh, Dorie, Gelman
+//! & Liu 2013, "A nondegenerate penalized likelihood estimator for variance
+//! parameters in multilevel models", Psychometrika 78(4)), used here as a prior
+//! and integrated over a grid rather than maximised: the posterior of an SD is
+//! 0 at 0, so no interval collapses. Given the hyperparameters the passer's
+//! `(θ_i, λ_i)` posterior is bivariate normal (closed form); the reported mean
+//! and variance average over the grid and add the uncertainty of `β` and `δ`
+//! (the total-variance correction of Kass & Steffey 1989, "Approximate Bayesian
+//! inference in conditionally independent hierarchical models", JASA 84(407),
+//! in the spirit of Morris 1983, "Parametric empirical Bayes inference", JASA
+//! 78(381)). Intervals are normal on that mean and variance.
+
+use statrs::distribution::{ContinuousCDF, Normal};
+
+/// Points on each SD grid (midpoints of equal steps from 0 to the upper end).
+const GRID: usize = 40;
+/// Grid points whose weight is below this share of the largest are dropped
+/// when passers are scored (their total weight is renormalised away).
+const PRUNE: f64 = 1e-4;
+
+/// One observed mean with its sampling variance and volume covariate.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Obs {
+    pub y: f64,
+    pub v: f64,
+}
+
+/// One grid point of a fitted random-intercept model: the between-unit
+/// variance, its posterior weight, and the GLS coefficients with their
+/// covariance at that variance.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct GridPoint {
+    pub var: f64,
+    pub weight: f64,
+    pub beta: [f64; 2],
+    pub cov: [[f64; 2]; 2],
+}
+
+/// The grid posterior of a between-unit variance, with coefficients.
+#[derive(Debug, Clone, PartialEq)]
+pub struct VarFit {
+    pub points: Vec<GridPoint>,
+    /// Whether the prior mean has a slope on the covariate.
+    pub slope: bool,
+}
+
+impl VarFit {
+    /// Posterior mean of the between-unit variance.
+    pub fn mean_var(&self) -> f64 {
+        self.points.iter().map(|g| g.weight * g.var).sum()
+    }
+    /// Prior mean at covariate `x`, averaged over the grid.
+    pub fn mean_at(&self, x: f64) -> f64 {
+        self.points.iter().map(|g| g.weight * (g.beta[0] + if self.slope { g.beta[1] * x } else { 0.0 })).sum()
+    }
+}
+
+fn finite(xs: &[f64]) -> bool {
+    xs.iter().all(|x| x.is_finite())
+}
+
+/// REML log-likelihood of `y_i ~ N(β₀ + β₁x_i, var + v_i)` at one variance, with
+/// the GLS coefficients and their covariance. `None` when the design is singular.
+fn reml(units: &[(Obs, f64)], var: f64, slope: bool) -> Option<(f64, [f64; 2], [[f64; 2]; 2])> {
+    let (mut a00, mut a01, mut a11, mut b0, mut b1, mut logdet) = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0);
+    for (o, x) in units {
+        let t = var + o.v;
+        let w = 1.0 / t;
+        logdet += t.ln();
+        a00 += w;
+        b0 += w * o.y;
+        if slope {
+            a01 += w * x;
+            a11 += w * x * x;
+            b1 += w * x * o.y;
+        }
+    }
+    let (beta, cov, det) = if slope {
+        let det = a00 * a11 - a01 * a01;
+        if det <= 1e-12 * a00 * a11.max(1e-300) || !det.is_finite() {
+            return None;
+        }
+        let inv = [[a11 / det, -a01 / det], [-a01 / det, a00 / det]];
+        ([inv[0][0] * b0 + inv[0][1] * b1, inv[1][0] * b0 + inv[1][1] * b1], inv, det)
+    } else {
+        if a00 <= 0.0 {
+            return None;
+        }
+        ([b0 / a00, 0.0], [[1.0 / a00, 0.0], [0.0, 0.0]], a00)
+    };
+    let rss: f64 = units
+        .iter()
+        .map(|(o, x)| {
+            let fit = beta[0] + if slope { beta[1] * x } else { 0.0 };
+            (o.y - fit).powi(2) / (var + o.v)
+        })
+        .sum();
+    Some((-0.5 * logdet - 0.5 * det.ln() - 0.5 * rss, beta, cov))
+}
+
+/// Fit `y_i ~ N(β₀ + β₁x_i, σ² + v_i)` over a grid of the between-unit SD `σ`
+/// with prior `p(σ) ∝ σ` (Chung et al. 2013's boundary-avoiding gamma(2, λ→0)),
+/// flat priors on β (REML). `units` are `(observation, covariate)`; with
+/// `slope` false the covariate is ignored. The grid's upper end starts at
+/// `max(2.5·SD(y), √median(v))` and doubles (up to three times) while the top
+/// point still carries a thousandth of the largest weight; with very few units
+/// the third doubling stays (the prior is then bounded there). `None` with
+/// fewer than `2 + slope` units, a non-finite value or a non-positive sampling
+/// variance.
+pub fn fit_variance(units: &[(Obs, f64)], slope: bool) -> Option<VarFit> {
+    let need = if slope { 3 } else { 2 };
+    if units.len() < need || units.iter().any(|(o, x)| !finite(&[o.y, o.v, *x]) || o.v <= 0.0) {
+        return None;
+    }
+    let k = units.len() as f64;
+    let mean_y = units.iter().map(|(o, _)| o.y).sum::<f64>() / k;
+    let var_y = units.iter().map(|(o, _)| (o.y - mean_y).powi(2)).sum::<f64>() / (k - 1.0);
+    let mut vs: Vec<f64> = units.iter().map(|(o, _)| o.v).collect();
+    vs.sort_by(|a, b| a.total_cmp(b));
+    let median_v = vs[vs.len() / 2];
+    let mut upper = (2.5 * var_y.sqrt()).max(median_v.sqrt());
+    for round in 0..4 {
+        let step = upper / GRID as f64;
+        let mut pts = Vec::with_capacity(GRID);
+        for g in 0..GRID {
+            let sd = (g as f64 + 0.5) * step;
+            let (ll, beta, cov) = reml(units, sd * sd, slope)?;
+            // prior ∝ sd; equal steps in sd, so no Jacobian.
+            pts.push((sd * sd, sd.ln() + ll, beta, cov));
+        }
+        let top = pts.iter().map(|p| p.1).fold(f64::NEG_INFINITY, f64::max);
+        if !top.is_finite() {
+            return None;
+        }
+        let mut points: Vec<GridPoint> =
+            pts.iter().map(|&(var, lw, beta, cov)| GridPoint { var, weight: (lw - top).exp(), beta, cov }).collect();
+        let total: f64 = points.iter().map(|g| g.weight).sum();
+        points.iter_mut().for_each(|g| g.weight /= total);
+        let last = points.last().map(|g| g.weight).unwrap_or(0.0);
+        let most = points.iter().map(|g| g.weight).fold(0.0, f64::max);
+        // With few units the posterior's tail falls slowly (∝ sd^(2−K)): the
+        // last round keeps its end, so the prior is p(sd) ∝ sd on [0, 8 × first end].
+        if last < 1e-3 * most || round == 3 {
+            return Some(VarFit { points, slope });
+        }
+        upper *= 2.0;
+    }
+    None
+}
+
+/// What one passer's posterior says, as means and total variances (already
+/// averaged over both grids, with the coefficient uncertainty added).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PasserPost {
+    /// His true value in the situation, `θ + δ + λ`.
+    pub value: (f64, f64),
+    /// His level on his other snaps, `θ`.
+    pub level: (f64, f64),
+    /// His lift, `δ + λ`; `None` without the lift model.
+    pub lift: Option<(f64, f64)>,
+    /// Share of the variance of his raw difference that is true lift,
+    /// `E[ω²] / (E[ω²] + v + v')`.
+    pub lift_signal: Option<f64>,
+    /// Share of the variance of his raw situation value that is true
+    /// difference between passers, `E[τ² + ω²] / (E[τ² + ω²] + v)`.
+    pub signal: f64,
+    /// `E[τ² + ω²]`: the between-passer variance of situation values.
+    pub prior_var: f64,
+    /// `v`: the sampling variance of his raw situation value (0 without snaps).
+    pub here_var: f64,
+    /// `E[ω²]`: the between-passer variance of lifts (0 without the lift model).
+    pub lift_prior_var: f64,
+    /// `v + v'`: the sampling variance of his raw difference.
+    pub raw_diff_var: f64,
+}
+
+/// A passer's data: other snaps (`None` when he has none), the situation
+/// (`None` likewise), and his covariate.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PasserData {
+    pub other: Option<Obs>,
+    pub here: Option<Obs>,
+    pub x: f64,
+}
+
+fn pruned(fit: &VarFit) -> Vec<GridPoint> {
+    let most = fit.points.iter().map(|g| g.weight).fold(0.0, f64::max);
+    let mut pts: Vec<GridPoint> = fit.points.iter().copied().filter(|g| g.weight >= PRUNE * most).collect();
+    let total: f64 = pts.iter().map(|g| g.weight).sum();
+    pts.iter_mut().for_each(|g| g.weight /= total);
+    pts
+}
+
+/// The fitted model for one metric in one situation: the level fit (other
+/// snaps) and, when the situation has other snaps to compare with, the lift fit.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Model {
+    level: Vec<GridPoint>,
+    slope: bool,
+    lift: Option<Vec<GridPoint>>,
+    mean_level_var: f64,
+    mean_lift_var: f64,
+}
+
+impl Model {
+    /// `level` fitted on the passers' other snaps, `lift` on their raw
+    /// differences (intercept only). Without `lift`, the situation value is
+    /// the level itself (use this when the level was fitted on the situation).
+    pub fn new(level: &VarFit, lift: Option<&VarFit>) -> Model {
+        Model {
+            level: pruned(level),
+            slope: level.slope,
+            lift: lift.map(pruned),
+            mean_level_var: level.mean_var(),
+            mean_lift_var: lift.map(|f| f.mean_var()).unwrap_or(0.0),
+        }
+    }
+
+    /// The posterior for one passer. `None` when he has no data at all, or
+    /// the lift model is missing while he has situation snaps besides other
+    /// snaps (then use a model fitted on the situation alone).
+    pub fn passer(&self, d: &PasserData) -> Option<PasserPost> {
+        if d.other.is_none() && d.here.is_none() {
+            return None;
+        }
+        let (pv, yv) = d.other.map(|o| (1.0 / o.v, o.y)).unwrap_or((0.0, 0.0));
+        let (ph, yh) = d.here.map(|o| (1.0 / o.v, o.y)).unwrap_or((0.0, 0.0));
+        let no_lift = [GridPoint { var: 0.0, weight: 1.0, beta: [0.0, 0.0], cov: [[0.0; 2]; 2] }];
+        let lifts: &[GridPoint] = match &self.lift {
+            Some(l) => l,
+            None => &no_lift,
+        };
+        // Moments accumulated over the grid: E[m], E[var + m²].
+        let mut acc = [[0.0f64; 2]; 3];
+        for lp in &self.level {
+            let mu = lp.beta[0] + if self.slope { lp.beta[1] * d.x } else { 0.0 };
+            let var_mu = lp.cov[0][0]
+                + if self.slope { 2.0 * d.x * lp.cov[0][1] + d.x * d.x * lp.cov[1][1] } else { 0.0 };
+            let pt = 1.0 / lp.var;
+            for kp in lifts {
+                let w = lp.weight * kp.weight;
+                let delta = kp.beta[0];
+                let var_delta = kp.cov[0][0];
+                // Posterior covariance of (θ, λ): the inverse of the precision
+                // [[1/τ² + 1/v' + 1/v, 1/v], [1/v, 1/ω² + 1/v]]; without a lift
+                // model λ is fixed at 0.
+                let (s00, s01, s11) = if self.lift.is_some() {
+                    let (p00, p01, p11) = (pt + pv + ph, ph, 1.0 / kp.var + ph);
+                    let det = p00 * p11 - p01 * p01;
+                    (p11 / det, -p01 / det, p00 / det)
+                } else {
+                    (1.0 / (pt + pv + ph), 0.0, 0.0)
+                };
+                let r = yh - delta;
+                let (b0, b1) = (mu * pt + yv * pv + r * ph, r * ph);
+                let (m0, m1) = (s00 * b0 + s01 * b1, s01 * b0 + s11 * b1);
+                // Sensitivities to δ and μ (for their estimation variance).
+                let (dd0, dd1) = (-(s00 + s01) * ph, -(s01 + s11) * ph);
+                let (dm0, dm1) = (s00 * pt, s01 * pt);
+                let lift_m = delta + m1;
+                let lift_v = s11 + (1.0 + dd1).powi(2) * var_delta + dm1 * dm1 * var_mu;
+                let val_m = m0 + delta + m1;
+                let val_v = s00 + 2.0 * s01 + s11 + (1.0 + dd0 + dd1).powi(2) * var_delta + (dm0 + dm1).powi(2) * var_mu;
+                let lev_v = s00 + dd0 * dd0 * var_delta + dm0 * dm0 * var_mu;
+                for (a, (m, v)) in acc.iter_mut().zip([(val_m, val_v), (m0, lev_v), (lift_m, lift_v)]) {
+                    a[0] += w * m;
+                    a[1] += w * (v + m * m);
+                }
+            }
+        }
+        let mv = |a: [f64; 2]| (a[0], (a[1] - a[0] * a[0]).max(0.0));
+        let [value, level, lift] = acc.map(mv);
+        let has_lift = self.lift.is_some() && d.other.is_some() && d.here.is_some();
+        let raw_diff_var = d.other.map(|o| o.v).unwrap_or(0.0) + d.here.map(|o| o.v).unwrap_or(0.0);
+        let between = self.mean_level_var + self.mean_lift_var;
+        let signal = match d.here {
+            Some(h) => between / (between + h.v),
+            None => 0.0,
+        };
+        Some(PasserPost {
+            value,
+            level,
+            lift: has_lift.then_some(lift),
+            lift_signal: has_lift.then(|| self.mean_lift_var / (self.mean_lift_var + raw_diff_var)),
+            signal,
+            prior_var: between,
+            here_var: d.here.map(|o| o.v).unwrap_or(0.0),
+            lift_prior_var: self.mean_lift_var,
+            raw_diff_var,
+        })
+    }
+}
+
+/// Two-sided normal interval at `level` (e.g. 0.90) around `mean` with
+/// variance `var`; `None` when the variance is not positive or not finite.
+pub fn normal_interval(mean: f64, var: f64, level: f64) -> Option<(f64, f64)> {
+    if !finite(&[mean, var]) || var <= 0.0 {
+        return None;
+    }
+    let z = Normal::new(0.0, 1.0).ok()?.inverse_cdf(0.5 + level / 2.0);
+    let sd = var.sqrt();
+    Some((mean - z * sd, mean + z * sd))
+}
+
+/// `P(X > threshold)` for `X ~ N(mean, var)`; `None` when the variance is not
+/// positive or an input is not finite.
+pub fn prob_above(mean: f64, var: f64, threshold: f64) -> Option<f64> {
+    if !finite(&[mean, var, threshold]) || var <= 0.0 {
+        return None;
+    }
+    Some(1.0 - Normal::new(mean, var.sqrt()).ok()?.cdf(threshold))
+}
+
+#[cfg(test)]
+mod tests;
