@@ -80,7 +80,7 @@ impl League {
         );
         let scored = models::fit_and_score_in(loaded.plays, &loaded.fingerprint, cfg.refit, cfg.cache_dir.as_deref())
             .map_err(|e| LeagueError::Models(format!("{e:#}")))?;
-        let (throw_model, throw) = throw_values(&scored).map_err(|e| LeagueError::Models(format!("{e:#}")))?;
+        let (throw_model, throw) = throw_values(&scored).map_err(|e| LeagueError::Models(e.to_string()))?;
         Ok(League { source: path.clone(), report: loaded.report, scored, throw_model, throw })
     }
 
@@ -101,7 +101,7 @@ impl League {
 
 /// Fit the throw-value model on every snap and score the passes (fitted at
 /// each opening: about a second on the demo league, not cached).
-pub fn throw_values(scored: &Scored) -> anyhow::Result<(Option<ThrowModel>, ThrowScores)> {
+pub fn throw_values(scored: &Scored) -> Result<(Option<ThrowModel>, ThrowScores), models::ModelError> {
     let started = std::time::Instant::now();
     let p = &scored.plays;
     let rows: Vec<u32> = (0..p.len() as u32).collect();

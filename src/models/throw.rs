@@ -200,7 +200,7 @@ fn outcome_of(p: &Plays, i: usize) -> usize {
 }
 
 /// Fit on the passes with air yards among `rows`; `None` when there are none.
-pub fn fit(p: &Plays, rows: &[u32], opts: &FitOptions) -> anyhow::Result<Option<ThrowModel>> {
+pub fn fit(p: &Plays, rows: &[u32], opts: &FitOptions) -> Result<Option<ThrowModel>, super::ModelError> {
     let train: Vec<u32> = rows.iter().copied().filter(|&i| applies(p, i as usize)).collect();
     if train.is_empty() {
         return Ok(None);
@@ -209,11 +209,11 @@ pub fn fit(p: &Plays, rows: &[u32], opts: &FitOptions) -> anyhow::Result<Option<
     let bands: Vec<u8> = train.iter().map(|&i| band(i as usize) as u8).collect();
     let mix_design = FnDesign { rows: &train, p: NS, f: |i: usize, out: &mut [f64]| state_features(&State::of_snap(p, i), out) };
     let mix = logit::fit(&mix_design, Labels::Classes { y: &bands, classes: BANDS, reference: 1 }, None, opts)
-        .map_err(|e| anyhow::anyhow!("throw depth mix on {} passes: {e}", train.len()))?;
+        .map_err(|source| super::ModelError::Fit { model: "throw depth mix", rows: train.len(), what: "passes", source })?;
     let outcomes: Vec<u8> = train.iter().map(|&i| outcome_of(p, i as usize) as u8).collect();
     let out_design = FnDesign { rows: &train, p: NO, f: |i: usize, out: &mut [f64]| outcome_features(&State::of_snap(p, i), band(i), out) };
     let outcome = logit::fit(&out_design, Labels::Classes { y: &outcomes, classes: 3, reference: INCOMPLETE }, None, opts)
-        .map_err(|e| anyhow::anyhow!("throw outcomes on {} passes: {e}", train.len()))?;
+        .map_err(|source| super::ModelError::Fit { model: "throw outcomes", rows: train.len(), what: "passes", source })?;
 
     // Gains on catches, clock used, where interceptions leave the ball.
     let mut gains: Vec<Vec<f64>> = vec![Vec::new(); BANDS];
