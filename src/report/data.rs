@@ -127,12 +127,7 @@ impl ReportData {
     /// The report for `passer` in `situation` (every season when it names
     /// none), from an opened league.
     pub fn build(league: &League, situation: &Situation, passer: &str, min_dropbacks: u32) -> Result<ReportData, ReportError> {
-        let provenance = Provenance {
-            fingerprint: league.scored.fingerprint.clone(),
-            model_version: crate::models::MODEL_VERSION.to_string(),
-            date: super::date::today(),
-        };
-        ReportData::from_parts(league.plays(), &league.values(), provenance, situation, passer, min_dropbacks)
+        ReportData::build_in(league, &splits::SplitIndex::build(league.plays(), &league.values()), situation, passer, min_dropbacks)
     }
 
     /// `build` on a league already indexed (the server keeps its index).
