@@ -27,17 +27,58 @@ fn main() -> anyhow::Result<()> {
     println!("index build {:.1} ms ({} rows); {}", t.elapsed().as_secs_f64() * 1000.0, ix.len(), memory());
     let s = Preset::EndOfGame.situation(8);
     let runs: usize = std::env::var("RUNS").ok().and_then(|x| x.parse().ok()).unwrap_or(40);
-    let t = Instant::now();
-    for _ in 0..runs {
+    // Mean time of `runs` calls of `f`, in ms.
+    let time = |f: &mut dyn FnMut(usize)| {
+        f(0);
+        let t = Instant::now();
+        for k in 0..runs {
+            f(k + 1);
+        }
+        t.elapsed().as_secs_f64() * 1000.0 / runs as f64
+    };
+    let fresh = time(&mut |_| {
         ix.forget();
         std::hint::black_box(splits::split_table_in(&ix, p, &v, &s, 20, None));
-    }
-    println!("table, pass each time {:.2} ms", t.elapsed().as_secs_f64() * 1000.0 / runs as f64);
-    let t = Instant::now();
-    for _ in 0..runs {
+    });
+    println!("table, nothing memoised {fresh:.2} ms");
+    let every = Preset::EverySnap.situation(8);
+    let pass = time(&mut |_| {
+        ix.forget();
+        std::hint::black_box(splits::split_table_in(&ix, p, &v, &every, 20, None));
+    });
+    println!("every-snap table, nothing memoised {pass:.2} ms");
+    let repeated = time(&mut |_| {
         std::hint::black_box(splits::split_table_in(&ix, p, &v, &s, 20, None));
-    }
-    println!("table, memoised pass {:.2} ms; {}", t.elapsed().as_secs_f64() * 1000.0 / runs as f64, memory());
+    });
+    println!("table, repeated (pass, fits and stability memoised) {repeated:.2} ms; {}", memory());
+    let min = time(&mut |k| {
+        std::hint::black_box(splits::split_table_in(&ix, p, &v, &s, 20 + k as u32 % 30, None));
+    });
+    println!("table, another minimum (pass and fits memoised) {min:.2} ms");
+    let seasons = p.seasons();
+    let season = time(&mut |k| {
+        let one = lategame::situation::Situation { seasons: Some(vec![seasons[k % seasons.len()]]), ..s.clone() };
+        ix.forget();
+        let _ = splits::split_table_in(&ix, p, &v, &Preset::EndOfGame.situation(8), 20, None);
+        std::hint::black_box(splits::split_table_in(&ix, p, &v, &one, 20, None));
+    }) - repeated;
+    println!("table, another season list (pass memoised, fits new) about {season:.2} ms");
+    let window = time(&mut |k| {
+        let new = lategame::situation::Situation { margin: Some(lategame::situation::Range { lo: Some(-30.0 - k as f64), hi: Some(8.0) }), ..s.clone() };
+        std::hint::black_box(splits::split_table_in(&ix, p, &v, &new, 20, None));
+    });
+    println!("table, a new margin window (new pass and fits; every snap memoised) {window:.2} ms");
+    let base = lategame::situation::Situation::default();
+    let busiest = splits::split_table_in(&ix, p, &v, &every, 20, None).rows.first().map(|r| r.passer.clone()).unwrap_or_default();
+    let prof = time(&mut |_| {
+        ix.forget();
+        std::hint::black_box(splits::profile_in(&ix, p, &v, &busiest, &base, &s, 20));
+    });
+    println!("profile, every preset, nothing memoised {prof:.2} ms");
+    let prof_m = time(&mut |_| {
+        std::hint::black_box(splits::profile_in(&ix, p, &v, &busiest, &base, &s, 20));
+    });
+    println!("profile, memoised {prof_m:.2} ms; {}", memory());
     Ok(())
 }
 

@@ -9,6 +9,7 @@ use super::metrics::{cell, contributions, SnapValues, METRICS};
 use crate::plays::{Plays, NO_PASSER};
 use crate::situation::{Range, Situation, OT};
 use rayon::prelude::*;
+use std::any::Any;
 use std::collections::HashMap;
 use std::sync::{Arc, Mutex};
 
@@ -113,6 +114,30 @@ pub(crate) struct Memo {
     pub(super) ps_cell_sums: Vec<f64>,
     /// Per passer-season: (last snap + 1, its offense); 0 when none.
     pub(super) last: Vec<(u32, u16)>,
+    /// What the estimates derive from this pass and one more thing (a
+    /// season list, a minimum), under keys their modules choose.
+    pub(super) derived: Mutex<HashMap<String, Arc<dyn Any + Send + Sync>>>,
+}
+
+/// How many derived results one pass keeps before it starts over.
+const DERIVED_SIZE: usize = 16;
+
+impl Memo {
+    /// The result under `key`, made by `make` when it is not kept yet (two
+    /// callers at once may both make it; they make the same thing).
+    pub(super) fn derived<T: Any + Send + Sync>(&self, key: &str, make: impl FnOnce() -> T) -> Arc<T> {
+        if let Some(x) = self.derived.lock().ok().and_then(|d| d.get(key).cloned()).and_then(|a| a.downcast::<T>().ok()) {
+            return x;
+        }
+        let x = Arc::new(make());
+        if let Ok(mut d) = self.derived.lock() {
+            if d.len() >= DERIVED_SIZE {
+                d.clear();
+            }
+            d.insert(key.to_string(), x.clone());
+        }
+        x
+    }
 }
 
 /// How many situations' passes the index keeps before it starts over.

@@ -42,73 +42,89 @@ fn obs(a: &Acc, var: f64) -> Option<Obs> {
     (a.n >= 0.5).then(|| Obs { y: a.sum / a.n, v: var / a.n })
 }
 
-/// Posteriors of the metric at `j` (its per-snap shares or means) for every
-/// passer in `sums.passers` order that is `wanted`. `normal` holds the
-/// every-snap sums over the same seasons. Priors come from all passers: the
-/// level's prior mean is a line in log dropbacks. When the situation leaves
-/// too few passers with other snaps (every snap, say) the model has one
-/// level, fitted on the situation itself.
-pub(super) fn posteriors(sums: &Sums, normal: &Sums, j: usize, wanted: &[bool]) -> Vec<Option<PasserPost>> {
-    let none = || vec![None; sums.passers.len()];
+/// The model fitted for one metric over every passer of a situation: it
+/// depends on the situation and its seasons only (not on the minimum, the
+/// focus or the passer filter), so the table memoises it beside the pass.
+#[derive(Debug, Clone)]
+pub(super) struct Fit {
+    model: Model,
+    /// Per-snap sampling variance on other snaps; `None`: one level, fitted
+    /// on the situation itself.
+    other_var: Option<f64>,
+    /// Per-snap sampling variance in the situation.
+    here_var: f64,
+    /// The mean log dropbacks the volume covariate is centred on.
+    centre: f64,
+}
+
+fn volume(normal: &Sums, who: u32) -> f64 {
+    normal.passers.get(&who).map(|ps| ps.accs[db()].n).unwrap_or(0.0).max(1.0).ln()
+}
+
+fn other_of(sums: &Sums, normal: &Sums, who: u32, j: usize) -> Acc {
+    let all = normal.passers.get(&who).map(|ps| ps.accs[j]).unwrap_or_default();
+    match sums.passers.get(&who) {
+        Some(ps) => minus(&all, &ps.accs[j]),
+        None => all,
+    }
+}
+
+/// Fit the model for the metric at `j` (its per-snap shares or means) on
+/// every passer. `normal` holds the every-snap sums over the same seasons.
+/// The level's prior mean is a line in log dropbacks. When the situation
+/// leaves too few passers with other snaps (every snap, say) the model has
+/// one level, fitted on the situation itself. `None` when neither fits.
+pub(super) fn fit(sums: &Sums, normal: &Sums, j: usize) -> Option<Fit> {
     let rate = METRICS[j].stat != Stat::Mean;
-    let db = db();
-    let volume = |who: &u32| normal.passers.get(who).map(|ps| ps.accs[db].n).unwrap_or(0.0).max(1.0).ln();
     let centre = {
-        let xs: Vec<f64> = normal.passers.keys().map(volume).collect();
+        let xs: Vec<f64> = normal.passers.keys().map(|&w| volume(normal, w)).collect();
         if xs.is_empty() { 0.0 } else { xs.iter().sum::<f64>() / xs.len() as f64 }
     };
-    let x_of = |who: &u32| volume(who) - centre;
+    let x_of = |who: u32| volume(normal, who) - centre;
     let here_accs: Vec<Acc> = sums.passers.values().map(|ps| ps.accs[j]).collect();
-    let other_of = |who: &u32| -> Acc {
-        let all = normal.passers.get(who).map(|ps| ps.accs[j]).unwrap_or_default();
-        match sums.passers.get(who) {
-            Some(ps) => minus(&all, &ps.accs[j]),
-            None => all,
-        }
-    };
-    let other_accs: Vec<(u32, Acc)> = normal.passers.keys().map(|w| (*w, other_of(w))).collect();
+    let other_accs: Vec<(u32, Acc)> = normal.passers.keys().map(|&w| (w, other_of(sums, normal, w, j))).collect();
     let other_league = minus(&normal.league[j], &sums.league[j]);
-    let Some(here_var) = snap_var(rate, &sums.league[j], &here_accs) else { return none() };
+    let here_var = snap_var(rate, &sums.league[j], &here_accs)?;
     let other_var = snap_var(rate, &other_league, &other_accs.iter().map(|x| x.1).collect::<Vec<_>>());
 
     let two_level = other_var.and_then(|ov| {
-        let level: Vec<(Obs, f64)> = other_accs.iter().filter_map(|(w, a)| Some((obs(a, ov)?, x_of(w)))).collect();
+        let level: Vec<(Obs, f64)> = other_accs.iter().filter_map(|(w, a)| Some((obs(a, ov)?, x_of(*w)))).collect();
         let diffs: Vec<(Obs, f64)> = sums
             .passers
             .iter()
-            .filter_map(|(w, ps)| {
-                let (h, o) = (obs(&ps.accs[j], here_var)?, obs(&other_of(w), ov)?);
+            .filter_map(|(&w, ps)| {
+                let (h, o) = (obs(&ps.accs[j], here_var)?, obs(&other_of(sums, normal, w, j), ov)?);
                 Some((Obs { y: h.y - o.y, v: h.v + o.v }, 0.0))
             })
             .collect();
         let level = fit_variance(&level, true).or_else(|| fit_variance(&level, false))?;
         let lift = fit_variance(&diffs, false)?;
-        Some((Model::new(&level, Some(&lift)), ov))
+        Some(Fit { model: Model::new(&level, Some(&lift)), other_var: Some(ov), here_var, centre })
     });
-    let per = sums.passers.iter().zip(wanted);
-    match two_level {
-        Some((model, ov)) => per
-            .map(|((w, ps), &want)| {
-                if !want {
-                    return None;
-                }
-                let d = PasserData { other: obs(&other_of(w), ov), here: obs(&ps.accs[j], here_var), x: x_of(w) };
-                model.passer(&d)
-            })
-            .collect(),
-        None => {
-            let units: Vec<(Obs, f64)> = sums.passers.iter().filter_map(|(w, ps)| Some((obs(&ps.accs[j], here_var)?, x_of(w)))).collect();
-            let Some(fit) = fit_variance(&units, true).or_else(|| fit_variance(&units, false)) else { return none() };
-            let model = Model::new(&fit, None);
-            per.map(|((w, ps), &want)| {
-                if !want {
-                    return None;
-                }
-                model.passer(&PasserData { other: None, here: obs(&ps.accs[j], here_var), x: x_of(w) })
-            })
-            .collect()
-        }
-    }
+    two_level.or_else(|| {
+        let units: Vec<(Obs, f64)> = sums.passers.iter().filter_map(|(&w, ps)| Some((obs(&ps.accs[j], here_var)?, x_of(w)))).collect();
+        let fit = fit_variance(&units, true).or_else(|| fit_variance(&units, false))?;
+        Some(Fit { model: Model::new(&fit, None), other_var: None, here_var, centre })
+    })
+}
+
+/// Posteriors of the metric at `j` from its `fit`, for every passer in
+/// `sums.passers` order that is `wanted` (`None` for the others).
+pub(super) fn posteriors(fit: Option<&Fit>, sums: &Sums, normal: &Sums, j: usize, wanted: &[bool]) -> Vec<Option<PasserPost>> {
+    let Some(f) = fit else { return vec![None; sums.passers.len()] };
+    sums.passers
+        .iter()
+        .zip(wanted)
+        .map(|((&w, ps), &want)| {
+            if !want {
+                return None;
+            }
+            let x = volume(normal, w) - f.centre;
+            let here = obs(&ps.accs[j], f.here_var);
+            let other = f.other_var.and_then(|ov| obs(&other_of(sums, normal, w, j), ov));
+            f.model.passer(&PasserData { other, here, x })
+        })
+        .collect()
 }
 
 /// The passer rating's parts, in the order of the linear form's terms.

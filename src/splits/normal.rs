@@ -1,16 +1,21 @@
 //! "His normal": the every-snap sums for the seasons of a situation, so a
 //! situation's other snaps are the every-snap sums minus its own. The pass
 //! is memoised by the split index (the every-snap situation is one entry
-//! of its memo, whatever the seasons), so this costs a season filter.
+//! of its memo, whatever the seasons, and its totals per season list are
+//! kept beside it), so this costs a season filter once and a look-up after.
 
 use super::index::SplitIndex;
 use super::metrics::SnapValues;
-use super::scan::{accumulate, Sums};
+use super::scan::{memo, totals, Sums};
 use crate::plays::Plays;
 use crate::situation::Situation;
+use std::sync::Arc;
 
-/// The every-snap sums over the seasons of `s` (all passers, no filter).
-pub(super) fn every_snap(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
+/// The every-snap sums over the seasons of `s` (all passers, no filter):
+/// per passer and league totals only, kept beside the every-snap pass per
+/// season list.
+pub(super) fn every_snap(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Arc<Sums> {
     let every = Situation { seasons: s.seasons.clone(), ..Situation::default() };
-    accumulate(ix, p, v, &every)
+    let m = memo(ix, p, v, &every);
+    m.derived(&format!("totals {:?}", s.seasons), || totals(ix, &m, &every))
 }

@@ -83,78 +83,30 @@ pub(super) struct PasserSums {
     pub(super) team: u16,
 }
 
-/// One piece's running sums while the pass is made.
-struct Partial {
-    ps: Vec<f64>,
-    season_cells: Vec<f64>,
-    ps_cells: Vec<f64>,
-    last: Vec<(u32, u16)>,
-}
-
-impl Partial {
-    fn new(ix: &SplitIndex) -> Partial {
-        let w = ix.layout.width();
-        let n_ps = ix.ps_key.len();
-        Partial {
-            ps: vec![0.0; n_ps * w],
-            season_cells: vec![0.0; ix.seasons.len() * CELLS * w],
-            ps_cells: vec![0.0; n_ps * CELLS * w],
-            last: vec![(0, 0); n_ps],
-        }
+/// Row `r` of the index into the base sums `base` (see `Layout`).
+#[inline]
+fn add_row(ix: &SplitIndex, r: usize, base: &mut [f64]) {
+    let lay = &ix.layout;
+    let units = ix.units[r];
+    let bits = ix.bits[r];
+    base[0] += 1.0;
+    for u in 0..lay.units {
+        base[1 + u] += f64::from(units >> u & 1);
     }
-
-    /// Row `r` of the index, into its passer-season and its season's cell.
-    #[inline]
-    fn add(&mut self, ix: &SplitIndex, r: usize) {
-        let lay = &ix.layout;
-        let w = lay.width();
-        let ps = ix.ps[r] as usize;
-        let c = ix.cell[r] as usize;
-        let season = ix.ps_key[ps].1 as usize;
-        let snap = ix.snap[r] + 1;
-        if snap > self.last[ps].0 {
-            self.last[ps] = (snap, ix.team[r]);
-        }
-        let units = ix.units[r];
-        let ints = &ix.ints[r * lay.ints..][..lay.ints];
-        let reals = &ix.reals[r * lay.reals..][..lay.reals];
-        let bits = ix.bits[r];
-        let sc = (season * CELLS + c) * w;
-        let pc = (ps * CELLS + c) * w;
-        for base in [&mut self.ps[ps * w..][..w], &mut self.season_cells[sc..][..w], &mut self.ps_cells[pc..][..w]] {
-            base[0] += 1.0;
-            for u in 0..lay.units {
-                base[1 + u] += f64::from(units >> u & 1);
-            }
-            let o = 1 + lay.units;
-            for k in 0..lay.bits {
-                base[o + k] += f64::from(bits >> k & 1);
-            }
-            let o = o + lay.bits;
-            for (k, &x) in ints.iter().enumerate() {
-                let x = x as f64;
-                base[o + 2 * k] += x;
-                base[o + 2 * k + 1] += x * x;
-            }
-            let o = o + 2 * lay.ints;
-            for (k, &x) in reals.iter().enumerate() {
-                base[o + 2 * k] += x;
-                base[o + 2 * k + 1] += x * x;
-            }
-        }
+    let o = 1 + lay.units;
+    for k in 0..lay.bits {
+        base[o + k] += f64::from(bits >> k & 1);
     }
-
-    /// `self` then `b` (later rows).
-    fn merge(mut self, b: Partial) -> Partial {
-        add_into(&mut self.ps, &b.ps);
-        add_into(&mut self.season_cells, &b.season_cells);
-        add_into(&mut self.ps_cells, &b.ps_cells);
-        for (x, y) in self.last.iter_mut().zip(&b.last) {
-            if y.0 > x.0 {
-                *x = *y;
-            }
-        }
-        self
+    let o = o + lay.bits;
+    for (k, &x) in ix.ints[r * lay.ints..][..lay.ints].iter().enumerate() {
+        let x = x as f64;
+        base[o + 2 * k] += x;
+        base[o + 2 * k + 1] += x * x;
+    }
+    let o = o + 2 * lay.ints;
+    for (k, &x) in ix.reals[r * lay.reals..][..lay.reals].iter().enumerate() {
+        base[o + 2 * k] += x;
+        base[o + 2 * k + 1] += x * x;
     }
 }
 
@@ -164,59 +116,105 @@ fn add_into(a: &mut [f64], b: &[f64]) {
     }
 }
 
+/// Passer-seasons per piece of work when the groups are summed.
+const PS_BLOCK: usize = 64;
+
+/// The pass for `s` (its seasons and passer aside): the rows it keeps
+/// (checked in pieces on rayon's threads, kept in row order), grouped by
+/// passer-season × state cell with a stable counting sort, each group summed
+/// in row order; passer-season and season × cell sums are then summed from
+/// the groups in key order. The order of every addition is fixed by the rows
+/// alone, so the sums are the same on every machine, however many threads.
+fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
+    let plan = Plan::new(ix, s);
+    let kept: Vec<u32> = plan
+        .pieces()
+        .par_iter()
+        .map(|piece| {
+            let mut out = Vec::new();
+            for (k, rows) in piece {
+                out.extend(rows.clone().filter(|&r| plan.keeps(ix, p, v, *k, r)).map(|r| r as u32));
+            }
+            out
+        })
+        .collect::<Vec<_>>()
+        .concat();
+    let (w, n_ps) = (ix.layout.width(), ix.ps_key.len());
+    let key = |r: u32| ix.ps[r as usize] as usize * CELLS + ix.cell[r as usize] as usize;
+    // Counting sort by key: group k's rows are sorted[start[k]..start[k + 1]].
+    let mut start = vec![0u32; n_ps * CELLS + 1];
+    for &r in &kept {
+        start[key(r) + 1] += 1;
+    }
+    for k in 0..n_ps * CELLS {
+        start[k + 1] += start[k];
+    }
+    let mut sorted = vec![0u32; kept.len()];
+    let mut fill = start.clone();
+    for &r in &kept {
+        let k = key(r);
+        sorted[fill[k] as usize] = r;
+        fill[k] += 1;
+    }
+    drop((kept, fill));
+    // Groups summed in fixed blocks of passer-seasons (in key order).
+    let blocks: Vec<(Vec<u32>, Vec<f64>, Vec<(u32, u16)>)> = (0..n_ps.div_ceil(PS_BLOCK))
+        .into_par_iter()
+        .map(|b| {
+            let (mut keys, mut sums, mut last) = (Vec::new(), Vec::new(), Vec::new());
+            for ps in b * PS_BLOCK..((b + 1) * PS_BLOCK).min(n_ps) {
+                let mut end = (0u32, 0u16);
+                for k in ps * CELLS..(ps + 1) * CELLS {
+                    let rows = &sorted[start[k] as usize..start[k + 1] as usize];
+                    if rows.is_empty() {
+                        continue;
+                    }
+                    keys.push(k as u32);
+                    let o = sums.len();
+                    sums.resize(o + w, 0.0);
+                    for &r in rows {
+                        let r = r as usize;
+                        add_row(ix, r, &mut sums[o..]);
+                        if ix.snap[r] + 1 > end.0 {
+                            end = (ix.snap[r] + 1, ix.team[r]);
+                        }
+                    }
+                }
+                last.push(end);
+            }
+            (keys, sums, last)
+        })
+        .collect();
+    let mut m = Memo {
+        width: w,
+        ps: vec![0.0; n_ps * w],
+        season_cells: vec![0.0; ix.seasons.len() * CELLS * w],
+        ps_cell_keys: Vec::new(),
+        ps_cell_sums: Vec::new(),
+        last: Vec::with_capacity(n_ps),
+        derived: Default::default(),
+    };
+    for (keys, sums, last) in blocks {
+        for (&k, b) in keys.iter().zip(sums.chunks(w)) {
+            let (ps, c) = (k as usize / CELLS, k as usize % CELLS);
+            let season = ix.ps_key[ps].1 as usize;
+            add_into(&mut m.ps[ps * w..][..w], b);
+            add_into(&mut m.season_cells[(season * CELLS + c) * w..][..w], b);
+        }
+        m.ps_cell_keys.extend(keys);
+        m.ps_cell_sums.extend(sums);
+        m.last.extend(last);
+    }
+    m
+}
+
 /// The pass for `s` (its seasons and passer aside), memoised in the index.
-fn memo(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Arc<Memo> {
+pub(super) fn memo(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Arc<Memo> {
     let key = memo_key(s);
     if let Some(m) = ix.memo.lock().ok().and_then(|c| c.get(&key).cloned()) {
         return m;
     }
-    let plan = Plan::new(ix, s);
-    let pieces = plan.pieces();
-    // In pieces on rayon's threads, merged in row order (the same pieces on
-    // every machine, so the same sums). A panic in a piece reaches the caller.
-    // Pieces go out `AT_ONCE` at a time, so only a few partial sums are
-    // alive at once.
-    const AT_ONCE: usize = 4;
-    let mut all: Option<Partial> = None;
-    for batch in pieces.chunks(AT_ONCE) {
-        let parts: Vec<Partial> = batch
-            .par_iter()
-            .map(|piece| {
-                let mut part = Partial::new(ix);
-                for (k, rows) in piece {
-                    for r in rows.clone() {
-                        if plan.keeps(ix, p, v, *k, r) {
-                            part.add(ix, r);
-                        }
-                    }
-                }
-                part
-            })
-            .collect();
-        for part in parts {
-            all = Some(match all {
-                None => part,
-                Some(a) => a.merge(part),
-            });
-        }
-    }
-    let all = all.unwrap_or_else(|| Partial::new(ix));
-    let w = ix.layout.width();
-    let (mut keys, mut cell_sums) = (Vec::new(), Vec::new());
-    for (k, b) in all.ps_cells.chunks(w).enumerate() {
-        if b[0] > 0.0 {
-            keys.push(k as u32);
-            cell_sums.extend_from_slice(b);
-        }
-    }
-    let m = Arc::new(Memo {
-        width: ix.layout.width(),
-        ps: all.ps,
-        season_cells: all.season_cells,
-        ps_cell_keys: keys,
-        ps_cell_sums: cell_sums,
-        last: all.last,
-    });
+    let m = Arc::new(pass(ix, p, v, s));
     if let Ok(mut c) = ix.memo.lock() {
         if c.len() >= MEMO_SIZE {
             c.clear();
@@ -241,7 +239,17 @@ fn expand(lay: &Layout, base: &[f64]) -> Accs {
 /// so it is left to the caller. `ix` must be built from `p` and `v`.
 pub(super) fn accumulate(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
     debug_assert!(ix.fits(p), "the split index was built from another league");
-    let m = memo(ix, p, v, s);
+    from_memo(ix, &memo(ix, p, v, s), s, true)
+}
+
+/// The per-passer and league sums of a memoised pass over the seasons of
+/// `s`, without the per-cell and per-season sums (`league_cells` zero,
+/// `by_season` and `league_by_season` empty, no passer's cells).
+pub(super) fn totals(ix: &SplitIndex, m: &Memo, s: &Situation) -> Sums {
+    from_memo(ix, m, s, false)
+}
+
+fn from_memo(ix: &SplitIndex, m: &Memo, s: &Situation, full: bool) -> Sums {
     let lay = &ix.layout;
     let (w, nm) = (m.width, METRICS.len());
     let chosen: Vec<bool> = ix.seasons.iter().map(|y| s.seasons.as_ref().is_none_or(|ss| ss.contains(y))).collect();
@@ -259,7 +267,9 @@ pub(super) fn accumulate(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situati
         if base[0] == 0.0 {
             continue;
         }
-        sums.by_season.insert((who, ix.seasons[season as usize]), expand(lay, base));
+        if full {
+            sums.by_season.insert((who, ix.seasons[season as usize]), expand(lay, base));
+        }
         if !chosen[season as usize] {
             continue;
         }
@@ -271,7 +281,7 @@ pub(super) fn accumulate(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situati
     }
     // Per passer: base sums per cell over the chosen seasons.
     let mut cells: Vec<Vec<f64>> = vec![Vec::new(); ix.n_passers];
-    for (k, &key) in m.ps_cell_keys.iter().enumerate() {
+    for (k, &key) in m.ps_cell_keys.iter().enumerate().filter(|_| full) {
         let (ps, c) = (key as usize / CELLS, key as usize % CELLS);
         let (who, season) = ix.ps_key[ps];
         if !chosen[season as usize] {
@@ -286,9 +296,9 @@ pub(super) fn accumulate(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situati
     for (who, slot) in mine.into_iter().enumerate() {
         let Some((base, (_, team))) = slot else { continue };
         let cb = &cells[who];
-        let (mut pc, mut cs) = (vec![0.0; CELLS * nm], vec![0.0; CELLS * nm]);
+        let (mut pc, mut cs) = if full { (vec![0.0; CELLS * nm], vec![0.0; CELLS * nm]) } else { (Vec::new(), Vec::new()) };
         if !cb.is_empty() {
-            for c in 0..CELLS {
+            for c in (0..CELLS).filter(|&c| cb[c * w] > 0.0) {
                 for j in 0..nm {
                     let (n, sum, _) = lay.acc(&cb[c * w..][..w], j);
                     pc[c * nm + j] = n;
@@ -313,7 +323,7 @@ pub(super) fn accumulate(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situati
         }
     }
     sums.league = expand(lay, &league);
-    for (y, &season) in ix.seasons.iter().enumerate() {
+    for (y, &season) in ix.seasons.iter().enumerate().filter(|_| full) {
         let mut sb = vec![0.0; w];
         for c in 0..CELLS {
             add_into(&mut sb, &m.season_cells[(y * CELLS + c) * w..][..w]);

@@ -3,10 +3,11 @@
 //! the league) for a situation, and the metric descriptions that travel with it.
 
 use super::index::SplitIndex;
-use super::lift::{self, posteriors, Derived, RATING_PARTS};
+use super::index::Memo;
+use super::lift::{self, fit, posteriors, Derived, Fit, RATING_PARTS};
 use super::metrics::{is_style, metric_index, SnapValues, Stat, METRICS};
 use super::normal::every_snap;
-use super::scan::{accumulate, rating_from, raw_value, Acc, Sums};
+use super::scan::{accumulate, memo, rating_from, raw_value, Acc, Sums};
 use super::shrink::{adjusted, stability};
 use crate::stats::multilevel::{normal_interval, prob_above, PasserPost};
 use crate::plays::Plays;
@@ -161,6 +162,27 @@ impl SplitTable {
     }
 }
 
+/// Percentile ranks among a set of values, as `stats::percentile_rank`
+/// gives them (the share below plus half the share equal, NaN left out), by
+/// binary search in the sorted values.
+struct Ranks(Vec<f64>);
+
+impl Ranks {
+    fn new(values: impl Iterator<Item = f64>) -> Ranks {
+        let mut v: Vec<f64> = values.filter(|x| !x.is_nan()).collect();
+        v.sort_by(|a, b| a.total_cmp(b));
+        Ranks(v)
+    }
+    fn percentile(&self, x: f64) -> Option<f64> {
+        if x.is_nan() || self.0.is_empty() {
+            return None;
+        }
+        let below = self.0.partition_point(|&v| v < x);
+        let equal = self.0.partition_point(|&v| v <= x) - below;
+        Some((below as f64 + 0.5 * equal as f64) / self.0.len() as f64 * 100.0)
+    }
+}
+
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
 pub enum SortBy {
     Value,
@@ -194,10 +216,13 @@ pub fn split_table_for(p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: 
 pub fn split_table_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32, focus: Option<&str>) -> SplitTable {
     let sums = accumulate(ix, p, v, s);
     let normal = every_snap(ix, p, v, s);
-    build_table(p, &sums, &normal, s, min_dropbacks, focus)
+    build_table(p, &sums, &normal, s, min_dropbacks, focus, &memo(ix, p, v, s))
 }
 
-pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, min_dropbacks: u32, focus: Option<&str>) -> SplitTable {
+/// The table from the sums. The model fits (per season list) and the
+/// stability (per minimum) are kept beside the situation's pass in `memo`:
+/// they depend on nothing else.
+pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, min_dropbacks: u32, focus: Option<&str>, memo: &Memo) -> SplitTable {
     let nm = METRICS.len();
     let db = metric_index("dropbacks").unwrap_or(0);
     let league: Vec<Option<f64>> = (0..nm).map(|j| raw_value(&sums.league, j)).collect();
@@ -265,9 +290,16 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
     let wanted: Vec<bool> = rows.iter().map(|r| r.qualified || focus == Some(r.passer.as_str()) || s.passer.as_deref() == Some(r.passer.as_str())).collect();
     let rating_j = metric_index("rating");
     let parts: Vec<usize> = RATING_PARTS.iter().filter_map(|k| metric_index(k)).collect();
-    let jobs: Vec<usize> = (0..nm).filter(|&j| METRICS[j].stat != Stat::Count && Some(j) != rating_j).chain(parts.iter().copied()).collect();
+    let jobs: Vec<usize> = (0..nm).filter(|&j| (METRICS[j].stat != Stat::Count && Some(j) != rating_j) || parts.contains(&j)).collect();
+    let fits = memo.derived(&format!("fits {:?}", s.seasons), || {
+        let mut fits: Vec<Option<Fit>> = vec![None; nm];
+        for (j, f) in jobs.par_iter().map(|&j| (j, fit(sums, normal, j))).collect::<Vec<_>>() {
+            fits[j] = f;
+        }
+        fits
+    });
     let mut posts: Vec<Option<Vec<Option<PasserPost>>>> = vec![None; nm];
-    let results: Vec<(usize, Vec<Option<PasserPost>>)> = jobs.par_iter().map(|&j| (j, posteriors(sums, normal, j, &wanted))).collect();
+    let results: Vec<(usize, Vec<Option<PasserPost>>)> = jobs.par_iter().map(|&j| (j, posteriors(fits[j].as_ref(), sums, normal, j, &wanted))).collect();
     for (j, post) in results {
         posts[j] = Some(post);
     }
@@ -304,10 +336,10 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
             c.p_better = league_raw.and_then(|lg| prob_above(d.value.0, d.value.1, lg)).map(|pa| if m.higher_is_better || is_style(m.key) { pa } else { 1.0 - pa });
         }
         // Percentile on the estimate, among qualified passers.
-        let ests: Vec<f64> = rows.iter().filter(|r| r.qualified).filter_map(|r| r.cells[j].estimate).collect();
+        let ests = Ranks::new(rows.iter().filter(|r| r.qualified).filter_map(|r| r.cells[j].estimate));
         for row in rows.iter_mut() {
             let c = &mut row.cells[j];
-            if let Some(pr) = c.estimate.and_then(|e| stats::percentile_rank(&ests, e)) {
+            if let Some(pr) = c.estimate.and_then(|e| ests.percentile(e)) {
                 c.percentile = Some(if m.higher_is_better || is_style(m.key) { pr } else { 100.0 - pr });
             }
         }
@@ -317,10 +349,13 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
         rows.retain(|r| &r.passer == only);
     }
     rows.sort_by(|a, b| b.dropbacks.cmp(&a.dropbacks).then(a.passer.cmp(&b.passer)));
+    let stab = memo.derived(&format!("stability {min_dropbacks}"), || {
+        (0..nm).into_par_iter().map(|j| (METRICS[j].stat != Stat::Count).then(|| stability(sums, j, min_dropbacks))).collect::<Vec<_>>()
+    });
     let metrics = (0..nm)
         .map(|j| {
             let m = &METRICS[j];
-            let st = if m.stat == Stat::Count { None } else { Some(stability(sums, j, min_dropbacks)) };
+            let st = &stab[j];
             MetricInfo {
                 key: m.key,
                 label: m.label,

@@ -33,9 +33,12 @@ use statrs::distribution::{ContinuousCDF, Normal};
 
 /// Points on each SD grid (midpoints of equal steps from 0 to the upper end).
 const GRID: usize = 40;
-/// Grid points whose weight is below this share of the largest are dropped
-/// when passers are scored (their total weight is renormalised away).
-const PRUNE: f64 = 1e-4;
+/// Pairs of grid points (level SD × lift SD) whose joint posterior weight is
+/// below this share of the total are left out when passers are scored (the
+/// rest renormalised). Left out, they move no estimate or interval end by as
+/// much as 1e-6 of the interval's width (`tests.rs` checks it against the
+/// whole grid).
+pub const PRUNE: f64 = 1e-9;
 
 /// One observed mean with its sampling variance and volume covariate.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -79,19 +82,24 @@ fn finite(xs: &[f64]) -> bool {
 }
 
 /// REML log-likelihood of `y_i ~ N(β₀ + β₁x_i, var + v_i)` at one variance, with
-/// the GLS coefficients and their covariance. `None` when the design is singular.
-fn reml(units: &[(Obs, f64)], var: f64, slope: bool) -> Option<(f64, [f64; 2], [[f64; 2]; 2])> {
-    let (mut a00, mut a01, mut a11, mut b0, mut b1, mut logdet) = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0);
+/// the GLS coefficients and their covariance, in one pass over the units:
+/// `y` is taken less `shift` (their mean, so the sums stay well scaled), and
+/// the weighted residual sum of squares is `yᵀWy − β̂ᵀXᵀWy` at the GLS
+/// solution. `None` when the design is singular.
+fn reml(units: &[(Obs, f64)], shift: f64, var: f64, slope: bool) -> Option<(f64, [f64; 2], [[f64; 2]; 2])> {
+    let (mut a00, mut a01, mut a11, mut b0, mut b1, mut syy, mut logdet) = (0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0);
     for (o, x) in units {
         let t = var + o.v;
         let w = 1.0 / t;
+        let y = o.y - shift;
         logdet += t.ln();
         a00 += w;
-        b0 += w * o.y;
+        b0 += w * y;
+        syy += w * y * y;
         if slope {
             a01 += w * x;
             a11 += w * x * x;
-            b1 += w * x * o.y;
+            b1 += w * x * y;
         }
     }
     let (beta, cov, det) = if slope {
@@ -107,14 +115,8 @@ fn reml(units: &[(Obs, f64)], var: f64, slope: bool) -> Option<(f64, [f64; 2], [
         }
         ([b0 / a00, 0.0], [[1.0 / a00, 0.0], [0.0, 0.0]], a00)
     };
-    let rss: f64 = units
-        .iter()
-        .map(|(o, x)| {
-            let fit = beta[0] + if slope { beta[1] * x } else { 0.0 };
-            (o.y - fit).powi(2) / (var + o.v)
-        })
-        .sum();
-    Some((-0.5 * logdet - 0.5 * det.ln() - 0.5 * rss, beta, cov))
+    let rss = (syy - beta[0] * b0 - beta[1] * b1).max(0.0);
+    Some((-0.5 * logdet - 0.5 * det.ln() - 0.5 * rss, [beta[0] + shift, beta[1]], cov))
 }
 
 /// Fit `y_i ~ N(β₀ + β₁x_i, σ² + v_i)` over a grid of the between-unit SD `σ`
@@ -143,7 +145,7 @@ pub fn fit_variance(units: &[(Obs, f64)], slope: bool) -> Option<VarFit> {
         let mut pts = Vec::with_capacity(GRID);
         for g in 0..GRID {
             let sd = (g as f64 + 0.5) * step;
-            let (ll, beta, cov) = reml(units, sd * sd, slope)?;
+            let (ll, beta, cov) = reml(units, mean_y, sd * sd, slope)?;
             // prior ∝ sd; equal steps in sd, so no Jacobian.
             pts.push((sd * sd, sd.ln() + ll, beta, cov));
         }
@@ -202,21 +204,33 @@ pub struct PasserData {
     pub x: f64,
 }
 
-fn pruned(fit: &VarFit) -> Vec<GridPoint> {
-    let most = fit.points.iter().map(|g| g.weight).fold(0.0, f64::max);
-    let mut pts: Vec<GridPoint> = fit.points.iter().copied().filter(|g| g.weight >= PRUNE * most).collect();
-    let total: f64 = pts.iter().map(|g| g.weight).sum();
-    pts.iter_mut().for_each(|g| g.weight /= total);
-    pts
+/// A level grid point as passers are scored: the prior precision `1/τ²` and
+/// the prior mean's coefficients with their covariance `[c00, c01, c11]`.
+#[derive(Debug, Clone, Copy, PartialEq)]
+struct LevelPt {
+    prec: f64,
+    beta: [f64; 2],
+    cov: [f64; 3],
+}
+
+/// A lift grid point: the precision `1/ω²`, `δ` and its variance.
+#[derive(Debug, Clone, Copy, PartialEq)]
+struct LiftPt {
+    prec: f64,
+    delta: f64,
+    var_delta: f64,
 }
 
 /// The fitted model for one metric in one situation: the level fit (other
-/// snaps) and, when the situation has other snaps to compare with, the lift fit.
+/// snaps) and, when the situation has other snaps to compare with, the lift
+/// fit, as the pairs of grid points passers are scored over.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Model {
-    level: Vec<GridPoint>,
+    level: Vec<LevelPt>,
     slope: bool,
-    lift: Option<Vec<GridPoint>>,
+    lift: Option<Vec<LiftPt>>,
+    /// (level point, lift point, joint weight); the weights sum to 1.
+    pairs: Vec<(u16, u16, f64)>,
     mean_level_var: f64,
     mean_lift_var: f64,
 }
@@ -225,14 +239,55 @@ impl Model {
     /// `level` fitted on the passers' other snaps, `lift` on their raw
     /// differences (intercept only). Without `lift`, the situation value is
     /// the level itself (use this when the level was fitted on the situation).
+    /// Pairs of grid points below `PRUNE` of the weight are left out.
     pub fn new(level: &VarFit, lift: Option<&VarFit>) -> Model {
+        Model::pruned_at(level, lift, PRUNE)
+    }
+
+    /// `Model::new` leaving out the pairs of grid points below `prune` of
+    /// the total weight (0: the whole grid).
+    pub fn pruned_at(level: &VarFit, lift: Option<&VarFit>, prune: f64) -> Model {
+        let lw: Vec<f64> = level.points.iter().map(|g| g.weight).collect();
+        let kw: Vec<f64> = lift.map_or(vec![1.0], |f| f.points.iter().map(|g| g.weight).collect());
+        let total = lw.iter().sum::<f64>() * kw.iter().sum::<f64>();
+        let (mut used_l, mut used_k) = (vec![u16::MAX; lw.len()], vec![u16::MAX; kw.len()]);
+        let (mut lpts, mut kpts, mut pairs) = (Vec::new(), Vec::new(), Vec::new());
+        for (i, &a) in lw.iter().enumerate() {
+            for (k, &b) in kw.iter().enumerate() {
+                let w = a * b;
+                if !(w > 0.0 && w >= prune * total) {
+                    continue;
+                }
+                if used_l[i] == u16::MAX {
+                    used_l[i] = lpts.len() as u16;
+                    let g = &level.points[i];
+                    lpts.push(LevelPt { prec: 1.0 / g.var, beta: g.beta, cov: [g.cov[0][0], g.cov[0][1], g.cov[1][1]] });
+                }
+                if used_k[k] == u16::MAX {
+                    used_k[k] = kpts.len() as u16;
+                    kpts.push(match lift {
+                        Some(f) => LiftPt { prec: 1.0 / f.points[k].var, delta: f.points[k].beta[0], var_delta: f.points[k].cov[0][0] },
+                        None => LiftPt { prec: f64::INFINITY, delta: 0.0, var_delta: 0.0 },
+                    });
+                }
+                pairs.push((used_l[i], used_k[k], w));
+            }
+        }
+        let kept: f64 = pairs.iter().map(|p| p.2).sum();
+        pairs.iter_mut().for_each(|p| p.2 /= kept);
         Model {
-            level: pruned(level),
+            level: lpts,
             slope: level.slope,
-            lift: lift.map(pruned),
+            lift: lift.map(|_| kpts),
+            pairs,
             mean_level_var: level.mean_var(),
             mean_lift_var: lift.map(|f| f.mean_var()).unwrap_or(0.0),
         }
+    }
+
+    /// How many pairs of grid points a passer is scored over.
+    pub fn pairs(&self) -> usize {
+        self.pairs.len()
     }
 
     /// The posterior for one passer. `None` when he has no data at all, or
@@ -244,52 +299,66 @@ impl Model {
         }
         let (pv, yv) = d.other.map(|o| (1.0 / o.v, o.y)).unwrap_or((0.0, 0.0));
         let (ph, yh) = d.here.map(|o| (1.0 / o.v, o.y)).unwrap_or((0.0, 0.0));
-        let no_lift = [GridPoint { var: 0.0, weight: 1.0, beta: [0.0, 0.0], cov: [[0.0; 2]; 2] }];
-        let lifts: &[GridPoint] = match &self.lift {
-            Some(l) => l,
-            None => &no_lift,
+        // Per level point: the prior mean at his covariate, its variance,
+        // and the precision of θ from the prior and both observations.
+        let mut stack = [[0.0f64; 3]; GRID];
+        let mut heap = Vec::new();
+        let per: &mut [[f64; 3]] = if self.level.len() <= GRID {
+            &mut stack[..self.level.len()]
+        } else {
+            heap.resize(self.level.len(), [0.0; 3]);
+            &mut heap
         };
-        // Moments accumulated over the grid: E[m], E[var + m²].
-        let mut acc = [[0.0f64; 2]; 3];
-        for lp in &self.level {
-            let mu = lp.beta[0] + if self.slope { lp.beta[1] * d.x } else { 0.0 };
-            let var_mu = lp.cov[0][0]
-                + if self.slope { 2.0 * d.x * lp.cov[0][1] + d.x * d.x * lp.cov[1][1] } else { 0.0 };
-            let pt = 1.0 / lp.var;
-            for kp in lifts {
-                let w = lp.weight * kp.weight;
-                let delta = kp.beta[0];
-                let var_delta = kp.cov[0][0];
-                // Posterior covariance of (θ, λ): the inverse of the precision
-                // [[1/τ² + 1/v' + 1/v, 1/v], [1/v, 1/ω² + 1/v]]; without a lift
-                // model λ is fixed at 0.
-                let (s00, s01, s11) = if self.lift.is_some() {
-                    let (p00, p01, p11) = (pt + pv + ph, ph, 1.0 / kp.var + ph);
-                    let det = p00 * p11 - p01 * p01;
-                    (p11 / det, -p01 / det, p00 / det)
-                } else {
-                    (1.0 / (pt + pv + ph), 0.0, 0.0)
-                };
-                let r = yh - delta;
-                let (b0, b1) = (mu * pt + yv * pv + r * ph, r * ph);
-                let (m0, m1) = (s00 * b0 + s01 * b1, s01 * b0 + s11 * b1);
-                // Sensitivities to δ and μ (for their estimation variance).
-                let (dd0, dd1) = (-(s00 + s01) * ph, -(s01 + s11) * ph);
-                let (dm0, dm1) = (s00 * pt, s01 * pt);
-                let lift_m = delta + m1;
-                let lift_v = s11 + (1.0 + dd1).powi(2) * var_delta + dm1 * dm1 * var_mu;
-                let val_m = m0 + delta + m1;
-                let val_v = s00 + 2.0 * s01 + s11 + (1.0 + dd0 + dd1).powi(2) * var_delta + (dm0 + dm1).powi(2) * var_mu;
-                let lev_v = s00 + dd0 * dd0 * var_delta + dm0 * dm0 * var_mu;
-                for (a, (m, v)) in acc.iter_mut().zip([(val_m, val_v), (m0, lev_v), (lift_m, lift_v)]) {
-                    a[0] += w * m;
-                    a[1] += w * (v + m * m);
-                }
-            }
+        for (out, lp) in per.iter_mut().zip(&self.level) {
+            let (mu, var_mu) = if self.slope {
+                (lp.beta[0] + lp.beta[1] * d.x, lp.cov[0] + 2.0 * d.x * lp.cov[1] + d.x * d.x * lp.cov[2])
+            } else {
+                (lp.beta[0], lp.cov[0])
+            };
+            *out = [mu, var_mu, lp.prec + pv + ph];
         }
-        let mv = |a: [f64; 2]| (a[0], (a[1] - a[0] * a[0]).max(0.0));
-        let [value, level, lift] = acc.map(mv);
-        let has_lift = self.lift.is_some() && d.other.is_some() && d.here.is_some();
+        // Moments accumulated over the grid: E[m] and E[var + m²] of the
+        // value, the level and the lift.
+        let mut acc = [0.0f64; 6];
+        let two_level = self.lift.is_some();
+        let lifts: &[LiftPt] = self.lift.as_deref().unwrap_or(&[]);
+        let fixed = LiftPt { prec: f64::INFINITY, delta: 0.0, var_delta: 0.0 };
+        for &(i, k, w) in &self.pairs {
+            let [mu, var_mu, p00] = per[i as usize];
+            let pt = self.level[i as usize].prec;
+            let kp = if two_level { &lifts[k as usize] } else { &fixed };
+            let (delta, var_delta) = (kp.delta, kp.var_delta);
+            // Posterior covariance of (θ, λ): the inverse of the precision
+            // [[1/τ² + 1/v' + 1/v, 1/v], [1/v, 1/ω² + 1/v]]; without a lift
+            // model λ is fixed at 0.
+            let (s00, s01, s11) = if two_level {
+                let p11 = kp.prec + ph;
+                let det = p00 * p11 - ph * ph;
+                (p11 / det, -ph / det, p00 / det)
+            } else {
+                (1.0 / p00, 0.0, 0.0)
+            };
+            let r = yh - delta;
+            let (b0, b1) = (mu * pt + yv * pv + r * ph, r * ph);
+            let (m0, m1) = (s00 * b0 + s01 * b1, s01 * b0 + s11 * b1);
+            // Sensitivities to δ and μ (for their estimation variance).
+            let (dd0, dd1) = (-(s00 + s01) * ph, -(s01 + s11) * ph);
+            let (dm0, dm1) = (s00 * pt, s01 * pt);
+            let lift_m = delta + m1;
+            let lift_v = s11 + (1.0 + dd1).powi(2) * var_delta + dm1 * dm1 * var_mu;
+            let val_m = m0 + delta + m1;
+            let val_v = s00 + 2.0 * s01 + s11 + (1.0 + dd0 + dd1).powi(2) * var_delta + (dm0 + dm1).powi(2) * var_mu;
+            let lev_v = s00 + dd0 * dd0 * var_delta + dm0 * dm0 * var_mu;
+            acc[0] += w * val_m;
+            acc[1] += w * (val_v + val_m * val_m);
+            acc[2] += w * m0;
+            acc[3] += w * (lev_v + m0 * m0);
+            acc[4] += w * lift_m;
+            acc[5] += w * (lift_v + lift_m * lift_m);
+        }
+        let mv = |m: f64, s: f64| (m, (s - m * m).max(0.0));
+        let (value, level, lift) = (mv(acc[0], acc[1]), mv(acc[2], acc[3]), mv(acc[4], acc[5]));
+        let has_lift = two_level && d.other.is_some() && d.here.is_some();
         let raw_diff_var = d.other.map(|o| o.v).unwrap_or(0.0) + d.here.map(|o| o.v).unwrap_or(0.0);
         let between = self.mean_level_var + self.mean_lift_var;
         let signal = match d.here {
@@ -310,13 +379,27 @@ impl Model {
     }
 }
 
+/// The standard normal quantile `z` with `P(|Z| < z) = level`; the last
+/// level asked on this thread is remembered (tables ask one level thousands
+/// of times).
+fn z_for(level: f64) -> Option<f64> {
+    thread_local!(static LAST: std::cell::Cell<(f64, f64)> = const { std::cell::Cell::new((f64::NAN, f64::NAN)) });
+    let (l, z) = LAST.with(|c| c.get());
+    if l == level {
+        return Some(z);
+    }
+    let z = Normal::new(0.0, 1.0).ok()?.inverse_cdf(0.5 + level / 2.0);
+    LAST.with(|c| c.set((level, z)));
+    Some(z)
+}
+
 /// Two-sided normal interval at `level` (e.g. 0.90) around `mean` with
 /// variance `var`; `None` when the variance is not positive or not finite.
 pub fn normal_interval(mean: f64, var: f64, level: f64) -> Option<(f64, f64)> {
     if !finite(&[mean, var]) || var <= 0.0 {
         return None;
     }
-    let z = Normal::new(0.0, 1.0).ok()?.inverse_cdf(0.5 + level / 2.0);
+    let z = z_for(level)?;
     let sd = var.sqrt();
     Some((mean - z * sd, mean + z * sd))
 }
