@@ -83,12 +83,10 @@ pub(super) struct PasserSums {
     pub(super) team: u16,
 }
 
-/// Row `r` of the index into the base sums `base` (see `Layout`).
+/// One row's values (its unit flags, 0/1 flags, whole numbers and other
+/// numbers) into the base sums `base` (see `Layout`).
 #[inline]
-fn add_row(ix: &SplitIndex, r: usize, base: &mut [f64]) {
-    let lay = &ix.layout;
-    let units = ix.units[r];
-    let bits = ix.bits[r];
+fn add_values(lay: &Layout, units: u16, bits: u32, ints: &[i32], reals: &[f64], base: &mut [f64]) {
     base[0] += 1.0;
     for u in 0..lay.units {
         base[1 + u] += f64::from(units >> u & 1);
@@ -98,13 +96,13 @@ fn add_row(ix: &SplitIndex, r: usize, base: &mut [f64]) {
         base[o + k] += f64::from(bits >> k & 1);
     }
     let o = o + lay.bits;
-    for (k, &x) in ix.ints[r * lay.ints..][..lay.ints].iter().enumerate() {
+    for (k, &x) in ints.iter().enumerate() {
         let x = x as f64;
         base[o + 2 * k] += x;
         base[o + 2 * k + 1] += x * x;
     }
     let o = o + 2 * lay.ints;
-    for (k, &x) in ix.reals[r * lay.reals..][..lay.reals].iter().enumerate() {
+    for (k, &x) in reals.iter().enumerate() {
         base[o + 2 * k] += x;
         base[o + 2 * k + 1] += x * x;
     }
@@ -118,6 +116,8 @@ fn add_into(a: &mut [f64], b: &[f64]) {
 
 /// Passer-seasons per piece of work when the groups are summed.
 const PS_BLOCK: usize = 64;
+/// Rows gathered at a time before they are added.
+const GATHER: usize = 64;
 
 /// The pass for `s` (its seasons and passer aside): the rows it keeps
 /// (checked in pieces on rayon's threads, kept in row order), grouped by
@@ -157,30 +157,43 @@ fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
         fill[k] += 1;
     }
     drop((kept, fill));
-    // Groups summed in fixed blocks of passer-seasons (in key order).
+    // Groups summed in fixed blocks of passer-seasons (in key order). Each
+    // block's rows are gathered `GATHER` at a time before they are added
+    // (the rows sit far apart in the index; loads that do not wait on each
+    // other overlap), then added to their group in order.
+    let lay = &ix.layout;
+    let (ni, nr) = (lay.ints, lay.reals);
     let blocks: Vec<(Vec<u32>, Vec<f64>, Vec<(u32, u16)>)> = (0..n_ps.div_ceil(PS_BLOCK))
         .into_par_iter()
         .map(|b| {
-            let (mut keys, mut sums, mut last) = (Vec::new(), Vec::new(), Vec::new());
-            for ps in b * PS_BLOCK..((b + 1) * PS_BLOCK).min(n_ps) {
-                let mut end = (0u32, 0u16);
-                for k in ps * CELLS..(ps + 1) * CELLS {
-                    let rows = &sorted[start[k] as usize..start[k + 1] as usize];
-                    if rows.is_empty() {
-                        continue;
+            let (first, end_ps) = (b * PS_BLOCK, ((b + 1) * PS_BLOCK).min(n_ps));
+            let keys: Vec<u32> = (first * CELLS..end_ps * CELLS).filter(|&k| start[k + 1] > start[k]).map(|k| k as u32).collect();
+            let mut sums = vec![0.0; keys.len() * w];
+            let mut last = vec![(0u32, 0u16); end_ps - first];
+            let (a, z) = (start[first * CELLS] as usize, start[end_ps * CELLS] as usize);
+            let (mut gi, mut gr) = (vec![0i32; GATHER * ni], vec![0.0f64; GATHER * nr]);
+            let (mut gu, mut gb, mut gs, mut gt) = ([0u16; GATHER], [0u32; GATHER], [0u32; GATHER], [0u16; GATHER]);
+            let mut g = 0;
+            let mut at = a;
+            while at < z {
+                let chunk = &sorted[at..(at + GATHER).min(z)];
+                for (q, &r) in chunk.iter().enumerate() {
+                    let r = r as usize;
+                    (gu[q], gb[q], gs[q], gt[q]) = (ix.units[r], ix.bits[r], ix.snap[r], ix.team[r]);
+                    gi[q * ni..][..ni].copy_from_slice(&ix.ints[r * ni..][..ni]);
+                    gr[q * nr..][..nr].copy_from_slice(&ix.reals[r * nr..][..nr]);
+                }
+                for q in 0..chunk.len() {
+                    while start[keys[g] as usize + 1] as usize <= at + q {
+                        g += 1;
                     }
-                    keys.push(k as u32);
-                    let o = sums.len();
-                    sums.resize(o + w, 0.0);
-                    for &r in rows {
-                        let r = r as usize;
-                        add_row(ix, r, &mut sums[o..]);
-                        if ix.snap[r] + 1 > end.0 {
-                            end = (ix.snap[r] + 1, ix.team[r]);
-                        }
+                    add_values(lay, gu[q], gb[q], &gi[q * ni..][..ni], &gr[q * nr..][..nr], &mut sums[g * w..][..w]);
+                    let end = &mut last[keys[g] as usize / CELLS - first];
+                    if gs[q] + 1 > end.0 {
+                        *end = (gs[q] + 1, gt[q]);
                     }
                 }
-                last.push(end);
+                at += chunk.len();
             }
             (keys, sums, last)
         })
