@@ -583,3 +583,57 @@ mod monotone {
         }
     }
 }
+
+/// Process CPU seconds so far (user + system, from /proc/self/stat; 0 where
+/// there is no /proc): fit cost on a shared machine, where wall time says
+/// more about the neighbours.
+fn cpu_seconds() -> f64 {
+    let Ok(stat) = std::fs::read_to_string("/proc/self/stat") else { return 0.0 };
+    let Some(after) = stat.rsplit_once(')').map(|(_, a)| a) else { return 0.0 };
+    let f: Vec<&str> = after.split_whitespace().collect();
+    let ticks = |k: usize| f.get(k).and_then(|v| v.parse::<f64>().ok()).unwrap_or(0.0);
+    // Fields 14 and 15 of the line (utime, stime) are 11 and 12 after ')'.
+    (ticks(11) + ticks(12)) / 100.0
+}
+
+/// Fit time per model, wall and CPU, on the file `LATEGAME_FIT_FILE`
+/// (e.g. `lategame simulate --seasons 25 --out F`): run with
+/// `LATEGAME_FIT_FILE=F cargo test --release --test models fit_time -- --ignored --nocapture`.
+#[test]
+#[ignore]
+fn fit_time_per_model() {
+    let Some(path) = std::env::var_os("LATEGAME_FIT_FILE") else {
+        eprintln!("set LATEGAME_FIT_FILE");
+        return;
+    };
+    let loaded = playfile::load(&PathBuf::from(path), &LoadOptions::default()).unwrap_or_else(|e| panic!("{e}"));
+    let plays = loaded.plays;
+    let rows: Vec<u32> = (0..plays.len() as u32).collect();
+    let opts = models::logit::FitOptions::default();
+    let time = |name: &str, f: &mut dyn FnMut()| {
+        let (w, c) = (Instant::now(), cpu_seconds());
+        f();
+        eprintln!("{name}: wall {:.2}s, cpu {:.2}s", w.elapsed().as_secs_f64(), cpu_seconds() - c);
+    };
+    let (w0, c0) = (Instant::now(), cpu_seconds());
+    let mut ep = None;
+    time("ep", &mut || ep = Some(models::ep::fit(&plays, &rows, &opts, None).expect("ep")));
+    let ep = ep.expect("ep");
+    let mut blind = Vec::new();
+    time("ep blind scores", &mut || blind = ep.score_all_blind(&plays));
+    time("wp", &mut || {
+        models::wp::fit(&plays, &blind, &rows, models::wp::WpKind::Full, &opts, None).expect("wp");
+    });
+    time("baseline", &mut || {
+        models::wp::fit(&plays, &blind, &rows, models::wp::WpKind::Baseline, &opts, None).expect("baseline");
+    });
+    time("cp", &mut || {
+        models::cp::fit(&plays, &rows, &opts, None).expect("cp");
+    });
+    eprintln!(
+        "{} snaps: all fits wall {:.2}s, cpu {:.2}s",
+        plays.len(),
+        w0.elapsed().as_secs_f64(),
+        cpu_seconds() - c0
+    );
+}
