@@ -24,13 +24,15 @@ pub struct FitOptions {
     /// to the optimum in log-likelihood) falls below `tol` times the total
     /// weight of the rows.
     pub tol: f64,
-    /// Above this many rows, first fit on an evenly spaced subsample of about
-    /// this size and start the full Newton iterations from there.
+    /// Above twice this many rows, first fit on evenly spaced subsamples of
+    /// about an eighth of this size and then this size, and start the full
+    /// Newton iterations from there.
     pub warm_rows: usize,
     /// Above twice this many rows, sum the Hessian over an evenly spaced
     /// subsample of about this size (gradient and likelihood stay exact).
     pub hess_rows: usize,
-    /// Worker threads for the row loop (0 = available cores).
+    /// 1: the row loop runs on the calling thread; otherwise on rayon's
+    /// threads in fixed chunks (the sums, and so the fit, are the same).
     pub threads: usize,
 }
 
@@ -304,7 +306,23 @@ pub fn fit_from(
     if let Some(f) = usable {
         coef = f.coef.clone();
     } else if !free.is_empty() && opts.warm_rows > 0 && n > 2 * opts.warm_rows {
-        let sub: Vec<usize> = (0..n).step_by(n / opts.warm_rows).collect();
+        // Two warm levels: an eighth of `warm_rows` from the intercept-only
+        // start (the many early Newton steps are cheap there), then
+        // `warm_rows` from its answer. The small level only proposes a
+        // start: if it fails (a rare class missing from it, say), the next
+        // level starts where it would have.
+        let sub = |level: usize| -> Vec<usize> { (0..n).step_by(n / level).collect() };
+        let small = sub(opts.warm_rows / 8);
+        if opts.warm_rows / 8 >= 1000 {
+            let l2 = opts.l2 * small.len() as f64 / n as f64;
+            if let Ok(r) = newton(pr, &small, &small, coef.clone(), l2, opts.max_iter, opts.tol * 1e3, threads) {
+                if r.converged {
+                    coef = r.coef;
+                    warm_iterations += r.iterations;
+                }
+            }
+        }
+        let sub = sub(opts.warm_rows);
         let l2 = opts.l2 * sub.len() as f64 / n as f64;
         let r = newton(
             pr,
@@ -317,7 +335,7 @@ pub fn fit_from(
             threads,
         )?;
         coef = r.coef;
-        warm_iterations = r.iterations;
+        warm_iterations += r.iterations;
     }
     let all: Vec<usize> = (0..n).collect();
     let hess_rows: Vec<usize> = if opts.hess_rows > 0 && n > 2 * opts.hess_rows {

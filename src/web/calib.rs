@@ -47,6 +47,12 @@ fn band(b: &Banded, digits: usize) -> String {
     format!("{:.*}–{:.*}", digits, b.lo, digits, b.hi)
 }
 
+/// A band for a table cell: word joiners around the dash, so the cell
+/// never wraps after it (a laptop's narrow column did).
+fn band_cell(b: &Banded, digits: usize) -> String {
+    format!("{:.*}\u{2060}–\u{2060}{:.*}", digits, b.lo, digits, b.hi)
+}
+
 /// The sentence a staff reads first: when the model said about 30% late in
 /// close games, how often those teams won.
 pub fn headline(c: &Calibration) -> String {
@@ -127,7 +133,7 @@ fn stratum_view(s: &StratumScore) -> StratumView {
                 group(b.n),
                 format!("{:.3}", b.mean_predicted),
                 format!("{:.3}", b.observed.value),
-                band(&b.observed, 3),
+                band_cell(&b.observed, 3),
                 format!("{:.3}", base.mean_predicted),
                 format!("{:.3}", base.observed.value),
             ]
@@ -145,7 +151,7 @@ fn ep_group_rows(groups: &[EpGroup]) -> Vec<Vec<String>> {
                 group(g.n),
                 format!("{:+.2}", g.mean_predicted),
                 format!("{:+.2}", g.mean_actual.value),
-                format!("{:+.2} to {:+.2}", g.mean_actual.lo, g.mean_actual.hi),
+                format!("{:+.2}\u{a0}to\u{a0}{:+.2}", g.mean_actual.lo, g.mean_actual.hi),
             ]
         })
         .collect()
@@ -210,6 +216,11 @@ mod tests {
         assert_eq!(v.strata.len(), 3);
         assert!(v.strata.iter().all(|s| s.rows.len() == 5));
         assert_eq!(v.ep_groups.len(), 3);
+        // Band cells hold no place a line may break.
+        for s in &v.strata {
+            assert!(s.rows.iter().all(|r| !r[4].contains(' ') && r[4].contains("\u{2060}–\u{2060}")), "{:?}", s.rows);
+        }
+        assert!(v.ep_groups.iter().flat_map(|g| &g.rows).all(|r| !r[4].contains(' ')));
         let one = calibrate(&testkit::league(60, 1, 5)).expect("one season");
         let v = view(&one);
         assert!(v.holdout.contains("the last 12 of the 60 games") && v.holdout.contains("no season can be held out"), "{}", v.holdout);

@@ -2,6 +2,7 @@
 
 use super::pass::{accumulate_par, Acc, Problem};
 use super::*;
+use nalgebra::{Cholesky, Dyn};
 
 pub(super) fn penalty(coef: &[Vec<f64>], l2: f64) -> f64 {
     coef.iter()
@@ -34,25 +35,12 @@ pub(super) fn newton(
 ) -> Result<NewtonOut, LogitError> {
     let p = pr.design.cols();
     let m = coef.len();
-    let dim = m * p;
-    let np = m * (m + 1) / 2;
-    let same = rows.len() == hess_rows.len();
-    let pass = |coef: &[Vec<f64>]| -> (Acc, Acc) {
-        let full = accumulate_par(pr, coef, rows, same, threads);
-        if same {
-            let h = Acc {
-                weight: full.weight,
-                ll: 0.0,
-                grad: Vec::new(),
-                hess: full.hess.clone(),
-            };
-            (full, h)
-        } else {
-            let h = accumulate_par(pr, coef, hess_rows, true, threads);
-            (full, h)
-        }
-    };
-    let (mut acc, mut hacc) = pass(&coef);
+    // The Hessian is the costly part of a pass; it is summed again unless
+    // the last step was a full one and cut the Newton decrement below
+    // `REUSE_RATE` times the one before (Newton's fast phase, where the
+    // Hessian hardly changes). A kept Hessian changes the path, not the
+    // fixed point, and the stopping rule is the same.
+    let mut acc = accumulate_par(pr, &coef, rows, false, threads);
     let mut iterations = 0;
     let mut converged = false;
     let tol = tol * acc.weight.max(1.0);
@@ -65,40 +53,24 @@ pub(super) fn newton(
         }
         g
     };
+    let mut chol: Option<Cholesky<f64, Dyn>> = None;
+    // 0: the first step's Hessian is not reused for the second.
+    let mut last_decrement = 0.0;
     loop {
         let g = penalized_grad(&acc, &coef);
         if iterations >= max_iter {
             break;
         }
-        // Hessian of the negative penalized log-likelihood.
-        let scale = if hacc.weight > 0.0 {
-            acc.weight / hacc.weight
-        } else {
-            1.0
+        let fresh = chol.is_none();
+        if fresh {
+            let h_acc = accumulate_par(pr, &coef, hess_rows, true, threads);
+            let scale = if h_acc.weight > 0.0 { acc.weight / h_acc.weight } else { 1.0 };
+            chol = Some(factor_spd(assemble(&h_acc.hess, scale, p, m, l2))?);
+        }
+        let step = match &chol {
+            Some(c) => c.solve(&g),
+            None => return Err(LogitError::Singular(0.0)),
         };
-        let mut h = DMatrix::<f64>::zeros(dim, dim);
-        for a in 0..p {
-            for b in a..p {
-                let at = triangle_index(p, a, b) * np;
-                let mut pi = 0;
-                for j in 0..m {
-                    for l in j..m {
-                        let v = hacc.hess[at + pi] * scale;
-                        pi += 1;
-                        h[(j * p + a, l * p + b)] = v;
-                        h[(j * p + b, l * p + a)] = v;
-                        h[(l * p + a, j * p + b)] = v;
-                        h[(l * p + b, j * p + a)] = v;
-                    }
-                }
-            }
-        }
-        for j in 0..m {
-            for a in 1..p {
-                h[(j * p + a, j * p + a)] += l2;
-            }
-        }
-        let step = solve_spd(h, &g)?;
         let decrement = g.dot(&step);
         if decrement.abs() < tol {
             converged = true;
@@ -106,7 +78,7 @@ pub(super) fn newton(
         }
         let obj = acc.ll - penalty(&coef, l2);
         let mut t = 1.0;
-        let mut accepted = false;
+        let mut accepted = None;
         for _ in 0..40 {
             let trial: Vec<Vec<f64>> = (0..m)
                 .map(|j| (0..p).map(|a| coef[j][a] + t * step[j * p + a]).collect())
@@ -118,18 +90,28 @@ pub(super) fn newton(
             let trial_obj = trial_acc.ll - penalty(&trial, l2);
             if trial_obj >= obj - 1e-12 * obj.abs() {
                 coef = trial;
-                accepted = true;
+                accepted = Some(trial_acc);
                 break;
             }
             t *= 0.5;
         }
         iterations += 1;
-        if !accepted {
+        let Some(next) = accepted else {
+            if !fresh {
+                // Try again with the Hessian at this point.
+                chol = None;
+                continue;
+            }
             // No step improves the objective: at the optimum to rounding error.
             converged = decrement.abs() < tol.max(1e-6);
             break;
+        };
+        // The trial pass already summed the gradient and likelihood here.
+        acc = next;
+        if t < 1.0 || decrement > REUSE_RATE * last_decrement {
+            chol = None;
         }
-        (acc, hacc) = pass(&coef);
+        last_decrement = decrement;
     }
     let g = penalized_grad(&acc, &coef);
     Ok(NewtonOut {
@@ -141,9 +123,43 @@ pub(super) fn newton(
     })
 }
 
-/// Solve `h x = g` for symmetric positive definite `h` by Cholesky, adding a
-/// growing ridge if rounding makes it indefinite.
-pub(super) fn solve_spd(h: DMatrix<f64>, g: &DVector<f64>) -> Result<DVector<f64>, LogitError> {
+/// A reused Hessian must have cut the Newton decrement at least this much
+/// per step; otherwise it is summed again.
+const REUSE_RATE: f64 = 0.01;
+
+/// The Hessian of the negative penalized log-likelihood from a pass's
+/// triangle of sums (scaled by `scale` to the full weight) and the L2 term.
+fn assemble(hess: &[f64], scale: f64, p: usize, m: usize, l2: f64) -> DMatrix<f64> {
+    let dim = m * p;
+    let np = m * (m + 1) / 2;
+    let mut h = DMatrix::<f64>::zeros(dim, dim);
+    for a in 0..p {
+        for b in a..p {
+            let at = triangle_index(p, a, b) * np;
+            let mut pi = 0;
+            for j in 0..m {
+                for l in j..m {
+                    let v = hess[at + pi] * scale;
+                    pi += 1;
+                    h[(j * p + a, l * p + b)] = v;
+                    h[(j * p + b, l * p + a)] = v;
+                    h[(l * p + a, j * p + b)] = v;
+                    h[(l * p + b, j * p + a)] = v;
+                }
+            }
+        }
+    }
+    for j in 0..m {
+        for a in 1..p {
+            h[(j * p + a, j * p + a)] += l2;
+        }
+    }
+    h
+}
+
+/// Cholesky factor of symmetric positive definite `h`, adding a growing
+/// ridge if rounding makes it indefinite.
+pub(super) fn factor_spd(h: DMatrix<f64>) -> Result<Cholesky<f64, Dyn>, LogitError> {
     let dim = h.nrows();
     let scale = (0..dim)
         .map(|i| h[(i, i)].abs())
@@ -156,7 +172,7 @@ pub(super) fn solve_spd(h: DMatrix<f64>, g: &DVector<f64>) -> Result<DVector<f64
             hr[(i, i)] += ridge;
         }
         if let Some(ch) = hr.cholesky() {
-            return Ok(ch.solve(g));
+            return Ok(ch);
         }
         ridge = if ridge == 0.0 {
             scale * 1e-12

@@ -1,5 +1,6 @@
 //! One pass over the rows at given coefficients: log-likelihood, gradient
-//! and Hessian pieces, summed on several threads.
+//! and Hessian pieces, summed over fixed chunks of rows on rayon's threads
+//! (the same chunks and the same order of sums on every machine).
 
 use super::*;
 
@@ -143,7 +144,13 @@ pub(super) fn triangle_index(p: usize, a: usize, b: usize) -> usize {
     a * p - a * (a + 1) / 2 + a + (b - a)
 }
 
-/// `accumulate` split across threads, sums combined.
+/// Rows per piece of work: fixed, so the pieces, and the order their sums
+/// are added in, are the same whatever the number of threads.
+pub(super) const CHUNK_ROWS: usize = 8192;
+
+/// `accumulate` over fixed chunks of `rows` (on rayon's threads unless
+/// `threads == 1`), the chunks' sums added in chunk order: the result is the
+/// same, bit for bit, with any number of threads.
 pub(super) fn accumulate_par(
     pr: Problem,
     coef: &[Vec<f64>],
@@ -151,23 +158,20 @@ pub(super) fn accumulate_par(
     with_hess: bool,
     threads: usize,
 ) -> Acc {
-    let threads = threads.max(1).min(rows.len() / 2000 + 1);
-    if threads == 1 {
-        return accumulate(pr, coef, rows, with_hess);
-    }
-    let chunk = rows.len().div_ceil(threads);
-    let parts: Vec<Acc> = std::thread::scope(|s| {
-        let handles: Vec<_> = rows
-            .chunks(chunk)
-            .map(|part| s.spawn(move || accumulate(pr, coef, part, with_hess)))
-            .collect();
-        handles
-            .into_iter()
-            .map(|h| h.join().expect("logit worker panicked"))
+    use rayon::prelude::*;
+    let parts: Vec<Acc> = if threads == 1 || rows.len() <= CHUNK_ROWS {
+        rows.chunks(CHUNK_ROWS)
+            .map(|part| accumulate(pr, coef, part, with_hess))
             .collect()
-    });
+    } else {
+        rows.par_chunks(CHUNK_ROWS)
+            .map(|part| accumulate(pr, coef, part, with_hess))
+            .collect()
+    };
     let mut it = parts.into_iter();
-    let mut total = it.next().expect("at least one part");
+    let Some(mut total) = it.next() else {
+        return accumulate(pr, coef, rows, with_hess);
+    };
     for a in it {
         total.weight += a.weight;
         total.ll += a.ll;
