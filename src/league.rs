@@ -80,7 +80,7 @@ impl League {
         );
         let scored = models::fit_and_score_in(loaded.plays, &loaded.fingerprint, cfg.refit, cfg.cache_dir.as_deref())
             .map_err(|e| LeagueError::Models(format!("{e:#}")))?;
-        let (throw_model, throw) = throw_values(&scored).map_err(|e| LeagueError::Models(e.to_string()))?;
+        let (throw_model, throw) = throw_values_cached(&scored, cfg.cache_dir.as_deref(), cfg.refit).map_err(|e| LeagueError::Models(e.to_string()))?;
         Ok(League { source: path.clone(), report: loaded.report, scored, throw_model, throw })
     }
 
@@ -99,20 +99,24 @@ impl League {
     }
 }
 
-/// Fit the throw-value model on every snap and score the passes (fitted at
-/// each opening: about a second on the demo league, not cached).
+/// Fit the throw-value model on every snap and score the passes (no cache).
 pub fn throw_values(scored: &Scored) -> Result<(Option<ThrowModel>, ThrowScores), models::ModelError> {
+    throw_values_cached(scored, None, true)
+}
+
+/// The throw-value model from the cache folder `dir` (unless `refit`), else
+/// fitted on every snap and stored there; then the passes scored.
+pub fn throw_values_cached(scored: &Scored, dir: Option<&Path>, refit: bool) -> Result<(Option<ThrowModel>, ThrowScores), models::ModelError> {
     let started = std::time::Instant::now();
     let p = &scored.plays;
-    let rows: Vec<u32> = (0..p.len() as u32).collect();
-    let Some(model) = models::throw::fit(p, &rows, &Default::default())? else {
+    let restored = models::throw::fit_cached(p, &scored.fingerprint, dir, refit)?;
+    let Some(model) = restored.model else {
         let nan = vec![f64::NAN; p.len()];
         return Ok((None, ThrowScores { chosen: nan.clone(), league: nan.clone(), choice: nan.clone(), execution: nan.clone(), league_sticks: nan }));
     };
-    let fitted = started.elapsed().as_secs_f64();
     let s = &scored.scores;
     let values = models::throw::score_all(&model, &scored.models, p, &s.ep, &s.wp, &s.wpa);
-    tracing::info!(fit_seconds = fitted, seconds = started.elapsed().as_secs_f64(), "throw-value model fitted and scored");
+    tracing::info!(from_cache = restored.from_cache, fit_seconds = restored.seconds, seconds = started.elapsed().as_secs_f64(), "throw-value model ready and passes scored");
     Ok((Some(model), values))
 }
 

@@ -363,6 +363,65 @@ fn html_has_the_same_numbers_and_no_inline_code() {
     }
 }
 
+/// Made-up throw values for the fixture's passes with air yards (NaN elsewhere).
+fn throw_values(p: &Plays, wpa: &[f64]) -> (Vec<f64>, Vec<f64>) {
+    let choice: Vec<f64> = (0..p.len())
+        .map(|i| if p.kind[i] == Kind::Pass && p.air_yards[i].is_some() { ((i * 7) % 13) as f64 * 0.001 - 0.006 + p.passer[i] as f64 * 0.0004 } else { f64::NAN })
+        .collect();
+    let execution = choice.iter().zip(wpa).map(|(c, w)| if c.is_finite() { w - c } else { f64::NAN }).collect();
+    (choice, execution)
+}
+
+#[test]
+fn decision_values_are_the_split_engines_or_plainly_missing() {
+    let dir = scratch();
+    let (mut p, epa, wp, wpa, cp) = league(None);
+    let (choice, execution) = throw_values(&p, &wpa);
+    let v = SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &choice, execution: &execution, league_sticks: &[] };
+    let d = build(&p, &v, PASSERS[3]);
+    let s = report::report_situation(&p, &Preset::EndOfGame.situation(8));
+    let t = splits::split_table_for(&p, &v, &s, splits::DEFAULT_MIN_DROPBACKS, Some(PASSERS[3]));
+    let row = t.row(PASSERS[3]).expect("row");
+    assert_eq!(d.decisions.iter().map(|m| m.key).collect::<Vec<_>>(), report::DECISION_METRICS);
+    for m in &d.decisions {
+        let c = &row.cells[metric_index(m.key).unwrap()];
+        assert_eq!((m.cell.value, m.cell.estimate, m.cell.lo, m.cell.hi, m.cell.league, m.cell.n), (c.value, c.estimate, c.lo, c.hi, c.league, c.n), "{}", m.key);
+        assert_eq!((m.cell.lift, m.cell.lift_lo, m.cell.lift_hi), (c.lift, c.lift_lo, c.lift_hi), "{}", m.key);
+        assert!(c.estimate.is_some() && c.lift.is_some() && c.n > 20.0, "{}: {c:?}", m.key);
+        assert_eq!(m.estimate, format!("{:.4}", c.estimate.unwrap()));
+    }
+    assert!(d.decisions_note.contains(&format!("over {} throws with air yards", d.decisions[0].n)), "{}", d.decisions_note);
+    let html = report::html(&d, Paper::Letter);
+    let path = write_pdf(&dir, "decisions.pdf", &report::render_pdf(&d, Paper::Letter).unwrap());
+    let text = tool("pdftotext", &["-layout", &path, "-"]);
+    for m in &d.decisions {
+        for v in [&m.value, &m.estimate, &m.interval, &m.lift, &m.league] {
+            assert!(text.contains(v.as_str()), "{} {v} missing from the PDF\n{text}", m.key);
+            assert!(html.contains(&format!(">{v}<")), "{} {v} missing from the HTML", m.key);
+        }
+    }
+    let flat = tool("pdftotext", &[&path, "-"]).split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(flat.contains("Sacks and scrambles are outside both") && flat.contains("Depth choice"), "{flat}");
+    assert!(!flat.contains('…'), "something is cut off:\n{flat}");
+    assert_on_page_without_overlaps(&path);
+    let info = tool("pdfinfo", &[&path]);
+    assert!(info.contains("Pages:           1"), "{info}");
+
+    // No throw values for the file, then no air yards at all: said, not zeros.
+    let bare = SnapValues { choice: &[], execution: &[], ..v };
+    let d = build(&p, &bare, PASSERS[3]);
+    assert!(d.decisions.is_empty() && d.decisions_note.contains("no throw values were computed"), "{}", d.decisions_note);
+    p.air_yards = vec![None; p.len()];
+    let d = build(&p, &bare, PASSERS[3]);
+    assert!(d.decisions.is_empty() && d.decisions_note.contains("this file has no air yards"), "{}", d.decisions_note);
+    let html = report::html(&d, Paper::Letter);
+    assert!(html.contains("this file has no air yards") && !html.contains("Lift (90% range)"));
+    let path = write_pdf(&dir, "no-air.pdf", &report::render_pdf(&d, Paper::Letter).unwrap());
+    let text = tool("pdftotext", &[&path, "-"]).split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(text.contains("this file has no air yards") && !text.contains("0.0000"), "{text}");
+    assert_on_page_without_overlaps(&path);
+}
+
 // ---- the bundled demo league, with fitted models, through the real API ----
 
 mod common;
@@ -395,10 +454,12 @@ fn demo_report_numbers_equal_the_json_api() {
         (None, None) => true,
         _ => false,
     };
-    for m in &d.metrics {
+    // The decision values too: the demo league has air yards.
+    assert_eq!(d.decisions.len(), report::DECISION_METRICS.len(), "{}", d.decisions_note);
+    for m in d.metrics.iter().chain(&d.decisions) {
         let c = &row["cells"][metric_index(m.key).unwrap()];
         assert_eq!(c["key"].as_str(), Some(m.key));
-        for (field, ours) in [("value", m.cell.value), ("estimate", m.cell.estimate), ("lo", m.cell.lo), ("hi", m.cell.hi), ("league", m.cell.league), ("percentile", m.cell.percentile), ("signal", m.cell.signal)] {
+        for (field, ours) in [("value", m.cell.value), ("estimate", m.cell.estimate), ("lo", m.cell.lo), ("hi", m.cell.hi), ("league", m.cell.league), ("percentile", m.cell.percentile), ("signal", m.cell.signal), ("lift", m.cell.lift)] {
             assert!(close(c[field].as_f64(), ours), "{} {field}: api {:?}, report {ours:?}", m.key, c[field]);
         }
         assert_eq!(report::fmt_metric(c["estimate"].as_f64(), m.decimals), m.estimate, "{}", m.key);
@@ -419,6 +480,11 @@ fn demo_pdf_and_html_carry_the_numbers() {
         assert!(text.contains(&d.passer) && text.contains(&d.situation), "{text}");
         for m in &d.metrics {
             for s in [&m.value, &m.estimate, &m.interval, &m.league, &m.percentile, &m.signal] {
+                assert!(text.contains(s.as_str()), "{} {s} missing", m.key);
+            }
+        }
+        for m in &d.decisions {
+            for s in [&m.value, &m.estimate, &m.interval, &m.lift, &m.league] {
                 assert!(text.contains(s.as_str()), "{} {s} missing", m.key);
             }
         }

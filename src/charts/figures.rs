@@ -103,6 +103,51 @@ pub fn dot_interval(title: &str, rows: &[DotRow], width: f64) -> Figure {
     Figure { width, height, title: title.to_string(), desc: desc.join("; "), shapes }
 }
 
+/// One row of a depth chart: yards needed (a bar from 0), his depth (a
+/// dot) and the league's depth in the same spots (a tick).
+#[derive(Debug, Clone)]
+pub struct DepthRow {
+    pub label: String,
+    pub needed: Option<f64>,
+    pub his: Option<f64>,
+    pub league: Option<f64>,
+}
+
+/// Rows of yards needed against depth chosen and the league's depth, on one
+/// yard scale that starts at 0 (or at the shallowest value below it).
+pub fn depth_rows(title: &str, rows: &[DepthRow], width: f64) -> Figure {
+    let label_w = (width * 0.30).min(170.0);
+    let row_h = 26.0;
+    let top = 8.0;
+    let height = top + row_h * rows.len().max(1) as f64 + 30.0;
+    let values = || rows.iter().flat_map(|r| [r.needed, r.his, r.league]).flatten();
+    let lo = values().fold(0.0f64, f64::min);
+    let hi = values().fold(1.0f64, f64::max);
+    let sx = Scale::new((lo, hi * 1.05), (label_w, width - 12.0)).nice(5);
+    let axis_y = top + row_h * rows.len().max(1) as f64;
+    let mut shapes = Vec::new();
+    x_axis(&mut shapes, &sx, axis_y, top, &sx.ticks(5));
+    let mut desc = Vec::new();
+    let yards = |v: Option<f64>| v.map(|x| format!("{x:.1}")).unwrap_or_else(|| "n/a".into());
+    for (k, r) in rows.iter().enumerate() {
+        let y = top + row_h * (k as f64 + 0.5);
+        shapes.push(Shape::Text { x: label_w - 8.0, y: y + 5.0, text: r.label.clone(), anchor: Anchor::End, class: "label" });
+        if let Some(n) = r.needed {
+            let (a, b) = (sx.at(0.0), sx.at(n));
+            shapes.push(Shape::Rect { x: a.min(b), y: y - 6.0, w: (b - a).abs(), h: 12.0, class: "need" });
+        }
+        if let Some(l) = r.league {
+            let x = sx.at(l);
+            shapes.push(Shape::Line { x1: x, y1: y - 10.0, x2: x, y2: y + 10.0, class: "league" });
+        }
+        if let Some(h) = r.his {
+            shapes.push(Shape::Circle { cx: sx.at(h), cy: y, r: 5.5, class: "estimate", title: Some(format!("his depth {h:.1} yards")) });
+        }
+        desc.push(format!("{}: yards needed {}, his depth {}, league's depth {}", r.label, yards(r.needed), yards(r.his), yards(r.league)));
+    }
+    Figure { width, height, title: title.to_string(), desc: desc.join("; "), shapes }
+}
+
 /// A line series for `lines`.
 #[derive(Debug, Clone)]
 pub struct Series {
@@ -294,6 +339,23 @@ mod tests {
         assert!(svg.contains("&lt;script&gt;"));
         assert!(svg.contains("<title id="));
         assert!(svg.contains("t &amp; &lt;b&gt;"));
+    }
+
+    #[test]
+    fn depth_rows_put_marks_at_their_yards() {
+        let rows = vec![
+            DepthRow { label: "3-6".into(), needed: Some(4.0), his: Some(6.0), league: Some(7.5) },
+            DepthRow { label: "11+".into(), needed: Some(14.0), his: None, league: Some(12.0) },
+        ];
+        let fig = depth_rows("depth", &rows, 400.0);
+        let bars: Vec<(f64, f64)> = fig.shapes.iter().filter_map(|s| if let Shape::Rect { x, w, .. } = s { Some((*x, *w)) } else { None }).collect();
+        assert_eq!(bars.len(), 2);
+        // Both bars start at 0 yards, and the longer need draws the longer bar (14/4 as long).
+        assert!((bars[0].0 - bars[1].0).abs() < 1e-9);
+        assert!((bars[1].1 / bars[0].1 - 3.5).abs() < 1e-9);
+        let dots = fig.shapes.iter().filter(|s| matches!(s, Shape::Circle { .. })).count();
+        assert_eq!(dots, 1, "no dot where he has no throws");
+        assert!(fig.desc.contains("11+: yards needed 14.0, his depth n/a, league's depth 12.0"), "{}", fig.desc);
     }
 
     #[test]

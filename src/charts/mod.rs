@@ -5,7 +5,7 @@
 mod figures;
 mod scale;
 
-pub use figures::{bars, dot_interval, histogram, lines, reliability, BarItem, DotRow, Marker, Series};
+pub use figures::{bars, depth_rows, dot_interval, histogram, lines, reliability, BarItem, DepthRow, DotRow, Marker, Series};
 pub use scale::{nice_ticks, Scale};
 
 /// Horizontal text anchor.

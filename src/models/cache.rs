@@ -1,9 +1,13 @@
 //! Fitted coefficients and calibration on disk, as JSON keyed by (data
 //! fingerprint, MODEL_VERSION), in the user's cache folder (or
-//! `LATEGAME_CACHE_DIR`); never beside the play file.
+//! `LATEGAME_CACHE_DIR`); never beside the play file. Models fitted after
+//! the league is scored (the throw-value model) keep a file of their own
+//! under the same key (`load_part`, `store_part`), so the background
+//! calibration, which rewrites the models' entry, never races them.
 
 use super::{Calibration, Models, MODEL_VERSION};
 use super::error::{ModelError, Result};
+use serde::de::DeserializeOwned;
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
 use std::path::{Path, PathBuf};
@@ -33,13 +37,65 @@ pub fn cache_dir() -> Option<PathBuf> {
 
 /// File name for a fingerprint under the current model version.
 pub fn file_name(fingerprint: &str) -> String {
+    format!("models-{}.json", key(fingerprint))
+}
+
+/// File name of a part (`throw`, ...) for a fingerprint under the current
+/// model version.
+pub fn part_file_name(part: &str, fingerprint: &str) -> String {
+    format!("{part}-{}.json", key(fingerprint))
+}
+
+fn key(fingerprint: &str) -> String {
     let mut h = Sha256::new();
     h.update(fingerprint.as_bytes());
     h.update([0u8]);
     h.update(MODEL_VERSION.as_bytes());
     let d = h.finalize();
-    let hex: String = d.iter().take(12).map(|b| format!("{b:02x}")).collect();
-    format!("models-{hex}.json")
+    d.iter().take(12).map(|b| format!("{b:02x}")).collect()
+}
+
+/// What a part's file holds: the key beside the coefficients.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+struct Part<T> {
+    fingerprint: String,
+    model_version: String,
+    part: String,
+    value: T,
+}
+
+/// Read part `part` for `fingerprint` from `dir`: `Ok(None)` when missing
+/// or for another key; an unreadable file is an error the caller may log.
+pub fn load_part<T: DeserializeOwned>(dir: &Path, part: &str, fingerprint: &str) -> Result<Option<T>> {
+    let path = dir.join(part_file_name(part, fingerprint));
+    let text = match std::fs::read_to_string(&path) {
+        Ok(t) => t,
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(None),
+        Err(source) => return Err(ModelError::CacheIo { path, source }),
+    };
+    let entry: Part<T> = serde_json::from_str(&text).map_err(|source| ModelError::CacheEntry { path: path.clone(), source })?;
+    if entry.fingerprint != fingerprint || entry.model_version != MODEL_VERSION || entry.part != part {
+        return Ok(None);
+    }
+    Ok(Some(entry.value))
+}
+
+/// Write part `part` for `fingerprint` into `dir` (created if needed).
+pub fn store_part<T: Serialize>(dir: &Path, part: &str, fingerprint: &str, value: &T) -> Result<PathBuf> {
+    let entry = Part { fingerprint: fingerprint.to_string(), model_version: MODEL_VERSION.to_string(), part: part.to_string(), value };
+    let text = serde_json::to_string(&entry).map_err(ModelError::Serialize)?;
+    write_whole(dir, &part_file_name(part, fingerprint), &text)
+}
+
+/// Write `text` to `dir/name` through a temporary file and a rename, so a
+/// reader never sees half a file.
+fn write_whole(dir: &Path, name: &str, text: &str) -> Result<PathBuf> {
+    std::fs::create_dir_all(dir).map_err(|source| ModelError::CacheIo { path: dir.to_path_buf(), source })?;
+    let path = dir.join(name);
+    let tmp = dir.join(format!("{name}.tmp{}", std::process::id()));
+    std::fs::write(&tmp, text).map_err(|source| ModelError::CacheIo { path: tmp.clone(), source })?;
+    std::fs::rename(&tmp, &path).map_err(|source| ModelError::CacheIo { path: path.clone(), source })?;
+    Ok(path)
 }
 
 /// Read the entry for `fingerprint` from `dir`. A missing, unreadable or
@@ -66,22 +122,13 @@ pub fn store(
     models: &Models,
     calibration: Option<&Calibration>,
 ) -> Result<PathBuf> {
-    std::fs::create_dir_all(dir).map_err(|source| ModelError::CacheIo { path: dir.to_path_buf(), source })?;
     let entry = Entry {
         fingerprint: fingerprint.to_string(),
         model_version: MODEL_VERSION.to_string(),
         models: models.clone(),
         calibration: calibration.cloned(),
     };
-    let path = dir.join(file_name(fingerprint));
-    let tmp = dir.join(format!(
-        "{}.tmp{}",
-        file_name(fingerprint),
-        std::process::id()
-    ));
     let text = serde_json::to_string(&entry).map_err(ModelError::Serialize)?;
-    std::fs::write(&tmp, text).map_err(|source| ModelError::CacheIo { path: tmp.clone(), source })?;
-    std::fs::rename(&tmp, &path).map_err(|source| ModelError::CacheIo { path: path.clone(), source })?;
-    Ok(path)
+    write_whole(dir, &file_name(fingerprint), &text)
 }
 

@@ -7,8 +7,13 @@
 //! mix) and execution value (what happened against his depth's expectation).
 
 mod after;
+mod cached;
+mod depth;
 #[cfg(test)]
 mod tests;
+
+pub use cached::{fit_cached, Restored};
+pub use depth::{depth_by_distance, DepthLine, TO_GO_BANDS};
 
 use super::logit::{self, FitOptions, FitStats, FnDesign, Labels};
 use super::Models;
@@ -170,6 +175,8 @@ pub struct ThrowModel {
     /// Per distance 0..=`MAX_TO_GO`: each band's share of throws at or
     /// past it.
     pub air_past: Vec<[f64; BANDS]>,
+    /// Mean air yards of the league's throws in each band.
+    pub air_mean: [f64; BANDS],
     pub mix_stats: FitStats,
     pub outcome_stats: FitStats,
 }
@@ -290,6 +297,7 @@ pub fn fit(p: &Plays, rows: &[u32], opts: &FitOptions) -> Result<Option<ThrowMod
         pick_six,
         catch_fumble,
         air_past: air_past(p, &train),
+        air_mean: air_mean(p, &train),
     }))
 }
 
@@ -301,6 +309,12 @@ impl ThrowModel {
         let mut q = [0.0; BANDS];
         self.mix.probs(&x, &mut q);
         q
+    }
+
+    /// The depth the league throws to in a state: the mix of bands, each at
+    /// the league's mean air yards in the band.
+    pub fn league_depth(&self, s: &State) -> f64 {
+        self.band_mix(s).iter().zip(&self.air_mean).map(|(w, a)| w * a).sum()
     }
 
     /// P(incomplete), P(complete), P(intercepted) of a throw in `band`.
@@ -384,6 +398,17 @@ impl ThrowModel {
     }
 }
 
+/// Mean air yards per band (0 for a band with no throws).
+fn air_mean(p: &Plays, rows: &[u32]) -> [f64; BANDS] {
+    let (mut sum, mut n) = ([0.0; BANDS], [0.0; BANDS]);
+    for &r in rows {
+        let Some(a) = p.air_yards[r as usize] else { continue };
+        sum[band_of(a)] += a as f64;
+        n[band_of(a)] += 1.0;
+    }
+    std::array::from_fn(|b| if n[b] > 0.0 { sum[b] / n[b] } else { 0.0 })
+}
+
 /// Per distance 0..=MAX_TO_GO, each band's share of throws with air yards at
 /// or past it (the league's own depths within each band).
 fn air_past(p: &Plays, rows: &[u32]) -> Vec<[f64; BANDS]> {
@@ -405,4 +430,30 @@ fn air_past(p: &Plays, rows: &[u32]) -> Vec<[f64; BANDS]> {
         }
     }
     out
+}
+
+#[cfg(test)]
+impl ThrowModel {
+    /// A model set by hand for view tests: the league's depth mix is even
+    /// on 1st-3rd down and 1:1:1:3 (deep) on 4th; outcomes are even; each
+    /// band's mean air yards is `air_mean`.
+    pub(crate) fn hand_made(air_mean: [f64; BANDS]) -> ThrowModel {
+        let stats = FitStats { rows: 0, features: NS, iterations: 0, warm_iterations: 0, converged: true, grad_norm: 0.0, log_lik: 0.0, seconds: 0.0 };
+        let mut mix_coef = vec![vec![0.0; NS]; BANDS - 1];
+        // Free classes 0, 2, 3 (1 is the reference); feature 3 is 4th down.
+        mix_coef[2][3] = 3f64.ln();
+        ThrowModel {
+            mix: logit::Fit { classes: BANDS, reference: 1, free: vec![0, 2, 3], coef: mix_coef, stats: stats.clone() },
+            outcome: logit::Fit { classes: 3, reference: INCOMPLETE, free: vec![COMPLETE, INTERCEPTED], coef: vec![vec![0.0; NO]; 2], stats: stats.clone() },
+            gains: [[0.0; GAIN_POINTS]; BANDS],
+            runoff: [[[0.0; BANDS]; 3]; REGIMES],
+            int_spot: [0.0; BANDS],
+            pick_six: [0.0; BANDS],
+            catch_fumble: [0.0; BANDS],
+            air_past: vec![[0.0; BANDS]; MAX_TO_GO + 1],
+            air_mean,
+            mix_stats: stats.clone(),
+            outcome_stats: stats,
+        }
+    }
 }

@@ -2,8 +2,8 @@
 //! split-engine call (the table) and the snaps behind it, with every
 //! number already in its display form.
 
-use super::words::{situation_words, verdict};
-use super::KEY_METRICS;
+use super::words::{decisions_note, situation_words, verdict, ThrowValues};
+use super::{DECISION_METRICS, KEY_METRICS};
 use crate::charts::{self, BarItem, DotRow, Figure};
 use crate::league::League;
 use crate::numfmt::fmt_metric;
@@ -101,6 +101,11 @@ pub struct ReportData {
     pub sample_note: String,
     /// The key numbers where he is not about his normal, in a sentence.
     pub lift_note: String,
+    /// Depth choice and execution per throw (the split engine's cells, the
+    /// profile's Decisions panel); empty when the file gives none.
+    pub decisions: Vec<KeyMetric>,
+    /// What the decision values are, or plainly why there are none.
+    pub decisions_note: String,
     pub best: Vec<SnapLine>,
     pub worst: Vec<SnapLine>,
     pub games: Vec<GameWpa>,
@@ -113,7 +118,7 @@ pub struct ReportData {
 /// Width in figure units of each metric's row chart and of the bar chart.
 const ROW_CHART_W: f64 = 480.0;
 const BAR_CHART_W: f64 = 620.0;
-const BAR_CHART_H: f64 = 250.0;
+const BAR_CHART_H: f64 = 170.0;
 
 /// The situation the report is computed on: the given one, without a
 /// passer filter (the passer is the report's subject, not a filter on the
@@ -179,6 +184,13 @@ impl ReportData {
             .filter_map(|k| metric_index(k))
             .map(|j| key_metric(j, &row.cells[j]))
             .collect();
+        let throws = ThrowValues::of(p, v);
+        let decisions: Vec<KeyMetric> = match throws {
+            ThrowValues::Valued => DECISION_METRICS.iter().filter_map(|k| metric_index(k)).map(|j| key_metric(j, &row.cells[j])).collect(),
+            _ => Vec::new(),
+        };
+        let decisions_note = decisions_note(throws, decisions.first().map(|m| m.cell.n as u64).unwrap_or(0));
+        let decisions = if decisions.iter().all(|m| m.cell.n == 0.0) { Vec::new() } else { decisions };
         let snaps = splits::play_list(p, v, &s, Some(passer), None);
         let multi = table.seasons.len() > 1;
         let (best, worst) = biggest(p, &snaps, multi, 5);
@@ -214,6 +226,8 @@ impl ReportData {
             sample_note: sample_note(row.dropbacks, row.qualified, min_dropbacks),
             lift_note: lift_note(&metrics),
             metrics,
+            decisions,
+            decisions_note,
             best,
             worst,
             games,

@@ -72,6 +72,9 @@ pub enum ReportError {
 /// The metrics on the page, in order.
 pub const KEY_METRICS: [&str; 8] = ["epa", "success", "cpoe", "rating", "anya", "sack_rate", "int_rate", "wpa"];
 
+/// The decision values on the page (per throw with air yards, in WPA).
+pub const DECISION_METRICS: [&str; 2] = ["choice", "execution"];
+
 /// The glossary printed at the foot of the page (HTML and PDF), short
 /// enough for three lines.
 pub const FOOTNOTES: [&str; 3] = [

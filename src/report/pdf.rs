@@ -99,6 +99,9 @@ fn draw(pen: &mut Pen, d: &ReportData, pw: f32, ph: f32) {
         ty += 9.5;
     }
 
+    // ---- left: decisions ----
+    ty = decisions(pen, d, x0, ty + 8.0, lw);
+
     // ---- left: WPA per game ----
     let gy = ty + 10.0;
     pen.heading(x0, gy, "WPA per game in this situation", lw);
@@ -135,6 +138,38 @@ fn draw(pen: &mut Pen, d: &ReportData, pw: f32, ph: f32) {
     for (k, line) in foot_lines.iter().enumerate() {
         pen.text(x0, fy + 8.0 * k as f32, 6.3, false, GREY, line, w, Align::Left);
     }
+}
+
+/// Depth choice and execution per throw (estimate, 90% range, lift) under
+/// a header row that names them, or the line saying why there are none;
+/// returns the baseline of the last line.
+fn decisions(pen: &mut Pen, d: &ReportData, x0: f32, y: f32, lw: f32) -> f32 {
+    let mut ty = y;
+    if d.decisions.is_empty() {
+        pen.heading(x0, ty, "Decisions", lw);
+    } else {
+        let fixed = [30.0, 36.0, 44.0, 78.0, 118.0, 36.0];
+        let mut widths = vec![(lw - fixed.iter().sum::<f32>()).max(50.0)];
+        widths.extend_from_slice(&fixed);
+        let mut aligns = vec![Align::Left];
+        aligns.extend([Align::Right; 6]);
+        pen.row(x0 - 3.0, ty, &widths[..1], &aligns, &["Decisions"], 8.6, true, INK);
+        pen.row(x0, ty, &widths, &aligns, &["", "n", "Ours", "Estimate", "90% range", "Lift (90% range)", "League"], 6.8, true, GREY);
+        pen.line(x0, ty + 3.5, x0 + lw, ty + 3.5, RULE, 0.6);
+        for (k, m) in d.decisions.iter().enumerate() {
+            ty += ROW;
+            if k % 2 == 1 {
+                pen.rect(x0, ty - ROW + 4.5, lw, ROW, STRIPE);
+            }
+            pen.row(x0, ty, &widths, &aligns, &[m.short, &m.n, &m.value, &m.estimate, &m.interval, &m.lift, &m.league], 7.6, false, INK);
+        }
+        ty += 1.0;
+    }
+    for line in pen.regular.wrap(6.8, &d.decisions_note, lw, 3) {
+        ty += 8.6;
+        pen.text(x0, ty, 6.8, false, INK, &line, lw, Align::Left);
+    }
+    ty
 }
 
 fn legend(pen: &mut Pen, x: f32, y: f32, w: f32) {

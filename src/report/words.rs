@@ -4,7 +4,8 @@
 //! Reads the `Situation` value; the seasons and the passer are said
 //! elsewhere on the page, so they are left out here.
 
-use crate::splits::Cell;
+use crate::plays::Plays;
+use crate::splits::{Cell, SnapValues};
 use crate::layout::format_clock;
 use crate::numfmt::fmt_metric;
 use crate::situation::{Range, Site, Situation, OT};
@@ -200,6 +201,41 @@ pub fn verdict(passer: &str, epa: Option<&Cell>, decimals: usize) -> String {
     };
     let is = if word.starts_with("no") { "shows" } else { "is" };
     format!("Verdict: {passer} {is} {word} the league here (EPA per dropback {}, 90% range {} to {}; league {}).", f(est), f(lo), f(hi), f(lg))
+}
+
+/// Whether the league's throws carry decision values.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ThrowValues {
+    /// The file has no air yards: throws cannot be valued by depth.
+    NoAirYards,
+    /// Air yards, but no throw values were computed for the file.
+    NotComputed,
+    Valued,
+}
+
+impl ThrowValues {
+    pub fn of(p: &Plays, v: &SnapValues) -> ThrowValues {
+        if !p.air_yards.iter().any(Option::is_some) {
+            ThrowValues::NoAirYards
+        } else if !v.choice.iter().any(|c| c.is_finite()) {
+            ThrowValues::NotComputed
+        } else {
+            ThrowValues::Valued
+        }
+    }
+}
+
+/// The line under the decision values: what they are, or plainly why there
+/// are none (`throws`: his throws with a value in the situation).
+pub fn decisions_note(values: ThrowValues, throws: u64) -> String {
+    match values {
+        ThrowValues::NoAirYards => "Decisions: this file has no air yards, so his throws cannot be valued by depth (no depth-choice or execution numbers).".into(),
+        ThrowValues::NotComputed => "Decisions: no throw values were computed for this file (no depth-choice or execution numbers).".into(),
+        ThrowValues::Valued if throws == 0 => "Decisions: no throws with air yards in this situation.".into(),
+        ThrowValues::Valued => format!(
+            "WPA per throw, over {throws} throws with air yards. Depth choice: his depth against the league's usual depths in the same spot; execution: the throw's result against the league's at his depth. Sacks and scrambles are outside both."
+        ),
+    }
 }
 
 #[cfg(test)]

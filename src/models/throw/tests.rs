@@ -62,3 +62,66 @@ fn regimes_read_the_clock_and_score() {
     assert_eq!(regime(&State { margin: 3, ..base }), 2);
     assert_eq!(regime(&State { period: 1, secs_half: 1500, secs_game: 3300, ..base }), 0);
 }
+
+#[test]
+fn league_depth_is_the_mix_at_each_bands_mean_depth() {
+    // Worked by hand: even mix on 3rd down, 1:1:1:3 on 4th.
+    let m = ThrowModel::hand_made([-2.0, 6.0, 14.0, 30.0]);
+    let third = State { down: 3, to_go: 5, ball_on: 40, period: 2, secs_half: 900, secs_game: 2700, margin: 0, off_timeouts: 3 };
+    assert!((m.league_depth(&third) - 12.0).abs() < 1e-12);
+    assert!((m.league_depth(&State { down: 4, ..third }) - 18.0).abs() < 1e-12);
+    // Fitted: each band's mean lies inside the band, and the league's depth
+    // in a state lies between the shallowest and the deepest band.
+    let plays = testkit::league(300, 2, 5);
+    let rows: Vec<u32> = (0..plays.len() as u32).collect();
+    let f = super::fit(&plays, &rows, &Default::default()).expect("fit").expect("air yards");
+    let a = f.air_mean;
+    assert!(a[0] <= 0.0 && (1.0..=9.0).contains(&a[1]) && (10.0..=19.0).contains(&a[2]) && a[3] >= 20.0, "{a:?}");
+    for i in (0..plays.len()).filter(|&i| applies(&plays, i)).take(500) {
+        let d = f.league_depth(&State::of_snap(&plays, i));
+        assert!(d > a[0] && d < a[3], "{d}");
+    }
+}
+
+#[test]
+fn cached_throw_model_scores_bit_for_bit() {
+    let plays = testkit::league(300, 2, 5);
+    let models = fit(&plays).expect("fit");
+    let s = models.score(&plays);
+    let dir = std::env::temp_dir().join(format!("lategame-throw-cache-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    let fresh = fit_cached(&plays, "fp-throw", Some(&dir), false).expect("fit");
+    assert!(!fresh.from_cache);
+    let back = fit_cached(&plays, "fp-throw", Some(&dir), false).expect("restore");
+    assert!(back.from_cache, "the second opening reads the cache");
+    let (a, b) = (fresh.model.expect("air yards"), back.model.expect("air yards"));
+    // Every number of the model, bit for bit (and enough of them to matter).
+    fn numbers(v: &serde_json::Value, out: &mut Vec<u64>) {
+        match v {
+            serde_json::Value::Number(n) => out.push(n.as_f64().map(f64::to_bits).unwrap_or(0)),
+            serde_json::Value::Array(xs) => xs.iter().for_each(|x| numbers(x, out)),
+            serde_json::Value::Object(m) => m.values().for_each(|x| numbers(x, out)),
+            _ => {}
+        }
+    }
+    let bits = |m: &ThrowModel| {
+        let mut out = Vec::new();
+        numbers(&serde_json::to_value(m).expect("json"), &mut out);
+        out
+    };
+    assert!(bits(&a).len() > 200, "only {} numbers", bits(&a).len());
+    assert_eq!(bits(&a), bits(&b));
+    assert_eq!(a, b);
+    // The throw values scored with either, bit for bit.
+    let (ta, tb) = (score_all(&a, &models, &plays, &s.ep, &s.wp, &s.wpa), score_all(&b, &models, &plays, &s.ep, &s.wp, &s.wpa));
+    let same = |x: &[f64], y: &[f64]| x.len() == y.len() && x.iter().zip(y).all(|(p, q)| p.to_bits() == q.to_bits());
+    assert!(same(&ta.chosen, &tb.chosen) && same(&ta.league, &tb.league) && same(&ta.choice, &tb.choice));
+    assert!(same(&ta.execution, &tb.execution) && same(&ta.league_sticks, &tb.league_sticks));
+    assert!(ta.choice.iter().filter(|c| c.is_finite()).count() > 1000);
+    // A refit ignores the entry; another file misses it; a corrupt entry is a miss.
+    assert!(!fit_cached(&plays, "fp-throw", Some(&dir), true).expect("refit").from_cache);
+    assert!(!fit_cached(&plays, "another-file", Some(&dir), false).expect("other").from_cache);
+    std::fs::write(dir.join(crate::models::cache::part_file_name("throw", "fp-throw")), "{not json").expect("write");
+    assert!(!fit_cached(&plays, "fp-throw", Some(&dir), false).expect("corrupt").from_cache);
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -1,6 +1,7 @@
 //! The passer page: one passer against the league in every preset, his season trend and EPA distribution.
 
 use super::*;
+use crate::models::throw::{depth_by_distance, DepthLine, ThrowModel};
 
 pub struct ProfileRowView {
     pub label: &'static str,
@@ -55,6 +56,8 @@ pub(super) struct ProfilePage {
     pub(super) decision_rows: Vec<ProfileRowView>,
     /// Choice and execution by situation (dot-interval charts).
     pub(super) throw_charts: Vec<(String, String)>,
+    /// Yards needed vs depth chosen vs the league's depth on late downs.
+    pub(super) depth: DepthView,
     pub(super) api_href: String,
     pub(super) report_href: String,
     pub(super) games: Vec<(String, String)>,
@@ -84,14 +87,7 @@ fn tag_section(ix: &splits::SplitIndex, p: &crate::plays::Plays, v: &splits::Sna
     section.header = b.header.clone();
     let keys: Vec<usize> = TAG_KEYS.iter().filter_map(|k| metric_index(k)).collect();
     let ej = metric_index("epa").unwrap_or(0);
-    let dots: Vec<DotRow> = b
-        .lines
-        .iter()
-        .map(|l| {
-            let c = l.row.as_ref().map(|r| &r.cells[ej]);
-            DotRow { label: l.value.clone(), estimate: c.and_then(|c| c.estimate), lo: c.and_then(|c| c.lo), hi: c.and_then(|c| c.hi), raw: c.and_then(|c| c.value), league: l.league[ej] }
-        })
-        .collect();
+    let dots: Vec<DotRow> = b.lines.iter().map(|l| dot_row(&l.value, l.row.as_ref().map(|r| &r.cells[ej]), l.league[ej], DotOf::Estimate)).collect();
     section.chart = charts::dot_interval(&format!("EPA per dropback — {name} by {} (dot: estimate, bar: 90% interval, tick: league)", b.header), &dots, width).to_svg();
     section.heads = keys.iter().map(|&j| (METRICS[j].short, METRICS[j].label)).collect();
     section.rows = b
@@ -122,6 +118,80 @@ fn tag_section(ix: &splits::SplitIndex, p: &crate::plays::Plays, v: &splits::Sna
     Some(section)
 }
 
+
+/// What a dot-and-interval row shows of a split cell.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(super) enum DotOf {
+    /// The estimate with its 90% interval and the raw value, against `league`.
+    Estimate,
+    /// The lift with its 90% interval, against his normal (a tick at 0).
+    Lift,
+}
+
+/// One dot-and-interval row from a split cell (`None`: no dropbacks, an
+/// empty row); `league` is the tick of an estimate row.
+pub(super) fn dot_row(label: &str, c: Option<&splits::Cell>, league: Option<f64>, of: DotOf) -> DotRow {
+    let part = |f: fn(&splits::Cell) -> Option<f64>| c.and_then(f);
+    match of {
+        DotOf::Estimate => DotRow { label: label.to_string(), estimate: part(|c| c.estimate), lo: part(|c| c.lo), hi: part(|c| c.hi), raw: part(|c| c.value), league },
+        DotOf::Lift => DotRow { label: label.to_string(), estimate: part(|c| c.lift), lo: part(|c| c.lift_lo), hi: part(|c| c.lift_hi), raw: None, league: Some(0.0) },
+    }
+}
+
+/// The late-down depth chart of the Decisions panel: yards needed, the depth
+/// he chose and the depth the league chooses in the same spots.
+pub struct DepthView {
+    pub title: String,
+    pub chart: String,
+    pub rows: Vec<DepthRowView>,
+    /// Why there is no chart (no air yards, no late-down throws); else empty.
+    pub note: String,
+}
+
+/// One distance group of the depth table, formatted.
+pub struct DepthRowView {
+    pub label: String,
+    pub throws: String,
+    pub to_go: String,
+    pub his: String,
+    pub league: String,
+}
+
+/// His 3rd- and 4th-down throws with air yards in `situation` by distance:
+/// the engine's snaps, the throw-value model's depths. `None` without a
+/// throw-value model (no air yards in the file).
+pub(super) fn depth_lines(model: Option<&ThrowModel>, p: &crate::plays::Plays, v: &splits::SnapValues, name: &str, situation: &Situation) -> Option<Vec<DepthLine>> {
+    let m = model?;
+    let snaps = splits::play_indices(p, v, &Situation { passer: None, ..situation.clone() }, Some(name), None);
+    Some(depth_by_distance(m, p, &snaps))
+}
+
+/// The depth chart and table from the distance groups (pure).
+pub(super) fn depth_view(lines: Option<&[DepthLine]>, name: &str, situation: &str, width: f64) -> DepthView {
+    let title = format!("3rd and 4th down, {situation}: yards needed, {name}'s depth and the league's depth in the same spots (air yards)");
+    let Some(lines) = lines else {
+        return DepthView { title, chart: String::new(), rows: Vec::new(), note: "No depth chart: this file has no air yards.".into() };
+    };
+    let some = |x: f64| x.is_finite().then_some(x);
+    let rows: Vec<DepthRowView> = lines
+        .iter()
+        .map(|l| DepthRowView {
+            label: format!("{} to go", l.label),
+            throws: l.throws.to_string(),
+            to_go: fixed(some(l.to_go), 1),
+            his: fixed(some(l.his_air), 1),
+            league: fixed(some(l.league_air), 1),
+        })
+        .collect();
+    if lines.iter().all(|l| l.throws == 0) {
+        return DepthView { title, chart: String::new(), rows, note: format!("No 3rd- or 4th-down throws with air yards by {name} here.") };
+    }
+    let dots: Vec<charts::DepthRow> = lines
+        .iter()
+        .map(|l| charts::DepthRow { label: format!("{} to go ({})", l.label, l.throws), needed: some(l.to_go), his: some(l.his_air), league: some(l.league_air) })
+        .collect();
+    DepthView { chart: charts::depth_rows(&title, &dots, width).to_svg(), title, rows, note: String::new() }
+}
 
 /// The decisions panel: the throw values (charted), and beside them the
 /// dropbacks the throw values leave out.
@@ -170,34 +240,22 @@ fn profile_now(st: Shared, headers: HeaderMap, q: Option<String>) -> Response {
     let width = if ch.projector { 560.0 } else { 420.0 };
     let by_tag = tag_section(ix, p, &lg.values(), &name, &tag_situation, asked_tag.as_deref(), params.min_dropbacks, width);
     let dist = splits::epa_distribution_in(ix, p, &lg.values(), &Situation { passer: None, ..trend.clone() }, &name);
-    html(&profile_view(ch, &params, &name, &prof, &dist, p, by_tag))
+    let depth = depth_view(depth_lines(lg.throw_model.as_ref(), p, &lg.values(), &name, &tag_situation).as_deref(), &name, &tag_situation.describe(), width * 1.4);
+    html(&profile_view(ch, &params, &name, &prof, &dist, p, by_tag, depth))
 }
 
 /// The passer page's view: a dot-and-interval chart per key metric across
 /// the presets, the season trend, the EPA distribution against the league,
 /// the decision and every-metric tables and his recent games. Pure: the
 /// split engine's profile, distribution and tag breakdown in, no request.
-pub(super) fn profile_view(ch: Chrome, params: &Params, name: &str, prof: &splits::Profile, dist: &splits::EpaDistribution, p: &crate::plays::Plays, by_tag: Option<TagSection>) -> ProfilePage {
+#[allow(clippy::too_many_arguments)]
+pub(super) fn profile_view(ch: Chrome, params: &Params, name: &str, prof: &splits::Profile, dist: &splits::EpaDistribution, p: &crate::plays::Plays, by_tag: Option<TagSection>, depth: DepthView) -> ProfilePage {
     let name = name.to_string();
     let keys: Vec<usize> = PROFILE_KEYS.iter().filter_map(|k| metric_index(k)).collect();
     let width = if ch.projector { 560.0 } else { 420.0 };
     let dot_chart = |j: usize| {
         let m = &METRICS[j];
-        let rows: Vec<DotRow> = prof
-            .presets
-            .iter()
-            .map(|line| {
-                let c = line.row.as_ref().map(|r| &r.cells[j]);
-                DotRow {
-                    label: line.label.to_string(),
-                    estimate: c.and_then(|c| c.estimate),
-                    lo: c.and_then(|c| c.lo),
-                    hi: c.and_then(|c| c.hi),
-                    raw: c.and_then(|c| c.value),
-                    league: line.league[j],
-                }
-            })
-            .collect();
+        let rows: Vec<DotRow> = prof.presets.iter().map(|line| dot_row(line.label, line.row.as_ref().map(|r| &r.cells[j]), line.league[j], DotOf::Estimate)).collect();
         let unit = if m.scale == 100.0 && !m.label.contains('%') { " (%)" } else { "" };
         (
             format!("{}{unit}", m.label),
@@ -212,20 +270,7 @@ pub(super) fn profile_view(ch: Chrome, params: &Params, name: &str, prof: &split
         .iter()
         .map(|&j| {
             let m = &METRICS[j];
-            let rows: Vec<DotRow> = on_the_line
-                .iter()
-                .map(|line| {
-                    let c = line.row.as_ref().map(|r| &r.cells[j]);
-                    DotRow {
-                        label: line.label.to_string(),
-                        estimate: c.and_then(|c| c.lift),
-                        lo: c.and_then(|c| c.lift_lo),
-                        hi: c.and_then(|c| c.lift_hi),
-                        raw: None,
-                        league: Some(0.0),
-                    }
-                })
-                .collect();
+            let rows: Vec<DotRow> = on_the_line.iter().map(|line| dot_row(line.label, line.row.as_ref().map(|r| &r.cells[j]), None, DotOf::Lift)).collect();
             let unit = if m.scale == 100.0 { " (points of %)" } else { "" };
             (
                 format!("{}: lift{unit}", m.short),
@@ -349,6 +394,7 @@ pub(super) fn profile_view(ch: Chrome, params: &Params, name: &str, prof: &split
         decision_heads: heads(&decision_keys),
         decision_rows: build_rows(&decision_keys),
         throw_charts,
+        depth,
         api_href: format!("/api/profile{}", params.with(&[("passer", Some(&name)), ("view", None)])),
         report_href: format!("/report{}", viewed(Situation { passer: Some(name.clone()), seasons: params.situation.seasons.clone(), ..Preset::DEFAULT.situation(params.situation.one_score) }.to_query(), params.projector)),
         games,

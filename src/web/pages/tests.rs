@@ -150,10 +150,102 @@ fn profile_charts_have_titles_and_rows_link_with_the_view() {
     let base = Situation { passer: None, ..pr.situation.clone() };
     let prof = splits::profile(&f.plays, &f.values(), &who, &base, &trend, 5).expect("a profile");
     let dist = splits::epa_distribution(&f.plays, &f.values(), &Situation { passer: None, ..trend.clone() }, &who);
-    let page = profile_view(chrome_for(&pr, None, None), &pr, &who, &prof, &dist, &f.plays, None);
+    let depth = depth_view(None, &who, "every snap", 588.0);
+    let page = profile_view(chrome_for(&pr, None, None), &pr, &who, &prof, &dist, &f.plays, None, depth);
     assert!(page.trend_title.starts_with("EPA per dropback by season") && page.epa_title.contains(&format!("n = {}", dist.passer_n)));
     assert_eq!(page.charts.len(), PROFILE_KEYS.len());
     assert!(page.rows.iter().all(|r| r.href.contains("view=projector") && r.href.contains("passer=")));
     assert!(page.report_href.contains("view=projector"));
     assert_eq!(page.seasons_note, "All seasons (2000–2001)");
+}
+
+/// A game of late-down snaps small enough to count by hand.
+fn late_down_game() -> Plays {
+    use crate::playfile::{Kind, PlayRow};
+    // (offense is the home side, down, to go, kind, air yards)
+    let snaps: [(bool, i32, i32, Kind, Option<i32>); 10] = [
+        (true, 3, 2, Kind::Pass, Some(3)),
+        (true, 4, 1, Kind::Pass, Some(-1)),
+        (true, 3, 5, Kind::Pass, Some(8)),
+        (true, 3, 6, Kind::Pass, Some(4)),
+        (true, 3, 9, Kind::Pass, Some(12)),
+        (true, 2, 8, Kind::Pass, Some(20)),
+        (true, 3, 14, Kind::Sack, None),
+        (true, 3, 12, Kind::Pass, None),
+        (true, 4, 15, Kind::Pass, Some(25)),
+        (false, 3, 4, Kind::Pass, Some(30)),
+    ];
+    let rows: Vec<PlayRow> = snaps
+        .iter()
+        .enumerate()
+        .map(|(k, &(home, down, to_go, kind, air))| PlayRow {
+            game: "2001-01-STH-NTH".into(),
+            season: 2001,
+            week: 1,
+            home: "NTH".into(),
+            away: "STH".into(),
+            seq: k as i32 + 1,
+            period: 4,
+            clock: 600 - 30 * k as i32,
+            offense: if home { "NTH" } else { "STH" }.into(),
+            defense: if home { "STH" } else { "NTH" }.into(),
+            off_score: 10,
+            def_score: 7,
+            off_timeouts: 2,
+            def_timeouts: 2,
+            down: Some(down),
+            to_go: Some(to_go),
+            ball_on: 40,
+            kind,
+            passer: Some(if home { "Tobin Vale" } else { "Ira Quell" }.into()),
+            complete: Some(false),
+            intercepted: Some(false),
+            air_yards: air,
+            gain: Some(if kind == Kind::Sack { -6 } else { 0 }),
+            fumble_lost: Some(false),
+            touchback: None,
+            points: 0,
+            home_line: None,
+        })
+        .collect();
+    let sources = (0..rows.len()).map(|i| crate::plays::Source { file: 0, row: i as u32 + 1 }).collect();
+    Plays::from_rows(vec!["late.csv".into()], &rows, sources)
+}
+
+#[test]
+fn late_down_depths_match_a_hand_count() {
+    let p = late_down_game();
+    let n = p.len();
+    let (zero, half) = (vec![0.0; n], vec![0.5; n]);
+    let v = SnapValues { epa: &zero, wp: &half, wpa: &zero, cp: &zero, choice: &[], execution: &[], league_sticks: &[] };
+    // The league's depth by hand: 12 yards on 3rd down (an even mix of
+    // -2, 6, 14 and 30), 18 on 4th (1:1:1:3).
+    let model = crate::models::throw::ThrowModel::hand_made([-2.0, 6.0, 14.0, 30.0]);
+    let situation = Preset::EverySnap.situation(8);
+    let lines = depth_lines(Some(&model), &p, &v, "Tobin Vale", &situation).expect("a model");
+    let view = depth_view(Some(&lines), "Tobin Vale", "every snap", 588.0);
+    // Counted by hand from `late_down_game`: the 2nd-down throw, the sack,
+    // the throw without air yards and the other passer's throw are out.
+    let want = [
+        ("1-2 to go", "2", "1.5", "1.0", "15.0"),
+        ("3-6 to go", "2", "5.5", "6.0", "12.0"),
+        ("7-10 to go", "1", "9.0", "12.0", "12.0"),
+        ("11+ to go", "1", "15.0", "25.0", "18.0"),
+    ];
+    assert_eq!(view.rows.len(), want.len());
+    for (r, w) in view.rows.iter().zip(want) {
+        assert_eq!((r.label.as_str(), r.throws.as_str(), r.to_go.as_str(), r.his.as_str(), r.league.as_str()), w);
+    }
+    assert!(view.note.is_empty() && view.chart.contains("1-2 to go (2)"), "{}", view.note);
+    assert!(view.chart.contains("11+ to go (1): yards needed 15.0, his depth 25.0, league&#39;s depth 18.0"), "{}", view.chart);
+    // The other passer: one 3rd-and-4 throw of 30 yards.
+    let other = depth_view(depth_lines(Some(&model), &p, &v, "Ira Quell", &situation).as_deref(), "Ira Quell", "every snap", 588.0);
+    assert_eq!(other.rows.iter().map(|r| r.throws.as_str()).collect::<Vec<_>>(), ["0", "1", "0", "0"]);
+    assert_eq!((other.rows[0].his.as_str(), other.rows[1].his.as_str()), ("–", "30.0"));
+    // No late-down throws here, and no air yards in the file: said plainly.
+    let early = Situation { downs: Some(vec![1]), ..situation.clone() };
+    let none = depth_view(depth_lines(Some(&model), &p, &v, "Tobin Vale", &early).as_deref(), "Tobin Vale", "1st down", 588.0);
+    assert!(none.chart.is_empty() && none.note.starts_with("No 3rd- or 4th-down throws"), "{}", none.note);
+    let no_air = depth_view(depth_lines(None, &p, &v, "Tobin Vale", &situation).as_deref(), "Tobin Vale", "every snap", 588.0);
+    assert!(no_air.rows.is_empty() && no_air.note.contains("no air yards"));
 }
