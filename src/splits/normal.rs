@@ -9,8 +9,9 @@ use super::scan::{accumulate, Sums};
 use crate::plays::Plays;
 use crate::situation::Situation;
 
-/// The every-snap sums over the seasons of `s` (all passers, no filter).
+/// The every-snap sums over the seasons of `s` (all rows, no filter), per
+/// row of the same grouping (passer, offense or defense).
 pub(super) fn every_snap(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
-    let every = Situation { seasons: s.seasons.clone(), ..Situation::default() };
+    let every = Situation { seasons: s.seasons.clone(), group: s.group, ..Situation::default() };
     accumulate(ix, p, v, &every)
 }

@@ -1,11 +1,12 @@
 //! One pass over the league for a situation, on the split index: running
-//! sums per passer, per state cell, per season and for the league (`Sums`),
-//! and the raw value of a metric from sums.
+//! sums per row of the table (passer, offense or defense, by the
+//! situation's grouping), per state cell, per season and for the league
+//! (`Sums`), and the raw value of a metric from sums.
 
-use super::index::{memo_key, Layout, Memo, Plan, SplitIndex, MEMO_SIZE};
+use super::index::{memo_key, Layout, Memo, Plan, SplitIndex, Units, MEMO_SIZE};
 use super::metrics::{metric_index, SnapValues, Stat, CELLS, METRICS};
 use crate::plays::Plays;
-use crate::situation::Situation;
+use crate::situation::{Group, Situation};
 use crate::stats;
 use rayon::prelude::*;
 use std::collections::{BTreeMap, HashMap};
@@ -64,11 +65,13 @@ pub(super) type IntMap<K, V> = HashMap<K, V, std::hash::BuildHasherDefault<IntHa
 
 /// One pass over the league for a situation.
 pub(super) struct Sums {
+    /// Per row of the table: keyed by passer id, or by team id when the
+    /// situation groups by offense or defense.
     pub(super) passers: BTreeMap<u32, PasserSums>,
     pub(super) league: Accs,
     /// League sums per state cell (CELLS × metrics).
     pub(super) league_cells: Vec<Acc>,
-    /// Per (passer, season), ignoring the situation's season filter.
+    /// Per (row, season), ignoring the situation's season filter.
     pub(super) by_season: IntMap<(u32, i32), Accs>,
     pub(super) league_by_season: BTreeMap<i32, Accs>,
 }
@@ -80,6 +83,7 @@ pub(super) struct PasserSums {
     /// The passer's sum of values per state cell, per metric (to leave his
     /// own snaps out of the league's cell values).
     pub(super) cell_sums: Vec<f64>,
+    /// The offense of his last snap; for a team row, the team itself.
     pub(super) team: u16,
 }
 
@@ -92,9 +96,9 @@ struct Partial {
 }
 
 impl Partial {
-    fn new(ix: &SplitIndex) -> Partial {
+    fn new(ix: &SplitIndex, u: &Units) -> Partial {
         let w = ix.layout.width();
-        let n_ps = ix.ps_key.len();
+        let n_ps = u.key.len();
         Partial {
             ps: vec![0.0; n_ps * w],
             season_cells: vec![0.0; ix.seasons.len() * CELLS * w],
@@ -103,14 +107,14 @@ impl Partial {
         }
     }
 
-    /// Row `r` of the index, into its passer-season and its season's cell.
+    /// Row `r` of the index, into its unit-season and its season's cell.
     #[inline]
-    fn add(&mut self, ix: &SplitIndex, r: usize) {
+    fn add(&mut self, ix: &SplitIndex, u: &Units, r: usize) {
         let lay = &ix.layout;
         let w = lay.width();
-        let ps = ix.ps[r] as usize;
+        let ps = u.id[r] as usize;
         let c = ix.cell[r] as usize;
-        let season = ix.ps_key[ps].1 as usize;
+        let season = u.key[ps].1 as usize;
         let snap = ix.snap[r] + 1;
         if snap > self.last[ps].0 {
             self.last[ps] = (snap, ix.team[r]);
@@ -172,6 +176,7 @@ fn memo(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Arc<Memo> 
     }
     let plan = Plan::new(ix, s);
     let pieces = plan.pieces();
+    let u = ix.units_of(s.group);
     // In pieces on rayon's threads, merged in row order (the same pieces on
     // every machine, so the same sums). A panic in a piece reaches the caller.
     // Pieces go out `AT_ONCE` at a time, so only a few partial sums are
@@ -182,11 +187,11 @@ fn memo(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Arc<Memo> 
         let parts: Vec<Partial> = batch
             .par_iter()
             .map(|piece| {
-                let mut part = Partial::new(ix);
+                let mut part = Partial::new(ix, &u);
                 for (k, rows) in piece {
                     for r in rows.clone() {
                         if plan.keeps(ix, p, v, *k, r) {
-                            part.add(ix, r);
+                            part.add(ix, &u, r);
                         }
                     }
                 }
@@ -200,7 +205,7 @@ fn memo(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Arc<Memo> 
             });
         }
     }
-    let all = all.unwrap_or_else(|| Partial::new(ix));
+    let all = all.unwrap_or_else(|| Partial::new(ix, &u));
     let w = ix.layout.width();
     let (mut keys, mut cell_sums) = (Vec::new(), Vec::new());
     for (k, b) in all.ps_cells.chunks(w).enumerate() {
@@ -236,12 +241,16 @@ fn expand(lay: &Layout, base: &[f64]) -> Accs {
 }
 
 /// The sums for a situation: the memoised pass (situation without seasons
-/// and passer), then its season filter on passer-seasons. The passer
-/// filter picks the rows shown, not the league they are measured against,
-/// so it is left to the caller. `ix` must be built from `p` and `v`.
+/// and the filter that picks its row), then its season filter on
+/// unit-seasons. The row's filter (`Situation::row_pick`: the passer, or
+/// the offense or defense when grouped by team) picks the rows shown, not
+/// the league they are measured against, so it is left to the caller.
+/// `ix` must be built from `p` and `v`.
 pub(super) fn accumulate(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
     debug_assert!(ix.fits(p), "the split index was built from another league");
+    let s = &s.without_row_pick();
     let m = memo(ix, p, v, s);
+    let u = ix.units_of(s.group);
     let lay = &ix.layout;
     let (w, nm) = (m.width, METRICS.len());
     let chosen: Vec<bool> = ix.seasons.iter().map(|y| s.seasons.as_ref().is_none_or(|ss| ss.contains(y))).collect();
@@ -252,9 +261,9 @@ pub(super) fn accumulate(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situati
         by_season: IntMap::default(),
         league_by_season: BTreeMap::new(),
     };
-    // Per passer: sums over the chosen seasons, the team of the last snap.
-    let mut mine: Vec<Option<(Vec<f64>, (u32, u16))>> = vec![None; ix.n_passers];
-    for (k, &(who, season)) in ix.ps_key.iter().enumerate() {
+    // Per row: sums over the chosen seasons, the team of the last snap.
+    let mut mine: Vec<Option<(Vec<f64>, (u32, u16))>> = vec![None; u.n_who];
+    for (k, &(who, season)) in u.key.iter().enumerate() {
         let base = &m.ps[k * w..][..w];
         if base[0] == 0.0 {
             continue;
@@ -269,11 +278,11 @@ pub(super) fn accumulate(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situati
             slot.1 = m.last[k];
         }
     }
-    // Per passer: base sums per cell over the chosen seasons.
-    let mut cells: Vec<Vec<f64>> = vec![Vec::new(); ix.n_passers];
+    // Per row: base sums per cell over the chosen seasons.
+    let mut cells: Vec<Vec<f64>> = vec![Vec::new(); u.n_who];
     for (k, &key) in m.ps_cell_keys.iter().enumerate() {
         let (ps, c) = (key as usize / CELLS, key as usize % CELLS);
-        let (who, season) = ix.ps_key[ps];
+        let (who, season) = u.key[ps];
         if !chosen[season as usize] {
             continue;
         }
@@ -284,7 +293,8 @@ pub(super) fn accumulate(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situati
         add_into(&mut mc[c * w..][..w], &m.ps_cell_sums[k * w..][..w]);
     }
     for (who, slot) in mine.into_iter().enumerate() {
-        let Some((base, (_, team))) = slot else { continue };
+        let Some((base, (_, last_offense))) = slot else { continue };
+        let team = if s.group == Group::Passer { last_offense } else { who as u16 };
         let cb = &cells[who];
         let (mut pc, mut cs) = (vec![0.0; CELLS * nm], vec![0.0; CELLS * nm]);
         if !cb.is_empty() {
