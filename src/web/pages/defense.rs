@@ -170,7 +170,7 @@ pub(super) fn defense_view(ch: Chrome, params: &Params, table: &splits::SplitTab
         Some(r) => {
             let j = metric_index("epa").unwrap_or(0);
             let c = &r.cells[j];
-            let pct = c.percentile.map(|p| format!(", {} percentile among {ranked} defenses (100 = best)", ordinal(p.round() as i64))).unwrap_or_default();
+            let pct = c.percentile.map(|p| format!("; {} percentile among {ranked} defenses, 100 = best", ordinal(p.round() as i64))).unwrap_or_default();
             format!(
                 "{team} allowed {} EPA per dropback here against the league's {} (estimate {} [{}, {}]{pct}).",
                 crate::numfmt::signed(c.value, 3, ""),

@@ -111,6 +111,9 @@ pub(super) struct ExplorePage {
     pub(super) min_note: String,
     /// The defense view of the opponent filtered on, if there is one.
     pub(super) defense_href: String,
+    /// Too many columns for a laptop ("All columns"): the table scrolls in
+    /// its own box with its heading rows and name column held.
+    pub(super) wide: bool,
     pub(super) description: String,
     pub(super) seasons: String,
     pub(super) league_dropbacks: String,
@@ -137,6 +140,9 @@ pub(super) fn shown_metrics(projector: bool, cols: Option<&str>) -> Vec<usize> {
     }
     group.2.iter().filter_map(|k| metric_index(k)).collect()
 }
+
+/// More metric columns than this do not fit 1366 px (the widest group, Passing, has 11).
+const WIDE_COLUMNS: usize = 12;
 
 /// A link to one column group of the explorer.
 pub struct GroupLink {
@@ -375,6 +381,7 @@ pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTab
         group_note,
         caption,
         team_column: !group.is_team(),
+        wide: shown.len() > WIDE_COLUMNS,
         min_note: {
             let asked = params.raw.iter().any(|(k, v)| k == "min" && !v.trim().is_empty());
             if !asked && params.min_dropbacks == splits::DEFAULT_MIN_VS_ONE_DEFENSE && params.situation.opponent.is_some() && group == Group::Passer {
