@@ -401,7 +401,7 @@ fn text_table(t: &splits::SplitTable) -> String {
     };
     // Lines of cells: heading, league, then two per qualified passer.
     let mut lines: Vec<(String, String, Vec<String>)> = vec![
-        ("passer".into(), "team".into(), idx.iter().map(|&j| METRICS[j].short.to_string()).collect()),
+        (t.group.key().into(), "team".into(), idx.iter().map(|&j| METRICS[j].short.to_string()).collect()),
         ("LEAGUE".into(), String::new(), idx.iter().map(|&j| num(t.league_row[j], j)).collect()),
     ];
     for r in t.qualified() {

@@ -226,10 +226,11 @@ const CELL_COLS: &[CellCol] = &[
     ("lift_signal", |c| c.lift_signal, Some(3)),
 ];
 
-/// The split table: per passer, each metric's value, estimate and interval,
-/// his normal and his lift with its interval.
+/// The split table: per passer (or offense, or defense: the first column
+/// is named for the table's grouping), each metric's value, estimate and
+/// interval, his normal and his lift with its interval.
 pub fn split_csv(t: &SplitTable) -> String {
-    let mut head = vec!["passer".to_string(), "team".to_string(), "qualified".to_string()];
+    let mut head = vec![t.group.key().to_string(), "team".to_string(), "qualified".to_string()];
     for m in METRICS {
         head.push(m.key.to_string());
         if m.stat != Stat::Count {

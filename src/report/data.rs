@@ -123,9 +123,10 @@ const BAR_CHART_H: f64 = 170.0;
 /// The situation the report is computed on: the given one, without a
 /// passer filter (the passer is the report's subject, not a filter on the
 /// league). No season named means every season of the file, the same rule
-/// as the pages; the header names them.
+/// as the pages; the header names them. The report is a passer's: rows per
+/// passer whatever grouping the page it came from had.
 pub fn report_situation(_p: &Plays, s: &Situation) -> Situation {
-    Situation { passer: None, ..s.clone() }
+    Situation { passer: None, group: crate::situation::Group::Passer, ..s.clone() }
 }
 
 impl ReportData {

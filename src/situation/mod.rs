@@ -10,7 +10,7 @@ pub mod tags;
 pub mod values;
 
 use crate::plays::Plays;
-use params::{check_key, parse_preset, parse_quarters, parse_results, show_quarters, Field};
+use params::{check_key, parse_group, parse_preset, parse_quarters, parse_results, show_quarters, Field};
 use serde::Serialize;
 use std::fmt;
 use values::{err, parse_int_list, parse_name, parse_probability, parse_range, show_list, show_probability, show_range};
@@ -41,6 +41,51 @@ impl Range {
 pub enum Site {
     Home,
     Away,
+}
+
+/// What a split table's rows are: passers (the default), offenses or
+/// defenses. Each row's numbers come from its own snaps in the situation,
+/// season by season (passer-seasons, offense-seasons, defense-seasons).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Default)]
+#[serde(rename_all = "lowercase")]
+pub enum Group {
+    #[default]
+    Passer,
+    Offense,
+    Defense,
+}
+
+impl Group {
+    pub const ALL: [Group; 3] = [Group::Passer, Group::Offense, Group::Defense];
+
+    /// As written in links (`group=`).
+    pub fn key(self) -> &'static str {
+        match self {
+            Group::Passer => "passer",
+            Group::Offense => "offense",
+            Group::Defense => "defense",
+        }
+    }
+
+    pub fn parse(v: &str) -> Option<Group> {
+        Group::ALL.into_iter().find(|g| g.key().eq_ignore_ascii_case(v.trim()))
+    }
+
+    /// A row is a team (offense or defense), not a passer.
+    pub fn is_team(self) -> bool {
+        self != Group::Passer
+    }
+
+    /// The filter that names a row of this grouping (`passer`, `team` for
+    /// the offense, `opponent` for the defense): in a table it picks the
+    /// row shown, never the snaps the league is measured on.
+    pub fn row_field(self) -> Field {
+        match self {
+            Group::Passer => Field::Passer,
+            Group::Offense => Field::Team,
+            Group::Defense => Field::Opponent,
+        }
+    }
 }
 
 /// Period code for "any overtime period" in `Situation::periods`.
@@ -80,6 +125,8 @@ pub struct Situation {
     pub results: Option<Vec<PlayResult>>,
     /// The staff's tags (`tag.NAME=...`), by name.
     pub tags: Vec<TagFilter>,
+    /// What a split table's rows are (not a filter: `matches` ignores it).
+    pub group: Group,
 }
 
 impl Default for Situation {
@@ -105,6 +152,7 @@ impl Default for Situation {
             passer: None,
             results: None,
             tags: Vec::new(),
+            group: Group::Passer,
         }
     }
 }
@@ -182,6 +230,7 @@ impl Situation {
         }
         match field {
             Field::Preset | Field::OneScore | Field::Page => {}
+            Field::Group => self.group = parse_group(k, v)?,
             Field::Quarters => put!(periods, parse_quarters(k, v)),
             Field::HalfClock => put!(half_secs, parse_range(k, v, &CLOCK_HALF)),
             Field::GameClock => put!(game_secs, parse_range(k, v, &CLOCK_GAME)),
@@ -251,6 +300,7 @@ impl Situation {
             Field::Results => self.results.as_deref().map(|v| show_list(v, |r| r.key().to_string())),
             // Several at once: `to_query` writes each.
             Field::Tag => None,
+            Field::Group => (self.group != Group::Passer).then(|| self.group.key().to_string()),
         }
     }
 
@@ -300,6 +350,28 @@ impl Situation {
     /// season-by-season views).
     pub fn with_seasons(&self, seasons: Option<Vec<i32>>) -> Situation {
         Situation { seasons, ..self.clone() }
+    }
+
+    /// The name of the row the table shows (`passer`, or for teams `team` /
+    /// `opponent` by the grouping), if one is picked.
+    pub fn row_pick(&self) -> Option<&str> {
+        match self.group {
+            Group::Passer => self.passer.as_deref(),
+            Group::Offense => self.offense.as_deref(),
+            Group::Defense => self.opponent.as_deref(),
+        }
+    }
+
+    /// The snaps a grouped table is measured on: the filter that picks its
+    /// row (`row_pick`) lifted, every other filter kept.
+    pub fn without_row_pick(&self) -> Situation {
+        let mut s = self.clone();
+        match self.group {
+            Group::Passer => s.passer = None,
+            Group::Offense => s.offense = None,
+            Group::Defense => s.opponent = None,
+        }
+        s
     }
 
     /// Does snap `i` belong? `wp` is the offense's win probability before it.

@@ -6,7 +6,7 @@
 use super::preset::Preset;
 use super::result::PlayResult;
 use super::values::{self, err, nearest};
-use super::SituationError;
+use super::{Group, SituationError};
 
 /// What a parameter sets.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -32,6 +32,8 @@ pub enum Field {
     Results,
     /// The staff's own columns: `tag.NAME` (one spec stands for every tag).
     Tag,
+    /// What a table's rows are: passers, offenses or defenses (not a filter).
+    Group,
     /// Not a filter: a page's own setting, read by `web::query`.
     Page,
 }
@@ -39,7 +41,7 @@ pub enum Field {
 impl Field {
     /// A filter on snaps (not the preset, its bound, or a page setting).
     pub fn is_filter(self) -> bool {
-        !matches!(self, Field::Preset | Field::OneScore | Field::Page)
+        !matches!(self, Field::Preset | Field::OneScore | Field::Group | Field::Page)
     }
 }
 
@@ -87,8 +89,9 @@ pub const PARAMS: &[ParamSpec] = &[
     p("passer", Field::Passer, "Passer", "passer name (any case)", "NAME", "passer {}", false),
     p("result", Field::Results, "Result", "what the snap ended in, any of: completion, incompletion, interception, sack, scramble, touchdown-pass, touchdown, first-down, fumble-lost", "interception", "result {}", true),
     p("tag.NAME", Field::Tag, "Tags", "the staff's own columns (tags, any column beyond ours): values of tag NAME, a list, or ~text to search a tag with more than 50 values", "yes,no", "{}", false),
-    p("min", Field::Page, "Min. dropbacks", "table: dropbacks a passer needs to be ranked (default 20)", "30", "", false),
-    p("sort", Field::Page, "Sort", "table: column to sort on: passer, team or a metric key such as epa", "epa", "", false),
+    p("group", Field::Group, "Rows", "table rows per passer (default), per offense or per defense (a team's snaps in the situation, numbers allowed); grouped by team, team= (offense) or opponent= (defense) picks the row shown, not the snaps, and for a defense less is better (EPA, success, completions allowed) or more (sacks, interceptions)", "defense", "rows per {}", false),
+    p("min", Field::Page, "Min. dropbacks", "table: dropbacks a passer (or team) needs to be ranked (default 20; 5 for passers against one opponent, who meet it once or twice a season)", "30", "", false),
+    p("sort", Field::Page, "Sort", "table: column to sort on: passer (the row's name: passer or team), team or a metric key such as epa", "epa", "", false),
     p("dir", Field::Page, "Direction", "table: desc (high to low, default) or asc", "asc", "", false),
     p("by", Field::Page, "Sort on", "table: sort on the estimate (est, default), the raw number (raw) or the lift, his value here minus his normal (lift)", "raw", "", false),
     p("view", Field::Page, "View", "laptop (default) or projector: large type, fewer columns", "projector", "", false),
@@ -192,4 +195,15 @@ pub fn parse_results(param: &str, v: &str) -> Result<Vec<PlayResult>, SituationE
         })
     };
     values::parse_list(param, v, item, None)
+}
+
+/// `passer`, `offense` or `defense`; anything else is refused with the nearest.
+pub fn parse_group(param: &str, v: &str) -> Result<Group, SituationError> {
+    Group::parse(v).ok_or_else(|| {
+        let keys = Group::ALL.map(|g| g.key());
+        match nearest(v.trim(), keys) {
+            Some(k) => err(param, v, format!("unknown grouping; did you mean '{k}'? Expected passer, offense or defense")),
+            None => err(param, v, "unknown grouping; expected passer, offense or defense"),
+        }
+    })
 }

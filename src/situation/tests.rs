@@ -211,3 +211,24 @@ fn tag_filters_read_back_and_describe_themselves() {
         assert!(Situation::from_query_string(bad).is_err(), "{bad}");
     }
 }
+
+#[test]
+fn grouping_reads_back_and_is_refused_with_the_nearest() {
+    let s = parse("preset=end-of-game&group=defense&opponent=QRM");
+    assert_eq!(s.group, Group::Defense);
+    assert_eq!(s.row_pick(), Some("QRM"));
+    assert_eq!(s.without_row_pick().opponent, None);
+    assert_eq!(Situation::from_query(&s.to_query()).unwrap(), s);
+    assert!(s.to_query().contains(&("group".to_string(), "defense".to_string())));
+    // passer rows are the default and are not written in links
+    assert_eq!(parse("group=passer"), Situation::default());
+    assert!(parse("group=passer&passer=A B").to_query().iter().all(|(k, _)| k != "group"));
+    assert_eq!(parse("group=Offense&team=QRM").row_pick(), Some("QRM"));
+    // a grouping is not a filter: the description does not change
+    assert_eq!(parse("preset=end-of-game&group=offense").describe(), parse("preset=end-of-game").describe());
+    assert_eq!(
+        refusal("group=defence"),
+        "group=defence: unknown grouping; did you mean 'defense'? Expected passer, offense or defense"
+    );
+    assert_eq!(refusal("group=qb"), "group=qb: unknown grouping; expected passer, offense or defense");
+}

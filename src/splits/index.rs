@@ -1,13 +1,14 @@
 //! The split index, built once per loaded league: its dropbacks with a
 //! passer in compact columns, ordered by period and clock left in the half
-//! (so clock windows are ranges of rows), dense passer-season ids, and each
+//! (so clock windows are ranges of rows), dense passer-season and
+//! team-season ids (the unit a table's rows are summed over), and each
 //! snap's metric contributions folded into a few distinct columns. The
 //! pass over a situation (`pass`) reads it; filters it does not cover fall
 //! back to `Situation::matches` on each candidate row.
 
 use super::metrics::{cell, contributions, SnapValues, METRICS};
 use crate::plays::{Plays, NO_PASSER};
-use crate::situation::{Range, Situation, OT};
+use crate::situation::{Group, Range, Situation, OT};
 use rayon::prelude::*;
 use std::any::Any;
 use std::collections::HashMap;
@@ -72,6 +73,10 @@ pub struct SplitIndex {
     /// Dense passer-season id → (passer, dense season id), ascending.
     pub(super) ps_key: Vec<(u32, u16)>,
     pub(super) n_passers: usize,
+    /// Dense team-season id → (team, dense season id), ascending: every
+    /// team that is the offense or the defense of a row.
+    pub(super) ts_key: Vec<(u32, u16)>,
+    pub(super) n_teams: usize,
     /// Row ranges per period group (`period.min(OT)`), rows within a group
     /// ascending by seconds left in the half, then by snap.
     blocks: Vec<(i32, std::ops::Range<usize>)>,
@@ -83,6 +88,9 @@ pub struct SplitIndex {
     pub(super) snap: Vec<u32>,
     pub(super) ps: Vec<u32>,
     pub(super) team: Vec<u16>,
+    /// The offense's and the defense's team-season ids.
+    pub(super) ts_off: Vec<u32>,
+    pub(super) ts_def: Vec<u32>,
     pub(super) cell: Vec<u8>,
     secs_half: Vec<i32>,
     secs_game: Vec<i32>,
@@ -98,8 +106,17 @@ pub struct SplitIndex {
     pub(super) memo: Mutex<HashMap<String, Arc<Memo>>>,
 }
 
+/// The unit a grouping sums over: per row its dense id, per id (who,
+/// dense season id), and how many `who` there are.
+pub(super) struct Units<'a> {
+    pub(super) id: &'a [u32],
+    pub(super) key: &'a [(u32, u16)],
+    pub(super) n_who: usize,
+}
+
 /// A situation's pass over the index, its season filter aside: base sums
-/// (see `Layout`) per passer-season, per season × state cell and per
+/// (see `Layout`) per unit-season (passer-, offense- or defense-season by
+/// the grouping; "ps" below), per season × state cell and per
 /// passer-season × state cell, and each passer-season's last snap.
 pub(crate) struct Memo {
     pub(super) width: usize,
@@ -271,6 +288,16 @@ impl SplitIndex {
         let mut ps_key: Vec<(u32, u16)> = snaps.iter().map(|&i| (p.passer[i as usize], season_id(p.season[i as usize]))).collect();
         ps_key.par_sort_unstable();
         ps_key.dedup();
+        let mut ts_key: Vec<(u32, u16)> = snaps
+            .iter()
+            .flat_map(|&i| {
+                let (i, y) = (i as usize, season_id(p.season[i as usize]));
+                [(p.offense[i] as u32, y), (p.defense[i] as u32, y)]
+            })
+            .collect();
+        ts_key.par_sort_unstable();
+        ts_key.dedup();
+        let ts_id = |team: u16, i: usize| ts_key.binary_search(&(team as u32, season_id(p.season[i]))).unwrap_or(0) as u32;
 
         // Pass 2: the columns.
         let n = snaps.len();
@@ -279,11 +306,15 @@ impl SplitIndex {
             seasons: Vec::new(),
             ps_key: Vec::new(),
             n_passers: p.passers.len(),
+            ts_key: Vec::new(),
+            n_teams: p.teams.len(),
             blocks: Vec::new(),
             game_offset: Vec::new(),
             snap: Vec::with_capacity(n),
             ps: Vec::with_capacity(n),
             team: Vec::with_capacity(n),
+            ts_off: Vec::with_capacity(n),
+            ts_def: Vec::with_capacity(n),
             cell: Vec::with_capacity(n),
             secs_half: Vec::with_capacity(n),
             secs_game: Vec::with_capacity(n),
@@ -340,6 +371,8 @@ impl SplitIndex {
             let i = i as usize;
             ix.snap.push(i as u32);
             ix.team.push(p.offense[i]);
+            ix.ts_off.push(ts_id(p.offense[i], i));
+            ix.ts_def.push(ts_id(p.defense[i], i));
             ix.cell.push(cell(p, i) as u8);
             ix.secs_half.push(p.secs_half[i]);
             ix.secs_game.push(p.secs_game[i]);
@@ -360,7 +393,17 @@ impl SplitIndex {
         }
         ix.seasons = seasons;
         ix.ps_key = ps_key;
+        ix.ts_key = ts_key;
         ix
+    }
+
+    /// The unit-season ids a grouping sums over.
+    pub(super) fn units_of(&self, g: Group) -> Units<'_> {
+        match g {
+            Group::Passer => Units { id: &self.ps, key: &self.ps_key, n_who: self.n_passers },
+            Group::Offense => Units { id: &self.ts_off, key: &self.ts_key, n_who: self.n_teams },
+            Group::Defense => Units { id: &self.ts_def, key: &self.ts_key, n_who: self.n_teams },
+        }
     }
 
     /// Rows in the index.
@@ -413,14 +456,28 @@ fn leftover(s: &Situation) -> Situation {
         to_go: None,
         ball_on: None,
         seasons: None,
-        passer: None,
+        passer: passer_filter(s),
+        group: Group::Passer,
         ..s.clone()
     }
 }
 
-/// The key of a situation's pass: everything but seasons and passer.
+/// The passer filter as a filter on snaps: none when the rows are passers
+/// (it picks the row shown, left to the caller); kept when they are teams
+/// (a defense's numbers against one passer).
+fn passer_filter(s: &Situation) -> Option<String> {
+    if s.group == Group::Passer {
+        None
+    } else {
+        s.passer.clone()
+    }
+}
+
+/// The key of a situation's pass: everything but seasons and (when the
+/// rows are passers) the passer; the grouping is part of it (its sums are
+/// per unit of the grouping).
 pub(super) fn memo_key(s: &Situation) -> String {
-    format!("{:?}", Situation { preset: None, one_score: 8, seasons: None, passer: None, ..s.clone() })
+    format!("{:?}", Situation { preset: None, one_score: 8, seasons: None, passer: passer_filter(s), ..s.clone() })
 }
 
 impl Plan {

@@ -176,6 +176,17 @@ pub fn is_style(key: &str) -> bool {
     STYLE.contains(&key)
 }
 
+/// Is a higher value better for a row of `group`? For a defense (numbers
+/// allowed) every direction flips: less EPA, success and completions
+/// allowed, more sacks and interceptions. Style metrics keep their order.
+pub fn higher_is_better(m: &MetricDef, group: crate::situation::Group) -> bool {
+    if group == crate::situation::Group::Defense && !is_style(m.key) {
+        !m.higher_is_better
+    } else {
+        m.higher_is_better
+    }
+}
+
 pub fn metric_index(key: &str) -> Option<usize> {
     METRICS.iter().position(|m| m.key == key)
 }

@@ -24,6 +24,6 @@ pub use metrics::{is_style, metric_group, metric_index, MetricDef, SnapValues, S
 pub use snaps::{coach_spot, down_distance, game_snaps, play_indices, play_list, quarter, result_text, snap_at, Snap};
 pub use index::SplitIndex;
 pub use profile::{epa_distribution, epa_distribution_in, profile, profile_in, profile_with, EpaDistribution, Profile, ProfileLine, SeasonLine};
-pub use table::{split_table, split_table_for, split_table_in, Cell, MetricInfo, PasserRow, SortBy, SplitTable, DEFAULT_MIN_DROPBACKS};
+pub use table::{default_min_dropbacks, split_table, split_table_for, split_table_in, Cell, MetricInfo, PasserRow, SortBy, SplitTable, DEFAULT_MIN_DROPBACKS, DEFAULT_MIN_VS_ONE_DEFENSE};
 pub use tags::{tag_breakdown, tag_breakdown_in, TagBreakdown, TagBreakdownError, TagLine};
 pub use words::{lift_above_zero, lift_words, stability_words, LIFT_RULE};

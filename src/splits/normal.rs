@@ -11,11 +11,12 @@ use crate::plays::Plays;
 use crate::situation::Situation;
 use std::sync::Arc;
 
-/// The every-snap sums over the seasons of `s` (all passers, no filter):
+/// The every-snap sums over the seasons of `s` (all rows, no filter), per
+/// row of the same grouping (passer, offense or defense):
 /// per passer and league totals only, kept beside the every-snap pass per
 /// season list.
 pub(super) fn every_snap(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Arc<Sums> {
-    let every = Situation { seasons: s.seasons.clone(), ..Situation::default() };
+    let every = Situation { seasons: s.seasons.clone(), group: s.group, ..Situation::default() };
     let m = memo(ix, p, v, &every);
     m.derived(&format!("totals {:?}", s.seasons), || totals(ix, &m, &every))
 }

@@ -1,23 +1,26 @@
 //! The slow, obviously correct twin of the split engine: sums row by row
 //! with `Situation::matches`, no index, no memo; and a property test that
-//! asks both for the same random situations (fixed seed) on a simulated
-//! league: counts must agree exactly, sums within 1e-9 (relative).
+//! asks both for the same random situations × groupings (passer, offense,
+//! defense; fixed seed) on a simulated league: counts must agree exactly,
+//! sums within 1e-9 (relative).
 
 use super::index::SplitIndex;
 use super::metrics::{cell, contributions, SnapValues, CELLS, METRICS};
 use super::scan::{accumulate, Acc, Accs, PasserSums, Sums};
 use crate::plays::{Plays, Source, NO_PASSER};
-use crate::situation::{Preset, Range, Site, Situation, OT, RESULTS};
+use crate::situation::{Group, Preset, Range, Site, Situation, OT, RESULTS};
 use std::collections::BTreeMap;
 
 fn new_accs() -> Accs {
     vec![Acc::default(); METRICS.len()]
 }
 
-/// Every snap in order: the obvious pass.
+/// Every snap in order: the obvious pass. A row is the snap's passer, its
+/// offense or its defense, by the grouping; the filter naming a row
+/// (passer, offense or opponent by the grouping) does not pick snaps.
 fn reference(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
     let nm = METRICS.len();
-    let unseasoned = Situation { passer: None, ..s.with_seasons(None) };
+    let unseasoned = s.with_seasons(None).without_row_pick();
     let mut out = Sums {
         passers: BTreeMap::new(),
         league: new_accs(),
@@ -30,7 +33,12 @@ fn reference(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
         if !p.dropback[i] || p.passer[i] == NO_PASSER || !unseasoned.matches(p, v.wp, i) {
             continue;
         }
-        let (who, season) = (p.passer[i], p.season[i]);
+        let season = p.season[i];
+        let (who, team) = match s.group {
+            Group::Passer => (p.passer[i], p.offense[i]),
+            Group::Offense => (p.offense[i] as u32, p.offense[i]),
+            Group::Defense => (p.defense[i] as u32, p.defense[i]),
+        };
         let mask = contributions(p, v, i, &mut vals);
         for j in 0..nm {
             if mask & (1 << j) != 0 {
@@ -46,7 +54,7 @@ fn reference(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
         }
         let c = cell(p, i);
         let ps = out.passers.entry(who).or_insert_with(|| PasserSums { accs: new_accs(), cells: vec![0.0; CELLS * nm], cell_sums: vec![0.0; CELLS * nm], team: 0 });
-        ps.team = p.offense[i];
+        ps.team = team;
         for j in 0..nm {
             if mask & (1 << j) != 0 {
                 ps.accs[j].add(vals[j]);
@@ -207,6 +215,7 @@ fn random_situation(r: &mut Rng, p: &Plays) -> Situation {
     if r.chance(8) {
         s.results = Some(vec![RESULTS[r.below(RESULTS.len() as u64) as usize].0]);
     }
+    s.group = Group::ALL[r.below(3) as usize];
     s
 }
 
@@ -255,6 +264,7 @@ fn the_index_agrees_with_the_row_by_row_pass_on_random_situations() {
     assert!(ix.fits(&p) && !ix.is_empty());
     let mut r = Rng(2031);
     let mut nonempty = 0;
+    let mut groups = [0usize; 3];
     for case in 0..300 {
         let s = random_situation(&mut r, &p);
         let slow = reference(&p, &v, &s);
@@ -268,9 +278,12 @@ fn the_index_agrees_with_the_row_by_row_pass_on_random_situations() {
             panic!("case {case}: {s:?}\n{e}");
         }
         nonempty += usize::from(!slow.passers.is_empty());
+        groups[s.group as usize] += usize::from(!slow.passers.is_empty());
     }
-    // The random situations must not all be empty (a test that cannot fail).
+    // The random situations must not all be empty (a test that cannot fail),
+    // and every grouping must have been asked.
     assert!(nonempty > 150, "only {nonempty} of 300 situations kept a snap");
+    assert!(groups.iter().all(|&n| n > 50), "groupings asked: {groups:?}");
 }
 
 #[test]
@@ -281,9 +294,11 @@ fn every_preset_and_season_agrees_with_the_row_by_row_pass() {
     for preset in Preset::ALL {
         for one_score in [7, 8] {
             for seasons in std::iter::once(None).chain(p.seasons().into_iter().map(|y| Some(vec![y]))) {
-                let s = Situation { seasons, ..preset.situation(one_score) };
-                if let Err(e) = same(&accumulate(&ix, &p, &v, &s), &reference(&p, &v, &s)) {
-                    panic!("{s:?}\n{e}");
+                for group in Group::ALL {
+                    let s = Situation { seasons: seasons.clone(), group, ..preset.situation(one_score) };
+                    if let Err(e) = same(&accumulate(&ix, &p, &v, &s), &reference(&p, &v, &s)) {
+                        panic!("{s:?}\n{e}");
+                    }
                 }
             }
         }

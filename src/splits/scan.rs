@@ -5,7 +5,7 @@
 use super::index::{memo_key, Layout, Memo, Plan, SplitIndex, MEMO_SIZE};
 use super::metrics::{metric_index, SnapValues, Stat, CELLS, METRICS};
 use crate::plays::Plays;
-use crate::situation::Situation;
+use crate::situation::{Group, Situation};
 use crate::stats;
 use rayon::prelude::*;
 use std::collections::{BTreeMap, HashMap};
@@ -139,8 +139,11 @@ fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
         })
         .collect::<Vec<_>>()
         .concat();
-    let (w, n_ps) = (ix.layout.width(), ix.ps_key.len());
-    let key = |r: u32| ix.ps[r as usize] as usize * CELLS + ix.cell[r as usize] as usize;
+    // Rows are summed per unit-season of the grouping (passer-, offense- or
+    // defense-season).
+    let u = ix.units_of(s.group);
+    let (w, n_ps) = (ix.layout.width(), u.key.len());
+    let key = |r: u32| u.id[r as usize] as usize * CELLS + ix.cell[r as usize] as usize;
     // Counting sort by key: group k's rows are sorted[start[k]..start[k + 1]].
     let mut start = vec![0u32; n_ps * CELLS + 1];
     for &r in &kept {
@@ -210,7 +213,7 @@ fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
     for (keys, sums, last) in blocks {
         for (&k, b) in keys.iter().zip(sums.chunks(w)) {
             let (ps, c) = (k as usize / CELLS, k as usize % CELLS);
-            let season = ix.ps_key[ps].1 as usize;
+            let season = u.key[ps].1 as usize;
             add_into(&mut m.ps[ps * w..][..w], b);
             add_into(&mut m.season_cells[(season * CELLS + c) * w..][..w], b);
         }
@@ -252,6 +255,7 @@ fn expand(lay: &Layout, base: &[f64]) -> Accs {
 /// so it is left to the caller. `ix` must be built from `p` and `v`.
 pub(super) fn accumulate(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
     debug_assert!(ix.fits(p), "the split index was built from another league");
+    let s = &s.without_row_pick();
     from_memo(ix, &memo(ix, p, v, s), s, true)
 }
 
@@ -263,6 +267,7 @@ pub(super) fn totals(ix: &SplitIndex, m: &Memo, s: &Situation) -> Sums {
 }
 
 fn from_memo(ix: &SplitIndex, m: &Memo, s: &Situation, full: bool) -> Sums {
+    let u = ix.units_of(s.group);
     let lay = &ix.layout;
     let (w, nm) = (m.width, METRICS.len());
     let chosen: Vec<bool> = ix.seasons.iter().map(|y| s.seasons.as_ref().is_none_or(|ss| ss.contains(y))).collect();
@@ -274,8 +279,8 @@ fn from_memo(ix: &SplitIndex, m: &Memo, s: &Situation, full: bool) -> Sums {
         league_by_season: BTreeMap::new(),
     };
     // Per passer: sums over the chosen seasons, the team of the last snap.
-    let mut mine: Vec<Option<(Vec<f64>, (u32, u16))>> = vec![None; ix.n_passers];
-    for (k, &(who, season)) in ix.ps_key.iter().enumerate() {
+    let mut mine: Vec<Option<(Vec<f64>, (u32, u16))>> = vec![None; u.n_who];
+    for (k, &(who, season)) in u.key.iter().enumerate() {
         let base = &m.ps[k * w..][..w];
         if base[0] == 0.0 {
             continue;
@@ -293,10 +298,10 @@ fn from_memo(ix: &SplitIndex, m: &Memo, s: &Situation, full: bool) -> Sums {
         }
     }
     // Per passer: base sums per cell over the chosen seasons.
-    let mut cells: Vec<Vec<f64>> = vec![Vec::new(); ix.n_passers];
+    let mut cells: Vec<Vec<f64>> = vec![Vec::new(); u.n_who];
     for (k, &key) in m.ps_cell_keys.iter().enumerate().filter(|_| full) {
         let (ps, c) = (key as usize / CELLS, key as usize % CELLS);
-        let (who, season) = ix.ps_key[ps];
+        let (who, season) = u.key[ps];
         if !chosen[season as usize] {
             continue;
         }
@@ -307,7 +312,9 @@ fn from_memo(ix: &SplitIndex, m: &Memo, s: &Situation, full: bool) -> Sums {
         add_into(&mut mc[c * w..][..w], &m.ps_cell_sums[k * w..][..w]);
     }
     for (who, slot) in mine.into_iter().enumerate() {
-        let Some((base, (_, team))) = slot else { continue };
+        let Some((base, (_, last_offense))) = slot else { continue };
+        // A team row's team is the team itself.
+        let team = if s.group == Group::Passer { last_offense } else { who as u16 };
         let cb = &cells[who];
         let (mut pc, mut cs) = if full { (vec![0.0; CELLS * nm], vec![0.0; CELLS * nm]) } else { (Vec::new(), Vec::new()) };
         if !cb.is_empty() {

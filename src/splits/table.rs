@@ -1,17 +1,18 @@
-//! The split table: every passer's cells (raw value, league, state-mix
+//! The split table: every passer's (or offense's, or defense's, by the
+//! situation's grouping) cells (raw value, league, state-mix
 //! baseline, estimate, lift and their intervals, percentile, chance of beating
 //! the league) for a situation, and the metric descriptions that travel with it.
 
 use super::index::SplitIndex;
 use super::index::Memo;
 use super::lift::{self, fit, posteriors, Derived, Fit, RATING_PARTS};
-use super::metrics::{is_style, metric_index, SnapValues, Stat, METRICS};
+use super::metrics::{higher_is_better, is_style, metric_index, SnapValues, Stat, METRICS};
 use super::normal::every_snap;
 use super::scan::{accumulate, memo, rating_from, raw_value, Acc, Sums};
 use super::shrink::{adjusted, stability};
 use crate::stats::multilevel::{normal_interval, prob_above, PasserPost};
 use crate::plays::Plays;
-use crate::situation::Situation;
+use crate::situation::{Group, Situation};
 use crate::stats;
 use rayon::prelude::*;
 use serde::Serialize;
@@ -62,6 +63,8 @@ pub struct Cell {
     pub p_better: Option<f64>,
 }
 
+/// One row: a passer, or a team when the table is grouped by offense or
+/// defense (then `passer` and `team` both hold the team's code).
 #[derive(Debug, Clone, Serialize)]
 pub struct PasserRow {
     pub passer: String,
@@ -84,6 +87,7 @@ pub struct MetricInfo {
     pub short: &'static str,
     pub unit: &'static str,
     pub stat: Stat,
+    /// For the table's grouping: flipped for a defense (`metrics::higher_is_better`).
     pub higher_is_better: bool,
     pub decimals: usize,
     pub projector: bool,
@@ -100,6 +104,8 @@ pub struct MetricInfo {
 #[derive(Debug, Clone, Serialize)]
 pub struct SplitTable {
     pub situation: String,
+    /// What the rows are: passers, offenses or defenses.
+    pub group: Group,
     pub query: Vec<(String, String)>,
     pub seasons: Vec<i32>,
     pub min_dropbacks: u32,
@@ -194,6 +200,21 @@ pub enum SortBy {
 /// Default minimum dropbacks to qualify.
 pub const DEFAULT_MIN_DROPBACKS: u32 = 20;
 
+/// Default minimum for passers against one defense (`opponent=`, rows per
+/// passer): a passer meets one opponent once or twice a season, a handful
+/// of late dropbacks each time (demo league, end of game: at most 7-27 per
+/// defense in a season, 12 typically), so 20 ranked nobody.
+pub const DEFAULT_MIN_VS_ONE_DEFENSE: u32 = 5;
+
+/// The minimum dropbacks to qualify when none is asked for.
+pub fn default_min_dropbacks(s: &Situation) -> u32 {
+    if s.group == Group::Passer && s.opponent.is_some() {
+        DEFAULT_MIN_VS_ONE_DEFENSE
+    } else {
+        DEFAULT_MIN_DROPBACKS
+    }
+}
+
 /// The league row's per-passer quantities: rates and means; counts blank.
 pub fn league_row(league: &[Option<f64>]) -> Vec<Option<f64>> {
     METRICS.iter().zip(league).map(|(m, v)| if m.stat == Stat::Count { None } else { *v }).collect()
@@ -216,7 +237,7 @@ pub fn split_table_for(p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: 
 pub fn split_table_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32, focus: Option<&str>) -> SplitTable {
     let sums = accumulate(ix, p, v, s);
     let normal = every_snap(ix, p, v, s);
-    build_table(p, &sums, &normal, s, min_dropbacks, focus, &memo(ix, p, v, s))
+    build_table(p, &sums, &normal, s, min_dropbacks, focus, &memo(ix, p, v, &s.without_row_pick()))
 }
 
 /// The table from the sums. The model fits (per season list) and the
@@ -225,6 +246,8 @@ pub fn split_table_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation,
 pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, min_dropbacks: u32, focus: Option<&str>, memo: &Memo) -> SplitTable {
     let nm = METRICS.len();
     let db = metric_index("dropbacks").unwrap_or(0);
+    let group = s.group;
+    let better_up: Vec<bool> = METRICS.iter().map(|m| higher_is_better(m, group) || is_style(m.key)).collect();
     let league: Vec<Option<f64>> = (0..nm).map(|j| raw_value(&sums.league, j)).collect();
     // Within-passer variance of per-snap values, pooled (for mean metrics).
     let mut within = vec![0.0f64; nm];
@@ -273,8 +296,12 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
                     c
                 })
                 .collect();
+            let name = match group {
+                Group::Passer => &p.passers[who as usize],
+                Group::Offense | Group::Defense => &p.teams[who as usize],
+            };
             PasserRow {
-                passer: p.passers[who as usize].clone(),
+                passer: name.clone(),
                 team: p.teams[ps.team as usize].clone(),
                 qualified: dropbacks >= min_dropbacks.max(1),
                 dropbacks,
@@ -287,7 +314,9 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
     // are independent, so rayon's threads share them (results in metric
     // order; a panic in one reaches the caller). The rating is put together
     // from its shrunk parts afterwards.
-    let wanted: Vec<bool> = rows.iter().map(|r| r.qualified || focus == Some(r.passer.as_str()) || s.passer.as_deref() == Some(r.passer.as_str())).collect();
+    let pick = s.row_pick();
+    let picked = |name: &str| pick.is_some_and(|x| if group == Group::Passer { x == name } else { x.eq_ignore_ascii_case(name) });
+    let wanted: Vec<bool> = rows.iter().map(|r| r.qualified || focus == Some(r.passer.as_str()) || picked(&r.passer)).collect();
     let rating_j = metric_index("rating");
     let parts: Vec<usize> = RATING_PARTS.iter().filter_map(|k| metric_index(k)).collect();
     let jobs: Vec<usize> = (0..nm).filter(|&j| (METRICS[j].stat != Stat::Count && Some(j) != rating_j) || parts.contains(&j)).collect();
@@ -333,20 +362,20 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
                 }
                 c.lift_signal = d.lift_signal;
             }
-            c.p_better = league_raw.and_then(|lg| prob_above(d.value.0, d.value.1, lg)).map(|pa| if m.higher_is_better || is_style(m.key) { pa } else { 1.0 - pa });
+            c.p_better = league_raw.and_then(|lg| prob_above(d.value.0, d.value.1, lg)).map(|pa| if better_up[j] { pa } else { 1.0 - pa });
         }
         // Percentile on the estimate, among qualified passers.
         let ests = Ranks::new(rows.iter().filter(|r| r.qualified).filter_map(|r| r.cells[j].estimate));
         for row in rows.iter_mut() {
             let c = &mut row.cells[j];
             if let Some(pr) = c.estimate.and_then(|e| ests.percentile(e)) {
-                c.percentile = Some(if m.higher_is_better || is_style(m.key) { pr } else { 100.0 - pr });
+                c.percentile = Some(if better_up[j] { pr } else { 100.0 - pr });
             }
         }
     }
 
-    if let Some(only) = &s.passer {
-        rows.retain(|r| &r.passer == only);
+    if pick.is_some() {
+        rows.retain(|r| picked(&r.passer));
     }
     rows.sort_by(|a, b| b.dropbacks.cmp(&a.dropbacks).then(a.passer.cmp(&b.passer)));
     let stab = memo.derived(&format!("stability {min_dropbacks}"), || {
@@ -362,7 +391,7 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
                 short: m.short,
                 unit: m.unit.label(),
                 stat: m.stat,
-                higher_is_better: m.higher_is_better,
+                higher_is_better: higher_is_better(m, group),
                 decimals: m.decimals,
                 projector: m.projector,
                 decision: m.decision,
@@ -378,6 +407,7 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
         None => p.seasons(),
     };
     SplitTable {
+        group,
         situation: s.describe(),
         query: s.to_query(),
         seasons,

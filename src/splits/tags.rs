@@ -62,7 +62,7 @@ pub fn tag_breakdown_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, passer: &str
         return Err(TagBreakdownError::UnknownPasser(passer.to_string()));
     }
     let name = p.tags.names[t].clone();
-    let base = Situation { passer: None, ..situation.clone() };
+    let base = Situation { passer: None, group: crate::situation::Group::Passer, ..situation.clone() };
     let mut metrics = Vec::new();
     let mut lines = Vec::new();
     for value in &spellings(p, t) {

@@ -255,6 +255,7 @@ fn router(state: Shared) -> Router {
     Router::new()
         .route("/", get(pages::home))
         .route("/explore", get(pages::explore))
+        .route("/defense", get(pages::defense))
         .route("/passer", get(pages::profile))
         .route("/plays", get(pages::plays))
         .route("/plays.csv", get(pages::plays_csv))

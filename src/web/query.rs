@@ -6,7 +6,7 @@ use crate::plays::Plays;
 use crate::situation::params::{spec_of, Field};
 use crate::situation::values::nearest;
 use crate::situation::{Situation, SituationError};
-use crate::splits::{metric_index, SortBy, DEFAULT_MIN_DROPBACKS};
+use crate::splits::{default_min_dropbacks, metric_index, SortBy};
 use axum::http::HeaderMap;
 
 /// Decoded `key=value` pairs (`+` and percent escapes undone), read the
@@ -70,8 +70,8 @@ impl Params {
         let situation = Situation::from_query(&raw)?;
         let get = |k: &str| raw.iter().rev().find(|(p, _)| p == k).map(|(_, v)| v.clone());
         let min_dropbacks = match get("min") {
-            None => DEFAULT_MIN_DROPBACKS,
-            Some(v) if v.trim().is_empty() => DEFAULT_MIN_DROPBACKS,
+            None => default_min_dropbacks(&situation),
+            Some(v) if v.trim().is_empty() => default_min_dropbacks(&situation),
             Some(v) => match v.trim().parse::<u32>() {
                 Ok(n) if (1..=100_000).contains(&n) => n,
                 _ => return Err(bad("min", &v, "expected a whole number of dropbacks 1-100000")),

@@ -1,6 +1,9 @@
-//! The situation explorer: presets, the filter form, the passer table with estimates and intervals; every number links to its snaps.
+//! The situation explorer: presets, the filter form, the table of passers
+//! (or offenses, or defenses: `group=`) with estimates and intervals; every
+//! number links to its snaps.
 
 use super::*;
+use crate::situation::Group;
 
 pub struct PresetLink {
     pub label: &'static str,
@@ -94,6 +97,23 @@ pub(super) struct ExplorePage {
     pub(super) min: u32,
     /// The `by` setting: est, raw or lift.
     pub(super) by: &'static str,
+    /// The rows: (key, label, selected) for the form's select.
+    pub(super) group_options: Vec<(&'static str, &'static str, bool)>,
+    /// "passers", "offenses" or "defenses".
+    pub(super) rows_noun: &'static str,
+    /// What a row's numbers are and which way is better, for team rows.
+    pub(super) group_note: String,
+    /// The caption of the table.
+    pub(super) caption: String,
+    /// A team column beside the name (passer rows only).
+    pub(super) team_column: bool,
+    /// Why the minimum is lower than usual, when it is.
+    pub(super) min_note: String,
+    /// The defense view of the opponent filtered on, if there is one.
+    pub(super) defense_href: String,
+    /// Too many columns for a laptop ("All columns"): the table scrolls in
+    /// its own box with its heading rows and name column held.
+    pub(super) wide: bool,
     pub(super) description: String,
     pub(super) seasons: String,
     pub(super) league_dropbacks: String,
@@ -121,6 +141,9 @@ pub(super) fn shown_metrics(projector: bool, cols: Option<&str>) -> Vec<usize> {
     group.2.iter().filter_map(|k| metric_index(k)).collect()
 }
 
+/// More metric columns than this do not fit 1366 px (the widest group, Passing, has 11).
+const WIDE_COLUMNS: usize = 12;
+
 /// A link to one column group of the explorer.
 pub struct GroupLink {
     pub label: &'static str,
@@ -146,11 +169,33 @@ pub fn asks_situation(raw: &[(String, String)]) -> bool {
     raw.iter().any(|(k, _)| crate::situation::params::spec(k).is_some_and(|s| s.field != Field::Page))
 }
 
+/// The situation of a row's snaps: the passer's, or the offense's or
+/// defense's (`team=` / `opponent=`), as a plain filter on snaps.
+pub fn row_situation(situation: &Situation, name: &str) -> Situation {
+    let mut s = Situation { group: Group::Passer, ..situation.clone() };
+    match situation.group {
+        Group::Passer => s.passer = Some(name.to_string()),
+        Group::Offense => s.offense = Some(name.to_string()),
+        Group::Defense => s.opponent = Some(name.to_string()),
+    }
+    s
+}
+
+/// What a row is, in words (singular, plural).
+pub fn row_nouns(g: Group) -> (&'static str, &'static str) {
+    match g {
+        Group::Passer => ("passer", "passers"),
+        Group::Offense => ("offense", "offenses"),
+        Group::Defense => ("defense", "defenses"),
+    }
+}
+
 /// The link behind one number: a count opens exactly the snaps it counts
 /// (`result=`), anything else its denominator (`metric=`), where the play
-/// list marks the counted snaps of a rate.
-pub fn number_query(situation: &Situation, passer: &str, metric: &str) -> Vec<(String, String)> {
-    let mut s = Situation { passer: Some(passer.to_string()), ..situation.clone() };
+/// list marks the counted snaps of a rate. `name` is the row's passer or
+/// team (by the situation's grouping).
+pub fn number_query(situation: &Situation, name: &str, metric: &str) -> Vec<(String, String)> {
+    let mut s = row_situation(situation, name);
     if let Some(res) = PlayResult::counted_by(metric) {
         if s.results.as_ref().is_none_or(|rs| rs.contains(&res)) {
             s.results = Some(vec![res]);
@@ -220,10 +265,17 @@ pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTab
         .iter()
         .map(|g| GroupLink { label: g.1, href: format!("/explore{}", params.with(&[("cols", Some(g.0))])), active: g.0 == current_group })
         .collect();
-    let mut columns = vec![
-        Column { key: "passer", short: "Passer", label: "Passer", href: String::new(), aria_sort: "none", numeric: false, stability: String::new() },
-        Column { key: "team", short: "Team", label: "Team", href: String::new(), aria_sort: "none", numeric: false, stability: String::new() },
-    ];
+    let group = params.situation.group;
+    let (_, nouns) = row_nouns(group);
+    let name_short = match group {
+        Group::Passer => "Passer",
+        Group::Offense => "Offense",
+        Group::Defense => "Defense",
+    };
+    let mut columns = vec![Column { key: "passer", short: name_short, label: name_short, href: String::new(), aria_sort: "none", numeric: false, stability: String::new() }];
+    if !group.is_team() {
+        columns.push(Column { key: "team", short: "Team", label: "Team", href: String::new(), aria_sort: "none", numeric: false, stability: String::new() });
+    }
     for &j in &shown {
         let mi = &table.metrics[j];
         columns.push(Column {
@@ -233,7 +285,7 @@ pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTab
             href: String::new(),
             aria_sort: "none",
             numeric: true,
-            stability: stability_note(mi),
+            stability: stability_note(mi, nouns),
         });
     }
     for c in columns.iter_mut() {
@@ -249,12 +301,16 @@ pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTab
     let rows = table
         .rows
         .iter()
-        .filter(|r| r.qualified || our_passer.as_deref() == Some(r.passer.as_str()))
+        .filter(|r| r.qualified || (!group.is_team() && our_passer.as_deref() == Some(r.passer.as_str())) || params.situation.row_pick().is_some())
         .map(|r| RowView {
             passer: r.passer.clone(),
             team: r.team.clone(),
-            ours: our_passer.as_deref() == Some(r.passer.as_str()) || (our_passer.is_none() && our_team.as_deref() == Some(r.team.as_str())),
-            profile_href: format!("/passer{}", passer_query(&r.passer, &params)),
+            ours: if group.is_team() {
+                our_team.as_deref() == Some(r.passer.as_str())
+            } else {
+                our_passer.as_deref() == Some(r.passer.as_str()) || (our_passer.is_none() && our_team.as_deref() == Some(r.team.as_str()))
+            },
+            profile_href: row_href(&r.passer, params),
             cells: shown
                 .iter()
                 .map(|&j| {
@@ -300,6 +356,15 @@ pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTab
         ),
         None => "sorted by dropbacks".into(),
     };
+    let group_note = match group {
+        Group::Passer => String::new(),
+        Group::Offense => "Each row is one offense: every passer's dropbacks for that team in this situation, each team against its own level on its other snaps.".into(),
+        Group::Defense => "Each row is one defense: the dropbacks it faced in this situation, numbers allowed. Better flips for a defense: less EPA, success, completions and yards allowed and more sacks and interceptions rank higher (percentile 100 = the best defense); lift is its value here minus its own level on its other snaps.".into(),
+    };
+    let caption = match group {
+        Group::Passer => "Passers in this situation. Each cell: the raw number; below it the estimate [90% interval], centred on his own level elsewhere; the share of the spread between passers that is signal rather than noise; and his lift: his value here minus his normal (his other snaps in the same seasons) [90% interval]. Click a number for the snaps behind it.".to_string(),
+        _ => format!("{} in this situation. Each cell: the raw number; below it the estimate [90% interval], centred on the team's own level elsewhere; the share of the spread between {nouns} that is signal rather than noise; and its lift: its value here minus its level on its other snaps in the same seasons [90% interval]. Click a number for the snaps behind it.", capitalised(nouns)),
+    };
     ExplorePage {
         presets,
         groups,
@@ -311,6 +376,29 @@ pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTab
         fields,
         tag_fields: tags,
         min: params.min_dropbacks,
+        group_options: Group::ALL.iter().map(|g| (g.key(), row_nouns(*g).1, *g == group)).collect(),
+        rows_noun: nouns,
+        group_note,
+        caption,
+        team_column: !group.is_team(),
+        wide: shown.len() > WIDE_COLUMNS,
+        min_note: {
+            let asked = params.raw.iter().any(|(k, v)| k == "min" && !v.trim().is_empty());
+            if !asked && params.min_dropbacks == splits::DEFAULT_MIN_VS_ONE_DEFENSE && params.situation.opponent.is_some() && group == Group::Passer {
+                format!(
+                    "Against one opponent a passer has a game or two a season, so the minimum is {} dropbacks (usually {}). To see how {} defends against every passer, open its defense view.",
+                    splits::DEFAULT_MIN_VS_ONE_DEFENSE,
+                    splits::DEFAULT_MIN_DROPBACKS,
+                    params.situation.opponent.as_deref().unwrap_or("")
+                )
+            } else {
+                String::new()
+            }
+        },
+        defense_href: match (&params.situation.opponent, group) {
+            (Some(t), Group::Passer) => format!("/defense{}", viewed(Situation { opponent: Some(t.clone()), passer: None, ..params.situation.clone() }.to_query(), params.projector)),
+            _ => String::new(),
+        },
         by: match params.sort_by {
             SortBy::Estimate => "est",
             SortBy::Value => "raw",
@@ -331,18 +419,37 @@ pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTab
     }
 }
 
-pub(super) fn stability_note(mi: &MetricInfo) -> String {
+/// The column heading's note on season-to-season stability; `nouns` is
+/// what the rows are ("passers", "defenses", ...).
+pub(super) fn stability_note(mi: &MetricInfo, nouns: &str) -> String {
+    let one = nouns.trim_end_matches('s');
     match mi.stability {
         Some(r) => match (mi.stability_lo, mi.stability_hi) {
             (Some(lo), Some(hi)) => format!(
-                "season-to-season r = {r:.2} (90% interval {lo:.2} to {hi:.2}) over {} passer pairs: {}",
+                "season-to-season r = {r:.2} (90% interval {lo:.2} to {hi:.2}) over {} {one} pairs: {}",
                 mi.stability_pairs,
                 splits::stability_words(lo, hi)
             ),
-            _ => format!("season-to-season r = {r:.2} over {} passer pairs", mi.stability_pairs),
+            _ => format!("season-to-season r = {r:.2} over {} {one} pairs", mi.stability_pairs),
         },
         None if mi.stat == Stat::Count => "a total".into(),
-        None => "too few passers qualified in consecutive seasons to judge".into(),
+        None => format!("too few {nouns} qualified in consecutive seasons to judge"),
+    }
+}
+
+fn capitalised(s: &str) -> String {
+    let mut c = s.chars();
+    c.next().map(|f| f.to_uppercase().chain(c).collect()).unwrap_or_default()
+}
+
+/// Where a row's name leads: a passer to his page, a defense to the defense
+/// view, an offense to its passers in the same situation.
+pub fn row_href(name: &str, params: &Params) -> String {
+    let viewed_q = |q: Vec<(String, String)>| viewed(q, params.projector);
+    match params.situation.group {
+        Group::Passer => format!("/passer{}", passer_query(name, params)),
+        Group::Defense => format!("/defense{}", viewed_q(row_situation(&params.situation, name).to_query())),
+        Group::Offense => format!("/explore{}", viewed_q(row_situation(&Situation { passer: None, ..params.situation.clone() }, name).to_query())),
     }
 }
 

@@ -18,6 +18,7 @@ use axum::response::{Html, IntoResponse, Redirect, Response};
 
 mod home;
 mod explore;
+mod defense;
 mod profile;
 mod plays;
 mod game;
@@ -28,6 +29,7 @@ mod tests;
 
 pub use home::*;
 pub use explore::*;
+pub use defense::*;
 pub use profile::*;
 pub use plays::*;
 pub use game::*;

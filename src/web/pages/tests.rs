@@ -249,3 +249,54 @@ fn late_down_depths_match_a_hand_count() {
     let no_air = depth_view(depth_lines(None, &p, &v, "Tobin Vale", &situation).as_deref(), "Tobin Vale", "every snap", 588.0);
     assert!(no_air.rows.is_empty() && no_air.note.contains("no air yards"));
 }
+
+#[test]
+fn explorer_by_defense_names_teams_links_their_snaps_and_says_better_flips() {
+    let f = Fixture::new();
+    let pr = params("preset=every-snap&min=5&group=defense");
+    let table = splits::split_table(&f.plays, &f.values(), &pr.situation, pr.min_dropbacks);
+    let page = explore_view(chrome_for(&pr, None, None), &pr, &table, Vec::new());
+    assert!(!page.rows.is_empty());
+    // No team column beside a team: the league row has one cell per metric column.
+    assert_eq!(page.columns[0].short, "Defense");
+    assert_eq!(page.league.len(), page.columns.len() - 1);
+    assert!(page.group_note.contains("Better flips"), "{}", page.group_note);
+    for r in &page.rows {
+        assert!(f.plays.teams.contains(&r.passer), "{}", r.passer);
+        assert!(r.profile_href.starts_with("/defense?") && r.profile_href.contains(&format!("opponent={}", r.passer)), "{}", r.profile_href);
+        for c in &r.cells {
+            assert!(c.href.contains(&format!("opponent={}", r.passer)) && !c.href.contains("group="), "{}", c.href);
+        }
+    }
+}
+
+#[test]
+fn explorer_lowers_the_minimum_against_one_opponent() {
+    let team = Fixture::new().plays.teams[0].clone();
+    assert_eq!(params(&format!("preset=end-of-game&opponent={team}")).min_dropbacks, splits::DEFAULT_MIN_VS_ONE_DEFENSE);
+    assert_eq!(params(&format!("preset=end-of-game&opponent={team}&min=20")).min_dropbacks, 20);
+    assert_eq!(params(&format!("preset=end-of-game&team={team}")).min_dropbacks, splits::DEFAULT_MIN_DROPBACKS);
+    assert_eq!(params(&format!("preset=end-of-game&group=defense&opponent={team}")).min_dropbacks, splits::DEFAULT_MIN_DROPBACKS);
+}
+
+#[test]
+fn defense_view_lines_link_to_the_defense_snaps() {
+    let f = Fixture::new();
+    let team = f.plays.teams[1].clone();
+    let pr = params(&format!("preset=every-snap&min=5&opponent={team}&group=defense"));
+    let all = pr.situation.without_row_pick();
+    let table = splits::split_table_for(&f.plays, &f.values(), &all, pr.min_dropbacks, Some(&team));
+    let page = defense_view(chrome_for(&pr, None, None), &pr, &table, &f.plays.teams);
+    assert_eq!(page.team, team);
+    assert_eq!(page.lines.len(), DEFENSE_LINES.len());
+    let epa = &page.lines[0];
+    assert_eq!(epa.label, "EPA per dropback allowed");
+    assert_eq!(epa.better, "lower is better");
+    assert_eq!(page.lines.iter().find(|l| l.label.starts_with("Sacks")).map(|l| l.better), Some("higher is better"));
+    for l in &page.lines {
+        assert!(l.href.starts_with("/plays?") && l.href.contains(&format!("opponent={team}")) && l.href.contains("metric="), "{}", l.href);
+    }
+    assert!(page.headline.starts_with(&format!("{team} allowed")), "{}", page.headline);
+    assert_eq!(page.teams.iter().filter(|t| t.active).count(), 1);
+    assert_eq!(page.ranked, table.qualified().count());
+}
