@@ -69,7 +69,7 @@ pub(super) const C_LINE: usize = 26;
 
 struct Cells<'a> {
     t: &'a RawTable,
-    names: &'a Names<'a>,
+    names: &'a Names,
     fi: usize,
     row: usize,
     issues: &'a mut Vec<Issue>,
@@ -111,8 +111,9 @@ impl<'a> Cells<'a> {
             }
             return None;
         }
-        if self.names.too_long.get(code as usize).copied().unwrap_or(false) {
-            let v = self.names.name(code);
+        let names: &'a Names = self.names;
+        if names.too_long.get(code as usize).copied().unwrap_or(false) {
+            let v = names.name(code);
             self.bad(col, v, &format!("text of at most {NAME_MAX_CHARS} characters"));
             return None;
         }

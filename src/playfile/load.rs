@@ -89,11 +89,11 @@ pub fn load_mapped(path: &Path, opts: &LoadOptions, mapping: Option<&Mapping>) -
 const PARSE_CHUNK: usize = 16_384;
 
 /// Validate already-read tables (one per file).
-pub fn load_with(tables: Vec<RawTable>, opts: &LoadOptions, mut report: LoadReport) -> Result<Loaded, LoadError> {
+pub fn load_with(mut tables: Vec<RawTable>, opts: &LoadOptions, mut report: LoadReport) -> Result<Loaded, LoadError> {
     let started = std::time::Instant::now();
     let ms = |t: std::time::Instant| t.elapsed().as_secs_f64() * 1000.0;
     report.files = tables.iter().map(|t| t.file.clone()).collect();
-    let names = Names::build(&tables);
+    let names = Names::build(&mut tables);
     tracing::debug!(names = names.list.len(), "names numbered in {:.0} ms", ms(started));
     let total: usize = tables.iter().map(|t| t.height).sum();
     let mut rows = vec![Snap::EMPTY; total];
@@ -136,11 +136,9 @@ pub fn load_with(tables: Vec<RawTable>, opts: &LoadOptions, mut report: LoadRepo
         return Err(LoadError { report });
     }
     let tags = gather_tags(&tables, order.iter().map(|&i| &rows[i as usize].source));
-    // The file's columns are no longer needed: keep only the names.
-    let name_list: Vec<String> = names.list.iter().map(|s| s.to_string()).collect();
-    drop(names);
+    // The file's columns are no longer needed.
     drop(tables);
-    let name_refs: Vec<&str> = name_list.iter().map(String::as_str).collect();
+    let name_refs: Vec<&str> = names.list.iter().map(String::as_str).collect();
     let mut plays = Plays::from_snaps(report.files.clone(), &name_refs, &rows, &order);
     drop(rows);
     plays.tags = tags;

@@ -14,9 +14,9 @@ pub(super) const NAME_COLUMNS: [usize; 6] = [C_GAME, C_HOME, C_AWAY, C_OFFENSE, 
 /// Longest name accepted, in characters.
 pub(super) const NAME_MAX_CHARS: usize = 200;
 
-pub(super) struct Names<'a> {
+pub(super) struct Names {
     /// Distinct names in order of first appearance.
-    pub list: Vec<&'a str>,
+    pub list: Vec<String>,
     /// Per name: longer than `NAME_MAX_CHARS`.
     pub too_long: Vec<bool>,
     /// Per table, per `NAME_COLUMNS` entry, per row: the name's index, or
@@ -24,17 +24,20 @@ pub(super) struct Names<'a> {
     codes: Vec<[Vec<u32>; 6]>,
 }
 
-impl<'a> Names<'a> {
-    pub fn build(tables: &'a [RawTable]) -> Names<'a> {
-        let mut list: Vec<&'a str> = Vec::new();
-        let mut index: HashMap<&'a str, u32> = HashMap::new();
+impl Names {
+    /// Number the name columns of every table, taking them out of the
+    /// tables (their text is no longer needed).
+    pub fn build(tables: &mut [RawTable]) -> Names {
+        let mut list: Vec<String> = Vec::new();
+        let mut index: HashMap<String, u32> = HashMap::new();
         let mut codes = Vec::with_capacity(tables.len());
-        for t in tables {
+        for t in tables.iter_mut() {
+            let height = t.height;
             let per_column = NAME_COLUMNS.map(|col| {
-                let Some(Some(RawColumn::Text(c))) = t.columns.get(col) else {
-                    return vec![NO_NAME; t.height];
+                let Some(Some(RawColumn::Text(c))) = t.columns.get_mut(col).map(Option::take) else {
+                    return vec![NO_NAME; height];
                 };
-                let mut out = Vec::with_capacity(t.height);
+                let mut out = Vec::with_capacity(height);
                 // Names come in runs (a game's rows, a drive's offense):
                 // the previous cell answers most lookups.
                 let mut prev: (&str, u32) = ("", NO_NAME);
@@ -46,11 +49,12 @@ impl<'a> Names<'a> {
                     }
                     let code = if v.is_empty() {
                         NO_NAME
+                    } else if let Some(&code) = index.get(v) {
+                        code
                     } else {
-                        *index.entry(v).or_insert_with(|| {
-                            list.push(v);
-                            list.len() as u32 - 1
-                        })
+                        list.push(v.to_string());
+                        index.insert(v.to_string(), list.len() as u32 - 1);
+                        list.len() as u32 - 1
                     };
                     prev = (v, code);
                     out.push(code);
@@ -70,7 +74,7 @@ impl<'a> Names<'a> {
         self.codes[table][k].get(row).copied().unwrap_or(NO_NAME)
     }
 
-    pub fn name(&self, code: u32) -> &'a str {
-        self.list.get(code as usize).copied().unwrap_or("")
+    pub fn name(&self, code: u32) -> &str {
+        self.list.get(code as usize).map_or("", String::as_str)
     }
 }

@@ -311,19 +311,19 @@ fn to_table(name: &str, df: DataFrame) -> Result<RawTable, Vec<Issue>> {
 /// file as it is (the cell checks read its values directly), anything else
 /// as text.
 fn raw_column(name: &str, ours: &str, col: &Column) -> Result<RawColumn, Vec<Issue>> {
-    let typed = if TEXT_COLUMNS.contains(&ours) {
-        None
-    } else {
-        match col.dtype() {
-            DataType::Int32 => col.i32().ok().map(|c| RawColumn::Int32(c.rechunk().into_owned())),
-            DataType::Int64 => col.i64().ok().map(|c| RawColumn::Int64(c.rechunk().into_owned())),
-            DataType::Float64 => col.f64().ok().map(|c| RawColumn::Float64(c.rechunk().into_owned())),
-            DataType::Boolean => col.bool().ok().map(|c| RawColumn::Bool(c.rechunk().into_owned())),
-            _ => None,
-        }
+    // Kept in the reader's chunks (one per row group): a copy in one piece
+    // would double the file's memory while the frame is alive.
+    let as_is = match col.dtype() {
+        DataType::String => col.str().ok().map(|c| RawColumn::Text(c.clone())),
+        _ if TEXT_COLUMNS.contains(&ours) => None,
+        DataType::Int32 => col.i32().ok().map(|c| RawColumn::Int32(c.clone())),
+        DataType::Int64 => col.i64().ok().map(|c| RawColumn::Int64(c.clone())),
+        DataType::Float64 => col.f64().ok().map(|c| RawColumn::Float64(c.clone())),
+        DataType::Boolean => col.bool().ok().map(|c| RawColumn::Bool(c.clone())),
+        _ => None,
     };
-    match typed {
-        Some(t) => Ok(t),
+    match as_is {
+        Some(c) => Ok(c),
         None => text_of(name, col).map(RawColumn::Text),
     }
 }
