@@ -64,9 +64,12 @@ fn main() -> anyhow::Result<()> {
     println!("write parquet            {:>9.2} s", t.elapsed().as_secs_f64());
     drop(out);
 
+    // The simulator's rows are gone: count the peak from here on.
+    let _ = std::fs::write("/proc/self/clear_refs", "5");
+    let before = rss_mib();
     let t = Instant::now();
     let loaded = playfile::load(&path, &LoadOptions::default())?;
-    println!("load + validate          {:>9.2} s", t.elapsed().as_secs_f64());
+    println!("load + validate          {:>9.2} s   (peak RSS {:.0} MiB, {:.0} MiB before)", t.elapsed().as_secs_f64(), rss_mib(), before);
     let fp = loaded.fingerprint.clone();
     let t = Instant::now();
     let scored = lategame::models::fit_and_score_in(loaded.plays, &fp, true, league_cfg.cache_dir.as_deref())?;

@@ -83,11 +83,84 @@ impl Game {
 }
 
 /// Where a snap came from, for messages and the cut-up.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct Source {
     pub file: u16,
     /// 1-based data row within that file.
     pub row: u32,
+}
+
+/// Marker for "no name" in a `Snap`'s name fields.
+pub const NO_NAME: u32 = u32::MAX;
+
+/// One validated snap as `Plays::from_snaps` takes it: its game, teams and
+/// passer as indices into a list of names (`NO_NAME` for no passer), and
+/// its values as `Plays` keeps them (0 for no down or gain, false for an
+/// empty flag).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Snap {
+    pub game: u32,
+    pub home: u32,
+    pub away: u32,
+    pub offense: u32,
+    pub defense: u32,
+    pub passer: u32,
+    pub season: i32,
+    pub week: i32,
+    pub seq: i32,
+    pub period: i32,
+    pub clock: i32,
+    pub off_score: i32,
+    pub def_score: i32,
+    pub off_timeouts: i32,
+    pub def_timeouts: i32,
+    pub down: i32,
+    pub to_go: i32,
+    pub ball_on: i32,
+    pub gain: i32,
+    pub points: i32,
+    pub air_yards: Option<i32>,
+    pub home_line: Option<f64>,
+    pub kind: Kind,
+    pub complete: bool,
+    pub intercepted: bool,
+    pub fumble_lost: bool,
+    pub touchback: bool,
+    pub source: Source,
+}
+
+impl Snap {
+    /// A placeholder (a row not yet parsed, or refused).
+    pub const EMPTY: Snap = Snap {
+        game: NO_NAME,
+        home: NO_NAME,
+        away: NO_NAME,
+        offense: NO_NAME,
+        defense: NO_NAME,
+        passer: NO_NAME,
+        season: 0,
+        week: 0,
+        seq: 0,
+        period: 0,
+        clock: 0,
+        off_score: 0,
+        def_score: 0,
+        off_timeouts: 0,
+        def_timeouts: 0,
+        down: 0,
+        to_go: 0,
+        ball_on: 0,
+        gain: 0,
+        points: 0,
+        air_yards: None,
+        home_line: None,
+        kind: Kind::Pass,
+        complete: false,
+        intercepted: false,
+        fumble_lost: false,
+        touchback: false,
+        source: Source { file: 0, row: 0 },
+    };
 }
 
 /// Marker for "empty" in `Tags::codes`.
@@ -307,31 +380,112 @@ impl Plays {
     /// Build from rows already sorted by (game, seq) and already validated.
     /// `sources` gives each row's origin. Derives every derived column.
     pub fn from_rows(files: Vec<String>, rows: &[PlayRow], sources: Vec<Source>) -> Plays {
-        let mut p = Plays {
-            files,
-            ..Plays::default()
-        };
-        let mut team_ids = std::collections::HashMap::<String, u16>::new();
-        let mut passer_ids = std::collections::HashMap::<String, u32>::new();
-        let mut intern_team = |p: &mut Plays, s: &str| -> u16 {
-            if let Some(&id) = team_ids.get(s) {
-                return id;
+        fn intern<'r>(names: &mut Vec<&'r str>, ids: &mut std::collections::HashMap<&'r str, u32>, s: &'r str) -> u32 {
+            *ids.entry(s).or_insert_with(|| {
+                names.push(s);
+                names.len() as u32 - 1
+            })
+        }
+        let mut names: Vec<&str> = Vec::new();
+        let mut ids = std::collections::HashMap::new();
+        let mut snaps = Vec::with_capacity(rows.len());
+        for (r, source) in rows.iter().zip(sources) {
+            let mut code = |s| intern(&mut names, &mut ids, s);
+            let passer = match r.passer.as_deref() {
+                Some(name) if !name.is_empty() => code(name),
+                _ => NO_NAME,
+            };
+            snaps.push(Snap {
+                game: code(&r.game),
+                home: code(&r.home),
+                away: code(&r.away),
+                offense: code(&r.offense),
+                defense: code(&r.defense),
+                passer,
+                season: r.season,
+                week: r.week,
+                seq: r.seq,
+                period: r.period,
+                clock: r.clock,
+                off_score: r.off_score,
+                def_score: r.def_score,
+                off_timeouts: r.off_timeouts,
+                def_timeouts: r.def_timeouts,
+                down: r.down.unwrap_or(0),
+                to_go: if r.down.is_some() { r.to_go.unwrap_or(0) } else { 0 },
+                ball_on: r.ball_on,
+                gain: r.gain.unwrap_or(0),
+                points: r.points,
+                air_yards: r.air_yards,
+                home_line: r.home_line,
+                kind: r.kind,
+                complete: r.complete.unwrap_or(false),
+                intercepted: r.intercepted.unwrap_or(false),
+                fumble_lost: r.fumble_lost.unwrap_or(false),
+                touchback: r.touchback.unwrap_or(false),
+                source,
+            });
+        }
+        let order: Vec<u32> = (0..snaps.len() as u32).collect();
+        Plays::from_snaps(files, &names, &snaps, &order)
+    }
+
+    /// Build from the snaps `rows[order[0]], rows[order[1]], ...`, already
+    /// sorted by (game, seq) and validated; their names index `names`.
+    /// Teams and passers are numbered in order of first appearance (a
+    /// game's home and away team, then each snap's offense and defense).
+    /// Derives every derived column.
+    pub fn from_snaps(files: Vec<String>, names: &[&str], rows: &[Snap], order: &[u32]) -> Plays {
+        let n = order.len();
+        let mut p = Plays { files, ..Plays::default() };
+        p.game.reserve_exact(n);
+        p.seq.reserve_exact(n);
+        p.season.reserve_exact(n);
+        p.week.reserve_exact(n);
+        p.period.reserve_exact(n);
+        p.clock.reserve_exact(n);
+        p.offense.reserve_exact(n);
+        p.defense.reserve_exact(n);
+        p.off_score.reserve_exact(n);
+        p.def_score.reserve_exact(n);
+        p.off_timeouts.reserve_exact(n);
+        p.def_timeouts.reserve_exact(n);
+        p.down.reserve_exact(n);
+        p.to_go.reserve_exact(n);
+        p.ball_on.reserve_exact(n);
+        p.kind.reserve_exact(n);
+        p.passer.reserve_exact(n);
+        p.complete.reserve_exact(n);
+        p.intercepted.reserve_exact(n);
+        p.air_yards.reserve_exact(n);
+        p.gain.reserve_exact(n);
+        p.fumble_lost.reserve_exact(n);
+        p.touchback.reserve_exact(n);
+        p.points.reserve_exact(n);
+        p.source.reserve_exact(n);
+        p.off_home.reserve_exact(n);
+        // Name index → team or passer id (u32::MAX: not seen yet).
+        let mut team_of = vec![u32::MAX; names.len()];
+        let mut passer_of = vec![u32::MAX; names.len()];
+        let mut team = |p: &mut Plays, c: u32| -> u16 {
+            let slot = &mut team_of[c as usize];
+            if *slot == u32::MAX {
+                *slot = p.teams.len() as u32;
+                p.teams.push(names[c as usize].to_string());
             }
-            let id = p.teams.len() as u16;
-            p.teams.push(s.to_string());
-            team_ids.insert(s.to_string(), id);
-            id
+            *slot as u16
         };
-        for (i, r) in rows.iter().enumerate() {
-            let new_game = i == 0 || rows[i - 1].game != r.game;
+        for (i, &k) in order.iter().enumerate() {
+            let r = &rows[k as usize];
+            let new_game = i == 0 || rows[order[i - 1] as usize].game != r.game;
             if new_game {
                 if let Some(g) = p.games.last_mut() {
                     g.end = i;
                 }
-                let home = intern_team(&mut p, &r.home);
-                let away = intern_team(&mut p, &r.away);
+                let home = team(&mut p, r.home);
+                let away = team(&mut p, r.away);
                 p.games.push(Game {
-                    key: r.game.clone(),
+                    key: names[r.game as usize].to_string(),
                     season: r.season,
                     week: r.week,
                     home,
@@ -344,18 +498,17 @@ impl Plays {
                 });
             }
             let gi = p.games.len() as u32 - 1;
-            let offense = intern_team(&mut p, &r.offense);
-            let defense = intern_team(&mut p, &r.defense);
-            let passer = match &r.passer {
-                Some(name) if !name.is_empty() => {
-                    let next = passer_ids.len() as u32;
-                    let id = *passer_ids.entry(name.clone()).or_insert(next);
-                    if id == next {
-                        p.passers.push(name.clone());
-                    }
-                    id
+            let offense = team(&mut p, r.offense);
+            let defense = team(&mut p, r.defense);
+            let passer = if r.passer == NO_NAME {
+                NO_PASSER
+            } else {
+                let slot = &mut passer_of[r.passer as usize];
+                if *slot == u32::MAX {
+                    *slot = p.passers.len() as u32;
+                    p.passers.push(names[r.passer as usize].to_string());
                 }
-                _ => NO_PASSER,
+                *slot
             };
             p.game.push(gi);
             p.seq.push(r.seq);
@@ -369,24 +522,24 @@ impl Plays {
             p.def_score.push(r.def_score);
             p.off_timeouts.push(r.off_timeouts);
             p.def_timeouts.push(r.def_timeouts);
-            p.down.push(r.down.unwrap_or(0));
-            p.to_go.push(if r.down.is_some() { r.to_go.unwrap_or(0) } else { 0 });
+            p.down.push(r.down);
+            p.to_go.push(r.to_go);
             p.ball_on.push(r.ball_on);
             p.kind.push(r.kind);
             p.passer.push(passer);
-            p.complete.push(r.complete.unwrap_or(false));
-            p.intercepted.push(r.intercepted.unwrap_or(false));
+            p.complete.push(r.complete);
+            p.intercepted.push(r.intercepted);
             p.air_yards.push(r.air_yards);
-            p.gain.push(r.gain.unwrap_or(0));
-            p.fumble_lost.push(r.fumble_lost.unwrap_or(false));
-            p.touchback.push(r.touchback.unwrap_or(false));
+            p.gain.push(r.gain);
+            p.fumble_lost.push(r.fumble_lost);
+            p.touchback.push(r.touchback);
             p.points.push(r.points);
+            p.source.push(r.source);
             p.off_home.push(r.offense == r.home);
         }
         if let Some(g) = p.games.last_mut() {
-            g.end = rows.len();
+            g.end = n;
         }
-        p.source = sources;
         p.derive();
         p
     }

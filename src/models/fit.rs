@@ -107,15 +107,18 @@ pub fn fit_rows_from(plays: &Plays, rows: &[u32], init: Option<&Models>) -> Resu
 
 impl Models {
     /// Score every snap of `plays`.
+    /// The three passes are independent: they run side by side on rayon's
+    /// threads (each value is computed as alone, so the scores are the same).
     pub fn score(&self, plays: &Plays) -> Scores {
-        let ep = self.ep.score_all(plays);
+        let ((ep, wp), cp) = rayon::join(
+            || rayon::join(|| self.ep.score_all(plays), || self.wp.score_all(plays, &self.ep.score_all_blind(plays))),
+            || match &self.cp {
+                Some(m) => m.score_all(plays),
+                None => vec![f64::NAN; plays.len()],
+            },
+        );
         let epa = ep::epa(plays, &ep);
-        let wp = self.wp.score_all(plays, &self.ep.score_all_blind(plays));
         let wpa = wp::wpa(plays, &wp);
-        let cp = match &self.cp {
-            Some(m) => m.score_all(plays),
-            None => vec![f64::NAN; plays.len()],
-        };
         Scores {
             ep,
             epa,

@@ -1,67 +1,76 @@
 //! Cell parsing: every cell of a row against its column's rule, with a
-//! coach-readable message for each bad one. Turns a row of text into a
-//! `PlayRow` when every cell is valid.
+//! coach-readable message for each bad one. Turns a row into a `Snap` when
+//! every cell is valid. A typed Parquet cell is read as it is; its text (for
+//! a message) is made only when it is bad.
 
-use super::read::RawTable;
+use super::names::{Names, NAME_MAX_CHARS};
+use super::read::{Cell, RawTable};
 use super::report::{Issue, IssueKind};
-use super::{Kind, PlayRow, COLUMNS};
-use crate::plays::Source;
+use super::{Kind, COLUMNS};
+use crate::plays::{Snap, Source, NO_NAME};
 
-/// Parse rows `range` of one table: the valid rows, and every issue found.
-pub(super) fn parse_rows(t: &RawTable, fi: usize, range: std::ops::Range<usize>) -> (Vec<(PlayRow, Source)>, Vec<Issue>) {
-    let mut rows = Vec::with_capacity(range.len());
+/// Parse the rows of `out` (table `fi`'s rows from `first` on) into it:
+/// each valid row's snap, `Snap::EMPTY` and `false` in `ok` for the
+/// others. Returns every issue found, in row order.
+pub(super) fn parse_rows(t: &RawTable, fi: usize, names: &Names, first: usize, out: &mut [Snap], ok: &mut [bool]) -> Vec<Issue> {
     let mut all = Vec::new();
     // What a mapping could not read in these rows, reported in row order.
     let pre: &[Issue] = t.mapped.as_ref().map(|m| m.issues.as_slice()).unwrap_or(&[]);
-    let mut next_pre = pre.partition_point(|i| i.row.is_some_and(|x| x <= range.start));
-    for r in range {
-        let mut issues = Vec::new();
+    let mut next_pre = pre.partition_point(|i| i.row.is_some_and(|x| x <= first));
+    let mut issues = Vec::new();
+    for (k, (slot, good)) in out.iter_mut().zip(ok.iter_mut()).enumerate() {
+        let r = first + k;
         let mut skip = false;
         while next_pre < pre.len() && pre[next_pre].row == Some(r + 1) {
             issues.push(pre[next_pre].clone());
             next_pre += 1;
             skip = true;
         }
-        if let Some(row) = parse_row(t, r, &mut issues) {
+        let snap = parse_row(t, fi, names, r, &mut issues);
+        *good = false;
+        if let Some(snap) = snap {
             if issues.is_empty() && !skip {
-                rows.push((row, Source { file: fi as u16, row: (r + 1) as u32 }));
+                *slot = snap;
+                *good = true;
             }
         }
         all.append(&mut issues);
     }
-    (rows, all)
+    all
 }
 
-const C_GAME: usize = 0;
-const C_SEASON: usize = 1;
-const C_WEEK: usize = 2;
-const C_HOME: usize = 3;
-const C_AWAY: usize = 4;
-const C_SEQ: usize = 5;
-const C_PERIOD: usize = 6;
-const C_CLOCK: usize = 7;
-const C_OFFENSE: usize = 8;
-const C_DEFENSE: usize = 9;
-const C_OFF_SCORE: usize = 10;
-const C_DEF_SCORE: usize = 11;
-const C_OFF_TO: usize = 12;
-const C_DEF_TO: usize = 13;
-const C_DOWN: usize = 14;
-const C_TO_GO: usize = 15;
-const C_BALL_ON: usize = 16;
-const C_KIND: usize = 17;
-const C_PASSER: usize = 18;
-const C_COMPLETE: usize = 19;
-const C_INTERCEPTED: usize = 20;
-const C_AIR: usize = 21;
-const C_GAIN: usize = 22;
-const C_FUMBLE: usize = 23;
-const C_TOUCHBACK: usize = 24;
-const C_POINTS: usize = 25;
-const C_LINE: usize = 26;
+pub(super) const C_GAME: usize = 0;
+pub(super) const C_SEASON: usize = 1;
+pub(super) const C_WEEK: usize = 2;
+pub(super) const C_HOME: usize = 3;
+pub(super) const C_AWAY: usize = 4;
+pub(super) const C_SEQ: usize = 5;
+pub(super) const C_PERIOD: usize = 6;
+pub(super) const C_CLOCK: usize = 7;
+pub(super) const C_OFFENSE: usize = 8;
+pub(super) const C_DEFENSE: usize = 9;
+pub(super) const C_OFF_SCORE: usize = 10;
+pub(super) const C_DEF_SCORE: usize = 11;
+pub(super) const C_OFF_TO: usize = 12;
+pub(super) const C_DEF_TO: usize = 13;
+pub(super) const C_DOWN: usize = 14;
+pub(super) const C_TO_GO: usize = 15;
+pub(super) const C_BALL_ON: usize = 16;
+pub(super) const C_KIND: usize = 17;
+pub(super) const C_PASSER: usize = 18;
+pub(super) const C_COMPLETE: usize = 19;
+pub(super) const C_INTERCEPTED: usize = 20;
+pub(super) const C_AIR: usize = 21;
+pub(super) const C_GAIN: usize = 22;
+pub(super) const C_FUMBLE: usize = 23;
+pub(super) const C_TOUCHBACK: usize = 24;
+pub(super) const C_POINTS: usize = 25;
+pub(super) const C_LINE: usize = 26;
 
 struct Cells<'a> {
     t: &'a RawTable,
+    names: &'a Names,
+    fi: usize,
     row: usize,
     issues: &'a mut Vec<Issue>,
 }
@@ -83,44 +92,51 @@ impl<'a> Cells<'a> {
             message: format!("{} is {}; expected {expected}", self.t.label(col), show(value)),
         });
     }
-    fn raw(&self, col: usize) -> Option<&'a str> {
-        let t: &'a RawTable = self.t;
-        t.cell(col, self.row)
+    /// `bad` with the cell's own text.
+    fn bad_cell(&mut self, col: usize, expected: &str) {
+        let v = self.t.text(col, self.row).map(|v| v.into_owned()).unwrap_or_default();
+        self.bad(col, &v, expected);
     }
-    fn text(&mut self, col: usize, required: bool) -> Option<String> {
-        match self.raw(col) {
-            Some(v) if v.chars().count() <= 200 => Some(v.to_string()),
-            Some(v) => {
-                let v = v.to_string();
-                self.bad(col, &v, "text of at most 200 characters");
-                None
+    fn value(&self, col: usize) -> Option<Cell<'a>> {
+        let t: &'a RawTable = self.t;
+        t.value(col, self.row)
+    }
+    /// A name (game, team, passer): its index in `Names`, `None` when empty
+    /// (an error too if `required`) or too long.
+    fn name(&mut self, k: usize, col: usize, required: bool) -> Option<u32> {
+        let code = self.names.code(self.fi, k, self.row);
+        if code == NO_NAME {
+            if required {
+                self.bad(col, "", "a value");
             }
-            None => {
-                if required {
-                    self.bad(col, "", "a value");
-                }
-                None
-            }
+            return None;
         }
+        let names: &'a Names = self.names;
+        if names.too_long.get(code as usize).copied().unwrap_or(false) {
+            let v = names.name(code);
+            self.bad(col, v, &format!("text of at most {NAME_MAX_CHARS} characters"));
+            return None;
+        }
+        Some(code)
     }
     /// An integer in lo..=hi; `None` when empty (an error too if `required`).
     fn int(&mut self, col: usize, lo: i64, hi: i64, required: bool, expected: &str) -> Option<i32> {
-        let Some(v) = self.raw(col) else {
+        let Some(v) = self.value(col) else {
             if required {
                 self.bad(col, "", expected);
             }
             return None;
         };
-        match parse_int(v) {
+        match whole(v) {
             Some(x) if x >= lo && x <= hi => Some(x as i32),
             _ => {
-                self.bad(col, v, expected);
+                self.bad_cell(col, expected);
                 None
             }
         }
     }
     fn boolean(&mut self, col: usize, required: bool, expected: &str) -> Option<bool> {
-        let Some(v) = self.raw(col) else {
+        let Some(v) = self.value(col) else {
             if required {
                 self.bad(col, "", expected);
             }
@@ -128,15 +144,33 @@ impl<'a> Cells<'a> {
         };
         const TRUE: [&str; 5] = ["true", "t", "1", "yes", "y"];
         const FALSE: [&str; 5] = ["false", "f", "0", "no", "n"];
-        if TRUE.iter().any(|w| v.eq_ignore_ascii_case(w)) {
-            Some(true)
-        } else if FALSE.iter().any(|w| v.eq_ignore_ascii_case(w)) {
-            Some(false)
-        } else {
-            self.bad(col, v, expected);
-            None
+        match v {
+            Cell::Bool(b) => Some(b),
+            Cell::Text(v) if TRUE.iter().any(|w| v.eq_ignore_ascii_case(w)) => Some(true),
+            Cell::Text(v) if FALSE.iter().any(|w| v.eq_ignore_ascii_case(w)) => Some(false),
+            Cell::Int(1) => Some(true),
+            Cell::Int(0) => Some(false),
+            _ => {
+                self.bad_cell(col, expected);
+                None
+            }
         }
     }
+}
+
+/// A cell as a whole number: an integer, or a decimal with nothing after
+/// the point ("7.0", as Parquet float columns read); `None` otherwise.
+fn whole(v: Cell) -> Option<i64> {
+    match v {
+        Cell::Int(x) => Some(x),
+        Cell::Float(f) => whole_float(f),
+        Cell::Text(v) => parse_int(v),
+        Cell::Bool(_) => None,
+    }
+}
+
+fn whole_float(f: f64) -> Option<i64> {
+    (f.is_finite() && f.fract() == 0.0 && f.abs() < 1e15).then_some(f as i64)
 }
 
 fn show(v: &str) -> String {
@@ -157,10 +191,7 @@ fn parse_int(v: &str) -> Option<i64> {
         return Some(x);
     }
     // Parquet float columns read as "7.0".
-    match v.parse::<f64>() {
-        Ok(f) if f.is_finite() && f.fract() == 0.0 && f.abs() < 1e15 => Some(f as i64),
-        _ => None,
-    }
+    v.parse::<f64>().ok().and_then(whole_float)
 }
 
 /// `M:SS` or whole seconds.
@@ -176,51 +207,50 @@ fn parse_clock(v: &str) -> Option<i64> {
     parse_int(v)
 }
 
-fn parse_row(t: &RawTable, r: usize, issues: &mut Vec<Issue>) -> Option<PlayRow> {
-    let mut c = Cells { t, row: r, issues };
-    let game = c.text(C_GAME, true);
+fn parse_row(t: &RawTable, fi: usize, names: &Names, r: usize, issues: &mut Vec<Issue>) -> Option<Snap> {
+    let mut c = Cells { t, names, fi, row: r, issues };
+    let game = c.name(0, C_GAME, true);
     let season = c.int(C_SEASON, 1, 9999, true, "a season year 1-9999");
     let week = c.int(C_WEEK, 1, 30, true, "a week 1-30");
-    let home = c.text(C_HOME, true);
-    let away = c.text(C_AWAY, true);
+    let home = c.name(1, C_HOME, true);
+    let away = c.name(2, C_AWAY, true);
     let seq = c.int(C_SEQ, 0, 1_000_000, true, "a snap number 0-1,000,000");
     let period = c.int(C_PERIOD, 1, 9, true, "a period 1-9 (5 and up is overtime)");
-    let clock = match c.raw(C_CLOCK).map(str::to_string) {
+    const CLOCK: &str = "M:SS or whole seconds 0-900";
+    let clock = match c.value(C_CLOCK) {
         None => {
-            c.bad(C_CLOCK, "", "M:SS or whole seconds 0-900");
+            c.bad(C_CLOCK, "", CLOCK);
             None
         }
-        Some(v) => match parse_clock(&v) {
+        Some(v) => match clock_secs(v) {
             Some(s) if (0..=900).contains(&s) => Some(s as i32),
             _ => {
-                c.bad(C_CLOCK, &v, "M:SS or whole seconds 0-900");
+                c.bad_cell(C_CLOCK, CLOCK);
                 None
             }
         },
     };
-    let offense = c.text(C_OFFENSE, true);
-    let defense = c.text(C_DEFENSE, true);
+    let offense = c.name(3, C_OFFENSE, true);
+    let defense = c.name(4, C_DEFENSE, true);
     let off_score = c.int(C_OFF_SCORE, 0, 300, true, "points 0-300");
     let def_score = c.int(C_DEF_SCORE, 0, 300, true, "points 0-300");
     let off_timeouts = c.int(C_OFF_TO, 0, 3, true, "0-3");
     let def_timeouts = c.int(C_DEF_TO, 0, 3, true, "0-3");
-    let kind_raw = c.raw(C_KIND).map(str::to_string);
-    let kind = match kind_raw.as_deref().and_then(|k| Kind::parse(&k.to_ascii_lowercase())) {
-        Some(k) => Some(k),
-        None => {
-            let v = kind_raw.clone().unwrap_or_default();
-            c.bad(C_KIND, &v, "one of pass, sack, scramble, run, punt, field_goal, kickoff, extra_point, two_point, kneel, spike, penalty");
-            None
-        }
+    let kind = match c.value(C_KIND) {
+        Some(Cell::Text(k)) => Kind::ALL.iter().copied().find(|x| x.as_str().eq_ignore_ascii_case(k)),
+        _ => None,
     };
+    if kind.is_none() {
+        c.bad_cell(C_KIND, "one of pass, sack, scramble, run, punt, field_goal, kickoff, extra_point, two_point, kneel, spike, penalty");
+    }
     let downless = kind.map(|k| k.is_downless()).unwrap_or(false);
     let down = if downless {
-        match c.raw(C_DOWN).map(str::to_string) {
+        match c.value(C_DOWN) {
             None => None,
-            Some(v) if parse_int(&v) == Some(0) => None,
-            Some(v) => {
+            Some(v) if whole(v) == Some(0) => None,
+            Some(_) => {
                 let k = kind.map(|k| k.as_str()).unwrap_or("");
-                c.bad(C_DOWN, &v, &format!("empty on a {k} snap"));
+                c.bad_cell(C_DOWN, &format!("empty on a {k} snap"));
                 None
             }
         }
@@ -247,7 +277,7 @@ fn parse_row(t: &RawTable, r: usize, issues: &mut Vec<Issue>) -> Option<PlayRow>
     } else {
         None
     };
-    let passer = c.text(C_PASSER, false);
+    let passer = c.name(5, C_PASSER, false);
     if let Some(k) = kind {
         if k.needs_passer() && passer.is_none() {
             c.bad(C_PASSER, "", &format!("a passer name on a {} snap", k.as_str()));
@@ -285,59 +315,80 @@ fn parse_row(t: &RawTable, r: usize, issues: &mut Vec<Issue>) -> Option<PlayRow>
             c.bad(C_POINTS, &p.to_string(), &what);
         }
     }
-    let home_line = match c.raw(C_LINE).map(str::to_string) {
+    let home_line = match c.value(C_LINE) {
         None => None,
-        Some(v) => match v.parse::<f64>() {
-            Ok(x) if x.is_finite() && x.abs() <= 80.0 => Some(x),
+        Some(v) => match real(v) {
+            Some(x) if x.is_finite() && x.abs() <= 80.0 => Some(x),
             _ => {
-                c.bad(C_LINE, &v, "a number of points -80 to 80 or empty");
+                c.bad_cell(C_LINE, "a number of points -80 to 80 or empty");
                 None
             }
         },
     };
     // Team consistency within the row.
-    if let (Some(h), Some(a)) = (&home, &away) {
+    if let (Some(h), Some(a)) = (home, away) {
+        let name = |x: u32| names.name(x);
         if h == a {
-            c.bad(C_AWAY, a, "a team other than the home team");
+            c.bad(C_AWAY, name(a), "a team other than the home team");
         }
-        if let Some(o) = &offense {
+        if let Some(o) = offense {
             if o != h && o != a {
-                c.bad(C_OFFENSE, o, &format!("the home team {h} or the away team {a}"));
-            } else if let Some(d) = &defense {
+                c.bad(C_OFFENSE, name(o), &format!("the home team {} or the away team {}", name(h), name(a)));
+            } else if let Some(d) = defense {
                 let other = if o == h { a } else { h };
                 if d != other {
-                    c.bad(C_DEFENSE, d, &format!("{other}, the team not on offense"));
+                    c.bad(C_DEFENSE, name(d), &format!("{}, the team not on offense", name(other)));
                 }
             }
         }
     }
-    Some(PlayRow {
+    let kind = kind?;
+    Some(Snap {
         game: game?,
-        season: season?,
-        week: week?,
         home: home?,
         away: away?,
+        offense: offense?,
+        defense: defense?,
+        passer: if kind.needs_passer() { passer.unwrap_or(NO_NAME) } else { NO_NAME },
+        season: season?,
+        week: week?,
         seq: seq?,
         period: period?,
         clock: clock?,
-        offense: offense?,
-        defense: defense?,
         off_score: off_score?,
         def_score: def_score?,
         off_timeouts: off_timeouts?,
         def_timeouts: def_timeouts?,
-        down,
-        to_go,
+        down: down.unwrap_or(0),
+        to_go: to_go.unwrap_or(0),
         ball_on: ball_on?,
-        kind: kind?,
-        passer: if kind?.needs_passer() { passer } else { None },
-        complete: if is_pass { complete } else { None },
-        intercepted: if is_pass { intercepted } else { None },
-        air_yards: if is_pass { air_yards } else { None },
-        gain,
-        fumble_lost,
-        touchback,
+        gain: gain.unwrap_or(0),
         points: points?,
+        air_yards: if is_pass { air_yards } else { None },
         home_line,
+        kind,
+        complete: is_pass && complete == Some(true),
+        intercepted: is_pass && intercepted == Some(true),
+        fumble_lost: fumble_lost.unwrap_or(false),
+        touchback: touchback.unwrap_or(false),
+        source: Source { file: fi as u16, row: (r + 1) as u32 },
     })
+}
+
+/// A clock cell in seconds: `M:SS` text, or whole seconds.
+fn clock_secs(v: Cell) -> Option<i64> {
+    match v {
+        Cell::Text(t) => parse_clock(t),
+        other => whole(other),
+    }
+}
+
+/// A cell as any number.
+fn real(v: Cell) -> Option<f64> {
+    match v {
+        Cell::Float(x) => Some(x),
+        Cell::Int(x) => Some(x as f64),
+        Cell::Text(t) => t.parse::<f64>().ok(),
+        Cell::Bool(_) => None,
+    }
 }

@@ -2,53 +2,49 @@
 //! line on every row, `seq` increasing, periods in order, the clock not
 //! running backwards, scores never going down). A row that breaks one is dropped.
 
+use super::names::Names;
 use super::read::RawTable;
 use super::report::{Issue, IssueKind, LoadReport};
 use crate::numfmt::thousands as group;
-use super::{format_clock, PlayRow, COLUMNS};
-use crate::plays::Source;
-use std::collections::HashMap;
+use super::{format_clock, COLUMNS};
+use crate::plays::{Snap, Source};
 
-/// Cross-row checks per game (in file order). A row that breaks one is
-/// reported and dropped; later rows are compared with the last kept row.
-/// Returns the kept rows sorted by season, week, game key and seq.
-pub(super) fn check_games(rows: Vec<(PlayRow, Source)>, tables: &[RawTable], report: &mut LoadReport) -> Vec<(PlayRow, Source)> {
-    // Group rows by game, keeping file order within a game. Rows of a game
-    // usually come together, so the map is consulted only when the key changes.
-    let mut index: HashMap<String, usize> = HashMap::new();
-    let mut groups: Vec<Vec<(PlayRow, Source)>> = Vec::new();
-    let mut last: Option<usize> = None;
-    for (row, src) in rows {
-        let g = match last {
-            Some(g) if groups[g][0].0.game == row.game => g,
-            _ => match index.get(&row.game) {
-                Some(&g) => g,
-                None => {
-                    index.insert(row.game.clone(), groups.len());
-                    groups.push(Vec::new());
-                    groups.len() - 1
-                }
-            },
-        };
-        groups[g].push((row, src));
-        last = Some(g);
+/// Cross-row checks per game (in file order) over the rows of `rows` that
+/// are `ok`. A row that breaks one is reported and dropped; later rows are
+/// compared with the last kept row. Returns the kept rows (indices into
+/// `rows`) sorted by season, week, game key and seq.
+pub(super) fn check_games(rows: &[Snap], ok: &[bool], names: &Names, tables: &[RawTable], report: &mut LoadReport) -> Vec<u32> {
+    // Group rows by game, keeping file order within a game.
+    let mut group_of = vec![u32::MAX; names.list.len()];
+    let mut groups: Vec<Vec<u32>> = Vec::new();
+    for (i, row) in rows.iter().enumerate() {
+        if !ok[i] {
+            continue;
+        }
+        let Some(slot) = group_of.get_mut(row.game as usize) else { continue };
+        if *slot == u32::MAX {
+            *slot = groups.len() as u32;
+            groups.push(Vec::new());
+        }
+        groups[*slot as usize].push(i as u32);
     }
-    let mut kept_games: Vec<Vec<(PlayRow, Source)>> = Vec::with_capacity(groups.len());
-    for rows in groups {
-        let mut kept: Vec<(PlayRow, Source)> = Vec::with_capacity(rows.len());
-        for (row, src) in rows {
-            let issue = kept.last().map(|(prev, psrc)| compare(&kept[0].0, &kept[0].1, prev, psrc, &row, src.file, tables)).unwrap_or(None);
+    let mut kept_games: Vec<Vec<u32>> = Vec::with_capacity(groups.len());
+    for members in groups {
+        let mut kept: Vec<u32> = Vec::with_capacity(members.len());
+        for i in members {
+            let row = &rows[i as usize];
+            let issue = kept.last().and_then(|&prev| compare(&rows[kept[0] as usize], &rows[prev as usize], row, names, tables));
             match issue {
                 Some((kind, col, msg)) => {
-                    let t = &tables[src.file as usize];
+                    let t = &tables[row.source.file as usize];
                     // Through a mapping, the message names their column.
                     let (column, message) = match t.mapped.as_ref().and_then(|m| COLUMNS.iter().position(|c| c.name == col).and_then(|ci| m.labels.get(ci))) {
                         Some(theirs) => (theirs.clone(), msg.replacen(&format!("column {col}"), &format!("their column {theirs}"), 1)),
                         None => (col.to_string(), msg),
                     };
-                    report.push(Issue { file: t.file.clone(), row: Some(src.row as usize), column: Some(column), kind, message })
+                    report.push(Issue { file: t.file.clone(), row: Some(row.source.row as usize), column: Some(column), kind, message })
                 }
-                None => kept.push((row, src)),
+                None => kept.push(i),
             }
         }
         if !kept.is_empty() {
@@ -56,8 +52,8 @@ pub(super) fn check_games(rows: Vec<(PlayRow, Source)>, tables: &[RawTable], rep
         }
     }
     kept_games.sort_by(|a, b| {
-        let (x, y) = (&a[0].0, &b[0].0);
-        (x.season, x.week, &x.game).cmp(&(y.season, y.week, &y.game))
+        let (x, y) = (&rows[a[0] as usize], &rows[b[0] as usize]);
+        (x.season, x.week, names.name(x.game)).cmp(&(y.season, y.week, names.name(y.game)))
     });
     kept_games.into_iter().flatten().collect()
 }
@@ -70,7 +66,7 @@ fn where_(src: &Source, tables: &[RawTable], cur_file: u16) -> String {
     }
 }
 
-fn home_scores(r: &PlayRow) -> (i32, i32) {
+fn home_scores(r: &Snap) -> (i32, i32) {
     if r.offense == r.home {
         (r.off_score, r.def_score)
     } else {
@@ -78,24 +74,17 @@ fn home_scores(r: &PlayRow) -> (i32, i32) {
     }
 }
 
-fn compare(
-    first: &PlayRow,
-    fsrc: &Source,
-    prev: &PlayRow,
-    psrc: &Source,
-    row: &PlayRow,
-    cur_file: u16,
-    tables: &[RawTable],
-) -> Option<(IssueKind, &'static str, String)> {
-    let g = &row.game;
+fn compare(first: &Snap, prev: &Snap, row: &Snap, names: &Names, tables: &[RawTable]) -> Option<(IssueKind, &'static str, String)> {
+    let (fsrc, psrc, cur_file) = (&first.source, &prev.source, row.source.file);
+    let g = names.name(row.game);
     let differs: Option<(&'static str, String, String)> = if first.season != row.season {
         Some(("season", first.season.to_string(), row.season.to_string()))
     } else if first.week != row.week {
         Some(("week", first.week.to_string(), row.week.to_string()))
     } else if first.home != row.home {
-        Some(("home", first.home.clone(), row.home.clone()))
+        Some(("home", names.name(first.home).to_string(), names.name(row.home).to_string()))
     } else if first.away != row.away {
-        Some(("away", first.away.clone(), row.away.clone()))
+        Some(("away", names.name(first.away).to_string(), names.name(row.away).to_string()))
     } else if first.home_line != row.home_line {
         let show = |v: Option<f64>| v.map(|x| x.to_string()).unwrap_or_else(|| "empty".into());
         Some(("home_line", show(first.home_line), show(row.home_line)))

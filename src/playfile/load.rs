@@ -6,10 +6,11 @@
 use super::cells::parse_rows;
 use super::games::check_games;
 use super::mapping::Mapping;
+use super::names::Names;
 use super::read::{fingerprint, list_files, read_frame, read_table, RawTable};
 use super::report::{Issue, IssueKind, LoadError, LoadOptions, LoadReport};
-use super::PlayRow;
-use crate::plays::{Plays, Source, Tags};
+use crate::plays::{Plays, Snap, Source, Tags};
+use rayon::prelude::*;
 use std::path::Path;
 
 /// A loaded, validated league.
@@ -56,6 +57,7 @@ pub fn load_mapped(path: &Path, opts: &LoadOptions, mapping: Option<&Mapping>) -
     }
     let fingerprint = fingerprint(&fp_input);
     drop(fp_input);
+    let started = std::time::Instant::now();
     let mut tables = Vec::new();
     for (name, path, bytes) in &contents {
         let table = match mapping {
@@ -73,6 +75,7 @@ pub fn load_mapped(path: &Path, opts: &LoadOptions, mapping: Option<&Mapping>) -
         }
     }
     drop(contents);
+    tracing::debug!("files read in {:.0} ms", started.elapsed().as_secs_f64() * 1000.0);
     if report.fatal {
         report.files = files.iter().map(|f| f.display().to_string()).collect();
         return Err(LoadError { report });
@@ -81,49 +84,72 @@ pub fn load_mapped(path: &Path, opts: &LoadOptions, mapping: Option<&Mapping>) -
     Ok(Loaded { fingerprint, ..loaded })
 }
 
+/// Rows per piece of cell parsing handed to rayon (fixed, so the work is
+/// cut the same way on every machine).
+const PARSE_CHUNK: usize = 16_384;
+
 /// Validate already-read tables (one per file).
-pub fn load_with(tables: Vec<RawTable>, opts: &LoadOptions, mut report: LoadReport) -> Result<Loaded, LoadError> {
+pub fn load_with(mut tables: Vec<RawTable>, opts: &LoadOptions, mut report: LoadReport) -> Result<Loaded, LoadError> {
+    let started = std::time::Instant::now();
+    let ms = |t: std::time::Instant| t.elapsed().as_secs_f64() * 1000.0;
     report.files = tables.iter().map(|t| t.file.clone()).collect();
-    let mut rows: Vec<(PlayRow, Source)> = Vec::new();
+    let names = Names::build(&mut tables);
+    tracing::debug!(names = names.list.len(), "names numbered in {:.0} ms", ms(started));
+    let total: usize = tables.iter().map(|t| t.height).sum();
+    let mut rows = vec![Snap::EMPTY; total];
+    let mut ok = vec![false; total];
+    let (mut rows_left, mut ok_left) = (rows.as_mut_slice(), ok.as_mut_slice());
     for (fi, t) in tables.iter().enumerate() {
         report.rows_read += t.height;
+        let (rows_here, rest) = std::mem::take(&mut rows_left).split_at_mut(t.height);
+        let (ok_here, ok_rest) = std::mem::take(&mut ok_left).split_at_mut(t.height);
+        (rows_left, ok_left) = (rest, ok_rest);
         if t.height == 0 {
             report.push(Issue::named(&t.file, IssueKind::Empty, "the file has a header but no rows; expected one row per snap".into()));
             continue;
         }
-        // Rows are independent here: parse the two halves on rayon's
-        // threads, then keep file order.
-        let mid = t.height / 2;
-        let (first, second) = rayon::join(|| parse_rows(t, fi, 0..mid), || parse_rows(t, fi, mid..t.height));
-        for (ok, issues) in [first, second] {
-            rows.extend(ok);
-            for i in issues {
-                report.push(i);
-            }
+        // Rows are independent here: parse pieces on rayon's threads, then
+        // report in file order.
+        let issues: Vec<Vec<Issue>> = rows_here
+            .par_chunks_mut(PARSE_CHUNK)
+            .zip(ok_here.par_chunks_mut(PARSE_CHUNK))
+            .enumerate()
+            .map(|(k, (out, good))| parse_rows(t, fi, &names, k * PARSE_CHUNK, out, good))
+            .collect();
+        for i in issues.into_iter().flatten() {
+            report.push(i);
         }
     }
-    let rows = check_games(rows, &tables, &mut report);
-    report.rows_kept = rows.len();
-    report.rows_skipped = report.rows_read - rows.len();
-    if rows.is_empty() && report.issue_count == 0 {
+    tracing::debug!("cells checked in {:.0} ms", ms(started));
+    let order = check_games(&rows, &ok, &names, &tables, &mut report);
+    tracing::debug!("games checked in {:.0} ms", ms(started));
+    drop(ok);
+    report.rows_kept = order.len();
+    report.rows_skipped = report.rows_read - order.len();
+    if order.is_empty() && report.issue_count == 0 {
         report.push(Issue::named(report.files.first().map(String::as_str).unwrap_or("input"), IssueKind::Empty, "no snaps to load".into()));
     }
-    if (report.has_errors() && !opts.lenient) || rows.is_empty() {
-        if rows.is_empty() {
+    if (report.has_errors() && !opts.lenient) || order.is_empty() {
+        if order.is_empty() {
             report.fatal = true;
         }
         return Err(LoadError { report });
     }
-    let (rows, sources): (Vec<PlayRow>, Vec<Source>) = rows.into_iter().unzip();
-    let mut plays = Plays::from_rows(report.files.clone(), &rows, sources);
-    plays.tags = gather_tags(&tables, &plays.source);
+    let tags = gather_tags(&tables, order.iter().map(|&i| &rows[i as usize].source));
+    // The file's columns are no longer needed.
+    drop(tables);
+    let name_refs: Vec<&str> = names.list.iter().map(String::as_str).collect();
+    let mut plays = Plays::from_snaps(report.files.clone(), &name_refs, &rows, &order);
+    drop(rows);
+    plays.tags = tags;
     report.games = plays.games.len();
+    tracing::debug!("plays built in {:.0} ms", ms(started));
     Ok(Loaded { plays, report, fingerprint: String::new() })
 }
 
 /// The staff's tag columns of every file, per kept snap (a tag one file
 /// lacks is empty on its snaps).
-fn gather_tags(tables: &[RawTable], sources: &[Source]) -> Tags {
+fn gather_tags<'s>(tables: &[RawTable], sources: impl Iterator<Item = &'s Source> + Clone) -> Tags {
     let mut names: Vec<String> = Vec::new();
     for t in tables {
         for (n, _) in &t.tags {
@@ -137,7 +163,7 @@ fn gather_tags(tables: &[RawTable], sources: &[Source]) -> Tags {
         .map(|n| {
             let cols: Vec<Option<&polars::prelude::StringChunked>> = tables.iter().map(|t| t.tags.iter().find(|(x, _)| x == n).map(|(_, c)| c)).collect();
             sources
-                .iter()
+                .clone()
                 .map(|s| {
                     let c = cols.get(s.file as usize).copied().flatten()?;
                     let v = c.get((s.row as usize).checked_sub(1)?)?.trim();
@@ -148,3 +174,6 @@ fn gather_tags(tables: &[RawTable], sources: &[Source]) -> Tags {
         .collect::<Vec<_>>();
     Tags::build(&names, &cells)
 }
+
+#[cfg(test)]
+mod tests;

@@ -5,7 +5,7 @@
 
 use super::mapping::{col_index, Mapping, OffenseForm};
 use super::mapping_values::{read_bool, read_kind, read_period};
-use super::read::{text_of, Mapped, RawTable};
+use super::read::{text_of, Mapped, RawColumn, RawTable};
 use super::report::{Issue, IssueKind};
 use super::COLUMNS;
 use polars::prelude::*;
@@ -156,7 +156,7 @@ pub fn translate(m: &Mapping, name: &str, df: &DataFrame) -> Result<RawTable, Ve
         mapped.labels[c_os] = format!("{h}/{a}");
         mapped.labels[c_ds] = format!("{h}/{a}");
     }
-    let columns: Vec<Option<StringChunked>> = COLUMNS
+    let columns: Vec<Option<RawColumn>> = COLUMNS
         .iter()
         .enumerate()
         .map(|(ci, spec)| {
@@ -164,7 +164,7 @@ pub fn translate(m: &Mapping, name: &str, df: &DataFrame) -> Result<RawTable, Ve
             (sources[ci].is_some() || derived).then(|| {
                 let mut ca: StringChunked = out[ci].iter().map(|v| v.as_deref()).collect();
                 ca.rename(PlSmallStr::from(spec.name));
-                ca
+                RawColumn::Text(ca)
             })
         })
         .collect();

@@ -11,6 +11,7 @@ mod mapping;
 mod mapping_apply;
 mod mapping_draft;
 mod mapping_values;
+mod names;
 mod read;
 mod report;
 mod write;
@@ -19,7 +20,7 @@ pub use load::{load, load_mapped, load_with, Loaded};
 pub use mapping::{Mapping, MappingError, OffenseForm};
 pub use mapping_draft::draft_mapping;
 pub use mapping_values::{ClockForm, YardForm};
-pub use read::{fingerprint, list_files, read_frame, read_table, Mapped, RawTable};
+pub use read::{fingerprint, list_files, read_frame, read_table, Cell, Mapped, RawColumn, RawTable};
 pub use report::{Issue, IssueKind, LoadError, LoadOptions, LoadReport, KEPT_ISSUES, LISTED_ISSUES};
 pub use write::{rows_frame, write_frame, write_rows, FileFormat, WriteError};
 

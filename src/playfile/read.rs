@@ -1,7 +1,8 @@
-//! Reading one play file (CSV or Parquet) into text columns with polars,
+//! Reading one play file (CSV or Parquet) into our columns with polars,
 //! after header checks (missing, duplicated columns) and a UTF-8 check that
-//! can name the row. Listing the files of a folder; the data fingerprint.
-//! Columns beyond ours are kept as the staff's tags.
+//! can name the row: a Parquet column of a number or true/false type as it
+//! is, every other column as text. Listing the files of a folder; the data
+//! fingerprint. Columns beyond ours are kept as the staff's tags.
 
 use super::report::{Issue, IssueKind};
 use crate::numfmt::thousands as group;
@@ -11,17 +12,43 @@ use sha2::{Digest, Sha256};
 use std::io::Cursor;
 use std::path::{Path, PathBuf};
 
-/// One file's columns in `COLUMNS` order, each as text (`None` when an
-/// optional column is absent from the file).
+/// One file's columns in `COLUMNS` order (`None` when an optional column
+/// is absent from the file): text, or a Parquet column already of a number
+/// or true/false type, kept as read (no text in between).
 pub struct RawTable {
     pub file: String,
     pub height: usize,
-    pub columns: Vec<Option<StringChunked>>,
+    pub columns: Vec<Option<RawColumn>>,
     /// Columns beyond ours (the staff's tags): their header name and text.
     pub tags: Vec<(String, StringChunked)>,
     /// Read through a mapping: what the messages call each of our columns
     /// (their column's name) and what the mapping could not read.
     pub mapped: Option<Mapped>,
+}
+
+/// One of our columns as read.
+pub enum RawColumn {
+    /// CSV, a name column, a mapped layout, any type not read directly.
+    Text(StringChunked),
+    Int32(Int32Chunked),
+    Int64(Int64Chunked),
+    Float64(Float64Chunked),
+    Bool(BooleanChunked),
+}
+
+impl From<StringChunked> for RawColumn {
+    fn from(c: StringChunked) -> RawColumn {
+        RawColumn::Text(c)
+    }
+}
+
+/// One non-empty cell as read (text trimmed).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Cell<'a> {
+    Text(&'a str),
+    Int(i64),
+    Float(f64),
+    Bool(bool),
 }
 
 /// What reading through a mapping adds to a table.
@@ -36,12 +63,38 @@ pub struct Mapped {
 }
 
 impl RawTable {
-    /// The cell at (`row`, column index into `COLUMNS`), trimmed; `None` when
-    /// empty or null.
-    pub fn cell(&self, col: usize, row: usize) -> Option<&str> {
-        let c = self.columns[col].as_ref()?;
-        let v = c.get(row)?.trim();
-        (!v.is_empty()).then_some(v)
+    /// The cell at (`row`, column index into `COLUMNS`); `None` when empty
+    /// or null. Text is trimmed.
+    #[inline]
+    pub fn value(&self, col: usize, row: usize) -> Option<Cell<'_>> {
+        match self.columns.get(col)?.as_ref()? {
+            RawColumn::Text(c) => {
+                let v = c.get(row)?.trim();
+                (!v.is_empty()).then_some(Cell::Text(v))
+            }
+            RawColumn::Int32(c) => c.get(row).map(|x| Cell::Int(x.into())),
+            RawColumn::Int64(c) => c.get(row).map(Cell::Int),
+            RawColumn::Float64(c) => c.get(row).map(Cell::Float),
+            RawColumn::Bool(c) => c.get(row).map(Cell::Bool),
+        }
+    }
+    /// The cell as text, trimmed, as it reads when the column is cast to
+    /// text (numbers as polars writes them); `None` when empty or null.
+    pub fn text(&self, col: usize, row: usize) -> Option<std::borrow::Cow<'_, str>> {
+        use std::borrow::Cow;
+        Some(match self.value(col, row)? {
+            Cell::Text(v) => Cow::Borrowed(v),
+            Cell::Int(x) => Cow::Owned(x.to_string()),
+            Cell::Bool(b) => Cow::Borrowed(if b { "true" } else { "false" }),
+            Cell::Float(x) => {
+                let one = match self.columns[col].as_ref() {
+                    Some(RawColumn::Float64(c)) => c.slice(row as i64, 1).cast(&DataType::String).ok(),
+                    _ => None,
+                };
+                let text = one.as_ref().and_then(|s| s.str().ok()).and_then(|s| s.get(0)).map(|v| v.trim().to_string());
+                Cow::Owned(text.unwrap_or_else(|| x.to_string()))
+            }
+        })
     }
     /// What messages call column `col`: `column ball_on`, or through a
     /// mapping `their column YardLn`.
@@ -231,6 +284,9 @@ fn check_required(name: &str, header: &[String]) -> Result<(), Vec<Issue>> {
     }
 }
 
+/// Our columns always read as text: names, the kind of snap.
+const TEXT_COLUMNS: [&str; 7] = ["game", "home", "away", "offense", "defense", "kind", "passer"];
+
 fn to_table(name: &str, df: DataFrame) -> Result<RawTable, Vec<Issue>> {
     let height = df.height();
     let mut columns = Vec::with_capacity(COLUMNS.len());
@@ -239,13 +295,7 @@ fn to_table(name: &str, df: DataFrame) -> Result<RawTable, Vec<Issue>> {
             columns.push(None);
             continue;
         };
-        let as_text = col
-            .cast(&DataType::String)
-            .and_then(|c| c.str().map(|s| s.rechunk().into_owned()))
-            .map_err(|e| {
-                vec![Issue::column(name, spec.name, IssueKind::BadValue, format!("column {} cannot be read as text: {}", spec.name, first_line(&e.to_string())))]
-            })?;
-        columns.push(Some(as_text));
+        columns.push(Some(raw_column(name, spec.name, col)?));
     }
     let mut tags = Vec::new();
     for col in df.columns() {
@@ -255,6 +305,27 @@ fn to_table(name: &str, df: DataFrame) -> Result<RawTable, Vec<Issue>> {
         tags.push((col.name().to_string(), text_of(name, col)?));
     }
     Ok(RawTable { file: name.to_string(), height, columns, tags, mapped: None })
+}
+
+/// Our column `ours` as read: a number or true/false column of a Parquet
+/// file as it is (the cell checks read its values directly), anything else
+/// as text.
+fn raw_column(name: &str, ours: &str, col: &Column) -> Result<RawColumn, Vec<Issue>> {
+    // Kept in the reader's chunks (one per row group): a copy in one piece
+    // would double the file's memory while the frame is alive.
+    let as_is = match col.dtype() {
+        DataType::String => col.str().ok().map(|c| RawColumn::Text(c.clone())),
+        _ if TEXT_COLUMNS.contains(&ours) => None,
+        DataType::Int32 => col.i32().ok().map(|c| RawColumn::Int32(c.clone())),
+        DataType::Int64 => col.i64().ok().map(|c| RawColumn::Int64(c.clone())),
+        DataType::Float64 => col.f64().ok().map(|c| RawColumn::Float64(c.clone())),
+        DataType::Boolean => col.bool().ok().map(|c| RawColumn::Bool(c.clone())),
+        _ => None,
+    };
+    match as_is {
+        Some(c) => Ok(c),
+        None => text_of(name, col).map(RawColumn::Text),
+    }
 }
 
 /// A column as text (numbers written as polars writes them).
