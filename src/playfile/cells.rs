@@ -3,6 +3,7 @@
 //! every cell is valid. A typed Parquet cell is read as it is; its text (for
 //! a message) is made only when it is bad.
 
+use super::at::*;
 use super::names::{Names, NAME_MAX_CHARS};
 use super::read::{Cell, RawTable};
 use super::report::{Issue, IssueKind};
@@ -38,34 +39,6 @@ pub(super) fn parse_rows(t: &RawTable, fi: usize, names: &Names, first: usize, o
     }
     all
 }
-
-pub(super) const C_GAME: usize = 0;
-pub(super) const C_SEASON: usize = 1;
-pub(super) const C_WEEK: usize = 2;
-pub(super) const C_HOME: usize = 3;
-pub(super) const C_AWAY: usize = 4;
-pub(super) const C_SEQ: usize = 5;
-pub(super) const C_PERIOD: usize = 6;
-pub(super) const C_CLOCK: usize = 7;
-pub(super) const C_OFFENSE: usize = 8;
-pub(super) const C_DEFENSE: usize = 9;
-pub(super) const C_OFF_SCORE: usize = 10;
-pub(super) const C_DEF_SCORE: usize = 11;
-pub(super) const C_OFF_TO: usize = 12;
-pub(super) const C_DEF_TO: usize = 13;
-pub(super) const C_DOWN: usize = 14;
-pub(super) const C_TO_GO: usize = 15;
-pub(super) const C_BALL_ON: usize = 16;
-pub(super) const C_KIND: usize = 17;
-pub(super) const C_PASSER: usize = 18;
-pub(super) const C_COMPLETE: usize = 19;
-pub(super) const C_INTERCEPTED: usize = 20;
-pub(super) const C_AIR: usize = 21;
-pub(super) const C_GAIN: usize = 22;
-pub(super) const C_FUMBLE: usize = 23;
-pub(super) const C_TOUCHBACK: usize = 24;
-pub(super) const C_POINTS: usize = 25;
-pub(super) const C_LINE: usize = 26;
 
 struct Cells<'a> {
     t: &'a RawTable,

@@ -4,6 +4,7 @@
 //! layout through a mapping (`mapping*.rs`). Produces `Plays`; knows
 //! nothing about models, situations or HTTP.
 
+mod at;
 mod cells;
 mod games;
 mod load;

@@ -3,7 +3,7 @@
 //! checks, the game checks and `Plays` then compare and number names
 //! without hashing text on every row.
 
-use super::cells::{C_AWAY, C_DEFENSE, C_GAME, C_HOME, C_OFFENSE, C_PASSER};
+use super::at::{C_AWAY, C_DEFENSE, C_GAME, C_HOME, C_OFFENSE, C_PASSER};
 use super::read::{RawColumn, RawTable};
 use crate::plays::NO_NAME;
 use std::collections::HashMap;

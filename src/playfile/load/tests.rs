@@ -4,7 +4,7 @@
 
 use super::*;
 use crate::playfile::read::{text_of, RawColumn};
-use crate::playfile::{rows_frame, COLUMNS};
+use crate::playfile::COLUMNS;
 use polars::prelude::*;
 use std::io::Cursor;
 
@@ -35,8 +35,11 @@ fn outcome(t: RawTable) -> Result<Plays, Vec<String>> {
 
 #[test]
 fn a_simulated_season_reads_the_same_typed_and_as_text() {
-    let out = crate::sim::simulate(&crate::sim::SimConfig { seasons: 1, seed: 3, first_season: 2001 });
-    let mut df = rows_frame(&out.rows[..30_000]).expect("frame");
+    // The bundled demo league (written by `rows_frame`), its first 30,000
+    // rows. (Read from disk, not simulated: `playfile` does not import `sim`.)
+    let path = concat!(env!("CARGO_MANIFEST_DIR"), "/demo-data/league.parquet");
+    let file = std::fs::File::open(path).expect("the demo league");
+    let mut df = ParquetReader::new(file).finish().expect("parquet").slice(0, 30_000);
     let a = typed(&mut df);
     assert!(matches!(a.columns[1], Some(RawColumn::Int32(_))), "season is read as numbers");
     assert!(matches!(a.columns[19], Some(RawColumn::Bool(_))), "complete is read as true/false");
