@@ -95,6 +95,9 @@ pub struct SplitIndex {
     pub(super) reals: Vec<f64>,
     /// Pass results per situation without its season and passer filters.
     pub(super) memo: Mutex<HashMap<String, Arc<Memo>>>,
+    /// Other per-situation results kept by the engine's estimators (the
+    /// opponent fit), by a key of their own.
+    pub(super) extra: Mutex<HashMap<String, Arc<dyn std::any::Any + Send + Sync>>>,
 }
 
 /// A situation's pass over the index, its season filter aside: base sums
@@ -271,6 +274,7 @@ impl SplitIndex {
             ints: Vec::with_capacity(n * layout.ints),
             reals: Vec::with_capacity(n * layout.reals),
             memo: Mutex::new(HashMap::new()),
+            extra: Mutex::new(HashMap::new()),
             layout,
         };
         let lay = &ix.layout;
@@ -355,6 +359,9 @@ impl SplitIndex {
     /// Forget every memoised pass (tests time the pass itself with it).
     pub fn forget(&self) {
         if let Ok(mut m) = self.memo.lock() {
+            m.clear();
+        }
+        if let Ok(mut m) = self.extra.lock() {
             m.clear();
         }
     }
