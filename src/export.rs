@@ -230,7 +230,7 @@ const CELL_COLS: &[CellCol] = &[
 /// his normal and his lift with its interval.
 /// The opponent-adjusted EPA columns at the end of each splits CSV row, in
 /// `PasserRow` field order.
-pub const OPP_COLS: [&str; 4] = ["epa_opp_adj", "epa_opp_adj_lo", "epa_opp_adj_hi", "epa_opp_faced"];
+pub const OPP_COLS: [&str; 4] = ["epa_opp_adj", "epa_opp_adj_lo90", "epa_opp_adj_hi90", "epa_opp_faced"];
 
 pub fn split_csv(t: &SplitTable) -> String {
     let mut head = vec!["passer".to_string(), "team".to_string(), "qualified".to_string()];

@@ -3,6 +3,8 @@
 //! league with wide defensive spread where the adjustment moves passers'
 //! rates toward their true rates against a neutral defense.
 
+mod common;
+
 use lategame::playfile::{Kind, PlayRow};
 use lategame::plays::{Plays, Source};
 use lategame::situation::{Preset, Situation};
@@ -167,4 +169,42 @@ fn the_adjustment_moves_rates_toward_the_truth_on_a_simulated_league() {
         assert!(raw.len() >= 40, "{key}: {} passers", raw.len());
         assert!(r1 < 0.9 * r0, "{key}: adjusted RMSE {r1} not 10% below raw {r0}");
     }
+}
+
+/// Through the front doors on the demo league: the JSON's fields with an
+/// interval of positive width, the CSV's columns, the explorer's column
+/// (value metrics) and the profile's lines with their explanation.
+#[test]
+fn the_adjusted_epa_reaches_json_csv_and_pages() {
+    let base = common::demo_server();
+    let j = common::get(&format!("{base}/api/splits?preset=end-of-game&min=1")).json();
+    let rows = j["rows"].as_array().unwrap();
+    let mut with = 0;
+    for r in rows {
+        if let (Some(a), Some(lo), Some(hi)) = (r["epa_opp_adj"].as_f64(), r["epa_opp_adj_lo"].as_f64(), r["epa_opp_adj_hi"].as_f64()) {
+            assert!(lo < a && a < hi, "{}: {lo} {a} {hi}", r["passer"]);
+            with += 1;
+        }
+    }
+    assert_eq!(with, rows.len(), "every passer with a dropback here has the adjusted value");
+
+    let csv = common::get(&format!("{base}/api/splits.csv?preset=end-of-game")).body;
+    let mut lines = csv.lines();
+    let head: Vec<&str> = lines.next().unwrap().split(',').collect();
+    for col in ["epa_opp_adj", "epa_opp_adj_lo90", "epa_opp_adj_hi90", "epa_opp_faced"] {
+        assert!(head.contains(&col), "CSV lacks {col}");
+    }
+    let at = head.iter().position(|h| *h == "epa_opp_adj").unwrap();
+    let league: Vec<&str> = lines.next().unwrap().split(',').collect();
+    assert_eq!(league[at], "", "the league row has no adjusted value");
+    let first: Vec<&str> = lines.next().unwrap().split(',').collect();
+    assert!(first[at].parse::<f64>().is_ok(), "{}", first[at]);
+
+    let page = common::get(&format!("{base}/explore?preset=end-of-game&cols=value")).body;
+    assert!(page.contains("EPA/db vs avg D") && page.contains("Against an average defense"));
+    let key = common::get(&format!("{base}/explore?preset=end-of-game")).body;
+    assert!(!key.contains("EPA/db vs avg D"), "the key numbers keep to a laptop's width");
+    let prof = common::get(&format!("{base}/passer?passer={}", common::enc("Wendell Jastennox"))).body;
+    assert!(prof.contains("EPA per dropback against an average defense") && prof.contains("against an average defense "), "profile lines");
+    assert!(prof.contains("than average"), "the defenses he faced, in words");
 }

@@ -96,8 +96,11 @@ pub struct SplitIndex {
     /// Pass results per situation without its season and passer filters.
     pub(super) memo: Mutex<HashMap<String, Arc<Memo>>>,
     /// Other per-situation results kept by the engine's estimators (the
-    /// opponent fit), by a key of their own.
+    /// opponent adjustment), by a key of their own; `forget` clears them.
     pub(super) extra: Mutex<HashMap<String, Arc<dyn std::any::Any + Send + Sync>>>,
+    /// League-level fits per season list (the opponent model on every
+    /// snap): part of the index like its columns, kept by `forget`.
+    pub(super) league_fits: Mutex<HashMap<String, Arc<dyn std::any::Any + Send + Sync>>>,
 }
 
 /// A situation's pass over the index, its season filter aside: base sums
@@ -275,6 +278,7 @@ impl SplitIndex {
             reals: Vec::with_capacity(n * layout.reals),
             memo: Mutex::new(HashMap::new()),
             extra: Mutex::new(HashMap::new()),
+            league_fits: Mutex::new(HashMap::new()),
             layout,
         };
         let lay = &ix.layout;
@@ -356,7 +360,8 @@ impl SplitIndex {
         self.n_snaps == p.len()
     }
 
-    /// Forget every memoised pass (tests time the pass itself with it).
+    /// Forget every memoised pass and per-situation result (tests time the
+    /// pass itself with it); the league-level fits stay.
     pub fn forget(&self) {
         if let Ok(mut m) = self.memo.lock() {
             m.clear();

@@ -1,10 +1,11 @@
-//! Opponent-adjusted EPA per dropback: the situation's snaps summed per
-//! (passer-season, defense-season), a crossed passer + defense model fitted
-//! on those sums (`stats::crossed`), and each passer's raw value with the
-//! average effect of the defenses he faced taken out. Memoised per situation
-//! in the split index.
+//! Opponent-adjusted EPA per dropback: a crossed passer + defense model
+//! (`stats::crossed`) fitted on every snap's sums per (passer-season,
+//! defense-season) of the chosen seasons, then in a situation each passer's
+//! raw value with the average effect of the defenses he faced there taken
+//! out. The fit is kept per season list, the adjustment per situation, in
+//! the split index.
 
-use super::index::{memo_key, Col, Plan, SplitIndex};
+use super::index::{memo_key, Col, Plan, SplitIndex, MEMO_SIZE};
 use super::metrics::{metric_index, SnapValues};
 use crate::plays::Plays;
 use crate::situation::Situation;
@@ -12,7 +13,7 @@ use crate::stats::crossed::{CrossedCell, CrossedFit};
 use crate::stats::multilevel::normal_interval;
 use crate::stats::INTERVAL_LEVEL;
 use std::collections::HashMap;
-use std::sync::Arc;
+use std::sync::{Arc, Mutex};
 
 /// The metric adjusted (one, on purpose: the page explains one number).
 pub const ADJUSTED_METRIC: &str = "epa";
@@ -96,25 +97,37 @@ fn cells(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize) ->
     out
 }
 
-/// Fit metric `j` in situation `s` (seasons as `s` says) and adjust every
-/// passer. `None` when the model cannot be fitted (too few passers or
-/// defenses). Not memoised: see `opponent_fit`.
-pub fn fit_metric(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize) -> Option<OpponentFit> {
+/// The league's fit of metric `j` on every snap of the seasons of `s`:
+/// season intercepts, passer-season and defense-season effects. A defense's
+/// strength is taken from all its snaps: its snaps in a late-game window
+/// alone are too few to tell defenses apart (fitted on the demo league's
+/// end-of-game window, the defense SD is a few hundredths of an EPA against
+/// a per-snap SD near 1.4, so every effect would be shrunk to about 0).
+fn league_fit(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize) -> Option<CrossedFit> {
+    let every = Situation { seasons: s.seasons.clone(), ..Situation::default() };
+    CrossedFit::fit(&cells(ix, p, v, &every, j), true).ok()
+}
+
+/// Every passer in situation `s`: his raw mean minus the snap-weighted
+/// effects (from `fit`) of the defense-seasons he faced in `s`.
+fn adjust(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize, fit: &CrossedFit) -> OpponentFit {
     let cells = cells(ix, p, v, s, j);
-    let fit = CrossedFit::fit(&cells, true).ok()?;
     // Per passer: his snaps per defense-season, over his passer-seasons.
-    let mut per: HashMap<u32, (f64, f64, Vec<(u32, f64)>)> = HashMap::new();
+    let mut per: HashMap<u32, (f64, f64, f64, Vec<(u32, f64)>)> = HashMap::new();
     for c in &cells {
         let who = ix.ps_key[c.unit as usize].0;
-        let e = per.entry(who).or_insert((0.0, 0.0, Vec::new()));
+        let e = per.entry(who).or_insert((0.0, 0.0, 0.0, Vec::new()));
         e.0 += c.n;
         e.1 += c.sum;
-        e.2.push((c.group, c.n));
+        e.2 += c.sumsq;
+        e.3.push((c.group, c.n));
     }
-    let s2 = fit.sd_resid * fit.sd_resid;
+    // The situation's per-snap variance, pooled within passers.
+    let (ss, df) = per.values().fold((0.0, 0.0), |(ss, df), (n, sum, sumsq, _)| (ss + (sumsq - sum * sum / n).max(0.0), df + n - 1.0));
+    let s2 = if df > 0.0 { ss / df } else { fit.sd_resid * fit.sd_resid };
     let passers = per
         .into_iter()
-        .filter_map(|(who, (n, sum, groups))| {
+        .filter_map(|(who, (n, sum, _, groups))| {
             let w: Vec<(u32, f64)> = groups.iter().map(|&(g, k)| (g, k / n)).collect();
             let (faced, faced_var) = fit.weighted(&w)?;
             let raw = sum / n;
@@ -126,25 +139,53 @@ pub fn fit_metric(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: 
             Some((who, Adjusted { raw, faced, value, lo, hi }))
         })
         .collect();
-    Some(OpponentFit { passers, sd_passer: fit.sd_unit, sd_defense: fit.sd_group, sd_snap: fit.sd_resid })
+    OpponentFit { passers, sd_passer: fit.sd_unit, sd_defense: fit.sd_group, sd_snap: fit.sd_resid }
 }
 
-/// The opponent fit of `ADJUSTED_METRIC` for `s`, memoised in the index by
-/// the situation's pass key and seasons.
+/// Adjust metric `j` in situation `s` (seasons as `s` says) with the
+/// defense effects of the every-snap fit over the same seasons. `None`
+/// when the model cannot be fitted (too few passers or defenses). Not
+/// memoised: see `opponent_fit`.
+pub fn fit_metric(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize) -> Option<OpponentFit> {
+    Some(adjust(ix, p, v, s, j, &league_fit(ix, p, v, s, j)?))
+}
+
+/// A bounded memo: cleared when full.
+fn remember<T: std::any::Any + Send + Sync>(memo: &Mutex<HashMap<String, Arc<dyn std::any::Any + Send + Sync>>>, key: String, value: T) {
+    if let Ok(mut m) = memo.lock() {
+        if m.len() >= MEMO_SIZE {
+            m.clear();
+        }
+        m.insert(key, Arc::new(value));
+    }
+}
+
+fn recall<T: std::any::Any + Send + Sync + Clone>(memo: &Mutex<HashMap<String, Arc<dyn std::any::Any + Send + Sync>>>, key: &str) -> Option<T> {
+    let hit = memo.lock().ok()?.get(key).cloned()?;
+    hit.downcast::<T>().ok().map(|a| (*a).clone())
+}
+
+/// The opponent adjustment of `ADJUSTED_METRIC` in `s`. The every-snap fit
+/// is kept per season list in the index's `league_fits` (like its columns, it
+/// survives `forget`); the situation's adjustment in its `extra` memo.
 pub fn opponent_fit(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Option<Arc<OpponentFit>> {
     let j = metric_index(ADJUSTED_METRIC)?;
     let key = format!("opponent {ADJUSTED_METRIC} {:?} {}", s.seasons, memo_key(s));
-    if let Some(hit) = ix.extra.lock().ok().and_then(|m| m.get(&key).cloned()) {
-        return hit.downcast::<Option<Arc<OpponentFit>>>().ok().and_then(|a| (*a).clone());
+    if let Some(hit) = recall::<Option<Arc<OpponentFit>>>(&ix.extra, &key) {
+        return hit;
     }
-    let fit = fit_metric(ix, p, v, s, j).map(Arc::new);
-    if let Ok(mut m) = ix.extra.lock() {
-        if m.len() >= super::index::MEMO_SIZE {
-            m.clear();
+    let fit_key = format!("opponent {ADJUSTED_METRIC} {:?}", s.seasons);
+    let fit = match recall::<Option<Arc<CrossedFit>>>(&ix.league_fits, &fit_key) {
+        Some(f) => f,
+        None => {
+            let f = league_fit(ix, p, v, s, j).map(Arc::new);
+            remember(&ix.league_fits, fit_key, f.clone());
+            f
         }
-        m.insert(key, Arc::new(fit.clone()));
-    }
-    fit
+    };
+    let out = fit.map(|f| Arc::new(adjust(ix, p, v, s, j, &f)));
+    remember(&ix.extra, key, out.clone());
+    out
 }
 
 impl OpponentFit {

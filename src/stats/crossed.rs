@@ -174,7 +174,7 @@ fn nelder_mead(f: &dyn Fn([f64; 2]) -> f64, start: [f64; 2], step: f64) -> [f64;
         s.sort_by(|a, b| a.1.total_cmp(&b.1));
         let spread = (s[2].1 - s[0].1).abs();
         let size = s.iter().map(|p| (p.0[0] - s[0].0[0]).abs().max((p.0[1] - s[0].0[1]).abs())).fold(0.0, f64::max);
-        if spread < 1e-8 && size < 1e-4 {
+        if spread < 1e-7 && size < 1e-3 {
             break;
         }
         let c = [(s[0].0[0] + s[1].0[0]) / 2.0, (s[0].0[1] + s[1].0[1]) / 2.0];
