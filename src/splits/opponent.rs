@@ -19,9 +19,9 @@ use std::sync::{Arc, Mutex};
 pub const ADJUSTED_METRIC: &str = "epa";
 
 /// What the adjusted number is, in a coach's words (pages print it).
-pub const OPPONENT_WORDS: &str = "Against an average defense: his EPA per dropback here with the defenses he faced taken out. \
-Each defense's effect in this situation, season by season, comes from every passer who threw against it (shrunk toward average when it saw few snaps); \
-his number is his raw EPA per dropback minus the average effect of the defenses he met, with a 90% interval.";
+pub const OPPONENT_WORDS: &str = "Against an average defense: his EPA per dropback here with the defenses he faced here taken out. \
+Each defense's strength, season by season, comes from every dropback it faced (shrunk toward average); \
+his number is his raw EPA per dropback minus the average strength of the defenses he met, with a 90% interval.";
 
 /// One passer's opponent adjustment in a situation.
 #[derive(Debug, Clone, Copy, PartialEq)]

@@ -73,6 +73,7 @@ pub(super) fn opp_line(r: &splits::PasserRow) -> String {
     match (r.epa_opp_adj, r.epa_opp_adj_lo, r.epa_opp_adj_hi) {
         (Some(a), Some(lo), Some(hi)) => {
             let faced = match r.epa_opp_faced {
+                Some(x) if x.abs() < 0.0005 => " · his defenses about average".to_string(),
                 Some(x) if x < 0.0 => format!(" · his defenses {} tougher than average", fixed(Some(-x), 3)),
                 Some(x) => format!(" · his defenses {} easier than average", fixed(Some(x), 3)),
                 None => String::new(),
