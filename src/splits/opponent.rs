@@ -60,8 +60,22 @@ fn value_at(ix: &SplitIndex, j: usize, r: usize) -> Option<f64> {
     })
 }
 
+/// Rank of each id by its name, so a fit does not depend on the order in
+/// which a load met the names (the same file through a mapping gives the
+/// same numbers, bit for bit).
+fn ranks(names: &[String]) -> Vec<u32> {
+    let mut order: Vec<usize> = (0..names.len()).collect();
+    order.sort_by(|&a, &b| names[a].cmp(&names[b]).then(a.cmp(&b)));
+    let mut rank = vec![0u32; names.len()];
+    for (r, &i) in order.iter().enumerate() {
+        rank[i] = r as u32;
+    }
+    rank
+}
+
 /// Per (passer-season, defense) sums of metric `j` over the rows `s` keeps
-/// (its passer filter aside: the model is the league's, not his).
+/// (its passer filter aside: the model is the league's, not his). Units are
+/// `passer rank × seasons + season`, groups `season × teams + team rank`.
 fn cells(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize) -> Vec<CrossedCell> {
     let plan = Plan::new(ix, s);
     let chosen: Vec<bool> = ix.seasons.iter().map(|y| s.seasons.as_ref().is_none_or(|ss| ss.contains(y))).collect();
@@ -83,14 +97,18 @@ fn cells(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize) ->
             e.2 += x * x;
         }
     }
+    let (passer_rank, team_rank) = (ranks(&p.passers), ranks(&p.teams));
+    let n_seasons = ix.seasons.len() as u32;
     let mut out: Vec<CrossedCell> = sums
         .into_iter()
         .enumerate()
         .filter(|(_, c)| c.0 > 0.0)
         .map(|(k, (n, sum, sumsq))| {
             let (ps, defense) = (k / n_teams, k % n_teams);
-            let season = ix.ps_key[ps].1 as u32;
-            CrossedCell { block: season, unit: ps as u32, group: season * n_teams as u32 + defense as u32, n, sum, sumsq }
+            let (who, season) = ix.ps_key[ps];
+            let season = season as u32;
+            let unit = passer_rank[who as usize] * n_seasons + season;
+            CrossedCell { block: season, unit, group: season * n_teams as u32 + team_rank[defense], n, sum, sumsq }
         })
         .collect();
     out.sort_by_key(|c| (c.block, c.unit, c.group));
@@ -112,11 +130,17 @@ fn league_fit(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usiz
 /// effects (from `fit`) of the defense-seasons he faced in `s`.
 fn adjust(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize, fit: &CrossedFit) -> OpponentFit {
     let cells = cells(ix, p, v, s, j);
-    // Per passer: his snaps per defense-season, over his passer-seasons.
-    let mut per: HashMap<u32, (f64, f64, f64, Vec<(u32, f64)>)> = HashMap::new();
+    // Passer by rank (units are passer rank × seasons + season).
+    let n_seasons = ix.seasons.len().max(1) as u32;
+    let mut by_rank = vec![0u32; p.passers.len()];
+    for (who, r) in ranks(&p.passers).into_iter().enumerate() {
+        by_rank[r as usize] = who as u32;
+    }
+    // Per passer (in name order, so sums run in the same order on every
+    // load): his snaps per defense-season, over his passer-seasons.
+    let mut per: std::collections::BTreeMap<u32, (f64, f64, f64, Vec<(u32, f64)>)> = Default::default();
     for c in &cells {
-        let who = ix.ps_key[c.unit as usize].0;
-        let e = per.entry(who).or_insert((0.0, 0.0, 0.0, Vec::new()));
+        let e = per.entry(c.unit / n_seasons).or_insert((0.0, 0.0, 0.0, Vec::new()));
         e.0 += c.n;
         e.1 += c.sum;
         e.2 += c.sumsq;
@@ -127,7 +151,8 @@ fn adjust(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize, f
     let s2 = if df > 0.0 { ss / df } else { fit.sd_resid * fit.sd_resid };
     let passers = per
         .into_iter()
-        .filter_map(|(who, (n, sum, _, groups))| {
+        .filter_map(|(rank, (n, sum, _, groups))| {
+            let who = by_rank[rank as usize];
             let w: Vec<(u32, f64)> = groups.iter().map(|&(g, k)| (g, k / n)).collect();
             let (faced, faced_var) = fit.weighted(&w)?;
             let raw = sum / n;
