@@ -313,7 +313,7 @@ impl CrossedFit {
     /// variance (groups in different blocks are independent). `None` when a
     /// group is unknown.
     pub fn weighted(&self, weights: &[(u32, f64)]) -> Option<(f64, f64)> {
-        let mut per: HashMap<usize, Vec<(usize, f64)>> = HashMap::new();
+        let mut per: std::collections::BTreeMap<usize, Vec<(usize, f64)>> = Default::default();
         let mut mean = 0.0;
         for &(g, w) in weights {
             let &(k, j) = self.where_group.get(&g)?;
