@@ -56,6 +56,11 @@ enum Cmd {
         /// Output play file (.parquet or .csv); the truth file is written beside it.
         #[arg(long, default_value = "demo-data/league.parquet")]
         out: PathBuf,
+        /// Give each passer true late-and-close shifts (logit scale): one SD for
+        /// sack, interception and completion chances, or three (SACK,INT,COMP);
+        /// the truth file records each passer's shifts. Off by default (the demo league).
+        #[arg(long, value_name = "SD[,SD,SD]")]
+        late_shifts: Option<crate::sim::LateShifts>,
     },
     /// Write every snap with its input columns plus EP, EPA, WP, WPA and completion probability.
     Score {
@@ -278,12 +283,13 @@ fn run(cli: Cli) -> Result<ExitCode> {
             }
             Ok(ExitCode::SUCCESS)
         }
-        Cmd::Simulate { seasons, seed, first_season, out } => {
+        Cmd::Simulate { seasons, seed, first_season, out, late_shifts } => {
             let cfg = crate::sim::SimConfig { seasons, seed, first_season };
             let pb = ProgressBar::new(0);
             pb.set_style(ProgressStyle::with_template("simulating {bar:40} {pos}/{len} games {elapsed}").unwrap_or_else(|_| ProgressStyle::default_bar()));
             let started = std::time::Instant::now();
-            let output = crate::sim::simulate_with_progress(&cfg, &|done, total| {
+            let shifts = late_shifts.unwrap_or_default();
+            let output = crate::sim::simulate_with(&cfg, &shifts, crate::sim::DefenseSpread::default(), &|done, total| {
                 pb.set_length(total as u64);
                 pb.set_position(done as u64);
             });

@@ -226,6 +226,10 @@ const CELL_COLS: &[CellCol] = &[
     ("lift_signal", |c| c.lift_signal, Some(3)),
 ];
 
+/// The opponent-adjusted EPA columns at the end of each splits CSV row, in
+/// `PasserRow` field order.
+pub const OPP_COLS: [&str; 4] = ["epa_opp_adj", "epa_opp_adj_lo90", "epa_opp_adj_hi90", "epa_opp_faced"];
+
 /// The split table: per passer (or offense, or defense: the first column
 /// is named for the table's grouping), each metric's value, estimate and
 /// interval, his normal and his lift with its interval.
@@ -239,6 +243,8 @@ pub fn split_csv(t: &SplitTable) -> String {
             }
         }
     }
+    // EPA per dropback against an average defense (`splits::opponent`).
+    head.extend(OPP_COLS.iter().map(|c| c.to_string()));
     let mut out = CsvText::new();
     out.row(&head);
     // Counts are whole numbers; the rest carry one more decimal than the page.
@@ -250,6 +256,7 @@ pub fn split_csv(t: &SplitTable) -> String {
             league.extend(std::iter::repeat_n(String::new(), CELL_COLS.len()));
         }
     }
+    league.extend(std::iter::repeat_n(String::new(), OPP_COLS.len()));
     out.row(&league);
     for r in &t.rows {
         let mut cells = vec![r.passer.clone(), r.team.clone(), r.qualified.to_string()];
@@ -262,6 +269,9 @@ pub fn split_csv(t: &SplitTable) -> String {
                     cells.push(plain(get(c), own.unwrap_or(d)));
                 }
             }
+        }
+        for x in [r.epa_opp_adj, r.epa_opp_adj_lo, r.epa_opp_adj_hi, r.epa_opp_faced] {
+            cells.push(plain(x, 4));
         }
         out.row(&cells);
     }

@@ -2,6 +2,7 @@
 //! empirical-Bayes shrinkage (beta-binomial, normal-normal, James–Stein), ranks,
 //! correlation and direct standardization. Pure functions over plain `f64`.
 
+pub mod crossed;
 pub mod multilevel;
 
 use serde::Serialize;

@@ -2,6 +2,7 @@
 //! giving a play file (`PlayRow`s), each passer's true rates (`TruthRow`s) and
 //! a description of the league. Pure and deterministic for a given seed.
 
+mod defense;
 mod draw;
 mod game;
 mod habits;
@@ -14,10 +15,11 @@ mod truth;
 mod tests;
 
 pub use game::{KICK_TRY_SPOT, TWO_POINT_SPOT};
+pub use defense::DefenseSpread;
 pub use habits::ThrowShort;
 pub use league::{PasserSkills, TeamStrength};
 pub use names::LEAGUE_NAME;
-pub use shift::{LateShift, LateShifts};
+pub use shift::{LateShift, LateShifts, LateShiftsError};
 pub use truth::{write_truth, TruthError, TruthRow};
 
 use crate::playfile::PlayRow;
@@ -120,7 +122,7 @@ pub fn simulate(cfg: &SimConfig) -> SimOutput {
 /// Simulate with some passers throwing short when trailing late (`habits`);
 /// the truth file records each passer's tilt shift.
 pub fn simulate_throw_short(cfg: &SimConfig, short: ThrowShort) -> SimOutput {
-    run_with(cfg, &|_, _| {}, None, short, &LateShifts::default())
+    run_with(cfg, &|_, _| {}, None, short, &LateShifts::default(), DefenseSpread::default())
 }
 
 /// As `simulate`, calling `on_game(done, total)` after every game.
@@ -132,6 +134,12 @@ pub fn simulate_with_progress(cfg: &SimConfig, on_game: &dyn Fn(usize, usize)) -
 /// the truth file carries each passer's shifts and his true rates elsewhere.
 pub fn simulate_with_shifts(cfg: &SimConfig, shifts: &LateShifts) -> SimOutput {
     run(cfg, &|_, _| {}, None, shifts)
+}
+
+/// The general form: late-and-close shifts, a defensive spread, and
+/// `on_game(done, total)` after every game (the CLI's `simulate` calls it).
+pub fn simulate_with(cfg: &SimConfig, shifts: &LateShifts, defense: DefenseSpread, on_game: &dyn Fn(usize, usize)) -> SimOutput {
+    run_with(cfg, on_game, None, ThrowShort::default(), shifts, defense)
 }
 
 // ---- the home line ----
@@ -204,10 +212,17 @@ fn rating(s: &TeamStrength, q: &PasserSkills) -> f64 {
 pub(crate) type FeatureLog = Vec<[f64; FEATURES]>;
 
 pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), log: Option<&mut FeatureLog>, shifts: &LateShifts) -> SimOutput {
-    run_with(cfg, on_game, log, ThrowShort::default(), shifts)
+    run_with(cfg, on_game, log, ThrowShort::default(), shifts, DefenseSpread::default())
 }
 
-fn run_with(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Option<&mut FeatureLog>, short: ThrowShort, shifts: &LateShifts) -> SimOutput {
+fn run_with(
+    cfg: &SimConfig,
+    on_game: &dyn Fn(usize, usize),
+    mut log: Option<&mut FeatureLog>,
+    short: ThrowShort,
+    shifts: &LateShifts,
+    defense: DefenseSpread,
+) -> SimOutput {
     let shift = |pid: usize| shifts.of(cfg.seed, pid);
     let league_rng = ChaCha8Rng::seed_from_u64(cfg.seed);
     let mut league = League::new(league_rng, cfg.first_season);
@@ -238,7 +253,7 @@ fn run_with(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Option<&mu
                         team_seasons.push(TeamSeasonInfo {
                             season,
                             code: team.code.to_string(),
-                            strength: team.strength,
+                            strength: defense.apply(team.strength),
                             rating: rating(&team.strength, &league.passers[q[0]].skills),
                             starter: league.passers[q[0]].name.clone(),
                             backup: league.passers[q[1]].name.clone(),
@@ -257,7 +272,7 @@ fn run_with(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), mut log: Option<&mu
                     week,
                     codes: [th.code.to_string(), ta.code.to_string()],
                     team_ids: [h, a],
-                    strength: [th.strength, ta.strength],
+                    strength: [defense.apply(th.strength), defense.apply(ta.strength)],
                     home_edge: th.home_edge,
                     qb_ids: [qh, qa],
                     qb_names: [

@@ -41,3 +41,29 @@ impl LateShifts {
         }
     }
 }
+
+/// `--late-shifts` could not be read.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[error("late shifts '{given}': expected one SD for all three (0.5) or three SDs SACK,INTERCEPTION,COMPLETION (0.5,0.4,0.3), each a number from 0 to 3")]
+pub struct LateShiftsError {
+    pub given: String,
+}
+
+impl std::str::FromStr for LateShifts {
+    type Err = LateShiftsError;
+
+    /// One SD for all three shifts (`0.5`), or three: sack, interception,
+    /// completion (`0.5,0.4,0.3`); each in 0..=3 (logit scale).
+    fn from_str(s: &str) -> Result<LateShifts, LateShiftsError> {
+        let bad = || LateShiftsError { given: s.to_string() };
+        let sds: Vec<f64> = s.split(',').map(|x| x.trim().parse::<f64>().map_err(|_| bad())).collect::<Result<_, _>>()?;
+        if sds.iter().any(|x| !(0.0..=3.0).contains(x)) {
+            return Err(bad());
+        }
+        match sds.as_slice() {
+            [sd] => Ok(LateShifts { sack_sd: *sd, interception_sd: *sd, complete_sd: *sd }),
+            [sack, int, comp] => Ok(LateShifts { sack_sd: *sack, interception_sd: *int, complete_sd: *comp }),
+            _ => Err(bad()),
+        }
+    }
+}

@@ -49,6 +49,12 @@ pub struct TruthRow {
     pub late_shift_complete: f64,
     pub late_shift_interception: f64,
     pub late_shift_sack: f64,
+    /// His true rates over all his dropbacks against a defense with no
+    /// pass-defense or pass-rush edge: his own level, the opponents taken
+    /// out (what an opponent adjustment aims at).
+    pub neutral_complete: f64,
+    pub neutral_interception: f64,
+    pub neutral_sack: f64,
 }
 
 /// The engine's probabilities at one dropback.
@@ -58,6 +64,9 @@ pub(crate) struct DropbackTruth {
     pub interception: f64,
     pub sack: f64,
     pub scramble: f64,
+    /// Completion, interception and sack chances against a defense with no
+    /// pass-defense or pass-rush edge (the same dropback otherwise).
+    pub neutral: [f64; 3],
 }
 
 impl DropbackTruth {
@@ -77,6 +86,7 @@ struct Tally {
     sum: [f64; 4],
     lc_n: u32,
     lc_sum: [f64; 4],
+    neutral_sum: [f64; 3],
     last_team: usize,
     last_season: Option<i32>,
     seasons: u32,
@@ -94,6 +104,9 @@ impl TruthBook {
             self.tally.resize(passer + 1, Tally::default());
         }
         let t = &mut self.tally[passer];
+        for (s, v) in t.neutral_sum.iter_mut().zip(p.neutral) {
+            *s += v;
+        }
         let p = p.array();
         t.n += 1;
         for (s, v) in t.sum.iter_mut().zip(p) {
@@ -150,6 +163,9 @@ impl TruthBook {
                     late_shift_complete: sh.complete,
                     late_shift_interception: sh.interception,
                     late_shift_sack: sh.sack,
+                    neutral_complete: t.neutral_sum[0] / n,
+                    neutral_interception: t.neutral_sum[1] / n,
+                    neutral_sack: t.neutral_sum[2] / n,
                 }
             })
             .collect()
@@ -174,11 +190,12 @@ pub fn write_truth(truth: &[TruthRow], path: &Path) -> Result<(), TruthError> {
     let mut body = String::from(
         "passer,last_team,seasons,end_of_game_dropbacks,end_of_game_complete,end_of_game_interception,\
          end_of_game_sack,end_of_game_scramble,dropbacks,complete,interception,sack,scramble,late_trailing_depth_shift,\
-         other_complete,other_interception,other_sack,late_shift_complete,late_shift_interception,late_shift_sack\n",
+         other_complete,other_interception,other_sack,late_shift_complete,late_shift_interception,late_shift_sack,\
+         neutral_complete,neutral_interception,neutral_sack\n",
     );
     for r in truth {
         body.push_str(&format!(
-            "{},{},{},{},{},{},{},{},{},{:.6},{:.6},{:.6},{:.6},{},{},{},{},{:.6},{:.6},{:.6}\n",
+            "{},{},{},{},{},{},{},{},{},{:.6},{:.6},{:.6},{:.6},{},{},{},{},{:.6},{:.6},{:.6},{:.6},{:.6},{:.6}\n",
             r.passer,
             r.last_team,
             r.seasons,
@@ -198,7 +215,10 @@ pub fn write_truth(truth: &[TruthRow], path: &Path) -> Result<(), TruthError> {
             opt(r.other_sack),
             r.late_shift_complete,
             r.late_shift_interception,
-            r.late_shift_sack
+            r.late_shift_sack,
+            r.neutral_complete,
+            r.neutral_interception,
+            r.neutral_sack
         ));
     }
     w.write_all(body.as_bytes()).map_err(failed(path))?;

@@ -104,6 +104,12 @@ pub struct SplitIndex {
     pub(super) reals: Vec<f64>,
     /// Pass results per situation without its season and passer filters.
     pub(super) memo: Mutex<HashMap<String, Arc<Memo>>>,
+    /// Other per-situation results kept by the engine's estimators (the
+    /// opponent adjustment), by a key of their own; `forget` clears them.
+    pub(super) extra: Mutex<HashMap<String, Arc<dyn std::any::Any + Send + Sync>>>,
+    /// League-level fits per season list (the opponent model on every
+    /// snap): part of the index like its columns, kept by `forget`.
+    pub(super) league_fits: Mutex<HashMap<String, Arc<dyn std::any::Any + Send + Sync>>>,
 }
 
 /// The unit a grouping sums over: per row its dense id, per id (who,
@@ -327,6 +333,8 @@ impl SplitIndex {
             ints: Vec::with_capacity(n * layout.ints),
             reals: Vec::with_capacity(n * layout.reals),
             memo: Mutex::new(HashMap::new()),
+            extra: Mutex::new(HashMap::new()),
+            league_fits: Mutex::new(HashMap::new()),
             layout,
         };
         let lay = &ix.layout;
@@ -420,9 +428,13 @@ impl SplitIndex {
         self.n_snaps == p.len()
     }
 
-    /// Forget every memoised pass (tests time the pass itself with it).
+    /// Forget every memoised pass and per-situation result (tests time the
+    /// pass itself with it); the league-level fits stay.
     pub fn forget(&self) {
         if let Ok(mut m) = self.memo.lock() {
+            m.clear();
+        }
+        if let Ok(mut m) = self.extra.lock() {
             m.clear();
         }
     }

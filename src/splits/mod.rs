@@ -10,6 +10,7 @@ pub mod metrics;
 pub mod review;
 mod lift;
 mod normal;
+mod opponent;
 mod profile;
 #[cfg(test)]
 mod reference;
@@ -23,6 +24,7 @@ mod words;
 pub use metrics::{is_style, metric_group, metric_index, MetricDef, SnapValues, Stat, Unit, METRICS, METRIC_GROUPS};
 pub use snaps::{coach_spot, down_distance, game_snaps, play_indices, play_list, quarter, result_text, snap_at, Snap};
 pub use index::SplitIndex;
+pub use opponent::{fit_metric as opponent_fit_metric, opponent_fit, Adjusted, OpponentFit, ADJUSTED_METRIC, OPPONENT_WORDS};
 pub use profile::{epa_distribution, epa_distribution_in, profile, profile_in, profile_with, EpaDistribution, Profile, ProfileLine, SeasonLine};
 pub use table::{default_min_dropbacks, split_table, split_table_for, split_table_in, Cell, MetricInfo, PasserRow, SortBy, SplitTable, DEFAULT_MIN_DROPBACKS, DEFAULT_MIN_VS_ONE_DEFENSE};
 pub use tags::{tag_breakdown, tag_breakdown_in, TagBreakdown, TagBreakdownError, TagLine};

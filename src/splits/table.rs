@@ -72,6 +72,16 @@ pub struct PasserRow {
     pub qualified: bool,
     pub dropbacks: u32,
     pub cells: Vec<Cell>,
+    /// EPA per dropback with the defenses he faced taken out: his raw value
+    /// minus the snap-weighted effect of the defense-seasons he threw
+    /// against here (a crossed passer + defense model, `splits::opponent`),
+    /// with its 90% interval.
+    pub epa_opp_adj: Option<f64>,
+    pub epa_opp_adj_lo: Option<f64>,
+    pub epa_opp_adj_hi: Option<f64>,
+    /// The average effect of the defenses he faced (EPA per dropback;
+    /// negative: tougher than the league's average defense here).
+    pub epa_opp_faced: Option<f64>,
 }
 
 impl PasserRow {
@@ -237,7 +247,22 @@ pub fn split_table_for(p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: 
 pub fn split_table_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32, focus: Option<&str>) -> SplitTable {
     let sums = accumulate(ix, p, v, s);
     let normal = every_snap(ix, p, v, s);
-    build_table(p, &sums, &normal, s, min_dropbacks, focus, &memo(ix, p, v, &s.without_row_pick()))
+    // EPA per dropback against an average defense (`splits::opponent`),
+    // fitted beside the table; for passer rows only (a team row has no
+    // single passer to adjust).
+    let memo = memo(ix, p, v, &s.without_row_pick());
+    let (mut table, opp) = rayon::join(
+        || build_table(p, &sums, &normal, s, min_dropbacks, focus, &memo),
+        || if s.group == Group::Passer { super::opponent::opponent_fit(ix, p, v, s) } else { None },
+    );
+    if let Some(fit) = opp {
+        for row in table.rows.iter_mut() {
+            if let Some(a) = fit.of(p, &row.passer) {
+                (row.epa_opp_adj, row.epa_opp_adj_lo, row.epa_opp_adj_hi, row.epa_opp_faced) = (Some(a.value), Some(a.lo), Some(a.hi), Some(a.faced));
+            }
+        }
+    }
+    table
 }
 
 /// The table from the sums. The model fits (per season list) and the
@@ -306,6 +331,10 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
                 qualified: dropbacks >= min_dropbacks.max(1),
                 dropbacks,
                 cells,
+                epa_opp_adj: None,
+                epa_opp_adj_lo: None,
+                epa_opp_adj_hi: None,
+                epa_opp_faced: None,
             }
         })
         .collect();

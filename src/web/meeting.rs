@@ -23,9 +23,9 @@ pub const CUE_SNAPS: usize = 3;
 pub struct ScreenData<'a> {
     pub preset: Preset,
     pub situation: &'a Situation,
+    /// The situation's table; "his normal" is each cell's `normal`, the
+    /// posterior of his own level (the number the profile and explorer show).
     pub table: &'a SplitTable,
-    /// The same passer over all his dropbacks (his normal).
-    pub normal: &'a SplitTable,
     pub snaps: Vec<Snap>,
 }
 
@@ -157,15 +157,13 @@ pub fn view(passer: &str, season_pairs: &[(String, String)], seasons_text: &str,
     let prev = order[(at + n - 1) % n];
     let next = order[(at + 1) % n];
     let row = d.table.row(passer);
-    let normal_row = d.normal.row(passer);
     let mut metrics = Vec::new();
     if let Some(r) = row {
         for key in MEETING_METRICS {
             let Some(j) = d.table.metrics.iter().position(|m| m.key == key) else { continue };
             let m = &d.table.metrics[j];
             let Some(cell) = r.cell(key) else { continue };
-            let normal = normal_row.and_then(|nr| nr.cell(key)).and_then(|c| c.estimate);
-            metrics.push(panel(m, cell, d.table.league[j], normal));
+            metrics.push(panel(m, cell, d.table.league[j], cell.normal));
         }
     }
     let mut snaps: Vec<&Snap> = d.snaps.iter().filter(|s| s.wpa.is_finite()).collect();
@@ -230,11 +228,8 @@ pub async fn meeting(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
         }
         let preset = order[at];
         let mut s = preset.situation(one_score);
-        s.seasons = seasons.clone();
-        let mut all = Preset::EverySnap.situation(one_score);
-        all.seasons = seasons;
+        s.seasons = seasons;
         let table = st2.split_table(&s, min, Some(&who));
-        let normal = st2.split_table(&all, min, Some(&who));
         let snaps = splits::play_list(lg.plays(), &lg.values(), &s, Some(&who), None);
         let season_pairs: Vec<(String, String)> = s.to_query().into_iter().filter(|(k, _)| k == "season").collect();
         let seasons_text = match &s.seasons {
@@ -248,7 +243,7 @@ pub async fn meeting(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
                 }
             }
         };
-        let data = ScreenData { preset, situation: &s, table: &table, normal: &normal, snaps };
+        let data = ScreenData { preset, situation: &s, table: &table, snaps };
         Ok(view(&who, &season_pairs, &seasons_text, &order, at, &data))
     })
     .await;
@@ -273,6 +268,38 @@ mod tests {
         assert_eq!(verdict(0.05, 0.20, 0.02, false, "league"), "worse than league");
         assert_eq!(verdict(-0.1, 0.1, 0.0, true, "his normal"), "no clear difference from his normal");
         assert_eq!(verdict(-0.3, -0.1, 0.0, true, "league"), "worse than league");
+    }
+
+    /// "His normal" on a screen is the table's own `normal` for the cell:
+    /// the posterior of his level, as the profile and explorer show it.
+    #[test]
+    fn his_normal_is_the_cells_normal() {
+        let plays = crate::models::testkit::league(240, 2, 11);
+        let n = plays.len();
+        let epa: Vec<f64> = (0..n).map(|i| ((i * 37) % 23) as f64 / 10.0 - 1.1).collect();
+        let wp: Vec<f64> = (0..n).map(|i| ((i * 13) % 97) as f64 / 100.0 + 0.005).collect();
+        let wpa: Vec<f64> = (0..n).map(|i| ((i * 7) % 11) as f64 / 100.0 - 0.05).collect();
+        let cp = vec![0.62; n];
+        let v = splits::SnapValues { epa: &epa, wp: &wp, wpa: &wpa, cp: &cp, choice: &[], execution: &[], league_sticks: &[] };
+        let s = Preset::TwoMinuteDrill.situation(8);
+        let table = splits::split_table(&plays, &v, &s, 1);
+        let row = table.rows.iter().find(|r| r.cell("epa").and_then(|c| c.normal).is_some()).expect("a passer with a normal");
+        let data = ScreenData { preset: Preset::TwoMinuteDrill, situation: &s, table: &table, snaps: Vec::new() };
+        let order = screens();
+        let at = order.iter().position(|p| *p == Preset::TwoMinuteDrill).expect("a screen");
+        let view = view(&row.passer, &[], "seasons 2000-2001", &order, at, &data);
+        assert_eq!(view.metrics.len(), MEETING_METRICS.len());
+        for (panel, key) in view.metrics.iter().zip(MEETING_METRICS) {
+            let j = table.metrics.iter().position(|m| m.key == key).expect("metric");
+            let cell = row.cell(key).expect("cell");
+            let want = cell.normal.expect("his normal");
+            assert_eq!(panel.normal, shown(&table.metrics[j], Some(want)), "{key}");
+            assert!(panel.normal_pct.is_some(), "{key}: the normal is drawn");
+        }
+        // The EPA normal checked as a number, not only as the same string.
+        let epa_normal = row.cell("epa").and_then(|c| c.normal).expect("epa normal");
+        let shown_normal: f64 = view.metrics[0].normal.replace('\u{2212}', "-").parse().expect("a number");
+        assert!((shown_normal - epa_normal).abs() <= 0.0005, "{shown_normal} vs {epa_normal}");
     }
 
     #[test]

@@ -110,9 +110,15 @@ impl Engine<'_, '_> {
     }
 
     pub(super) fn drop_probs(&self, late_close: bool) -> DropProbs {
-        let (off, def) = (self.poss, self.def());
+        self.drop_probs_against(late_close, &self.strength[self.def()])
+    }
+
+    /// The dropback model against defensive strengths `sd` (the truth's
+    /// neutral rates use a defense without pass-defense or pass-rush edge).
+    fn drop_probs_against(&self, late_close: bool, sd: &TeamStrength) -> DropProbs {
+        let off = self.poss;
         let s = self.g.qb_skills[off][self.qb[off]];
-        let (so, sd) = (&self.strength[off], &self.strength[def]);
+        let so = &self.strength[off];
         let m = self.margin();
         let hurry = self.hurry(off);
         let desperate = self.period >= 4 && hurry && m < 0;
@@ -188,19 +194,31 @@ impl Engine<'_, '_> {
         let off = self.poss;
         let late_close = late_and_close(self.period, self.clock, self.margin());
         let pr = self.drop_probs(late_close);
-        let mut exp_comp = 0.0;
-        let mut exp_int = 0.0;
-        for c in 0..BANDS {
-            exp_comp += pr.band[c] * pr.comp[c];
-            exp_int += pr.band[c] * pr.int[c];
-        }
+        let expected = |pr: &DropProbs| {
+            let (mut comp, mut int) = (0.0, 0.0);
+            for c in 0..BANDS {
+                comp += pr.band[c] * pr.comp[c];
+                int += pr.band[c] * pr.int[c];
+            }
+            (comp, int)
+        };
+        let (exp_comp, exp_int) = expected(&pr);
+        let neutral_sd = TeamStrength { pass_def: 0.0, pass_rush: 0.0, ..self.strength[self.def()] };
+        let np = self.drop_probs_against(late_close, &neutral_sd);
+        let (n_comp, n_int) = expected(&np);
         let pid = self.passer_id();
         self.truth.record(
             pid,
             self.g.team_ids[off],
             self.g.season,
             late_close,
-            DropbackTruth { complete: exp_comp, interception: exp_int, sack: pr.sack, scramble: (1.0 - pr.sack) * pr.scramble },
+            DropbackTruth {
+                complete: exp_comp,
+                interception: exp_int,
+                sack: pr.sack,
+                scramble: (1.0 - pr.sack) * pr.scramble,
+                neutral: [n_comp, n_int, np.sack],
+            },
         );
         let name = self.passer_name().to_string();
         let sacked = chance(self.rng, pr.sack);

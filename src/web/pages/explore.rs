@@ -79,6 +79,9 @@ pub struct RowView {
     pub ours: bool,
     pub profile_href: String,
     pub cells: Vec<CellView>,
+    /// EPA per dropback against an average defense ("+0.150" and "[lo, hi]"),
+    /// with its sort value; shown when the columns include EPA per dropback.
+    pub opp: (String, String, String),
 }
 
 #[derive(Template)]
@@ -125,6 +128,9 @@ pub(super) struct ExplorePage {
     pub(super) csv_href: String,
     pub(super) plays_href: String,
     pub(super) sort_note: String,
+    /// Whether the opponent-adjusted EPA column is shown (when EPA is), and its heading's explanation.
+    pub(super) opp_column: bool,
+    pub(super) opp_words: &'static str,
 }
 
 /// The columns shown: the projector's short set unless a group is asked
@@ -311,6 +317,14 @@ pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTab
                 our_passer.as_deref() == Some(r.passer.as_str()) || (our_passer.is_none() && our_team.as_deref() == Some(r.team.as_str()))
             },
             profile_href: row_href(&r.passer, params),
+            opp: (
+                crate::numfmt::signed(r.epa_opp_adj, 3, ""),
+                match (r.epa_opp_adj_lo, r.epa_opp_adj_hi) {
+                    (Some(lo), Some(hi)) => format!("[{}, {}]", crate::numfmt::signed(Some(lo), 3, ""), crate::numfmt::signed(Some(hi), 3, "")),
+                    _ => String::new(),
+                },
+                sort_value(r.epa_opp_adj),
+            ),
             cells: shown
                 .iter()
                 .map(|&j| {
@@ -415,6 +429,10 @@ pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTab
         csv_href: format!("/api/splits.csv{}", params.with(&[("view", None)])),
         plays_href: format!("/plays{}", viewed(sq.clone(), params.projector)),
         sort_note,
+        // Beside the value metrics (and every column); the key numbers keep
+        // to what fits a laptop's width.
+        opp_column: !params.projector && matches!(params.cols.as_deref(), Some("value") | Some("all")) && shown.iter().any(|&j| METRICS[j].key == splits::ADJUSTED_METRIC),
+        opp_words: splits::OPPONENT_WORDS,
         chrome: ch,
     }
 }

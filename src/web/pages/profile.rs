@@ -62,6 +62,29 @@ pub(super) struct ProfilePage {
     pub(super) report_href: String,
     pub(super) games: Vec<(String, String)>,
     pub(super) by_tag: Option<TagSection>,
+    /// EPA per dropback against an average defense, per situation: (label, line).
+    pub(super) opp_lines: Vec<(&'static str, String)>,
+    pub(super) opp_words: &'static str,
+}
+
+/// "raw +0.120 · against an average defense +0.150 [−0.050, +0.350] · his
+/// defenses 0.030 tougher than average" (EPA per dropback).
+pub(super) fn opp_line(r: &splits::PasserRow) -> String {
+    let ej = metric_index("epa").unwrap_or(0);
+    let f = |x: Option<f64>| crate::numfmt::signed(x, 3, "");
+    let raw = format!("raw {}", f(r.cells[ej].value));
+    match (r.epa_opp_adj, r.epa_opp_adj_lo, r.epa_opp_adj_hi) {
+        (Some(a), Some(lo), Some(hi)) => {
+            let faced = match r.epa_opp_faced {
+                Some(x) if x.abs() < 0.0005 => " · his defenses about average".to_string(),
+                Some(x) if x < 0.0 => format!(" · his defenses {} tougher than average", fixed(Some(-x), 3)),
+                Some(x) => format!(" · his defenses {} easier than average", fixed(Some(x), 3)),
+                None => String::new(),
+            };
+            format!("{raw} · against an average defense {} [{}, {}]{faced}", f(Some(a)), f(Some(lo)), f(Some(hi)))
+        }
+        _ => format!("{raw} · against an average defense: too few passers or defenses here to fit"),
+    }
 }
 
 pub(super) const TAG_KEYS: &[&str] = &["epa", "success", "comp_pct", "sack_rate", "int_rate", "anya"];
@@ -399,6 +422,8 @@ pub(super) fn profile_view(ch: Chrome, params: &Params, name: &str, prof: &split
         report_href: format!("/report{}", viewed(Situation { passer: Some(name.clone()), seasons: params.situation.seasons.clone(), ..Preset::DEFAULT.situation(params.situation.one_score) }.to_query(), params.projector)),
         games,
         by_tag,
+        opp_lines: prof.presets.iter().filter_map(|line| Some((line.label, opp_line(line.row.as_ref()?)))).collect(),
+        opp_words: splits::OPPONENT_WORDS,
         chrome: ch,
     }
 }
