@@ -323,19 +323,7 @@ mod tests {
         cache::store(&dir, "fp-roundtrip", &models, None).expect("store");
         let back = cache::load(&dir, "fp-roundtrip").expect("load").expect("an entry");
         let _ = std::fs::remove_dir_all(&dir);
-        fn numbers(v: &serde_json::Value, out: &mut Vec<u64>) {
-            match v {
-                serde_json::Value::Number(n) => out.push(n.as_f64().map(f64::to_bits).unwrap_or(0)),
-                serde_json::Value::Array(xs) => xs.iter().for_each(|x| numbers(x, out)),
-                serde_json::Value::Object(m) => m.values().for_each(|x| numbers(x, out)),
-                _ => {}
-            }
-        }
-        let bits = |m: &Models| {
-            let mut out = Vec::new();
-            numbers(&serde_json::to_value(m).expect("json"), &mut out);
-            out
-        };
+        let bits = |m: &Models| crate::models::testkit::json_bits(m);
         let (a, b) = (bits(&models), bits(&back.models));
         assert!(a.len() > 50, "only {} numbers: the test would prove little", a.len());
         assert_eq!(a, b);

@@ -328,3 +328,20 @@ fn finish(
         }
     }
 }
+
+/// Every number in `v`'s JSON form, as bits in document order: two values
+/// whose lists are equal read back bit for bit.
+#[cfg(test)]
+pub fn json_bits<T: serde::Serialize>(v: &T) -> Vec<u64> {
+    fn numbers(v: &serde_json::Value, out: &mut Vec<u64>) {
+        match v {
+            serde_json::Value::Number(n) => out.push(n.as_f64().map(f64::to_bits).unwrap_or(0)),
+            serde_json::Value::Array(xs) => xs.iter().for_each(|x| numbers(x, out)),
+            serde_json::Value::Object(m) => m.values().for_each(|x| numbers(x, out)),
+            _ => {}
+        }
+    }
+    let mut out = Vec::new();
+    numbers(&serde_json::to_value(v).expect("json"), &mut out);
+    out
+}

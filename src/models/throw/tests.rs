@@ -96,19 +96,7 @@ fn cached_throw_model_scores_bit_for_bit() {
     assert!(back.from_cache, "the second opening reads the cache");
     let (a, b) = (fresh.model.expect("air yards"), back.model.expect("air yards"));
     // Every number of the model, bit for bit (and enough of them to matter).
-    fn numbers(v: &serde_json::Value, out: &mut Vec<u64>) {
-        match v {
-            serde_json::Value::Number(n) => out.push(n.as_f64().map(f64::to_bits).unwrap_or(0)),
-            serde_json::Value::Array(xs) => xs.iter().for_each(|x| numbers(x, out)),
-            serde_json::Value::Object(m) => m.values().for_each(|x| numbers(x, out)),
-            _ => {}
-        }
-    }
-    let bits = |m: &ThrowModel| {
-        let mut out = Vec::new();
-        numbers(&serde_json::to_value(m).expect("json"), &mut out);
-        out
-    };
+    let bits = |m: &ThrowModel| crate::models::testkit::json_bits(m);
     assert!(bits(&a).len() > 200, "only {} numbers", bits(&a).len());
     assert_eq!(bits(&a), bits(&b));
     assert_eq!(a, b);
