@@ -87,9 +87,9 @@ enum Cmd {
         /// Season(s) to include (repeat or comma list).
         #[arg(long, value_delimiter = ',')]
         season: Vec<i32>,
-        /// Minimum dropbacks to qualify.
-        #[arg(long, default_value_t = splits::DEFAULT_MIN_DROPBACKS)]
-        min: u32,
+        /// Minimum dropbacks to qualify (default 20; 5 for passers against one defense, 'opponent=').
+        #[arg(long)]
+        min: Option<u32>,
         #[arg(long, value_enum, default_value_t = Format::Table)]
         format: Format,
         #[arg(long)]
@@ -324,6 +324,7 @@ fn run(cli: Cli) -> Result<ExitCode> {
             }
             let league = open_league(file, &map, lenient, false)?;
             situation.check_tags(league.plays()).map_err(|e| anyhow::anyhow!("--where: {e}"))?;
+            let min = min.unwrap_or_else(|| splits::default_min_dropbacks(&situation));
             let table = splits::split_table(league.plays(), &league.values(), &situation, min);
             match format {
                 Format::Json => out(&format!("{}\n", serde_json::to_string_pretty(&table)?)),
