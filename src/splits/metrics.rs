@@ -187,6 +187,46 @@ pub fn higher_is_better(m: &MetricDef, group: crate::situation::Group) -> bool {
     }
 }
 
+/// A defense's words for the metrics whose passer words do not fit numbers
+/// allowed ("Times sacked" becomes "Sacks made"): key, label, short. Any
+/// metric not listed keeps its passer words.
+pub const DEFENSE_WORDS: &[(&str, &str, &str)] = &[
+    ("dropbacks", "Dropbacks faced", "Dropbacks"),
+    ("attempts", "Throws faced (pass attempts)", "Throws"),
+    ("completions", "Catches allowed (completions)", "Caught"),
+    ("comp_pct", "Completion % allowed", "Caught %"),
+    ("yards", "Passing yards allowed", "Pass yards"),
+    ("ypa", "Yards per throw allowed", "Yards/throw"),
+    ("td", "Touchdown passes allowed", "TD"),
+    ("int", "Interceptions made", "INT"),
+    ("int_rate", "Interceptions made per throw (%)", "INT %"),
+    ("sacks", "Sacks made", "Sacks"),
+    ("sack_rate", "Sacks per dropback (%)", "Sack %"),
+    ("scrambles", "Scrambles allowed", "Scrambles"),
+    ("scramble_rate", "Scrambles allowed per dropback (%)", "Scramble %"),
+    ("rating", "Passer rating allowed", "Rating allowed"),
+    ("anya", "Adj. net yards per attempt allowed", "ANY/A"),
+    ("epa", "EPA per dropback allowed", "EPA/dropback"),
+    ("success", "Success rate allowed (% EPA > 0)", "Success %"),
+    ("wpa_total", "WPA allowed, total", "WPA"),
+    ("wpa", "WPA per dropback allowed", "WPA/dropback"),
+    ("cpoe", "Completion % over expected allowed", "CPOE"),
+    ("turnover", "Takeaways per dropback (%): interceptions and fumbles recovered", "Takeaway %"),
+    ("sticks", "Thrown past the sticks against it on 3rd/4th down (%)", "Past sticks %"),
+    ("pace", "Hurry-up pace faced: seconds to the next snap when the offense trails late in a half", "Hurry-up secs"),
+    ("choice", "Depth choice of passers facing it: WPA per throw over the league's depths", "Depth choice"),
+    ("execution", "Execution against it: WPA per throw over what the league gets at the depth picked", "Execution"),
+];
+
+/// The metric's label and short heading for rows of `group`: a defense's
+/// words (`DEFENSE_WORDS`) for a defense, else the metric's own.
+pub fn headings(m: &MetricDef, group: crate::situation::Group) -> (&'static str, &'static str) {
+    match group {
+        crate::situation::Group::Defense => DEFENSE_WORDS.iter().find(|w| w.0 == m.key).map(|w| (w.1, w.2)).unwrap_or((m.label, m.short)),
+        _ => (m.label, m.short),
+    }
+}
+
 pub fn metric_index(key: &str) -> Option<usize> {
     METRICS.iter().position(|m| m.key == key)
 }

@@ -414,10 +414,11 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
         .map(|j| {
             let m = &METRICS[j];
             let st = &stab[j];
+            let (label, short) = super::metrics::headings(m, group);
             MetricInfo {
                 key: m.key,
-                label: m.label,
-                short: m.short,
+                label,
+                short,
                 unit: m.unit.label(),
                 stat: m.stat,
                 higher_is_better: higher_is_better(m, group),

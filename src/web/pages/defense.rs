@@ -7,20 +7,9 @@ use super::explore::{number_query, row_situation, PresetLink};
 use super::*;
 use crate::situation::Group;
 
-/// The lines of the defense view: metric key and what it is, allowed.
-pub const DEFENSE_LINES: &[(&str, &str)] = &[
-    ("epa", "EPA per dropback allowed"),
-    ("success", "Success rate allowed (%)"),
-    ("sack_rate", "Sacks per dropback (%)"),
-    ("int_rate", "Interceptions per throw (%)"),
-    ("turnover", "Takeaways per dropback (%)"),
-    ("comp_pct", "Completion % allowed"),
-    ("cpoe", "Completion % over expected allowed"),
-    ("ypa", "Yards per throw allowed"),
-    ("anya", "Adj. net yards per attempt allowed"),
-    ("rating", "Passer rating allowed"),
-    ("wpa", "WPA per dropback allowed"),
-];
+/// The lines of the defense view, by metric key; each reads with the
+/// defense's words (`splits::headings`).
+pub const DEFENSE_LINES: &[&str] = &["epa", "success", "sack_rate", "int_rate", "turnover", "comp_pct", "cpoe", "ypa", "anya", "rating", "wpa"];
 
 /// One line of the defense view.
 pub struct DefenseLine {
@@ -132,9 +121,10 @@ pub(super) fn defense_view(ch: Chrome, params: &Params, table: &splits::SplitTab
         None => Vec::new(),
         Some(r) => DEFENSE_LINES
             .iter()
-            .filter_map(|(key, label)| {
+            .filter_map(|key| {
                 let j = metric_index(key)?;
                 let (m, mi, c) = (&METRICS[j], &table.metrics[j], &r.cells[j]);
+                let label = mi.label;
                 let d = m.decimals;
                 let better = if splits::is_style(m.key) { "" } else if mi.higher_is_better { "higher is better" } else { "lower is better" };
                 let tone = match c.p_better {

@@ -261,6 +261,11 @@ fn explorer_by_defense_names_teams_links_their_snaps_and_says_better_flips() {
     assert_eq!(page.columns[0].short, "Defense");
     assert_eq!(page.league.len(), page.columns.len() - 1);
     assert!(page.group_note.contains("Better flips"), "{}", page.group_note);
+    // Headings in a defense's words: sacks made, not "sacked".
+    let heads: Vec<&str> = page.columns.iter().map(|c| c.short).collect();
+    assert!(heads.contains(&"Sack %") && heads.contains(&"Rating allowed") && !heads.iter().any(|h| h.contains("Sacked")), "{heads:?}");
+    let by_passer = explore_view(chrome_for(&pr, None, None), &params("preset=every-snap&min=5"), &splits::split_table(&f.plays, &f.values(), &params("preset=every-snap&min=5").situation, 5), Vec::new());
+    assert!(by_passer.columns.iter().any(|c| c.short == "Sacked %"), "a passer is sacked");
     for r in &page.rows {
         assert!(f.plays.teams.contains(&r.passer), "{}", r.passer);
         assert!(r.profile_href.starts_with("/defense?") && r.profile_href.contains(&format!("opponent={}", r.passer)), "{}", r.profile_href);
