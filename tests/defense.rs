@@ -7,8 +7,10 @@
 
 mod common;
 
+use common::rows;
+
 use lategame::playfile::{Kind, PlayRow};
-use lategame::plays::{Plays, Source};
+use lategame::plays::Plays;
 use lategame::situation::{Group, Preset, Situation};
 use lategame::splits::{self, metric_index, SnapValues, SplitTable};
 
@@ -17,26 +19,10 @@ use lategame::splits::{self, metric_index, SnapValues, SplitTable};
 /// of the 1st. 1st and 10 at the own 30 either way.
 fn snap(game: &str, home: &str, away: &str, seq: i32, off: &str, def: &str, late: bool, code: char) -> PlayRow {
     let pass = code != 'S';
-    PlayRow {
-        game: game.into(),
-        season: 2020,
-        week: 1,
+    let row = PlayRow {
         home: home.into(),
         away: away.into(),
-        seq,
-        period: if late { 4 } else { 1 },
-        clock: if late { 300 } else { 800 },
-        offense: off.into(),
-        defense: def.into(),
-        off_score: 0,
-        def_score: 0,
-        off_timeouts: 3,
-        def_timeouts: 3,
-        down: Some(1),
-        to_go: Some(10),
-        ball_on: 30,
         kind: if pass { Kind::Pass } else { Kind::Sack },
-        passer: Some(format!("Passer of {off}")),
         complete: Some(code == 'C'),
         intercepted: Some(code == 'X'),
         air_yards: if pass { Some(6) } else { None },
@@ -45,10 +31,12 @@ fn snap(game: &str, home: &str, away: &str, seq: i32, off: &str, def: &str, late
             'S' => -6,
             _ => 0,
         }),
-        fumble_lost: Some(false),
-        touchback: None,
-        points: 0,
-        home_line: Some(0.0),
+        ..rows::throw(game, seq, off, def, &format!("Passer of {off}"))
+    };
+    if late {
+        rows::late(row)
+    } else {
+        row
     }
 }
 
@@ -101,8 +89,7 @@ fn fixture() -> (Plays, Vec<f64>) {
             }
         }
     }
-    let sources = (0..rows.len()).map(|i| Source { file: 0, row: i as u32 + 1 }).collect();
-    (Plays::from_rows(vec!["fixture".into()], &rows, sources), epa)
+    (rows::plays("fixture", &rows), epa)
 }
 
 fn table(p: &Plays, epa: &[f64], s: &Situation) -> SplitTable {

@@ -5,14 +5,15 @@
 
 mod common;
 
-use lategame::plays::{Plays, Source};
+use common::rows;
+
+use lategame::plays::Plays;
 use lategame::situation::Preset;
 use lategame::sim::{simulate_with_shifts, LateShifts, SimConfig, TruthRow};
 use lategame::splits::{self, metric_index, SnapValues};
 
 fn plays(rows: &[lategame::playfile::PlayRow]) -> Plays {
-    let sources = (0..rows.len()).map(|i| Source { file: 0, row: i as u32 + 1 }).collect();
-    Plays::from_rows(vec!["sim".into()], rows, sources)
+    rows::plays("sim", rows)
 }
 
 /// Rate metrics only need the plays; the model columns are zeros here.
@@ -79,35 +80,15 @@ fn lift_recovers_true_late_game_shifts() {
 /// One pass attempt: `late` puts it at 5:00 of the 4th quarter (end of game,
 /// tied), else at 13:20 of the 1st; 1st and 10 at the own 30 either way.
 fn attempt(seq: i32, passer: &str, late: bool, complete: bool) -> lategame::playfile::PlayRow {
-    use lategame::playfile::{Kind, PlayRow};
-    PlayRow {
-        game: "2020w01g01".into(),
-        season: 2020,
-        week: 1,
-        home: "HOM".into(),
-        away: "AWY".into(),
-        seq,
-        period: if late { 4 } else { 1 },
-        clock: if late { 300 } else { 800 },
-        offense: "HOM".into(),
-        defense: "AWY".into(),
-        off_score: 0,
-        def_score: 0,
-        off_timeouts: 3,
-        def_timeouts: 3,
-        down: Some(1),
-        to_go: Some(10),
-        ball_on: 30,
-        kind: Kind::Pass,
-        passer: Some(passer.into()),
+    let row = lategame::playfile::PlayRow {
         complete: Some(complete),
-        intercepted: Some(false),
-        air_yards: Some(5),
         gain: Some(if complete { 5 } else { 0 }),
-        fumble_lost: Some(false),
-        touchback: None,
-        points: 0,
-        home_line: Some(0.0),
+        ..rows::throw("2020w01g01", seq, "HOM", "AWY", passer)
+    };
+    if late {
+        rows::late(row)
+    } else {
+        row
     }
 }
 

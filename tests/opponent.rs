@@ -5,48 +5,21 @@
 
 mod common;
 
-use lategame::playfile::{Kind, PlayRow};
+use common::rows;
+
+use lategame::playfile::PlayRow;
 use lategame::plays::{Plays, Source};
 use lategame::situation::{Preset, Situation};
 use lategame::sim::{simulate_with, DefenseSpread, LateShifts, SimConfig};
 use lategame::splits::{self, metric_index, SnapValues, SplitIndex};
 
 fn plays(rows: &[PlayRow]) -> Plays {
-    let sources = (0..rows.len()).map(|i| Source { file: 0, row: i as u32 + 1 }).collect();
-    Plays::from_rows(vec!["fixture".into()], rows, sources)
+    rows::plays("fixture", rows)
 }
 
 /// A 1st-and-10 throw in the 1st quarter by `passer` of `offense` against `defense`.
 fn throw(game: &str, seq: i32, offense: &str, defense: &str, passer: &str) -> PlayRow {
-    PlayRow {
-        game: game.into(),
-        season: 2020,
-        week: 1,
-        home: offense.into(),
-        away: defense.into(),
-        seq,
-        period: 1,
-        clock: 900 - seq,
-        offense: offense.into(),
-        defense: defense.into(),
-        off_score: 0,
-        def_score: 0,
-        off_timeouts: 3,
-        def_timeouts: 3,
-        down: Some(1),
-        to_go: Some(10),
-        ball_on: 30,
-        kind: Kind::Pass,
-        passer: Some(passer.into()),
-        complete: Some(true),
-        intercepted: Some(false),
-        air_yards: Some(5),
-        gain: Some(5),
-        fumble_lost: Some(false),
-        touchback: None,
-        points: 0,
-        home_line: Some(0.0),
-    }
+    PlayRow { clock: 900 - seq, ..rows::throw(game, seq, offense, defense, passer) }
 }
 
 /// Four defenses: STA and STB strong (EPA −0.4 a dropback against them),

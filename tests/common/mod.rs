@@ -3,6 +3,8 @@
 
 #![allow(dead_code)]
 
+pub mod rows;
+
 use lategame::league::{demo_path, League, LeagueConfig};
 use lategame::web::{serve_on, App, AppConfig};
 use std::path::{Path, PathBuf};
