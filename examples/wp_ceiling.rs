@@ -10,7 +10,9 @@
 //! [--rollouts 300] [--csv FILE]`
 //!
 //! `--csv` writes one row per stratum snap (state, held-out WP, baseline,
-//! oracle, result) for a closer look.
+//! oracle, result) for a closer look; `--all-csv` every held-out snap of the
+//! second half and overtime (WP, baseline, result); `--rollouts 0` skips
+//! the oracle (the held-out fits only).
 
 use anyhow::{bail, Context};
 use lategame::models::calib::held_out_predictions;
@@ -28,10 +30,11 @@ struct Args {
     seasons: u32,
     rollouts: usize,
     csv: Option<String>,
+    all_csv: Option<String>,
 }
 
 fn args() -> anyhow::Result<Args> {
-    let mut a = Args { seed: 101, seasons: 5, rollouts: 300, csv: None };
+    let mut a = Args { seed: 101, seasons: 5, rollouts: 300, csv: None, all_csv: None };
     let mut it = std::env::args().skip(1);
     while let Some(flag) = it.next() {
         let mut value = || it.next().with_context(|| format!("{flag} needs a value"));
@@ -40,6 +43,7 @@ fn args() -> anyhow::Result<Args> {
             "--seasons" => a.seasons = value()?.parse()?,
             "--rollouts" => a.rollouts = value()?.parse()?,
             "--csv" => a.csv = Some(value()?),
+            "--all-csv" => a.all_csv = Some(value()?),
             other => bail!("unknown argument {other}"),
         }
     }
@@ -105,7 +109,8 @@ fn main() -> anyhow::Result<()> {
     let a = args()?;
     let cfg = SimConfig { seasons: a.seasons, seed: a.seed, first_season: 2020 };
     let t = Instant::now();
-    let opts = OracleOptions { rollouts: a.rollouts, pick: &late_close };
+    let none = |_: i32, _: i32, _: i32| false;
+    let opts = OracleOptions { rollouts: a.rollouts, pick: if a.rollouts == 0 { &none } else { &late_close } };
     let (out, oracle) = simulate_with_oracle(&cfg, &opts);
     println!(
         "seed {}, {} seasons: {} snaps, {} late-and-close snaps played on {} times each ({:.0} s)",
@@ -129,7 +134,12 @@ fn main() -> anyhow::Result<()> {
             continue;
         }
         let key = plays.games[plays.game[i] as usize].key.as_str();
-        let Some(&k) = at.get(&(key, plays.seq[i])) else { bail!("no oracle value at {key} snap {}", plays.seq[i]) };
+        let Some(&k) = at.get(&(key, plays.seq[i])) else {
+            if a.rollouts == 0 {
+                continue;
+            }
+            bail!("no oracle value at {key} snap {}", plays.seq[i])
+        };
         let side = |home: f64| if plays.off_home[i] { home } else { 1.0 - home };
         rows.push(Row {
             snap: i,
@@ -139,6 +149,18 @@ fn main() -> anyhow::Result<()> {
             oracle: side(oracle[k].home_win),
             actual: p.actual,
         });
+    }
+    if let Some(path) = &a.all_csv {
+        // Every held-out snap of the second half and overtime: WP, baseline, result.
+        let mut f = std::io::BufWriter::new(std::fs::File::create(path)?);
+        writeln!(f, "game,seq,wp,base,actual")?;
+        for p in preds.iter().filter(|p| plays.period[p.snap as usize] >= 3) {
+            let i = p.snap as usize;
+            writeln!(f, "{},{},{},{},{}", plays.games[plays.game[i] as usize].key, plays.seq[i], p.wp, p.base, p.actual)?;
+        }
+    }
+    if a.rollouts == 0 {
+        return Ok(());
     }
     let all: Vec<&Row> = rows.iter().collect();
     let n = a.rollouts.max(2) as f64;
