@@ -423,7 +423,10 @@ fn held_out_seasons_are_calibrated() {
 /// stack) moved the model toward an oracle played on with the clubs at
 /// pregame strength (0.0057 to 0.0050) but away from the real one (0.0076
 /// to 0.0077, gain 10.8%): a club in a close game late has likely had a poor
-/// day. A correction fit to the oracle itself on public state (margin x
+/// day. Trailing by 1-3 with the ball (a field goal is enough), against the
+/// final 7:30 and in field-goal range (own 62 on): 0.00763 / 0.00742, gain
+/// 11.15% / 8.69%; those flags and trailing by 4-8 in the red zone: 0.00755 /
+/// 0.00747, 10.94% / 8.53%. A correction fit to the oracle itself on public state (margin x
 /// time x field cells, line, in-game yards per play and completion share,
 /// timeouts, down, distance) cuts the distance by 14-24% on all three
 /// leagues, yet its gain on this league's outcomes is 9.9% (from 10.6%);
