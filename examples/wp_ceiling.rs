@@ -73,12 +73,13 @@ fn brier(rows: &[&Row], f: &dyn Fn(&Row) -> f64) -> f64 {
     rows.iter().map(|r| (f(r) - r.actual).powi(2)).sum::<f64>() / rows.len().max(1) as f64
 }
 
-/// 90% band of `1 - brier(f) / brier(base)` resampling whole games.
-fn gain_band(rows: &[Row], f: &dyn Fn(&Row) -> f64) -> (f64, f64) {
+/// 90% band of `1 - Σ sq / Σ (base - actual)²` resampling whole games;
+/// `sq` is a row's squared error (less any noise term).
+fn gain_band(rows: &[Row], sq: &dyn Fn(&Row) -> f64) -> (f64, f64) {
     let mut by_game: HashMap<u32, [f64; 2]> = HashMap::new();
     for r in rows {
         let e = by_game.entry(r.game).or_default();
-        e[0] += (f(r) - r.actual).powi(2);
+        e[0] += sq(r);
         e[1] += (r.base - r.actual).powi(2);
     }
     let mut games: Vec<(u32, [f64; 2])> = by_game.into_iter().collect();
@@ -173,9 +174,9 @@ fn main() -> anyhow::Result<()> {
     let games = rows.iter().map(|r| r.game).collect::<std::collections::HashSet<_>>().len();
     println!("late & close: {} snaps in {games} games", rows.len());
     println!("  baseline (margin and time) Brier {b_base:.4}");
-    let (lo, hi) = gain_band(&rows, &|r| r.wp);
+    let (lo, hi) = gain_band(&rows, &|r| (r.wp - r.actual).powi(2));
     println!("  fitted WP, held out        Brier {b_wp:.4}  gain over baseline {:.1}% [{:.1}%, {:.1}%]", 100.0 * (1.0 - b_wp / b_base), 100.0 * lo, 100.0 * hi);
-    let (lo, hi) = gain_band(&rows, &|r| r.oracle);
+    let (lo, hi) = gain_band(&rows, &|r| (r.oracle - r.actual).powi(2) - r.oracle * (1.0 - r.oracle) / (n - 1.0));
     println!(
         "  oracle ({} rollouts)       Brier {b_or:.4}  gain over baseline {:.1}% [{:.1}%, {:.1}%] (rollout noise {:.4} taken off)",
         a.rollouts,

@@ -403,8 +403,8 @@ fn held_out_seasons_are_calibrated() {
 /// 300 times from the engine's own state at each stratum snap (both clubs'
 /// strengths and game-day form included, so no model can match it), against
 /// the same held-out WP and baseline. Gain over the baseline, WP / oracle:
-/// seed 101 11.0% / 15.2% [12.3%, 17.3%], seed 202 8.8% / 12.5% [9.8%,
-/// 14.9%], this league (seed 7) 10.6% / 15.5% [12.3%, 17.9%] (game-resampled
+/// seed 101 11.0% / 15.2% [12.5%, 17.6%], seed 202 8.8% / 12.5% [10.1%,
+/// 15.2%], this league (seed 7) 10.6% / 15.5% [12.6%, 18.1%] (game-resampled
 /// 90% bands; rollout noise taken off). So 12% is below the ceiling here,
 /// but the leagues differ by 2.7 points in the oracle's own gain: most of the
 /// spread between leagues is the luck of the outcomes, not the model, which
