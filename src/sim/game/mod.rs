@@ -210,6 +210,7 @@ struct State {
     injured: Vec<usize>,
 }
 
+/// The engine's files read and write the state as `self.clock`, `self.score`.
 impl std::ops::Deref for Engine<'_, '_> {
     type Target = State;
     fn deref(&self) -> &State {
