@@ -269,6 +269,18 @@ fn predict(plays: &Plays, fold: &Fold, init: Option<&Models>, out: &mut Vec<Pred
     Ok(())
 }
 
+/// The held-out predictions the calibration scores, one per snap held out
+/// (in fold order), and the plan that made them.
+pub fn held_out_predictions(plays: &Plays, opts: &CalibOptions) -> Result<(Plan, Vec<Pred>)> {
+    let (plan, folds, _) = folds(plays, opts.plan)?;
+    let mut preds = Vec::new();
+    let mut cp = (Vec::new(), Vec::new());
+    for f in &folds {
+        predict(plays, f, None, &mut preds, &mut cp)?;
+    }
+    Ok((plan, preds))
+}
+
 /// Hold out snaps as the plan says, fit on the rest, score the held-out snaps.
 pub fn calibrate_with(plays: &Plays, opts: &CalibOptions) -> Result<Calibration> {
     calibrate_from(plays, opts, None)

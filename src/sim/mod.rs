@@ -8,6 +8,7 @@ mod game;
 mod habits;
 mod league;
 mod names;
+pub mod oracle;
 mod shift;
 mod truth;
 
@@ -23,7 +24,7 @@ pub use shift::{LateShift, LateShifts, LateShiftsError};
 pub use truth::{write_truth, TruthError, TruthRow};
 
 use crate::playfile::PlayRow;
-use game::{play_game, GameSetup};
+use game::{play_game, play_game_probed, GameSetup, Snapshot};
 use league::{League, TEAMS, WEEKS};
 use rand::SeedableRng;
 use rand_chacha::ChaCha8Rng;
@@ -122,7 +123,7 @@ pub fn simulate(cfg: &SimConfig) -> SimOutput {
 /// Simulate with some passers throwing short when trailing late (`habits`);
 /// the truth file records each passer's tilt shift.
 pub fn simulate_throw_short(cfg: &SimConfig, short: ThrowShort) -> SimOutput {
-    run_with(cfg, &|_, _| {}, None, short, &LateShifts::default(), DefenseSpread::default())
+    run_with(cfg, &|_, _| {}, None, short, &LateShifts::default(), DefenseSpread::default(), None)
 }
 
 /// As `simulate`, calling `on_game(done, total)` after every game.
@@ -139,7 +140,7 @@ pub fn simulate_with_shifts(cfg: &SimConfig, shifts: &LateShifts) -> SimOutput {
 /// The general form: late-and-close shifts, a defensive spread, and
 /// `on_game(done, total)` after every game (the CLI's `simulate` calls it).
 pub fn simulate_with(cfg: &SimConfig, shifts: &LateShifts, defense: DefenseSpread, on_game: &dyn Fn(usize, usize)) -> SimOutput {
-    run_with(cfg, on_game, None, ThrowShort::default(), shifts, defense)
+    run_with(cfg, on_game, None, ThrowShort::default(), shifts, defense, None)
 }
 
 // ---- the home line ----
@@ -212,8 +213,12 @@ fn rating(s: &TeamStrength, q: &PasserSkills) -> f64 {
 pub(crate) type FeatureLog = Vec<[f64; FEATURES]>;
 
 pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), log: Option<&mut FeatureLog>, shifts: &LateShifts) -> SimOutput {
-    run_with(cfg, on_game, log, ThrowShort::default(), shifts, DefenseSpread::default())
+    run_with(cfg, on_game, log, ThrowShort::default(), shifts, DefenseSpread::default(), None)
 }
+
+/// Told before every snap: the game's number in the league (from 0), its
+/// setup and the engine's state (`oracle`).
+pub(crate) type GameProbe<'p> = &'p mut dyn FnMut(usize, &GameSetup, &Snapshot);
 
 fn run_with(
     cfg: &SimConfig,
@@ -222,6 +227,7 @@ fn run_with(
     short: ThrowShort,
     shifts: &LateShifts,
     defense: DefenseSpread,
+    mut probe: Option<GameProbe>,
 ) -> SimOutput {
     let shift = |pid: usize| shifts.of(cfg.seed, pid);
     let league_rng = ChaCha8Rng::seed_from_u64(cfg.seed);
@@ -286,7 +292,10 @@ fn run_with(
                 };
                 let mut rng = ChaCha8Rng::seed_from_u64(cfg.seed ^ 0x5EED_6A3E_0F1E_1D00);
                 rng.set_stream(done as u64 + 1);
-                let hurt = play_game(&setup, &mut rng, &mut rows, &mut book);
+                let hurt = match probe.as_deref_mut() {
+                    Some(p) => play_game_probed(&setup, &mut rng, &mut rows, &mut book, &mut |snap| p(done, &setup, snap)),
+                    None => play_game(&setup, &mut rng, &mut rows, &mut book),
+                };
                 for pid in hurt {
                     league.injure(pid, global_week);
                 }

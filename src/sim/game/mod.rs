@@ -41,6 +41,16 @@ pub(crate) struct GameSetup<'a> {
 
 /// Play one game: rows are appended to `out`; returns the passer ids hurt.
 pub(crate) fn play_game(g: &GameSetup, rng: &mut SimRng, out: &mut Vec<PlayRow>, truth: &mut TruthBook) -> Vec<usize> {
+    play_game_with(g, rng, out, truth, None)
+}
+
+fn play_game_with<'s>(
+    g: &'s GameSetup,
+    rng: &'s mut SimRng,
+    out: &'s mut Vec<PlayRow>,
+    truth: &'s mut TruthBook,
+    probe: Option<Probe<'s>>,
+) -> Vec<usize> {
     let mut strength = g.strength;
     let e = g.home_edge;
     let h = &mut strength[0];
@@ -58,11 +68,7 @@ pub(crate) fn play_game(g: &GameSetup, rng: &mut SimRng, out: &mut Vec<PlayRow>,
         s.run_def += FORM_RUN * def;
         s.pass_def += FORM_PASS * def;
     }
-    let mut eng = Engine {
-        g,
-        rng,
-        out,
-        truth,
+    let st = State {
         strength,
         seq: 0,
         period: 1,
@@ -83,8 +89,61 @@ pub(crate) fn play_game(g: &GameSetup, rng: &mut SimRng, out: &mut Vec<PlayRow>,
         ot_fg_hold: false,
         injured: Vec::new(),
     };
+    let mut eng = Engine { g, rng, out, truth, probe, st };
     eng.run();
-    eng.injured
+    eng.st.injured
+}
+
+/// The engine at a snap: its state and what comes next. Playing on from it
+/// with another generator gives another way the game could end.
+#[derive(Clone)]
+pub(crate) struct Snapshot {
+    st: State,
+    next: Next,
+}
+
+impl Snapshot {
+    /// The snap's `seq` in the game's rows (from 1).
+    pub(crate) fn seq(&self) -> i32 {
+        self.st.seq + 1
+    }
+
+    pub(crate) fn period(&self) -> i32 {
+        self.st.period
+    }
+
+    pub(crate) fn clock(&self) -> i32 {
+        self.st.clock
+    }
+
+    /// Home score minus away score.
+    pub(crate) fn home_margin(&self) -> i32 {
+        self.st.score[0] - self.st.score[1]
+    }
+}
+
+/// Told before every snap of a game (`play_game_probed`).
+pub(crate) type Probe<'p> = &'p mut dyn FnMut(&Snapshot);
+
+/// `play_game`, calling `probe` before every snap with the engine's state
+/// (the probe draws nothing from `rng`, so the game plays out as without it).
+pub(crate) fn play_game_probed<'s>(
+    g: &'s GameSetup,
+    rng: &'s mut SimRng,
+    out: &'s mut Vec<PlayRow>,
+    truth: &'s mut TruthBook,
+    probe: Probe<'s>,
+) -> Vec<usize> {
+    play_game_with(g, rng, out, truth, Some(probe))
+}
+
+/// Play the rest of the game from `snap` with `rng` (its rows go to `out`
+/// and its dropbacks to `truth`; pass scratch ones); returns the final
+/// score, home first.
+pub(crate) fn play_on(g: &GameSetup, snap: &Snapshot, rng: &mut SimRng, out: &mut Vec<PlayRow>, truth: &mut TruthBook) -> [i32; 2] {
+    let mut eng = Engine { g, rng, out, truth, probe: None, st: snap.st.clone() };
+    eng.play_from(snap.next, true);
+    eng.st.score
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -117,7 +176,14 @@ struct Engine<'s, 'a> {
     rng: &'s mut SimRng,
     out: &'s mut Vec<PlayRow>,
     truth: &'s mut TruthBook,
-    /// Strengths with the home boost applied.
+    probe: Option<Probe<'s>>,
+    st: State,
+}
+
+/// The game so far: everything the engine carries from snap to snap.
+#[derive(Clone)]
+struct State {
+    /// Strengths with the home boost and the game-day form applied.
     strength: [TeamStrength; 2],
     seq: i32,
     period: i32,
@@ -144,21 +210,45 @@ struct Engine<'s, 'a> {
     injured: Vec<usize>,
 }
 
+/// The engine's files read and write the state as `self.clock`, `self.score`.
+impl std::ops::Deref for Engine<'_, '_> {
+    type Target = State;
+    fn deref(&self) -> &State {
+        &self.st
+    }
+}
+
+impl std::ops::DerefMut for Engine<'_, '_> {
+    fn deref_mut(&mut self) -> &mut State {
+        &mut self.st
+    }
+}
+
 impl Engine<'_, '_> {
     fn run(&mut self) {
         let receiver = usize::from(chance(self.rng, 0.5));
         self.opening_receiver = receiver;
-        let mut next = Next::Kickoff { kicker: 1 - receiver, spot: KICKOFF_SPOT };
+        self.play_from(Next::Kickoff { kicker: 1 - receiver, spot: KICKOFF_SPOT }, false);
+    }
+
+    /// Play until the game ends; `at_snap`: the state is already at the
+    /// snap of `next` (the clock between snaps has run).
+    fn play_from(&mut self, mut next: Next, mut at_snap: bool) {
         loop {
-            if next == Next::Scrimmage && self.running {
-                self.between_snaps();
-            }
-            if self.clock <= 0 && next != Next::Try {
-                next = self.end_period(next);
-                if next == Next::Done {
-                    break;
+            if !std::mem::take(&mut at_snap) {
+                if next == Next::Scrimmage && self.running {
+                    self.between_snaps();
                 }
-                continue;
+                if self.clock <= 0 && next != Next::Try {
+                    next = self.end_period(next);
+                    if next == Next::Done {
+                        break;
+                    }
+                    continue;
+                }
+            }
+            if let Some(probe) = self.probe.as_mut() {
+                probe(&Snapshot { st: self.st.clone(), next });
             }
             next = match next {
                 Next::Kickoff { kicker, spot } => self.kickoff(kicker, spot),
@@ -257,7 +347,8 @@ impl Engine<'_, '_> {
 
     fn offense_touchdown(&mut self, row: &mut PlayRow) -> Next {
         row.points = 6;
-        self.score[self.poss] += 6;
+        let off = self.poss;
+        self.score[off] += 6;
         self.running = false;
         self.note_score(false);
         if self.period >= 5 {
