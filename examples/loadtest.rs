@@ -66,10 +66,16 @@ fn connect(host: &str) -> std::io::Result<BufReader<TcpStream>> {
     Ok(BufReader::new(s))
 }
 
-fn peak_rss_mib(pid: &str) -> Option<f64> {
+/// The server's resident and peak resident size (VmRSS, VmHWM) in MiB.
+fn rss_mib(pid: &str) -> Option<(f64, f64)> {
     let s = std::fs::read_to_string(format!("/proc/{pid}/status")).ok()?;
-    let kb: f64 = s.lines().find(|l| l.starts_with("VmHWM:"))?.split_whitespace().nth(1)?.parse().ok()?;
-    Some(kb / 1024.0)
+    let field = |name: &str| -> Option<f64> { s.lines().find(|l| l.starts_with(name))?.split_whitespace().nth(1)?.parse::<f64>().ok().map(|kb| kb / 1024.0) };
+    Some((field("VmRSS:")?, field("VmHWM:")?))
+}
+
+/// The machine's load average over the last minute, as the kernel says.
+fn load_average() -> String {
+    std::fs::read_to_string("/proc/loadavg").ok().and_then(|s| s.split_whitespace().next().map(str::to_string)).unwrap_or_else(|| "unknown".into())
 }
 
 fn pct(v: &[f64], p: f64) -> f64 {
@@ -112,6 +118,10 @@ fn main() {
     ];
     endpoints.push(("passer profile".into(), passers.iter().map(|p| format!("/passer?passer={}", enc(p))).collect()));
     println!("load test: {clients} clients, {secs} s, {base}; passers: {}", passers.join(", "));
+    println!("load average at the start: {}", load_average());
+    if let Some((rss, peak)) = pid.as_deref().and_then(rss_mib) {
+        println!("server before the test: resident {rss:.0} MiB, peak {peak:.0} MiB");
+    }
 
     let tallies: Arc<Vec<Mutex<Tally>>> = Arc::new(endpoints.iter().map(|_| Mutex::new(Tally::default())).collect());
     let endpoints = Arc::new(endpoints);
@@ -171,9 +181,10 @@ fn main() {
             t.timeouts
         );
     }
+    println!("load average at the end: {}", load_average());
     if let Some(pid) = pid {
-        match peak_rss_mib(&pid) {
-            Some(mib) => println!("server peak RSS (VmHWM) {mib:.0} MiB"),
+        match rss_mib(&pid) {
+            Some((rss, peak)) => println!("server peak RSS (VmHWM) {peak:.0} MiB; resident now {rss:.0} MiB"),
             None => println!("server peak RSS: /proc/{pid}/status not readable"),
         }
     }

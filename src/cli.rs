@@ -242,6 +242,7 @@ fn run(cli: Cli) -> Result<ExitCode> {
     }));
     match cmd {
         Cmd::Serve(args) => {
+            crate::web::memory::tune_allocator();
             let demo = args.file.is_none();
             let mut cfg = args.config()?;
             let league = open_configured(&cfg.app.league)?;

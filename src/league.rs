@@ -70,17 +70,32 @@ impl League {
     /// Load, fit (or restore from `cfg.cache_dir`) and score.
     pub fn open_with(cfg: &LeagueConfig) -> Result<League, LeagueError> {
         let path = &cfg.path;
+        let started = std::time::Instant::now();
+        let secs = |t: std::time::Instant| t.elapsed().as_secs_f64();
         let loaded = playfile::load_mapped(path, &cfg.load, cfg.mapping.as_ref())?;
+        let load_seconds = secs(started);
         tracing::info!(
             snaps = loaded.plays.len(),
             games = loaded.plays.games.len(),
             skipped = loaded.report.rows_skipped,
-            "loaded {}",
+            "loaded {} in {load_seconds:.2} s",
             path.display()
         );
+        let t = std::time::Instant::now();
         let scored = models::fit_and_score_in(loaded.plays, &loaded.fingerprint, cfg.refit, cfg.cache_dir.as_deref())
             .map_err(|e| LeagueError::Models(format!("{e:#}")))?;
+        let score_seconds = secs(t);
+        let t = std::time::Instant::now();
         let (throw_model, throw) = throw_values_cached(&scored, cfg.cache_dir.as_deref(), cfg.refit).map_err(|e| LeagueError::Models(e.to_string()))?;
+        tracing::info!(
+            load_seconds,
+            models_and_scores_seconds = score_seconds,
+            throw_seconds = secs(t),
+            models_from_cache = scored.from_cache,
+            scores_from_cache = scored.scores_from_cache,
+            "league open in {:.2} s",
+            secs(started)
+        );
         Ok(League { source: path.clone(), report: loaded.report, scored, throw_model, throw })
     }
 
@@ -105,7 +120,9 @@ pub fn throw_values(scored: &Scored) -> Result<(Option<ThrowModel>, ThrowScores)
 }
 
 /// The throw-value model from the cache folder `dir` (unless `refit`), else
-/// fitted on every snap and stored there; then the passes scored.
+/// fitted on every snap and stored there; then the passes scored, or their
+/// values read back from `dir` when the model came from it
+/// (`models::throw::scores_cached`).
 pub fn throw_values_cached(scored: &Scored, dir: Option<&Path>, refit: bool) -> Result<(Option<ThrowModel>, ThrowScores), models::ModelError> {
     let started = std::time::Instant::now();
     let p = &scored.plays;
@@ -115,8 +132,15 @@ pub fn throw_values_cached(scored: &Scored, dir: Option<&Path>, refit: bool) -> 
         return Ok((None, ThrowScores { chosen: nan.clone(), league: nan.clone(), choice: nan.clone(), execution: nan.clone(), league_sticks: nan }));
     };
     let s = &scored.scores;
-    let values = models::throw::score_all(&model, &scored.models, p, &s.ep, &s.wp, &s.wpa);
-    tracing::info!(from_cache = restored.from_cache, fit_seconds = restored.seconds, seconds = started.elapsed().as_secs_f64(), "throw-value model ready and passes scored");
+    let cache = models::throw::ScoresCache { dir, fingerprint: &scored.fingerprint, read: restored.from_cache };
+    let (values, values_from_cache) = models::throw::scores_cached(&model, &scored.models, p, &s.ep, &s.wp, &s.wpa, &cache);
+    tracing::info!(
+        from_cache = restored.from_cache,
+        values_from_cache,
+        fit_seconds = restored.seconds,
+        seconds = started.elapsed().as_secs_f64(),
+        "throw-value model ready and passes scored"
+    );
     Ok((Some(model), values))
 }
 

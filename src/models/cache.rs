@@ -3,7 +3,12 @@
 //! `LATEGAME_CACHE_DIR`); never beside the play file. Models fitted after
 //! the league is scored (the throw-value model) keep a file of their own
 //! under the same key (`load_part`, `store_part`), so the background
-//! calibration, which rewrites the models' entry, never races them.
+//! calibration, which rewrites the models' entry, never races them. The
+//! per-snap scores sit beside them as raw columns (`columns`), so a warm
+//! start reads them instead of scoring every snap again.
+
+pub mod columns;
+pub use columns::{columns_file_name, digest, load_columns, store_columns, ColumnsKey, Miss};
 
 use super::{Calibration, Models, MODEL_VERSION};
 use super::error::{ModelError, Result};
@@ -84,12 +89,12 @@ pub fn load_part<T: DeserializeOwned>(dir: &Path, part: &str, fingerprint: &str)
 pub fn store_part<T: Serialize>(dir: &Path, part: &str, fingerprint: &str, value: &T) -> Result<PathBuf> {
     let entry = Part { fingerprint: fingerprint.to_string(), model_version: MODEL_VERSION.to_string(), part: part.to_string(), value };
     let text = serde_json::to_string(&entry).map_err(ModelError::Serialize)?;
-    write_whole(dir, &part_file_name(part, fingerprint), &text)
+    write_bytes(dir, &part_file_name(part, fingerprint), text.as_bytes())
 }
 
-/// Write `text` to `dir/name` through a temporary file and a rename, so a
+/// Write `bytes` to `dir/name` through a temporary file and a rename, so a
 /// reader never sees half a file.
-fn write_whole(dir: &Path, name: &str, text: &str) -> Result<PathBuf> {
+fn write_bytes(dir: &Path, name: &str, text: &[u8]) -> Result<PathBuf> {
     std::fs::create_dir_all(dir).map_err(|source| ModelError::CacheIo { path: dir.to_path_buf(), source })?;
     let path = dir.join(name);
     let tmp = dir.join(format!("{name}.tmp{}", std::process::id()));
@@ -129,6 +134,6 @@ pub fn store(
         calibration: calibration.cloned(),
     };
     let text = serde_json::to_string(&entry).map_err(ModelError::Serialize)?;
-    write_whole(dir, &file_name(fingerprint), &text)
+    write_bytes(dir, &file_name(fingerprint), text.as_bytes())
 }
 

@@ -1,6 +1,7 @@
-//! A league scored: models from the cache or fitted, every snap scored,
-//! the calibration from the cache or started in the background; and the
-//! scored league as one frame.
+//! A league scored: models from the cache or fitted, every snap scored (or
+//! its scores read back from the cache beside the models), the calibration
+//! from the cache or started in the background; and the scored league as
+//! one frame.
 
 use super::error::{ModelError, Result};
 use super::{cache, fit, CalibOptions, Calibration, CalibrationCell, Models, Scores};
@@ -20,6 +21,42 @@ pub struct Scored {
     pub fingerprint: String,
     /// True when the models came from the cache.
     pub from_cache: bool,
+    /// True when the per-snap scores were read back from the cache rather
+    /// than computed (the same numbers, bit for bit).
+    pub scores_from_cache: bool,
+}
+
+/// The cache part holding the per-snap scores, and its columns in order.
+pub const SCORES_PART: &str = "scores";
+pub const SCORE_COLUMNS: [&str; 5] = ["ep", "epa", "wp", "wpa", "cp"];
+
+fn scores_key<'a>(fingerprint: &'a str, models: &'a str) -> cache::ColumnsKey<'a> {
+    cache::ColumnsKey { part: SCORES_PART, fingerprint, models, names: &SCORE_COLUMNS }
+}
+
+/// The scores of `rows` snaps kept in `dir` for these models, if any (a
+/// miss is logged and is `None`).
+fn restore_scores(dir: &std::path::Path, fingerprint: &str, models_digest: &str, rows: usize) -> Option<Scores> {
+    match cache::load_columns(dir, &scores_key(fingerprint, models_digest), rows) {
+        Ok(cols) => {
+            let mut it = cols.into_iter();
+            let mut next = || it.next().unwrap_or_default();
+            Some(Scores { ep: next(), epa: next(), wp: next(), wpa: next(), cp: next() })
+        }
+        Err(cache::Miss::Missing) => None,
+        Err(e) => {
+            tracing::warn!("scoring every snap again: the cached scores were not used ({e})");
+            None
+        }
+    }
+}
+
+fn store_scores(dir: &std::path::Path, fingerprint: &str, models_digest: &str, s: &Scores) {
+    let cols: [&[f64]; 5] = [&s.ep, &s.epa, &s.wp, &s.wpa, &s.cp];
+    match cache::store_columns(dir, &scores_key(fingerprint, models_digest), &cols) {
+        Ok(p) => tracing::info!("scores cached in {}", p.display()),
+        Err(e) => tracing::warn!("could not cache the scores: {e:#}"),
+    }
 }
 
 impl Drop for Scored {
@@ -36,7 +73,10 @@ pub fn calibrate(plays: &Plays) -> Result<Calibration> {
 }
 
 /// Models from the cache when an entry for `fingerprint` exists (unless
-/// `refit`), else fitted and stored; then every snap scored. The
+/// `refit`), else fitted and stored; then every snap scored, or its scores
+/// read back from the cache when the models came from it and the scores
+/// kept there were made with the same coefficients (else they are scored
+/// and stored). The
 /// calibration comes from the same entry, or is computed on a background
 /// thread once the snaps are scored and then stored beside the models. A
 /// cache that cannot be read or written is logged and otherwise ignored.
@@ -75,7 +115,31 @@ pub fn fit_and_score_in(
             (models, None, false)
         }
     };
-    let scores = models.score(&plays);
+    let t = std::time::Instant::now();
+    // A digest of the coefficients ties the kept scores to them.
+    let digest = match dir.map(|_| cache::digest(&models)).transpose() {
+        Ok(d) => d,
+        Err(e) => {
+            tracing::warn!("not caching the scores: {e:#}");
+            None
+        }
+    };
+    let restored = match (dir, &digest, from_cache) {
+        (Some(d), Some(m), true) => restore_scores(d, fingerprint, m, plays.len()),
+        _ => None,
+    };
+    let scores_from_cache = restored.is_some();
+    let scores = match restored {
+        Some(s) => s,
+        None => {
+            let s = models.score(&plays);
+            if let (Some(d), Some(m)) = (dir, &digest) {
+                store_scores(d, fingerprint, m, &s);
+            }
+            s
+        }
+    };
+    tracing::info!(models_from_cache = from_cache, scores_from_cache, "snaps scored in {:.0} ms", t.elapsed().as_secs_f64() * 1000.0);
     let plays = Arc::new(plays);
     let calibration = match calibration {
         Some(c) => CalibrationCell::ready(c),
@@ -91,6 +155,7 @@ pub fn fit_and_score_in(
         calibration,
         fingerprint: fingerprint.to_string(),
         from_cache,
+        scores_from_cache,
     })
 }
 
@@ -130,6 +195,14 @@ mod tests {
         testkit::league(600, 3, 42)
     }
 
+    fn assert_same_scores(a: &Scores, b: &Scores) {
+        let bits = |v: &[f64]| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();
+        for (name, x, y) in [("ep", &a.ep, &b.ep), ("epa", &a.epa, &b.epa), ("wp", &a.wp, &b.wp), ("wpa", &a.wpa, &b.wpa), ("cp", &a.cp, &b.cp)] {
+            assert!(x.len() > 1000, "{name}: only {} snaps", x.len());
+            assert!(bits(x) == bits(y), "{name} differs");
+        }
+    }
+
     #[test]
     fn cache_round_trip_gives_identical_scores() {
         let dir =
@@ -142,28 +215,48 @@ mod tests {
         let second = fit_and_score_in(small(), "synthetic-42", false, Some(&dir)).expect("second");
         assert!(second.from_cache);
         let cal2 = second.calibration.get().expect("the calibration came from the cache");
-        // JSON keeps coefficients to the last bit or so (serde_json's
-        // default float parser may differ by one unit in the last place).
-        let close = |a: &[f64], b: &[f64]| {
-            a.iter()
-                .zip(b)
-                .all(|(x, y)| (x - y).abs() <= 1e-12 * (1.0 + x.abs()))
-        };
-        assert!(close(&first.scores.ep, &second.scores.ep));
-        assert!(close(&first.scores.epa, &second.scores.epa));
-        assert!(close(&first.scores.wp, &second.scores.wp));
-        assert!(close(&first.scores.wpa, &second.scores.wpa));
+        // The scores were read back, not computed: the same as scoring
+        // with the restored coefficients, and as the first opening's, bit
+        // for bit (NaN included).
+        assert!(!first.scores_from_cache);
+        assert!(second.scores_from_cache);
+        let fresh = second.models.score(&small());
+        assert_same_scores(&second.scores, &fresh);
+        assert_same_scores(&second.scores, &first.scores);
         assert_eq!(
             first.models.report.ep.iterations,
             second.models.report.ep.iterations
         );
         assert!((cal1.wp.brier - cal2.wp.brier).abs() < 1e-12);
         let forced = fit_and_score_in(small(), "synthetic-42", true, Some(&dir)).expect("refit");
-        assert!(!forced.from_cache);
+        assert!(!forced.from_cache && !forced.scores_from_cache, "a refit scores again");
         forced.calibration.wait().expect("calibration");
         let other = fit_and_score_in(small(), "another-file", false, Some(&dir)).expect("other");
-        assert!(!other.from_cache);
+        assert!(!other.from_cache && !other.scores_from_cache);
         other.calibration.wait().expect("calibration");
+        // Damaged or cut-short score columns are a miss: scored again (the
+        // same numbers), and written again for the next opening.
+        let cols = dir.join(cache::columns_file_name(SCORES_PART, "synthetic-42"));
+        let bytes = std::fs::read(&cols).expect("the scores were cached");
+        for broken in [bytes[..bytes.len() / 2].to_vec(), bytes[..40].to_vec(), Vec::new(), {
+            let mut b = bytes.clone();
+            let k = b.len() - 100;
+            b[k] ^= 1;
+            b
+        }] {
+            std::fs::write(&cols, &broken).expect("write");
+            let again = fit_and_score_in(small(), "synthetic-42", false, Some(&dir)).expect("damaged scores");
+            assert!(again.from_cache && !again.scores_from_cache);
+            assert_same_scores(&again.scores, &fresh);
+        }
+        let healed = fit_and_score_in(small(), "synthetic-42", false, Some(&dir)).expect("healed");
+        assert!(healed.scores_from_cache, "the damaged file was written again");
+        // Scores kept for other coefficients are a miss.
+        let mut changed = healed.models.clone();
+        changed.ep.try_mean += 1e-9;
+        let d2 = cache::digest(&changed).expect("digest");
+        assert!(restore_scores(&dir, "synthetic-42", &d2, small().len()).is_none());
+        drop(healed);
         // A corrupt entry is a miss, not an error.
         std::fs::write(dir.join(cache::file_name("synthetic-42")), "{not json").expect("write");
         let again =

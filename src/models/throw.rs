@@ -12,7 +12,7 @@ mod depth;
 #[cfg(test)]
 mod tests;
 
-pub use cached::{fit_cached, Restored};
+pub use cached::{fit_cached, scores_cached, Restored, ScoresCache};
 pub use depth::{depth_by_distance, DepthLine, TO_GO_BANDS};
 
 use super::logit::{self, FitOptions, FitStats, FnDesign, Labels};

@@ -102,8 +102,9 @@ pub struct SplitIndex {
     pub(super) bits: Vec<u32>,
     pub(super) ints: Vec<i32>,
     pub(super) reals: Vec<f64>,
-    /// Pass results per situation without its season and passer filters.
-    pub(super) memo: Mutex<HashMap<String, Arc<Memo>>>,
+    /// Pass results per situation without its season and passer filters,
+    /// bounded by count and by bytes (`MemoMap`).
+    pub(super) memo: Mutex<MemoMap>,
     /// Other per-situation results kept by the engine's estimators (the
     /// opponent adjustment), by a key of their own; `forget` clears them.
     pub(super) extra: Mutex<HashMap<String, Arc<dyn std::any::Any + Send + Sync>>>,
@@ -163,9 +164,73 @@ impl Memo {
     }
 }
 
+impl Memo {
+    /// Bytes its pass results hold (what it derives later is not counted).
+    pub(super) fn bytes(&self) -> usize {
+        use std::mem::size_of;
+        size_of::<Memo>()
+            + size_of::<f64>() * (self.ps.capacity() + self.season_cells.capacity() + self.ps_cell_sums.capacity())
+            + size_of::<u32>() * self.ps_cell_keys.capacity()
+            + size_of::<(u32, u16)>() * self.last.capacity()
+    }
+}
+
 /// How many situations' passes the index keeps before it starts over.
-/// (A pass over 25 seasons keeps about 1-4 MB.)
 pub(super) const MEMO_SIZE: usize = 16;
+
+/// How many bytes of passes the index keeps: past it, the passes used
+/// least recently are let go. (On 25 seasons the every-snap pass holds
+/// about 20 MB, a late-game window a few MB.)
+pub(super) const MEMO_BYTES: usize = 64 << 20;
+
+/// The index's memo of passes by key, bounded by `MEMO_SIZE` (its users
+/// start over when it is full) and by `MEMO_BYTES` (the passes used least
+/// recently go first; the one just added always stays).
+#[derive(Default)]
+pub(crate) struct MemoMap {
+    map: HashMap<String, (Arc<Memo>, std::sync::atomic::AtomicU64)>,
+    bytes: usize,
+    tick: std::sync::atomic::AtomicU64,
+}
+
+impl MemoMap {
+    /// The pass kept under `key`, marked as just used.
+    pub(super) fn get(&self, key: &str) -> Option<&Arc<Memo>> {
+        use std::sync::atomic::Ordering::Relaxed;
+        let (m, used) = self.map.get(key)?;
+        used.store(self.tick.fetch_add(1, Relaxed), Relaxed);
+        Some(m)
+    }
+
+    pub(super) fn len(&self) -> usize {
+        self.map.len()
+    }
+
+    pub(super) fn clear(&mut self) {
+        self.map.clear();
+        self.bytes = 0;
+    }
+
+    /// Keep `m` under `key`, then let the passes used least recently go
+    /// until the rest fit in `MEMO_BYTES`.
+    pub(super) fn insert(&mut self, key: String, m: Arc<Memo>) {
+        use std::sync::atomic::{AtomicU64, Ordering::Relaxed};
+        let size = m.bytes();
+        let now = self.tick.fetch_add(1, Relaxed);
+        if let Some((old, _)) = self.map.insert(key.clone(), (m, AtomicU64::new(now))) {
+            self.bytes -= old.bytes();
+        }
+        self.bytes += size;
+        while self.bytes > MEMO_BYTES && self.map.len() > 1 {
+            let oldest = self.map.iter().filter(|(k, _)| **k != key).min_by_key(|(_, (_, used))| used.load(Relaxed)).map(|(k, _)| k.clone());
+            let Some(oldest) = oldest else { break };
+            if let Some((gone, _)) = self.map.remove(&oldest) {
+                self.bytes -= gone.bytes();
+            }
+        }
+        tracing::debug!(kept = self.map.len(), bytes = self.bytes, added = size, "split index memo");
+    }
+}
 
 /// What the classification pass learns about each metric's values.
 #[derive(Clone)]
@@ -249,29 +314,85 @@ fn layout_from(seen: &Seen, unit_of: Vec<usize>) -> Layout {
     Layout { units, unit_of, col_of, bits, ints, reals }
 }
 
+/// Rows per piece of the build handed to rayon: a power of two, so a row's
+/// piece and place in it are a shift and a mask.
+const BUILD_SHIFT: u32 = 15;
+const BUILD_CHUNK: usize = 1 << BUILD_SHIFT;
+
+/// One piece of the index's per-row columns, in snap order (the build reads
+/// the league's columns in the order they lie in memory, then puts the rows
+/// in the index's order with `gather`).
+#[derive(Default)]
+struct Piece {
+    ps: Vec<u32>,
+    team: Vec<u16>,
+    ts_off: Vec<u32>,
+    ts_def: Vec<u32>,
+    cell: Vec<u8>,
+    secs_half: Vec<i32>,
+    secs_game: Vec<i32>,
+    margin: Vec<i32>,
+    down: Vec<i32>,
+    to_go: Vec<i32>,
+    ball_on: Vec<i32>,
+    units: Vec<u16>,
+    bits: Vec<u32>,
+    ints: Vec<i32>,
+    reals: Vec<f64>,
+}
+
+/// One column of every piece (`w` values per row), put in the index's row
+/// order: row `r` takes the values of snap-order row `order[r]`. The pieces
+/// are freed as the column is made.
+fn gather<T: Copy + Default + Send + Sync>(pieces: Vec<Vec<T>>, w: usize, order: &[u32]) -> Vec<T> {
+    if w == 0 {
+        return Vec::new();
+    }
+    let mask = BUILD_CHUNK - 1;
+    let mut out = vec![T::default(); order.len() * w];
+    out.par_chunks_mut(w * BUILD_CHUNK).zip(order.par_chunks(BUILD_CHUNK)).for_each(|(o, ks)| {
+        for (j, &k) in ks.iter().enumerate() {
+            let (piece, at) = ((k >> BUILD_SHIFT) as usize, k as usize & mask);
+            o[j * w..(j + 1) * w].copy_from_slice(&pieces[piece][at * w..(at + 1) * w]);
+        }
+    });
+    out
+}
+
 impl SplitIndex {
-    /// Index the league `p` with its model values `v` (a few tenths of a
-    /// second on 25 seasons; once per load).
+    /// Index the league `p` with its model values `v` (once per load). The
+    /// league's columns are read in snap order (as they lie in memory), in
+    /// pieces on rayon's threads; the rows are then put in the index's
+    /// order one column at a time.
     pub fn build(p: &Plays, v: &SnapValues) -> SplitIndex {
         let nm = METRICS.len();
         assert!(nm <= 64, "the per-snap metric mask holds 64 metrics");
         let unit_of: Vec<usize> = METRICS.iter().map(|m| m.unit as usize).collect();
         let group = |i: usize| p.period[i].min(OT);
+        // The dropbacks with a passer, in snap order.
+        let dro: Vec<u32> = (0..p.len() as u32).filter(|&i| p.dropback[i as usize] && p.passer[i as usize] != NO_PASSER).collect();
         // Sort keys packed in one word (period group, seconds left in the
-        // half, snap), computed in one pass in snap order.
-        let key = |i: usize| {
-            let g = (group(i).clamp(-1, 14) + 1) as u64;
-            let secs = (p.secs_half[i].clamp(-32_768, 32_767) + 32_768) as u64;
-            g << 48 | secs << 32 | i as u64
-        };
-        let mut keys: Vec<u64> = (0..p.len()).filter(|&i| p.dropback[i] && p.passer[i] != NO_PASSER).map(key).collect();
+        // half, place in `dro`, which orders as the snap does).
+        let mut keys: Vec<u64> = dro
+            .iter()
+            .enumerate()
+            .map(|(k, &i)| {
+                let i = i as usize;
+                let g = (group(i).clamp(-1, 14) + 1) as u64;
+                let secs = (p.secs_half[i].clamp(-32_768, 32_767) + 32_768) as u64;
+                g << 48 | secs << 32 | k as u64
+            })
+            .collect();
         keys.par_sort_unstable();
-        let snaps: Vec<u32> = keys.iter().map(|&k| k as u32).collect();
+        // Per index row, its place in `dro`, and its snap.
+        let order: Vec<u32> = keys.iter().map(|&k| k as u32).collect();
         drop(keys);
+        let snaps: Vec<u32> = order.iter().map(|&k| dro[k as usize]).collect();
 
-        // Pass 1: which metrics are constant, 0/1, whole numbers, or equal.
-        let seen = snaps
-            .par_chunks(CHUNK)
+        // Pass 1: which metrics are constant, 0/1, whole numbers, or equal
+        // (what it finds does not depend on the order of the rows).
+        let seen = dro
+            .par_chunks(BUILD_CHUNK)
             .map(|rows| {
                 let mut seen = Seen::new(&unit_of);
                 let mut vals = vec![0.0; nm];
@@ -286,15 +407,15 @@ impl SplitIndex {
             .fold(Seen::new(&unit_of), |a, b| a.merge(&b));
         let layout = layout_from(&seen, unit_of);
 
-        // Dense seasons and passer-seasons.
-        let mut seasons: Vec<i32> = snaps.iter().map(|&i| p.season[i as usize]).collect();
+        // Dense seasons, passer-seasons and team-seasons.
+        let mut seasons: Vec<i32> = dro.iter().map(|&i| p.season[i as usize]).collect();
         seasons.par_sort_unstable();
         seasons.dedup();
         let season_id = |s: i32| seasons.binary_search(&s).unwrap_or(0) as u16;
-        let mut ps_key: Vec<(u32, u16)> = snaps.iter().map(|&i| (p.passer[i as usize], season_id(p.season[i as usize]))).collect();
+        let mut ps_key: Vec<(u32, u16)> = dro.iter().map(|&i| (p.passer[i as usize], season_id(p.season[i as usize]))).collect();
         ps_key.par_sort_unstable();
         ps_key.dedup();
-        let mut ts_key: Vec<(u32, u16)> = snaps
+        let mut ts_key: Vec<(u32, u16)> = dro
             .iter()
             .flat_map(|&i| {
                 let (i, y) = (i as usize, season_id(p.season[i as usize]));
@@ -303,52 +424,37 @@ impl SplitIndex {
             .collect();
         ts_key.par_sort_unstable();
         ts_key.dedup();
-        let ts_id = |team: u16, i: usize| ts_key.binary_search(&(team as u32, season_id(p.season[i]))).unwrap_or(0) as u32;
+        let ts_id = |team: u16, y: u16| ts_key.binary_search(&(team as u32, y)).unwrap_or(0) as u32;
 
-        // Pass 2: the columns.
-        let n = snaps.len();
-        let mut ix = SplitIndex {
-            n_snaps: p.len(),
-            seasons: Vec::new(),
-            ps_key: Vec::new(),
-            n_passers: p.passers.len(),
-            ts_key: Vec::new(),
-            n_teams: p.teams.len(),
-            blocks: Vec::new(),
-            game_offset: Vec::new(),
-            snap: Vec::with_capacity(n),
-            ps: Vec::with_capacity(n),
-            team: Vec::with_capacity(n),
-            ts_off: Vec::with_capacity(n),
-            ts_def: Vec::with_capacity(n),
-            cell: Vec::with_capacity(n),
-            secs_half: Vec::with_capacity(n),
-            secs_game: Vec::with_capacity(n),
-            margin: Vec::with_capacity(n),
-            down: Vec::with_capacity(n),
-            to_go: Vec::with_capacity(n),
-            ball_on: Vec::with_capacity(n),
-            units: Vec::with_capacity(n),
-            bits: Vec::with_capacity(n),
-            ints: Vec::with_capacity(n * layout.ints),
-            reals: Vec::with_capacity(n * layout.reals),
-            memo: Mutex::new(HashMap::new()),
-            extra: Mutex::new(HashMap::new()),
-            league_fits: Mutex::new(HashMap::new()),
-            layout,
-        };
-        let lay = &ix.layout;
-        let parts: Vec<(Vec<u32>, Vec<u16>, Vec<u32>, Vec<i32>, Vec<f64>)> = snaps
-            .par_chunks(CHUNK)
+        // Pass 2: the columns, piece by piece in snap order.
+        let lay = &layout;
+        let pieces: Vec<Piece> = dro
+            .par_chunks(BUILD_CHUNK)
             .map(|rows| {
+                let n = rows.len();
                 let mut vals = vec![0.0; nm];
-                let (mut ps, mut units, mut bits) = (Vec::with_capacity(rows.len()), Vec::with_capacity(rows.len()), Vec::with_capacity(rows.len()));
-                let (mut ints, mut reals) = (vec![0; rows.len() * lay.ints], vec![0.0; rows.len() * lay.reals]);
+                let mut c = Piece {
+                    ps: Vec::with_capacity(n),
+                    team: Vec::with_capacity(n),
+                    ts_off: Vec::with_capacity(n),
+                    ts_def: Vec::with_capacity(n),
+                    cell: Vec::with_capacity(n),
+                    secs_half: Vec::with_capacity(n),
+                    secs_game: Vec::with_capacity(n),
+                    margin: Vec::with_capacity(n),
+                    down: Vec::with_capacity(n),
+                    to_go: Vec::with_capacity(n),
+                    ball_on: Vec::with_capacity(n),
+                    units: Vec::with_capacity(n),
+                    bits: Vec::with_capacity(n),
+                    ints: vec![0; n * lay.ints],
+                    reals: vec![0.0; n * lay.reals],
+                };
                 for (r, &i) in rows.iter().enumerate() {
                     let i = i as usize;
                     let mask = row_values(p, v, i, &mut vals);
-                    let key = (p.passer[i], season_id(p.season[i]));
-                    ps.push(ps_key.binary_search(&key).unwrap_or(0) as u32);
+                    let y = season_id(p.season[i]);
+                    c.ps.push(ps_key.binary_search(&(p.passer[i], y)).unwrap_or(0) as u32);
                     let (mut u, mut b) = (0u16, 0u32);
                     for j in 0..nm {
                         if mask & (1 << j) == 0 {
@@ -358,50 +464,77 @@ impl SplitIndex {
                         match lay.col_of[j] {
                             Col::One => {}
                             Col::Bit(k) => b |= u32::from(vals[j] == 1.0) << k,
-                            Col::Int(k) => ints[r * lay.ints + k] = vals[j] as i32,
-                            Col::Real(k) => reals[r * lay.reals + k] = vals[j],
+                            Col::Int(k) => c.ints[r * lay.ints + k] = vals[j] as i32,
+                            Col::Real(k) => c.reals[r * lay.reals + k] = vals[j],
                         }
                     }
-                    units.push(u);
-                    bits.push(b);
+                    c.units.push(u);
+                    c.bits.push(b);
+                    c.team.push(p.offense[i]);
+                    c.ts_off.push(ts_id(p.offense[i], y));
+                    c.ts_def.push(ts_id(p.defense[i], y));
+                    c.cell.push(cell(p, i) as u8);
+                    c.secs_half.push(p.secs_half[i]);
+                    c.secs_game.push(p.secs_game[i]);
+                    c.margin.push(p.margin[i]);
+                    c.down.push(p.down[i]);
+                    c.to_go.push(p.to_go[i]);
+                    c.ball_on.push(p.ball_on[i]);
                 }
-                (ps, units, bits, ints, reals)
+                c
             })
             .collect();
-        for (ps, units, bits, ints, reals) in parts {
-            ix.ps.extend(ps);
-            ix.units.extend(units);
-            ix.bits.extend(bits);
-            ix.ints.extend(ints);
-            ix.reals.extend(reals);
+        drop(dro);
+        let mut pieces = pieces;
+        macro_rules! column {
+            ($f:ident, $w:expr) => {
+                gather(pieces.iter_mut().map(|c| std::mem::take(&mut c.$f)).collect(), $w, &order)
+            };
         }
-        for &i in &snaps {
-            let i = i as usize;
-            ix.snap.push(i as u32);
-            ix.team.push(p.offense[i]);
-            ix.ts_off.push(ts_id(p.offense[i], i));
-            ix.ts_def.push(ts_id(p.defense[i], i));
-            ix.cell.push(cell(p, i) as u8);
-            ix.secs_half.push(p.secs_half[i]);
-            ix.secs_game.push(p.secs_game[i]);
-            ix.margin.push(p.margin[i]);
-            ix.down.push(p.down[i]);
-            ix.to_go.push(p.to_go[i]);
-            ix.ball_on.push(p.ball_on[i]);
-        }
+        let n = snaps.len();
+        let (n_ints, n_reals) = (layout.ints, layout.reals);
+        let mut ix = SplitIndex {
+            n_snaps: p.len(),
+            n_passers: p.passers.len(),
+            n_teams: p.teams.len(),
+            blocks: Vec::new(),
+            game_offset: Vec::new(),
+            ps: column!(ps, 1),
+            team: column!(team, 1),
+            ts_off: column!(ts_off, 1),
+            ts_def: column!(ts_def, 1),
+            cell: column!(cell, 1),
+            secs_half: column!(secs_half, 1),
+            secs_game: column!(secs_game, 1),
+            margin: column!(margin, 1),
+            down: column!(down, 1),
+            to_go: column!(to_go, 1),
+            ball_on: column!(ball_on, 1),
+            units: column!(units, 1),
+            bits: column!(bits, 1),
+            ints: column!(ints, n_ints),
+            reals: column!(reals, n_reals),
+            snap: snaps,
+            memo: Mutex::new(MemoMap::default()),
+            extra: Mutex::new(HashMap::new()),
+            league_fits: Mutex::new(HashMap::new()),
+            seasons,
+            ps_key,
+            ts_key,
+            layout,
+        };
+        drop(pieces);
+        drop(order);
         let mut start = 0;
         while start < n {
-            let g = group(snaps[start] as usize);
-            let end = start + snaps[start..].partition_point(|&i| group(i as usize) == g);
+            let g = group(ix.snap[start] as usize);
+            let end = start + ix.snap[start..].partition_point(|&i| group(i as usize) == g);
             let off = ix.secs_game[start] - ix.secs_half[start];
             let same = (start..end).all(|r| ix.secs_game[r] - ix.secs_half[r] == off);
             ix.blocks.push((g, start..end));
             ix.game_offset.push(same.then_some(off));
             start = end;
         }
-        ix.seasons = seasons;
-        ix.ps_key = ps_key;
-        ix.ts_key = ts_key;
         ix
     }
 
@@ -560,5 +693,49 @@ impl Plan {
             }
         }
         out
+    }
+}
+
+#[cfg(test)]
+mod memo_tests {
+    use super::*;
+
+    /// A pass holding about `mb` MiB.
+    fn pass_of(mb: usize) -> Arc<Memo> {
+        Arc::new(Memo {
+            width: 1,
+            ps: vec![0.0; mb << 17],
+            season_cells: Vec::new(),
+            ps_cell_keys: Vec::new(),
+            ps_cell_sums: Vec::new(),
+            last: Vec::new(),
+            derived: Default::default(),
+        })
+    }
+
+    #[test]
+    fn the_memo_lets_the_least_recently_used_passes_go_past_its_bytes() {
+        let mut m = MemoMap::default();
+        let each = MEMO_BYTES / (3 << 20);
+        for k in ["a", "b", "c"] {
+            m.insert(k.to_string(), pass_of(each));
+        }
+        assert_eq!(m.len(), 3);
+        assert!(m.bytes <= MEMO_BYTES);
+        let _ = m.get("a");
+        m.insert("d".to_string(), pass_of(each));
+        // "b" was used least recently; "a" was just read.
+        assert!(m.get("b").is_none());
+        assert!(m.get("a").is_some() && m.get("c").is_some() && m.get("d").is_some());
+        assert!(m.bytes <= MEMO_BYTES, "{} > {MEMO_BYTES}", m.bytes);
+        assert_eq!(m.bytes, ["a", "c", "d"].iter().map(|k| m.get(k).map_or(0, |p| p.bytes())).sum::<usize>());
+        // A pass bigger than the whole budget stays alone; replacing a key
+        // counts its bytes once.
+        m.insert("huge".to_string(), pass_of(2 * MEMO_BYTES >> 20));
+        assert_eq!(m.len(), 1);
+        m.insert("huge".to_string(), pass_of(1));
+        assert_eq!(m.bytes, m.get("huge").map_or(0, |p| p.bytes()));
+        m.clear();
+        assert_eq!((m.len(), m.bytes), (0, 0));
     }
 }

@@ -11,7 +11,9 @@ mod meeting;
 mod notes;
 mod pages;
 mod service;
+pub mod memory;
 pub mod query;
+mod tables;
 
 use crate::league::{League, LeagueConfig};
 use axum::extract::{Request, State};
@@ -111,18 +113,15 @@ pub struct AppState {
     /// Last reload outcome, shown on the home page.
     reload_note: RwLock<Option<String>>,
     /// Split tables already computed for this league, by view (the league
-    /// never changes until a reload, which empties it).
-    splits_cache: std::sync::Mutex<std::collections::HashMap<String, Arc<crate::splits::SplitTable>>>,
+    /// never changes until a reload, which empties it), bounded by count
+    /// and bytes (`tables::TableCache`).
+    splits_cache: std::sync::Mutex<tables::TableCache>,
     /// The staff's film notes and cut-up lists (None when the database
     /// could not be opened; the rest of the server still works).
     notes: Option<Arc<NoteStore>>,
     /// Permits for engine work on the blocking pool (`service::engine`).
     heavy: Arc<tokio::sync::Semaphore>,
 }
-
-/// How many split tables the cache keeps before it starts over (a table of
-/// 25 seasons is a few MB; the index's memo makes a new one cheap).
-const SPLITS_CACHE_SIZE: usize = 32;
 
 /// Engine requests computed at once; the rest wait their turn without
 /// holding an async worker thread.
@@ -148,7 +147,7 @@ impl AppState {
             passer: cfg.passer,
             token: cfg.token,
             reload_note: RwLock::new(None),
-            splits_cache: std::sync::Mutex::new(std::collections::HashMap::new()),
+            splits_cache: std::sync::Mutex::new(tables::TableCache::default()),
             notes,
         }
     }
@@ -186,6 +185,7 @@ impl AppState {
                 if let Ok(mut c) = self.splits_cache.lock() {
                     c.clear();
                 }
+                memory::release_free_memory();
                 Ok(msg)
             }
             Err(e) => Err(format!("reload refused, still serving the earlier file: {e:#}")),
@@ -213,15 +213,13 @@ impl AppState {
         let loaded = self.loaded();
         let league = &loaded.league;
         let key = format!("{:?}|{min}|{focus:?}|{:p}", situation.to_query(), Arc::as_ptr(league));
-        if let Some(t) = self.splits_cache.lock().ok().and_then(|c| c.get(&key).cloned()) {
+        if let Some(t) = self.splits_cache.lock().ok().and_then(|mut c| c.get(&key)) {
             return t;
         }
         let t = Arc::new(crate::splits::split_table_in(&loaded.index, league.plays(), &league.values(), situation, min, focus));
         if let Ok(mut c) = self.splits_cache.lock() {
-            if c.len() >= SPLITS_CACHE_SIZE {
-                c.clear();
-            }
             c.insert(key, t.clone());
+            tracing::debug!(tables = c.len(), bytes = c.bytes(), "split table cache");
         }
         t
     }
@@ -353,6 +351,11 @@ pub fn serve_blocking(league: League, cfg: ServeConfig) -> Result<(), ServeError
     }
     let token = if cfg.share { Some(new_token()?) } else { None };
     let app = App::new(league, AppConfig { token: token.clone(), ..cfg.app });
+    // The load's and the index build's buffers are gone: give their pages back.
+    memory::release_free_memory();
+    if let Some((rss, peak)) = memory::resident_mib() {
+        tracing::info!("resident {rss:.0} MiB after start-up (peak {peak:.0} MiB)");
+    }
     let rt = tokio::runtime::Builder::new_multi_thread().enable_all().build()?;
     rt.block_on(async move {
         let listener = tokio::net::TcpListener::bind(addr).await.map_err(|source| ServeError::Bind { addr, source })?;

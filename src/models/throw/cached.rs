@@ -1,10 +1,12 @@
 //! The throw-value model of a whole league from the coefficient cache when
 //! it holds one for this file and model version, else fitted on every snap
-//! and stored there (`cache::store_part`, part `throw`).
+//! and stored there (`cache::store_part`, part `throw`); and its per-pass
+//! values, read back from the columns kept beside it when they were scored
+//! with the same coefficients, else scored and kept (`scores_cached`).
 
-use super::{fit, ThrowModel};
-use crate::models::cache;
+use super::{fit, score_all, ThrowModel, ThrowScores};
 use crate::models::error::ModelError;
+use crate::models::{cache, Models};
 use crate::plays::Plays;
 use std::path::Path;
 
@@ -42,4 +44,55 @@ pub fn fit_cached(p: &Plays, fingerprint: &str, dir: Option<&Path>, refit: bool)
         }
     }
     Ok(Restored { model, from_cache: false, seconds: started.elapsed().as_secs_f64() })
+}
+
+/// The cache part holding the throw values per snap, and its columns.
+pub const SCORES_PART: &str = "throw-scores";
+pub const SCORE_COLUMNS: [&str; 5] = ["chosen", "league", "choice", "execution", "league_sticks"];
+
+fn columns_key<'a>(fingerprint: &'a str, models: &'a str) -> cache::ColumnsKey<'a> {
+    cache::ColumnsKey { part: SCORES_PART, fingerprint, models, names: &SCORE_COLUMNS }
+}
+
+/// Where the throw values per snap are kept and whether they may be read
+/// back (not after a refit).
+pub struct ScoresCache<'a> {
+    pub dir: Option<&'a Path>,
+    pub fingerprint: &'a str,
+    pub read: bool,
+}
+
+/// Every pass's throw values (`score_all`), read back from `cache` when it
+/// holds them for these coefficients (`model` and `models`), else scored
+/// and stored there. True when they were read back. A columns file that
+/// cannot be read or written is logged and otherwise ignored.
+pub fn scores_cached(model: &ThrowModel, models: &Models, p: &Plays, ep: &[f64], wp: &[f64], wpa: &[f64], cache: &ScoresCache) -> (ThrowScores, bool) {
+    let digest = match cache.dir.map(|_| cache::digest(&(model, models))).transpose() {
+        Ok(d) => d,
+        Err(e) => {
+            tracing::warn!("not caching the throw values: {e:#}");
+            None
+        }
+    };
+    if let (Some(d), Some(m), true) = (cache.dir, &digest, cache.read) {
+        match cache::load_columns(d, &columns_key(cache.fingerprint, m), p.len()) {
+            Ok(cols) => {
+                let mut it = cols.into_iter();
+                let mut next = || it.next().unwrap_or_default();
+                let s = ThrowScores { chosen: next(), league: next(), choice: next(), execution: next(), league_sticks: next() };
+                return (s, true);
+            }
+            Err(cache::Miss::Missing) => {}
+            Err(e) => tracing::warn!("scoring every pass again: the cached throw values were not used ({e})"),
+        }
+    }
+    let s = score_all(model, models, p, ep, wp, wpa);
+    if let (Some(d), Some(m)) = (cache.dir, &digest) {
+        let cols: [&[f64]; 5] = [&s.chosen, &s.league, &s.choice, &s.execution, &s.league_sticks];
+        match cache::store_columns(d, &columns_key(cache.fingerprint, m), &cols) {
+            Ok(path) => tracing::info!("throw values cached in {}", path.display()),
+            Err(e) => tracing::warn!("could not cache the throw values: {e:#}"),
+        }
+    }
+    (s, false)
 }

@@ -113,3 +113,47 @@ fn cached_throw_model_scores_bit_for_bit() {
     assert!(!fit_cached(&plays, "fp-throw", Some(&dir), false).expect("corrupt").from_cache);
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+#[test]
+fn cached_throw_values_read_back_bit_for_bit() {
+    let plays = testkit::league(300, 2, 6);
+    let models = fit(&plays).expect("fit");
+    let s = models.score(&plays);
+    let dir = std::env::temp_dir().join(format!("lategame-throw-values-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    let model = fit_cached(&plays, "fp-values", None, true).expect("fit").model.expect("air yards");
+    let fresh = score_all(&model, &models, &plays, &s.ep, &s.wp, &s.wpa);
+    let at = |fp: &'static str, read: bool| ScoresCache { dir: Some(&dir), fingerprint: fp, read };
+    let values = |c: &ScoresCache, m: &ThrowModel| scores_cached(m, &models, &plays, &s.ep, &s.wp, &s.wpa, c);
+    let bits = |t: &ThrowScores| [&t.chosen, &t.league, &t.choice, &t.execution, &t.league_sticks].map(|v| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>());
+    assert!(fresh.choice.iter().filter(|c| c.is_finite()).count() > 1000);
+    // First time: scored and stored; then read back, bit for bit (NaN on
+    // every snap that is not a pass with air yards included).
+    let (first, hit) = values(&at("fp-values", true), &model);
+    assert!(!hit);
+    assert_eq!(bits(&first), bits(&fresh));
+    let (back, hit) = values(&at("fp-values", true), &model);
+    assert!(hit, "the second opening reads the kept values");
+    assert_eq!(bits(&back), bits(&fresh));
+    // A refit does not read them; another file misses them; so do other
+    // coefficients (scored again, the same numbers as scoring with them).
+    assert!(!values(&at("fp-values", false), &model).1);
+    assert!(!values(&at("another-file", true), &model).1);
+    let mut other = model.clone();
+    other.pick_six[3] += 0.01;
+    let (changed, hit) = values(&at("fp-values", true), &other);
+    assert!(!hit);
+    assert_eq!(bits(&changed), bits(&score_all(&other, &models, &plays, &s.ep, &s.wp, &s.wpa)));
+    // Damaged, cut short or empty: scored again, never a panic.
+    let (_, hit) = values(&at("fp-values", true), &model);
+    assert!(!hit, "the file now holds the other coefficients' values");
+    let path = dir.join(crate::models::cache::columns_file_name(cached::SCORES_PART, "fp-values"));
+    let bytes = std::fs::read(&path).expect("kept");
+    for cut in [0, 7, 60, bytes.len() / 2, bytes.len() - 1] {
+        std::fs::write(&path, &bytes[..cut]).expect("write");
+        let (again, hit) = values(&at("fp-values", true), &model);
+        assert!(!hit, "cut at {cut}");
+        assert_eq!(bits(&again), bits(&fresh));
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}
