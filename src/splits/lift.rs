@@ -4,7 +4,7 @@
 //! their intervals. The passer rating is put together from its shrunk parts.
 
 use super::metrics::{metric_index, Stat, METRICS};
-use super::scan::{Acc, Sums};
+use super::scan::{Acc, Accs, Sums};
 use crate::stats::multilevel::{fit_variance, Model, Obs, PasserData, PasserPost};
 use crate::stats::passer_rating;
 
@@ -108,20 +108,32 @@ pub(super) fn fit(sums: &Sums, normal: &Sums, j: usize) -> Option<Fit> {
     })
 }
 
+/// Each passer of `sums.passers` (in its order) with his every-snap sums
+/// in `normal` and the log of his every-snap dropbacks (what the
+/// posteriors read per passer, looked up once per table).
+pub(super) fn normals<'a>(sums: &Sums, normal: &'a Sums) -> Vec<(Option<&'a Accs>, f64)> {
+    sums.passers.keys().map(|w| (normal.passers.get(w).map(|ps| &ps.accs), volume(normal, *w))).collect()
+}
+
 /// Posteriors of the metric at `j` from its `fit`, for every passer in
-/// `sums.passers` order that is `wanted` (`None` for the others).
-pub(super) fn posteriors(fit: Option<&Fit>, sums: &Sums, normal: &Sums, j: usize, wanted: &[bool]) -> Vec<Option<PasserPost>> {
+/// `sums.passers` order that is `wanted` (`None` for the others); `normals`
+/// from `normals(sums, normal)`.
+pub(super) fn posteriors(fit: Option<&Fit>, sums: &Sums, normals: &[(Option<&Accs>, f64)], j: usize, wanted: &[bool]) -> Vec<Option<PasserPost>> {
     let Some(f) = fit else { return vec![None; sums.passers.len()] };
     sums.passers
-        .iter()
+        .values()
         .zip(wanted)
-        .map(|((&w, ps), &want)| {
+        .zip(normals)
+        .map(|((ps, &want), &(all, vol))| {
             if !want {
                 return None;
             }
-            let x = volume(normal, w) - f.centre;
+            let x = vol - f.centre;
             let here = obs(&ps.accs[j], f.here_var);
-            let other = f.other_var.and_then(|ov| obs(&other_of(sums, normal, w, j), ov));
+            let other = f.other_var.and_then(|ov| {
+                let all = all.map(|a| a[j]).unwrap_or_default();
+                obs(&minus(&all, &ps.accs[j]), ov)
+            });
             f.model.passer(&PasserData { other, here, x })
         })
         .collect()

@@ -90,7 +90,8 @@ fn cells(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize) ->
                 continue;
             }
             let Some(x) = value_at(ix, j, r) else { continue };
-            let defense = p.defense[ix.snap[r] as usize] as usize;
+            // The defense from the row's own column (the league's rows lie far apart).
+            let defense = ix.ts_key[ix.ts_def[r] as usize].0 as usize;
             let e = &mut sums[ps as usize * n_teams + defense];
             e.0 += 1.0;
             e.1 += x;
@@ -129,7 +130,11 @@ fn league_fit(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usiz
 /// Every passer in situation `s`: his raw mean minus the snap-weighted
 /// effects (from `fit`) of the defense-seasons he faced in `s`.
 fn adjust(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize, fit: &CrossedFit) -> OpponentFit {
-    let cells = cells(ix, p, v, s, j);
+    adjust_cells(ix, p, &cells(ix, p, v, s, j), fit)
+}
+
+/// `adjust` on the situation's per (passer-season, defense) sums.
+fn adjust_cells(ix: &SplitIndex, p: &Plays, cells: &[CrossedCell], fit: &CrossedFit) -> OpponentFit {
     // Passer by rank (units are passer rank × seasons + season).
     let n_seasons = ix.seasons.len().max(1) as u32;
     let mut by_rank = vec![0u32; p.passers.len()];
@@ -139,7 +144,7 @@ fn adjust(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize, f
     // Per passer (in name order, so sums run in the same order on every
     // load): his snaps per defense-season, over his passer-seasons.
     let mut per: std::collections::BTreeMap<u32, (f64, f64, f64, Vec<(u32, f64)>)> = Default::default();
-    for c in &cells {
+    for c in cells {
         let e = per.entry(c.unit / n_seasons).or_insert((0.0, 0.0, 0.0, Vec::new()));
         e.0 += c.n;
         e.1 += c.sum;
@@ -191,23 +196,49 @@ fn recall<T: std::any::Any + Send + Sync + Clone>(memo: &Mutex<HashMap<String, A
 }
 
 /// The opponent adjustment of `ADJUSTED_METRIC` in `s`. The every-snap fit
-/// is kept per season list in the index's `league_fits` (like its columns, it
-/// survives `forget`); the situation's adjustment in its `extra` memo.
+/// and the every-snap adjustment are kept per season list in the index's
+/// `league_fits` (like its columns, they survive `forget`); another
+/// situation's adjustment in its `extra` memo.
 pub fn opponent_fit(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Option<Arc<OpponentFit>> {
     let j = metric_index(ADJUSTED_METRIC)?;
     let key = format!("opponent {ADJUSTED_METRIC} {:?} {}", s.seasons, memo_key(s));
     if let Some(hit) = recall::<Option<Arc<OpponentFit>>>(&ix.extra, &key) {
         return hit;
     }
+    // The fit on every snap and the adjustment of every snap come from
+    // the same sums: both are kept per season list, like the index's
+    // columns (every preset's profile asks for the every-snap table).
     let fit_key = format!("opponent {ADJUSTED_METRIC} {:?}", s.seasons);
-    let fit = match recall::<Option<Arc<CrossedFit>>>(&ix.league_fits, &fit_key) {
-        Some(f) => f,
+    let every_key = format!("opponent {ADJUSTED_METRIC} every snap {:?}", s.seasons);
+    let every = Situation { seasons: s.seasons.clone(), ..Situation::default() };
+    let is_every = memo_key(s) == memo_key(&every);
+    if is_every {
+        if let Some(hit) = recall::<Option<Arc<OpponentFit>>>(&ix.league_fits, &every_key) {
+            return hit;
+        }
+    }
+    let (fit, every_fit) = match recall::<Option<Arc<CrossedFit>>>(&ix.league_fits, &fit_key) {
+        Some(f) => (f, None),
         None => {
-            let f = league_fit(ix, p, v, s, j).map(Arc::new);
+            let cells = cells(ix, p, v, &every, j);
+            let f = CrossedFit::fit(&cells, true).ok().map(Arc::new);
+            let e = f.as_ref().map(|f| Arc::new(adjust_cells(ix, p, &cells, f)));
             remember(&ix.league_fits, fit_key, f.clone());
-            f
+            remember(&ix.league_fits, every_key.clone(), e.clone());
+            (f, Some(e))
         }
     };
+    if is_every {
+        let out = match every_fit {
+            Some(e) => e,
+            None => {
+                let e = fit.map(|f| Arc::new(adjust(ix, p, v, s, j, &f)));
+                remember(&ix.league_fits, every_key, e.clone());
+                e
+            }
+        };
+        return out;
+    }
     let out = fit.map(|f| Arc::new(adjust(ix, p, v, s, j, &f)));
     remember(&ix.extra, key, out.clone());
     out

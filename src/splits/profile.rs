@@ -3,11 +3,12 @@
 
 use super::metrics::{metric_index, SnapValues, METRICS};
 use super::index::SplitIndex;
-use super::scan::{accumulate, matching_snaps, raw_value};
+use super::scan::{accumulate_seasons, matching_snaps, raw_value};
 use super::table::{split_table_in, MetricInfo, PasserRow, SplitTable};
 use std::sync::Arc;
 use crate::plays::Plays;
 use crate::situation::{Preset, Situation};
+use rayon::prelude::*;
 use serde::Serialize;
 
 /// One passer's numbers in each season (raw), beside the league's.
@@ -58,7 +59,10 @@ pub fn profile_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, passer: &str, base
 }
 
 /// `profile_in` with each preset's table (focused on `passer`) from
-/// `table`, e.g. a cache of tables already computed.
+/// `table`, e.g. a cache of tables already computed. The every-snap table
+/// comes first (its pass is every table's "his normal", and the opponent
+/// model's fit is on every snap: made once), then the other presets side
+/// by side, then the season trend.
 pub fn profile_with(
     ix: &SplitIndex,
     p: &Plays,
@@ -66,16 +70,26 @@ pub fn profile_with(
     passer: &str,
     base: &Situation,
     trend: &Situation,
-    table: &dyn Fn(&Situation) -> Arc<SplitTable>,
+    table: &(dyn Fn(&Situation) -> Arc<SplitTable> + Sync),
 ) -> Option<Profile> {
     let who = p.passer_index(passer)?;
     let mut metrics = Vec::new();
     let mut presets = Vec::new();
     let mut team = None;
-    for preset in Preset::ALL {
-        let mut s = preset.situation(base.one_score);
-        s.seasons = base.seasons.clone();
-        let t = table(&s);
+    let situation = |preset: Preset| Situation { seasons: base.seasons.clone(), ..preset.situation(base.one_score) };
+    let every = table(&situation(Preset::EverySnap));
+    let tables: Vec<(Situation, Arc<SplitTable>)> = Preset::ALL
+        .par_iter()
+        .map(|&preset| {
+            let s = situation(preset);
+            let t = if preset == Preset::EverySnap { every.clone() } else { table(&s) };
+            (s, t)
+        })
+        .collect();
+    // After the tables: the trend's situation is usually one of them, and
+    // its pass is kept by now.
+    let sums = accumulate_seasons(ix, p, v, &trend.with_seasons(None));
+    for (preset, (s, t)) in Preset::ALL.into_iter().zip(tables) {
         let row = t.row(passer).cloned();
         if team.is_none() {
             team = row.as_ref().map(|r| r.team.clone());
@@ -94,7 +108,6 @@ pub fn profile_with(
             row,
         });
     }
-    let sums = accumulate(ix, p, v, &trend.with_seasons(None));
     let nm = METRICS.len();
     let db = metric_index("dropbacks").unwrap_or(0);
     let trend_lines = sums

@@ -6,7 +6,7 @@
 
 use super::index::SplitIndex;
 use super::metrics::{cell, contributions, SnapValues, CELLS, METRICS};
-use super::scan::{accumulate, Acc, Accs, PasserSums, Sums};
+use super::scan::{accumulate_seasons, Acc, Accs, CellSums, PasserSums, Sums};
 use crate::plays::{Plays, Source, NO_PASSER};
 use crate::situation::{Group, Preset, Range, Site, Situation, OT, RESULTS};
 use std::collections::BTreeMap;
@@ -15,19 +15,18 @@ fn new_accs() -> Accs {
     vec![Acc::default(); METRICS.len()]
 }
 
+/// A passer's count of snaps and sum of values per state cell, per metric
+/// (CELLS × metrics each).
+type DenseCells = BTreeMap<u32, (Vec<f64>, Vec<f64>)>;
+
 /// Every snap in order: the obvious pass. A row is the snap's passer, its
 /// offense or its defense, by the grouping; the filter naming a row
 /// (passer, offense or opponent by the grouping) does not pick snaps.
-fn reference(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
+fn reference(p: &Plays, v: &SnapValues, s: &Situation) -> (Sums, DenseCells) {
     let nm = METRICS.len();
     let unseasoned = s.with_seasons(None).without_row_pick();
-    let mut out = Sums {
-        passers: BTreeMap::new(),
-        league: new_accs(),
-        league_cells: vec![Acc::default(); CELLS * nm],
-        by_season: Default::default(),
-        league_by_season: BTreeMap::new(),
-    };
+    let mut out = Sums::empty();
+    let mut cells = DenseCells::new();
     let mut vals = vec![0.0; nm];
     for i in 0..p.len() {
         if !p.dropback[i] || p.passer[i] == NO_PASSER || !unseasoned.matches(p, v.wp, i) {
@@ -53,19 +52,41 @@ fn reference(p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
             continue;
         }
         let c = cell(p, i);
-        let ps = out.passers.entry(who).or_insert_with(|| PasserSums { accs: new_accs(), cells: vec![0.0; CELLS * nm], cell_sums: vec![0.0; CELLS * nm], team: 0 });
+        let ps = out.passers.entry(who).or_insert_with(|| PasserSums { accs: new_accs(), cell_span: 0..0, team: 0 });
+        let (pc, cs) = cells.entry(who).or_insert_with(|| (vec![0.0; CELLS * nm], vec![0.0; CELLS * nm]));
         ps.team = team;
         for j in 0..nm {
             if mask & (1 << j) != 0 {
                 ps.accs[j].add(vals[j]);
                 out.league[j].add(vals[j]);
                 out.league_cells[c * nm + j].add(vals[j]);
-                ps.cells[c * nm + j] += 1.0;
-                ps.cell_sums[c * nm + j] += vals[j];
+                pc[c * nm + j] += 1.0;
+                cs[c * nm + j] += vals[j];
             }
         }
     }
-    out
+    (out, cells)
+}
+
+/// The fast sums' cells per passer, read back as the reference keeps them.
+fn dense_cells(ix: &SplitIndex, group: Group, fast: &Sums) -> DenseCells {
+    let nm = METRICS.len();
+    let mut scratch = CellSums::default();
+    fast.passers
+        .iter()
+        .map(|(&who, ps)| {
+            let (mut pc, mut cs) = (vec![0.0; CELLS * nm], vec![0.0; CELLS * nm]);
+            assert!(fast.cells_of(ix, group, ps, &mut scratch), "the table's sums carry cells");
+            for c in (0..CELLS).filter(|c| scratch.mask >> c & 1 == 1) {
+                for j in 0..nm {
+                    let (n, sum, _) = ix.layout.acc(&scratch.base[c * scratch.width..][..scratch.width], j);
+                    pc[c * nm + j] = n;
+                    cs[c * nm + j] = sum;
+                }
+            }
+            (who, (pc, cs))
+        })
+        .collect()
 }
 
 fn close(a: f64, b: f64) -> bool {
@@ -81,16 +102,19 @@ fn same_accs(what: &str, a: &[Acc], b: &[Acc]) -> Result<(), String> {
     Ok(())
 }
 
-fn same(fast: &Sums, slow: &Sums) -> Result<(), String> {
+fn same(ix: &SplitIndex, group: Group, fast: &Sums, slow: &(Sums, DenseCells)) -> Result<(), String> {
+    let (slow, slow_cells) = slow;
     if fast.passers.keys().ne(slow.passers.keys()) {
         return Err(format!("passers differ: fast {}, reference {}", fast.passers.len(), slow.passers.len()));
     }
+    let fast_cells = dense_cells(ix, group, fast);
     for ((who, f), s) in fast.passers.iter().zip(slow.passers.values()) {
         same_accs(&format!("passer {who}"), &f.accs, &s.accs)?;
-        if f.cells != s.cells {
+        let ((fc, fs), (sc, ss)) = (&fast_cells[who], &slow_cells[who]);
+        if fc != sc {
             return Err(format!("passer {who}: cell counts differ"));
         }
-        for (k, (a, b)) in f.cell_sums.iter().zip(&s.cell_sums).enumerate() {
+        for (k, (a, b)) in fs.iter().zip(ss).enumerate() {
             if (a - b).abs() > 1e-9 * b.abs().max(1.0) {
                 return Err(format!("passer {who}: cell sum {k} is {a}, reference {b}"));
             }
@@ -273,12 +297,12 @@ fn the_index_agrees_with_the_row_by_row_pass_on_random_situations() {
         if case % 2 == 0 {
             ix.forget();
         }
-        let fast = accumulate(&ix, &p, &v, &s);
-        if let Err(e) = same(&fast, &slow) {
+        let fast = accumulate_seasons(&ix, &p, &v, &s);
+        if let Err(e) = same(&ix, s.group, &fast, &slow) {
             panic!("case {case}: {s:?}\n{e}");
         }
-        nonempty += usize::from(!slow.passers.is_empty());
-        groups[s.group as usize] += usize::from(!slow.passers.is_empty());
+        nonempty += usize::from(!slow.0.passers.is_empty());
+        groups[s.group as usize] += usize::from(!slow.0.passers.is_empty());
     }
     // The random situations must not all be empty (a test that cannot fail),
     // and every grouping must have been asked.
@@ -296,7 +320,7 @@ fn every_preset_and_season_agrees_with_the_row_by_row_pass() {
             for seasons in std::iter::once(None).chain(p.seasons().into_iter().map(|y| Some(vec![y]))) {
                 for group in Group::ALL {
                     let s = Situation { seasons: seasons.clone(), group, ..preset.situation(one_score) };
-                    if let Err(e) = same(&accumulate(&ix, &p, &v, &s), &reference(&p, &v, &s)) {
+                    if let Err(e) = same(&ix, group, &accumulate_seasons(&ix, &p, &v, &s), &reference(&p, &v, &s)) {
                         panic!("{s:?}\n{e}");
                     }
                 }

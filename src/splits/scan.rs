@@ -68,25 +68,86 @@ pub(super) struct Sums {
     pub(super) league: Accs,
     /// League sums per state cell (CELLS × metrics).
     pub(super) league_cells: Vec<Acc>,
-    /// Per (passer, season), ignoring the situation's season filter.
+    /// Per (passer, season), ignoring the situation's season filter (only
+    /// when asked for: `seasons`).
     pub(super) by_season: IntMap<(u32, i32), Accs>,
     pub(super) league_by_season: BTreeMap<i32, Accs>,
+    /// The pass the per-cell sums are read from (`cells_of`), and the
+    /// seasons chosen (by dense id); `None` when the sums have no cells.
+    cells: Option<(Arc<Memo>, Vec<bool>)>,
 }
 
 pub(super) struct PasserSums {
     pub(super) accs: Accs,
-    /// The passer's count of snaps per state cell, per metric.
-    pub(super) cells: Vec<f64>,
-    /// The passer's sum of values per state cell, per metric (to leave his
-    /// own snaps out of the league's cell values).
-    pub(super) cell_sums: Vec<f64>,
+    /// Where his unit-seasons' state cells lie in the pass's per-cell keys
+    /// (`Memo::ps_cell_keys`): one run, as his unit-seasons are numbered
+    /// one after another. Read through `Sums::cells_of`.
+    pub(super) cell_span: std::ops::Range<u32>,
     pub(super) team: u16,
 }
 
-/// One row's values (its unit flags, 0/1 flags, whole numbers and other
-/// numbers) into the base sums `base` (see `Layout`).
+/// A passer's base sums per state cell over the chosen seasons (CELLS ×
+/// width, see `Layout`) and which cells hold a snap (bit c: cell c); rows
+/// of cells without snaps hold stale numbers. Kept by the caller across
+/// passers so no passer allocates.
+#[derive(Default)]
+pub(super) struct CellSums {
+    pub(super) base: Vec<f64>,
+    pub(super) mask: u64,
+    pub(super) width: usize,
+}
+
+impl Sums {
+    /// No sums yet (the reference pass fills them row by row).
+    #[cfg(test)]
+    pub(super) fn empty() -> Sums {
+        Sums {
+            passers: BTreeMap::new(),
+            league: new_accs(),
+            league_cells: vec![Acc::default(); CELLS * METRICS.len()],
+            by_season: IntMap::default(),
+            league_by_season: BTreeMap::new(),
+            cells: None,
+        }
+    }
+
+    /// Merge the state cells of `ps` over the chosen seasons into `out`
+    /// (in key order, so the sums are the same on every call). `false`
+    /// when these sums carry no cells.
+    pub(super) fn cells_of(&self, ix: &SplitIndex, group: Group, ps: &PasserSums, out: &mut CellSums) -> bool {
+        let Some((m, chosen)) = &self.cells else { return false };
+        let (w, key) = (m.width, ix.units_of(group).key);
+        if out.base.len() != CELLS * w {
+            out.base = vec![0.0; CELLS * w];
+        }
+        out.width = w;
+        out.mask = 0;
+        for k in ps.cell_span.start as usize..ps.cell_span.end as usize {
+            let code = m.ps_cell_keys[k] as usize;
+            let (unit, c) = (code / CELLS, code % CELLS);
+            if !chosen[key[unit].1 as usize] {
+                continue;
+            }
+            let (src, dst) = (&m.ps_cell_sums[k * w..][..w], &mut out.base[c * w..][..w]);
+            if out.mask >> c & 1 == 0 {
+                // A copy (plus 0.0, which changes no sum: a plain copy of a
+                // run of unknown length would be a call to memcpy).
+                for (d, &x) in dst.iter_mut().zip(src) {
+                    *d = x + 0.0;
+                }
+                out.mask |= 1 << c;
+            } else {
+                add_into(dst, src);
+            }
+        }
+        true
+    }
+}
+
+/// One row's values (its unit flags, 0/1 flags, and its whole numbers then
+/// other numbers, as `f64`) into the base sums `base` (see `Layout`).
 #[inline]
-fn add_values(lay: &Layout, units: u16, bits: u32, ints: &[i32], reals: &[f64], base: &mut [f64]) {
+fn add_values(lay: &Layout, units: u16, bits: u32, vals: &[f64], base: &mut [f64]) {
     base[0] += 1.0;
     for u in 0..lay.units {
         base[1 + u] += f64::from(units >> u & 1);
@@ -96,17 +157,14 @@ fn add_values(lay: &Layout, units: u16, bits: u32, ints: &[i32], reals: &[f64], 
         base[o + k] += f64::from(bits >> k & 1);
     }
     let o = o + lay.bits;
-    for (k, &x) in ints.iter().enumerate() {
-        let x = x as f64;
-        base[o + 2 * k] += x;
-        base[o + 2 * k + 1] += x * x;
-    }
-    let o = o + 2 * lay.ints;
-    for (k, &x) in reals.iter().enumerate() {
+    for (k, &x) in vals.iter().enumerate() {
         base[o + 2 * k] += x;
         base[o + 2 * k + 1] += x * x;
     }
 }
+
+// A passer's state cells are a bit mask.
+const _: () = assert!(CELLS <= 64);
 
 fn add_into(a: &mut [f64], b: &[f64]) {
     for (x, y) in a.iter_mut().zip(b) {
@@ -174,7 +232,11 @@ fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
             let mut sums = vec![0.0; keys.len() * w];
             let mut last = vec![(0u32, 0u16); end_ps - first];
             let (a, z) = (start[first * CELLS] as usize, start[end_ps * CELLS] as usize);
-            let (mut gi, mut gr) = (vec![0i32; GATHER * ni], vec![0.0f64; GATHER * nr]);
+            // Whole numbers and other numbers gathered as f64 (converted or
+            // plus 0.0, which changes no sum: a plain copy of a run of
+            // unknown length would be a call to memcpy per row).
+            let nv = ni + nr;
+            let mut gv = vec![0.0f64; GATHER * nv];
             let (mut gu, mut gb, mut gs, mut gt) = ([0u16; GATHER], [0u32; GATHER], [0u32; GATHER], [0u16; GATHER]);
             let mut g = 0;
             let mut at = a;
@@ -183,14 +245,19 @@ fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
                 for (q, &r) in chunk.iter().enumerate() {
                     let r = r as usize;
                     (gu[q], gb[q], gs[q], gt[q]) = (ix.units[r], ix.bits[r], ix.snap[r], ix.team[r]);
-                    gi[q * ni..][..ni].copy_from_slice(&ix.ints[r * ni..][..ni]);
-                    gr[q * nr..][..nr].copy_from_slice(&ix.reals[r * nr..][..nr]);
+                    let out = &mut gv[q * nv..][..nv];
+                    for (o, &x) in out[..ni].iter_mut().zip(&ix.ints[r * ni..][..ni]) {
+                        *o = f64::from(x);
+                    }
+                    for (o, &x) in out[ni..].iter_mut().zip(&ix.reals[r * nr..][..nr]) {
+                        *o = x + 0.0;
+                    }
                 }
                 for q in 0..chunk.len() {
                     while start[keys[g] as usize + 1] as usize <= at + q {
                         g += 1;
                     }
-                    add_values(lay, gu[q], gb[q], &gi[q * ni..][..ni], &gr[q * nr..][..nr], &mut sums[g * w..][..w]);
+                    add_values(lay, gu[q], gb[q], &gv[q * nv..][..nv], &mut sums[g * w..][..w]);
                     let end = &mut last[keys[g] as usize / CELLS - first];
                     if gs[q] + 1 > end.0 {
                         *end = (gs[q] + 1, gt[q]);
@@ -233,7 +300,10 @@ pub(super) fn memo(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) ->
     let m = Arc::new(pass(ix, p, v, s));
     if let Ok(mut c) = ix.memo.lock() {
         if c.len() >= MEMO_SIZE {
-            c.clear();
+            // Start over, but keep the every-snap passes: every table's
+            // "his normal" reads one, and it is the longest pass to make again.
+            let every: Vec<String> = Group::ALL.iter().map(|&group| memo_key(&Situation { group, ..Situation::default() })).collect();
+            c.retain(|k, _| every.contains(k));
         }
         c.insert(key, m.clone());
     }
@@ -250,23 +320,44 @@ fn expand(lay: &Layout, base: &[f64]) -> Accs {
 }
 
 /// The sums for a situation: the memoised pass (situation without seasons
-/// and passer), then its season filter on passer-seasons. The passer
+/// and passer), then its season filter on passer-seasons, with each
+/// passer's state cells (`Sums::cells_of`); no per-season sums. The passer
 /// filter picks the rows shown, not the league they are measured against,
 /// so it is left to the caller. `ix` must be built from `p` and `v`.
 pub(super) fn accumulate(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
     debug_assert!(ix.fits(p), "the split index was built from another league");
     let s = &s.without_row_pick();
-    from_memo(ix, &memo(ix, p, v, s), s, true)
+    from_memo(ix, &memo(ix, p, v, s), s, true, false)
+}
+
+/// `accumulate` with the per-season sums too (`by_season`,
+/// `league_by_season`: every season, whatever the season filter).
+pub(super) fn accumulate_seasons(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Sums {
+    let s = &s.without_row_pick();
+    from_memo(ix, &memo(ix, p, v, s), s, true, true)
+}
+
+/// The per-season sums of a memoised pass only (passer and league totals
+/// over the seasons of `s` too, no cells).
+pub(super) fn seasons_of(ix: &SplitIndex, m: &Arc<Memo>, s: &Situation) -> Sums {
+    from_memo(ix, m, s, false, true)
 }
 
 /// The per-passer and league sums of a memoised pass over the seasons of
-/// `s`, without the per-cell and per-season sums (`league_cells` zero,
-/// `by_season` and `league_by_season` empty, no passer's cells).
+/// `s`, without the per-season sums (`by_season` and `league_by_season`
+/// empty) and the passers' cells. (It holds no reference to the pass, so
+/// the pass may keep it.)
 pub(super) fn totals(ix: &SplitIndex, m: &Memo, s: &Situation) -> Sums {
-    from_memo(ix, m, s, false)
+    from_memo_in(ix, m, None, s, false)
 }
 
-fn from_memo(ix: &SplitIndex, m: &Memo, s: &Situation, full: bool) -> Sums {
+fn from_memo(ix: &SplitIndex, m: &Arc<Memo>, s: &Situation, cells: bool, seasons: bool) -> Sums {
+    from_memo_in(ix, m, cells.then_some(m), s, seasons)
+}
+
+/// The sums of pass `m`; with `cells` (the same pass) each passer's state
+/// cells can be read back (`Sums::cells_of`).
+fn from_memo_in(ix: &SplitIndex, m: &Memo, cells: Option<&Arc<Memo>>, s: &Situation, seasons: bool) -> Sums {
     let u = ix.units_of(s.group);
     let lay = &ix.layout;
     let (w, nm) = (m.width, METRICS.len());
@@ -277,73 +368,71 @@ fn from_memo(ix: &SplitIndex, m: &Memo, s: &Situation, full: bool) -> Sums {
         league_cells: vec![Acc::default(); CELLS * nm],
         by_season: IntMap::default(),
         league_by_season: BTreeMap::new(),
+        cells: None,
     };
-    // Per passer: sums over the chosen seasons, the team of the last snap.
-    let mut mine: Vec<Option<(Vec<f64>, (u32, u16))>> = vec![None; u.n_who];
-    for (k, &(who, season)) in u.key.iter().enumerate() {
-        let base = &m.ps[k * w..][..w];
-        if base[0] == 0.0 {
-            continue;
+    // Per passer (his unit-seasons are numbered one after another): sums
+    // over the chosen seasons, the team of the last snap, and the run of
+    // his cells in the pass's per-cell keys.
+    let mut base = vec![0.0; w];
+    let mut k = 0;
+    let mut at = 0usize;
+    while k < u.key.len() {
+        let who = u.key[k].0;
+        debug_assert!((who as usize) < u.n_who);
+        let first = k;
+        while k < u.key.len() && u.key[k].0 == who {
+            k += 1;
         }
-        if full {
-            sums.by_season.insert((who, ix.seasons[season as usize]), expand(lay, base));
+        // His cells: keys from first × CELLS up to k × CELLS.
+        let from = at;
+        while at < m.ps_cell_keys.len() && (m.ps_cell_keys[at] as usize) < k * CELLS {
+            at += 1;
         }
-        if !chosen[season as usize] {
-            continue;
-        }
-        let slot = mine[who as usize].get_or_insert_with(|| (vec![0.0; w], (0, 0)));
-        add_into(&mut slot.0, base);
-        if m.last[k].0 > slot.1 .0 {
-            slot.1 = m.last[k];
-        }
-    }
-    // Per passer: base sums per cell over the chosen seasons.
-    let mut cells: Vec<Vec<f64>> = vec![Vec::new(); u.n_who];
-    for (k, &key) in m.ps_cell_keys.iter().enumerate().filter(|_| full) {
-        let (ps, c) = (key as usize / CELLS, key as usize % CELLS);
-        let (who, season) = u.key[ps];
-        if !chosen[season as usize] {
-            continue;
-        }
-        let mc = &mut cells[who as usize];
-        if mc.is_empty() {
-            mc.resize(CELLS * w, 0.0);
-        }
-        add_into(&mut mc[c * w..][..w], &m.ps_cell_sums[k * w..][..w]);
-    }
-    for (who, slot) in mine.into_iter().enumerate() {
-        let Some((base, (_, last_offense))) = slot else { continue };
-        // A team row's team is the team itself.
-        let team = if s.group == Group::Passer { last_offense } else { who as u16 };
-        let cb = &cells[who];
-        let (mut pc, mut cs) = if full { (vec![0.0; CELLS * nm], vec![0.0; CELLS * nm]) } else { (Vec::new(), Vec::new()) };
-        if !cb.is_empty() {
-            for c in (0..CELLS).filter(|&c| cb[c * w] > 0.0) {
-                for j in 0..nm {
-                    let (n, sum, _) = lay.acc(&cb[c * w..][..w], j);
-                    pc[c * nm + j] = n;
-                    cs[c * nm + j] = sum;
-                }
+        base.iter_mut().for_each(|x| *x = 0.0);
+        let (mut any, mut last) = (false, (0u32, 0u16));
+        for q in first..k {
+            let b = &m.ps[q * w..][..w];
+            if b[0] == 0.0 {
+                continue;
+            }
+            let season = u.key[q].1 as usize;
+            if seasons {
+                sums.by_season.insert((who, ix.seasons[season]), expand(lay, b));
+            }
+            if !chosen[season] {
+                continue;
+            }
+            any = true;
+            add_into(&mut base, b);
+            if m.last[q].0 > last.0 {
+                last = m.last[q];
             }
         }
-        sums.passers.insert(who as u32, PasserSums { accs: expand(lay, &base), cells: pc, cell_sums: cs, team });
+        if !any {
+            continue;
+        }
+        // A team row's team is the team itself.
+        let team = if s.group == Group::Passer { last.1 } else { who as u16 };
+        sums.passers.insert(who, PasserSums { accs: expand(lay, &base), cell_span: from as u32..at as u32, team });
     }
     // The league: per cell over the chosen seasons; per season over cells.
     let mut league = vec![0.0; w];
+    let mut cb = vec![0.0; w];
     for c in 0..CELLS {
-        let mut cb = vec![0.0; w];
+        cb.iter_mut().for_each(|x| *x = 0.0);
         for (y, &on) in chosen.iter().enumerate() {
             if on {
                 add_into(&mut cb, &m.season_cells[(y * CELLS + c) * w..][..w]);
             }
         }
         add_into(&mut league, &cb);
-        for (j, a) in expand(lay, &cb).into_iter().enumerate() {
-            sums.league_cells[c * nm + j] = a;
+        for j in 0..nm {
+            let (n, sum, sumsq) = lay.acc(&cb, j);
+            sums.league_cells[c * nm + j] = Acc { n, sum, sumsq };
         }
     }
     sums.league = expand(lay, &league);
-    for (y, &season) in ix.seasons.iter().enumerate().filter(|_| full) {
+    for (y, &season) in ix.seasons.iter().enumerate().filter(|_| seasons) {
         let mut sb = vec![0.0; w];
         for c in 0..CELLS {
             add_into(&mut sb, &m.season_cells[(y * CELLS + c) * w..][..w]);
@@ -352,6 +441,7 @@ fn from_memo(ix: &SplitIndex, m: &Memo, s: &Situation, full: bool) -> Sums {
             sums.league_by_season.insert(season, expand(lay, &sb));
         }
     }
+    sums.cells = cells.map(|m| (m.clone(), chosen));
     sums
 }
 

@@ -1,8 +1,9 @@
 //! Baselines from the sums: the state-mix league baseline (leaving the
 //! passer out) and season-to-season stability.
 
-use super::metrics::{metric_index, CELLS, METRICS};
-use super::scan::{rating_from, raw_value, PasserSums, Sums};
+use super::metrics::{metric_index, Stat, METRICS};
+use super::index::Layout;
+use super::scan::{raw_value, Accs, CellSums, Sums};
 use crate::stats;
 
 /// Pseudo-snaps at the leave-out league value added to every state cell, so
@@ -19,37 +20,68 @@ pub(super) struct Baseline {
 /// Direct standardization, leaving the passer out: the league's value in each
 /// down × distance × field zone cell without his own snaps, smoothed toward the
 /// league's overall value without him (`CELL_PRIOR_SNAPS` pseudo-snaps), weighted
-/// by his own count of snaps there. `snap_var` is the per-snap variance
+/// by his own count of snaps there (`mine`: his sums, `cells`: his state
+/// cells, `Sums::cells_of`). `snap_var` is the per-snap variance per metric
 /// (`p(1 − p)` for a share); the baseline's variance is
 /// `Σ (w_c / W)² · snap_var / (n_c + CELL_PRIOR_SNAPS)`. The rating's baseline is
 /// the capped league rating shifted by the mix effect on its linear form.
-pub(super) fn adjusted(sums: &Sums, ps: &PasserSums, j: usize, snap_var: f64) -> Option<Baseline> {
-    let nm = METRICS.len();
-    let (lg, mine) = (&sums.league[j], &ps.accs[j]);
-    let overall = if lg.n - mine.n >= 0.5 { (lg.sum - mine.sum) / (lg.n - mine.n) } else { lg.mean()? };
-    let (mut num, mut den, mut var) = (0.0, 0.0, 0.0);
-    for c in 0..CELLS {
-        let w = ps.cells[c * nm + j];
-        if w == 0.0 {
+/// Every metric that is not a count, in one sweep over his cells (`out[j]`;
+/// counts `None`); `league_rating` is `rating_from(&sums.league)`.
+pub(super) fn adjusted(lay: &Layout, sums: &Sums, mine: &Accs, cells: &CellSums, snap_var: &[f64], league_rating: Option<f64>, out: &mut [Option<Baseline>]) {
+    let (nm, rating) = (METRICS.len(), metric_index("rating"));
+    debug_assert!(nm <= 64);
+    // Per metric: its league value without him (None: no baseline), and
+    // the running sums (Σ w·value, Σ w, Σ w²·var).
+    let mut overall = [f64::NAN; 64];
+    let mut acc = [(0.0f64, 0.0f64, 0.0f64); 64];
+    let mut on = 0u64;
+    for j in 0..nm {
+        if METRICS[j].stat == Stat::Count {
             continue;
         }
-        let cell = &sums.league_cells[c * nm + j];
-        let n = (cell.n - w).max(0.0);
-        let sum = cell.sum - ps.cell_sums[c * nm + j];
-        let lv = (sum + CELL_PRIOR_SNAPS * overall) / (n + CELL_PRIOR_SNAPS);
-        num += w * lv;
-        den += w;
-        var += w * w * snap_var / (n + CELL_PRIOR_SNAPS);
+        let (lg, me) = (&sums.league[j], &mine[j]);
+        let o = if lg.n - me.n >= 0.5 { Some((lg.sum - me.sum) / (lg.n - me.n)) } else { lg.mean() };
+        if let Some(o) = o {
+            overall[j] = o;
+            on |= 1 << j;
+        }
     }
-    if den <= 0.0 {
-        return None;
+    let mut mask = cells.mask;
+    while mask != 0 {
+        let c = mask.trailing_zeros() as usize;
+        mask &= mask - 1;
+        let row = &cells.base[c * cells.width..][..cells.width];
+        let mut js = on;
+        while js != 0 {
+            let j = js.trailing_zeros() as usize;
+            js &= js - 1;
+            let (w, his_sum, _) = lay.acc(row, j);
+            if w == 0.0 {
+                continue;
+            }
+            let cell = &sums.league_cells[c * nm + j];
+            let n = (cell.n - w).max(0.0);
+            let sum = cell.sum - his_sum;
+            let lv = (sum + CELL_PRIOR_SNAPS * overall[j]) / (n + CELL_PRIOR_SNAPS);
+            let a = &mut acc[j];
+            a.0 += w * lv;
+            a.1 += w;
+            a.2 += w * w * snap_var[j] / (n + CELL_PRIOR_SNAPS);
+        }
     }
-    let var = var / (den * den);
-    if METRICS[j].key == "rating" {
-        let base = rating_from(&sums.league)?;
-        return Some(Baseline { value: base + (num / den - lg.mean()?), var });
+    for j in 0..nm {
+        out[j] = None;
+        let (num, den, var) = acc[j];
+        if on >> j & 1 == 0 || den <= 0.0 {
+            continue;
+        }
+        let var = var / (den * den);
+        out[j] = if Some(j) == rating {
+            league_rating.zip(sums.league[j].mean()).map(|(base, lg)| Baseline { value: base + (num / den - lg), var })
+        } else {
+            Some(Baseline { value: num / den, var })
+        };
     }
-    Some(Baseline { value: num / den, var })
 }
 
 /// Season-to-season stability of a metric's raw value: among passers

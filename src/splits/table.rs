@@ -5,10 +5,10 @@
 
 use super::index::SplitIndex;
 use super::index::Memo;
-use super::lift::{self, fit, posteriors, Derived, Fit, RATING_PARTS};
+use super::lift::{self, fit, normals, posteriors, Derived, Fit, RATING_PARTS};
 use super::metrics::{higher_is_better, is_style, metric_index, SnapValues, Stat, METRICS};
 use super::normal::every_snap;
-use super::scan::{accumulate, memo, rating_from, raw_value, Acc, Sums};
+use super::scan::{accumulate, memo, rating_from, raw_value, seasons_of, Acc, CellSums, Sums};
 use super::shrink::{adjusted, stability};
 use crate::stats::multilevel::{normal_interval, prob_above, PasserPost};
 use crate::plays::Plays;
@@ -16,6 +16,7 @@ use crate::situation::{Group, Situation};
 use crate::stats;
 use rayon::prelude::*;
 use serde::Serialize;
+use std::sync::Arc;
 
 /// One number in the table, with everything said about it. Every interval
 /// is a 90% interval; values are in display units (percentages ×100).
@@ -251,13 +252,13 @@ pub fn split_table_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation,
     // fitted beside the table; for passer rows only (a team row has no
     // single passer to adjust).
     let memo = memo(ix, p, v, &s.without_row_pick());
-    let (mut table, opp) = rayon::join(
-        || build_table(p, &sums, &normal, s, min_dropbacks, focus, &memo),
+    let ((mut table, whos), opp) = rayon::join(
+        || build_table(ix, p, &sums, &normal, s, min_dropbacks, focus, &memo),
         || if s.group == Group::Passer { super::opponent::opponent_fit(ix, p, v, s) } else { None },
     );
     if let Some(fit) = opp {
-        for row in table.rows.iter_mut() {
-            if let Some(a) = fit.of(p, &row.passer) {
+        for (row, who) in table.rows.iter_mut().zip(whos) {
+            if let Some(a) = fit.passers.get(&who) {
                 (row.epa_opp_adj, row.epa_opp_adj_lo, row.epa_opp_adj_hi, row.epa_opp_faced) = (Some(a.value), Some(a.lo), Some(a.hi), Some(a.faced));
             }
         }
@@ -265,10 +266,12 @@ pub fn split_table_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation,
     table
 }
 
-/// The table from the sums. The model fits (per season list) and the
-/// stability (per minimum) are kept beside the situation's pass in `memo`:
-/// they depend on nothing else.
-pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, min_dropbacks: u32, focus: Option<&str>, memo: &Memo) -> SplitTable {
+/// The table from the sums, and each row's id (passer or team, by the
+/// grouping). The model fits (per season list) and the stability (per
+/// minimum) are kept beside the situation's pass in `memo`: they depend on
+/// nothing else.
+#[allow(clippy::too_many_arguments)]
+pub(super) fn build_table(ix: &SplitIndex, p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, min_dropbacks: u32, focus: Option<&str>, memo: &Arc<Memo>) -> (SplitTable, Vec<u32>) {
     let nm = METRICS.len();
     let db = metric_index("dropbacks").unwrap_or(0);
     let group = s.group;
@@ -295,49 +298,61 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
         })
         .collect();
 
-    let mut rows: Vec<PasserRow> = sums
-        .passers
-        .iter()
-        .map(|(&who, ps)| {
-            let dropbacks = ps.accs[db].n as u32;
-            let cells = (0..nm)
-                .map(|j| {
-                    let m = &METRICS[j];
-                    let value = raw_value(&ps.accs, j);
-                    let lg = league[j];
-                    let mut c = Cell { key: m.key, value, n: ps.accs[j].n, ..Cell::default() };
-                    if m.stat != Stat::Count {
-                        c.league = lg;
-                        c.diff = value.zip(lg).map(|(a, b)| a - b);
-                        if let Some(b) = adjusted(sums, ps, j, snap_var[j]) {
-                            c.adjusted_league = Some(b.value * m.scale);
-                            c.adjusted_diff = value.map(|a| a - b.value * m.scale);
-                            let var = (snap_var[j] / ps.accs[j].n.max(1.0) + b.var) * m.scale * m.scale;
-                            if let Some((lo, hi)) = c.adjusted_diff.and_then(|d| normal_interval(d, var, stats::INTERVAL_LEVEL)) {
-                                (c.adjusted_diff_lo, c.adjusted_diff_hi) = (Some(lo), Some(hi));
+    let name_of = |who: u32| match group {
+        Group::Passer => &p.passers[who as usize],
+        Group::Offense | Group::Defense => &p.teams[who as usize],
+    };
+    // The rows' raw numbers and baselines, side by side with the posteriors
+    // below (neither needs the other).
+    let build_rows = || -> Vec<PasserRow> {
+        let mut scratch = CellSums::default();
+        let mut baselines = vec![None; nm];
+        let league_rating = rating_from(&sums.league);
+        sums
+            .passers
+            .iter()
+            .map(|(&who, ps)| {
+                let dropbacks = ps.accs[db].n as u32;
+                if sums.cells_of(ix, group, ps, &mut scratch) {
+                    adjusted(&ix.layout, sums, &ps.accs, &scratch, &snap_var, league_rating, &mut baselines);
+                } else {
+                    baselines.iter_mut().for_each(|b| *b = None);
+                }
+                let cells = (0..nm)
+                    .map(|j| {
+                        let m = &METRICS[j];
+                        let value = raw_value(&ps.accs, j);
+                        let lg = league[j];
+                        let mut c = Cell { key: m.key, value, n: ps.accs[j].n, ..Cell::default() };
+                        if m.stat != Stat::Count {
+                            c.league = lg;
+                            c.diff = value.zip(lg).map(|(a, b)| a - b);
+                            if let Some(b) = baselines[j] {
+                                c.adjusted_league = Some(b.value * m.scale);
+                                c.adjusted_diff = value.map(|a| a - b.value * m.scale);
+                                let var = (snap_var[j] / ps.accs[j].n.max(1.0) + b.var) * m.scale * m.scale;
+                                if let Some((lo, hi)) = c.adjusted_diff.and_then(|d| normal_interval(d, var, stats::INTERVAL_LEVEL)) {
+                                    (c.adjusted_diff_lo, c.adjusted_diff_hi) = (Some(lo), Some(hi));
+                                }
                             }
                         }
-                    }
-                    c
-                })
-                .collect();
-            let name = match group {
-                Group::Passer => &p.passers[who as usize],
-                Group::Offense | Group::Defense => &p.teams[who as usize],
-            };
-            PasserRow {
-                passer: name.clone(),
-                team: p.teams[ps.team as usize].clone(),
-                qualified: dropbacks >= min_dropbacks.max(1),
-                dropbacks,
-                cells,
-                epa_opp_adj: None,
-                epa_opp_adj_lo: None,
-                epa_opp_adj_hi: None,
-                epa_opp_faced: None,
-            }
-        })
-        .collect();
+                        c
+                    })
+                    .collect();
+                PasserRow {
+                    passer: name_of(who).clone(),
+                    team: p.teams[ps.team as usize].clone(),
+                    qualified: dropbacks >= min_dropbacks.max(1),
+                    dropbacks,
+                    cells,
+                    epa_opp_adj: None,
+                    epa_opp_adj_lo: None,
+                    epa_opp_adj_hi: None,
+                    epa_opp_faced: None,
+                }
+            })
+            .collect()
+    };
 
     // The two-level model per metric, priors from every passer; the metrics
     // are independent, so rayon's threads share them (results in metric
@@ -345,22 +360,34 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
     // from its shrunk parts afterwards.
     let pick = s.row_pick();
     let picked = |name: &str| pick.is_some_and(|x| if group == Group::Passer { x == name } else { x.eq_ignore_ascii_case(name) });
-    let wanted: Vec<bool> = rows.iter().map(|r| r.qualified || focus == Some(r.passer.as_str()) || picked(&r.passer)).collect();
+    let wanted: Vec<bool> = sums
+        .passers
+        .iter()
+        .map(|(&who, ps)| {
+            let name = name_of(who);
+            ps.accs[db].n as u32 >= min_dropbacks.max(1) || focus == Some(name.as_str()) || picked(name)
+        })
+        .collect();
     let rating_j = metric_index("rating");
     let parts: Vec<usize> = RATING_PARTS.iter().filter_map(|k| metric_index(k)).collect();
     let jobs: Vec<usize> = (0..nm).filter(|&j| (METRICS[j].stat != Stat::Count && Some(j) != rating_j) || parts.contains(&j)).collect();
-    let fits = memo.derived(&format!("fits {:?}", s.seasons), || {
-        let mut fits: Vec<Option<Fit>> = vec![None; nm];
-        for (j, f) in jobs.par_iter().map(|&j| (j, fit(sums, normal, j))).collect::<Vec<_>>() {
-            fits[j] = f;
+    let compute_posts = || {
+        let fits = memo.derived(&format!("fits {:?}", s.seasons), || {
+            let mut fits: Vec<Option<Fit>> = vec![None; nm];
+            for (j, f) in jobs.par_iter().map(|&j| (j, fit(sums, normal, j))).collect::<Vec<_>>() {
+                fits[j] = f;
+            }
+            fits
+        });
+        let mut posts: Vec<Option<Vec<Option<PasserPost>>>> = vec![None; nm];
+        let normals = normals(sums, normal);
+        let results: Vec<(usize, Vec<Option<PasserPost>>)> = jobs.par_iter().map(|&j| (j, posteriors(fits[j].as_ref(), sums, &normals, j, &wanted))).collect();
+        for (j, post) in results {
+            posts[j] = Some(post);
         }
-        fits
-    });
-    let mut posts: Vec<Option<Vec<Option<PasserPost>>>> = vec![None; nm];
-    let results: Vec<(usize, Vec<Option<PasserPost>>)> = jobs.par_iter().map(|&j| (j, posteriors(fits[j].as_ref(), sums, normal, j, &wanted))).collect();
-    for (j, post) in results {
-        posts[j] = Some(post);
-    }
+        posts
+    };
+    let (mut rows, posts) = rayon::join(build_rows, compute_posts);
     let mut derived: Vec<Option<Vec<Option<Derived>>>> =
         posts.iter().enumerate().map(|(j, p)| (METRICS[j].stat != Stat::Count).then(|| p.as_ref().map(|v| v.iter().map(|x| x.as_ref().map(Derived::from)).collect())).flatten()).collect();
     if let (Some(rj), [a, b, c, d]) = (rating_j, parts.as_slice()) {
@@ -403,12 +430,15 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
         }
     }
 
+    let mut rows: Vec<(PasserRow, u32)> = rows.into_iter().zip(sums.passers.keys().copied()).collect();
     if pick.is_some() {
-        rows.retain(|r| picked(&r.passer));
+        rows.retain(|r| picked(&r.0.passer));
     }
-    rows.sort_by(|a, b| b.dropbacks.cmp(&a.dropbacks).then(a.passer.cmp(&b.passer)));
+    rows.sort_by(|(a, _), (b, _)| b.dropbacks.cmp(&a.dropbacks).then(a.passer.cmp(&b.passer)));
+    let (rows, whos): (Vec<PasserRow>, Vec<u32>) = rows.into_iter().unzip();
     let stab = memo.derived(&format!("stability {min_dropbacks}"), || {
-        (0..nm).into_par_iter().map(|j| (METRICS[j].stat != Stat::Count).then(|| stability(sums, j, min_dropbacks))).collect::<Vec<_>>()
+        let by_season = seasons_of(ix, memo, &s.without_row_pick());
+        (0..nm).into_par_iter().map(|j| (METRICS[j].stat != Stat::Count).then(|| stability(&by_season, j, min_dropbacks))).collect::<Vec<_>>()
     });
     let metrics = (0..nm)
         .map(|j| {
@@ -436,7 +466,7 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
         Some(v) => v.clone(),
         None => p.seasons(),
     };
-    SplitTable {
+    let table = SplitTable {
         group,
         situation: s.describe(),
         query: s.to_query(),
@@ -462,5 +492,6 @@ pub(super) fn build_table(p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, 
             .collect(),
         league,
         rows,
-    }
+    };
+    (table, whos)
 }

@@ -231,9 +231,34 @@ pub struct Model {
     lift: Option<Vec<LiftPt>>,
     /// (level point, lift point, joint weight); the weights sum to 1.
     pairs: Vec<(u16, u16, f64)>,
+    /// The pairs again, as passers are scored with a lift model: runs of
+    /// one level point (point, start, end) over flat per-pair columns of
+    /// the lift point's precision, `δ`, its variance and the joint weight.
+    runs: Vec<(u16, u32, u32)>,
+    pair_prec: Vec<f64>,
+    pair_delta: Vec<f64>,
+    pair_var_delta: Vec<f64>,
+    pair_weight: Vec<f64>,
     mean_level_var: f64,
     mean_lift_var: f64,
 }
+
+/// What one level point gives a passer's pairs: the prior mean's variance
+/// at his covariate, the precision of θ, the prior precision `1/τ²`, the
+/// known part of θ's precision-weighted sum, and his `1/v` and `y`.
+#[derive(Clone, Copy)]
+struct LevelTerms {
+    var_mu: f64,
+    p00: f64,
+    pt: f64,
+    known: f64,
+    ph: f64,
+    yh: f64,
+}
+
+/// Pairs of grid points scored side by side (independent sums, added up in
+/// a fixed order at the end, so a passer's numbers are the same on every call).
+const LANES: usize = 4;
 
 impl Model {
     /// `level` fitted on the passers' other snaps, `lift` on their raw
@@ -275,11 +300,26 @@ impl Model {
         }
         let kept: f64 = pairs.iter().map(|p| p.2).sum();
         pairs.iter_mut().for_each(|p| p.2 /= kept);
+        let mut runs: Vec<(u16, u32, u32)> = Vec::new();
+        for (q, &(i, _, _)) in pairs.iter().enumerate() {
+            match runs.last_mut() {
+                Some(r) if r.0 == i => r.2 = q as u32 + 1,
+                _ => runs.push((i, q as u32, q as u32 + 1)),
+            }
+        }
+        let column = |f: &dyn Fn(&LiftPt) -> f64| pairs.iter().map(|&(_, k, _)| f(&kpts[k as usize])).collect::<Vec<f64>>();
+        let (pair_prec, pair_delta, pair_var_delta) = (column(&|k| k.prec), column(&|k| k.delta), column(&|k| k.var_delta));
+        let pair_weight = pairs.iter().map(|p| p.2).collect();
         Model {
             level: lpts,
             slope: level.slope,
             lift: lift.map(|_| kpts),
             pairs,
+            runs,
+            pair_prec,
+            pair_delta,
+            pair_var_delta,
+            pair_weight,
             mean_level_var: level.mean_var(),
             mean_lift_var: lift.map(|f| f.mean_var()).unwrap_or(0.0),
         }
@@ -319,43 +359,8 @@ impl Model {
         }
         // Moments accumulated over the grid: E[m] and E[var + m²] of the
         // value, the level and the lift.
-        let mut acc = [0.0f64; 6];
         let two_level = self.lift.is_some();
-        let lifts: &[LiftPt] = self.lift.as_deref().unwrap_or(&[]);
-        let fixed = LiftPt { prec: f64::INFINITY, delta: 0.0, var_delta: 0.0 };
-        for &(i, k, w) in &self.pairs {
-            let [mu, var_mu, p00] = per[i as usize];
-            let pt = self.level[i as usize].prec;
-            let kp = if two_level { &lifts[k as usize] } else { &fixed };
-            let (delta, var_delta) = (kp.delta, kp.var_delta);
-            // Posterior covariance of (θ, λ): the inverse of the precision
-            // [[1/τ² + 1/v' + 1/v, 1/v], [1/v, 1/ω² + 1/v]]; without a lift
-            // model λ is fixed at 0.
-            let (s00, s01, s11) = if two_level {
-                let p11 = kp.prec + ph;
-                let det = p00 * p11 - ph * ph;
-                (p11 / det, -ph / det, p00 / det)
-            } else {
-                (1.0 / p00, 0.0, 0.0)
-            };
-            let r = yh - delta;
-            let (b0, b1) = (mu * pt + yv * pv + r * ph, r * ph);
-            let (m0, m1) = (s00 * b0 + s01 * b1, s01 * b0 + s11 * b1);
-            // Sensitivities to δ and μ (for their estimation variance).
-            let (dd0, dd1) = (-(s00 + s01) * ph, -(s01 + s11) * ph);
-            let (dm0, dm1) = (s00 * pt, s01 * pt);
-            let lift_m = delta + m1;
-            let lift_v = s11 + (1.0 + dd1).powi(2) * var_delta + dm1 * dm1 * var_mu;
-            let val_m = m0 + delta + m1;
-            let val_v = s00 + 2.0 * s01 + s11 + (1.0 + dd0 + dd1).powi(2) * var_delta + (dm0 + dm1).powi(2) * var_mu;
-            let lev_v = s00 + dd0 * dd0 * var_delta + dm0 * dm0 * var_mu;
-            acc[0] += w * val_m;
-            acc[1] += w * (val_v + val_m * val_m);
-            acc[2] += w * m0;
-            acc[3] += w * (lev_v + m0 * m0);
-            acc[4] += w * lift_m;
-            acc[5] += w * (lift_v + lift_m * lift_m);
-        }
+        let acc = if two_level { self.two_level_moments(per, [pv, yv, ph, yh]) } else { self.one_level_moments(per, [pv, yv, ph, yh]) };
         let mv = |m: f64, s: f64| (m, (s - m * m).max(0.0));
         let (value, level, lift) = (mv(acc[0], acc[1]), mv(acc[2], acc[3]), mv(acc[4], acc[5]));
         let has_lift = two_level && d.other.is_some() && d.here.is_some();
@@ -376,6 +381,98 @@ impl Model {
             lift_prior_var: self.mean_lift_var,
             raw_diff_var,
         })
+    }
+}
+
+impl Model {
+    /// The grid moments of a passer with the lift model: over each run of
+    /// pairs sharing a level point, `LANES` pairs at a time in separate
+    /// sums. `per`: per level point the prior mean at his covariate, its
+    /// variance and the precision of θ; `d`: `[1/v', y', 1/v, y]`. Returns
+    /// E[m] and E[var + m²] of the value, the level and the lift.
+    fn two_level_moments(&self, per: &[[f64; 3]], d: [f64; 4]) -> [f64; 6] {
+        let [pv, yv, ph, yh] = d;
+        let mut lanes = [[0.0f64; LANES]; 6];
+        debug_assert_eq!(LANES, 4);
+        for &(i, a, z) in &self.runs {
+            let [mu, var_mu, p00] = per[i as usize];
+            let pt = self.level[i as usize].prec;
+            let known = mu * pt + yv * pv;
+            let lv = LevelTerms { var_mu, p00, pt, known, ph, yh };
+            let (a, z) = (a as usize, z as usize);
+            let mut q = a;
+            while q + LANES <= z {
+                let terms = [self.pair_terms(q, &lv), self.pair_terms(q + 1, &lv), self.pair_terms(q + 2, &lv), self.pair_terms(q + 3, &lv)];
+                for (t, lane) in lanes.iter_mut().enumerate() {
+                    for l in 0..LANES {
+                        lane[l] += terms[l][t];
+                    }
+                }
+                q += LANES;
+            }
+            for q in q..z {
+                let terms = self.pair_terms(q, &lv);
+                for (t, lane) in lanes.iter_mut().enumerate() {
+                    lane[0] += terms[t];
+                }
+            }
+        }
+        lanes.map(|lane| lane.iter().sum())
+    }
+
+    /// One pair of grid points (number `q`) for a passer at a level point:
+    /// its six weighted terms (see `two_level_moments`).
+    #[inline(always)]
+    fn pair_terms(&self, q: usize, lv: &LevelTerms) -> [f64; 6] {
+        let LevelTerms { var_mu, p00, pt, known, ph, yh } = *lv;
+        let (kprec, delta, var_delta, w) = (self.pair_prec[q], self.pair_delta[q], self.pair_var_delta[q], self.pair_weight[q]);
+        // Posterior covariance of (θ, λ): the inverse of the precision
+        // [[1/τ² + 1/v' + 1/v, 1/v], [1/v, 1/ω² + 1/v]].
+        let p11 = kprec + ph;
+        let inv = 1.0 / (p00 * p11 - ph * ph);
+        let (s00, s01, s11) = (p11 * inv, -ph * inv, p00 * inv);
+        let r = yh - delta;
+        let (b0, b1) = (known + r * ph, r * ph);
+        let (m0, m1) = (s00 * b0 + s01 * b1, s01 * b0 + s11 * b1);
+        // Sensitivities to δ and μ (for their estimation variance).
+        let (dd0, dd1) = (-(s00 + s01) * ph, -(s01 + s11) * ph);
+        let (dm0, dm1) = (s00 * pt, s01 * pt);
+        let lift_m = delta + m1;
+        let lift_v = s11 + (1.0 + dd1) * (1.0 + dd1) * var_delta + dm1 * dm1 * var_mu;
+        let val_m = m0 + delta + m1;
+        let val_v = s00 + 2.0 * s01 + s11 + (1.0 + dd0 + dd1) * (1.0 + dd0 + dd1) * var_delta + (dm0 + dm1) * (dm0 + dm1) * var_mu;
+        let lev_v = s00 + dd0 * dd0 * var_delta + dm0 * dm0 * var_mu;
+        [w * val_m, w * (val_v + val_m * val_m), w * m0, w * (lev_v + m0 * m0), w * lift_m, w * (lift_v + lift_m * lift_m)]
+    }
+
+    /// The grid moments without a lift model (λ fixed at 0): one pair per
+    /// level point. As `two_level_moments`.
+    fn one_level_moments(&self, per: &[[f64; 3]], d: [f64; 4]) -> [f64; 6] {
+        let [pv, yv, ph, yh] = d;
+        let mut acc = [0.0f64; 6];
+        for &(i, _, w) in &self.pairs {
+            let [mu, var_mu, p00] = per[i as usize];
+            let pt = self.level[i as usize].prec;
+            let (delta, var_delta) = (0.0, 0.0);
+            let (s00, s01, s11) = (1.0 / p00, 0.0, 0.0);
+            let r = yh - delta;
+            let (b0, b1) = (mu * pt + yv * pv + r * ph, r * ph);
+            let (m0, m1) = (s00 * b0 + s01 * b1, s01 * b0 + s11 * b1);
+            let (dd0, dd1) = (-(s00 + s01) * ph, -(s01 + s11) * ph);
+            let (dm0, dm1) = (s00 * pt, s01 * pt);
+            let lift_m = delta + m1;
+            let lift_v = s11 + (1.0 + dd1).powi(2) * var_delta + dm1 * dm1 * var_mu;
+            let val_m = m0 + delta + m1;
+            let val_v = s00 + 2.0 * s01 + s11 + (1.0 + dd0 + dd1).powi(2) * var_delta + (dm0 + dm1).powi(2) * var_mu;
+            let lev_v = s00 + dd0 * dd0 * var_delta + dm0 * dm0 * var_mu;
+            acc[0] += w * val_m;
+            acc[1] += w * (val_v + val_m * val_m);
+            acc[2] += w * m0;
+            acc[3] += w * (lev_v + m0 * m0);
+            acc[4] += w * lift_m;
+            acc[5] += w * (lift_v + lift_m * lift_m);
+        }
+        acc
     }
 }
 

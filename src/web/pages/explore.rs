@@ -212,6 +212,22 @@ pub fn number_query(situation: &Situation, name: &str, metric: &str) -> Vec<(Str
     q
 }
 
+/// The row's snaps as a query string ("?..."), the start of every link
+/// behind its numbers but the counts (`number_href`).
+fn plays_prefix(situation: &Situation, name: &str) -> String {
+    to_query_string(&row_situation(situation, name).to_query())
+}
+
+/// `/plays` with `number_query`, with the row's part from `prefix`
+/// (`plays_prefix`) when the metric adds only itself (a count also picks
+/// its result: built in full).
+fn number_href(prefix: &str, situation: &Situation, name: &str, metric: &str, projector: bool) -> String {
+    if PlayResult::counted_by(metric).is_some() || prefix.is_empty() || !metric.bytes().all(|b| b.is_ascii_alphanumeric() || b == b'_') {
+        return format!("/plays{}", viewed(number_query(situation, name, metric), projector));
+    }
+    format!("/plays{prefix}&metric={metric}{}", if projector { "&view=projector" } else { "" })
+}
+
 pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
     let st2 = st.clone();
     super::super::service::engine(&st, move || explore_now(st2, headers, q)).await
@@ -308,7 +324,8 @@ pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTab
         .rows
         .iter()
         .filter(|r| r.qualified || (!group.is_team() && our_passer.as_deref() == Some(r.passer.as_str())) || params.situation.row_pick().is_some())
-        .map(|r| RowView {
+        .map(|r| (r, plays_prefix(&params.situation, &r.passer)))
+        .map(|(r, prefix)| RowView {
             passer: r.passer.clone(),
             team: r.team.clone(),
             ours: if group.is_team() {
@@ -350,7 +367,7 @@ pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTab
                         signal,
                         lift,
                         sort: sort_value(sortv),
-                        href: format!("/plays{}", viewed(number_query(&params.situation, &r.passer, m.key), params.projector)),
+                        href: number_href(&prefix, &params.situation, &r.passer, m.key, params.projector),
                         title: format!("{} {}; pct {}", c.n, m.unit.label(), fixed(c.percentile, 0)),
                     }
                 })
@@ -488,5 +505,28 @@ pub(super) fn lift_text(c: &crate::splits::Cell, decimals: usize) -> String {
             format!("lift {} [{}, {}]", f(l), f(lo), f(hi))
         }
         _ => "lift –".into(),
+    }
+}
+
+#[cfg(test)]
+mod href_tests {
+    use super::*;
+
+    /// The shortcut gives the same link as the query built in full, for
+    /// every metric, grouping and view.
+    #[test]
+    fn number_links_match_the_full_query() {
+        for group in Group::ALL {
+            let s = Situation { seasons: Some(vec![2031, 2032]), group, ..Preset::EndOfGame.situation(8) };
+            for name in ["Ava Quill", "J. Moss & Co"] {
+                let prefix = plays_prefix(&s, name);
+                for m in METRICS {
+                    for projector in [false, true] {
+                        let full = format!("/plays{}", viewed(number_query(&s, name, m.key), projector));
+                        assert_eq!(number_href(&prefix, &s, name, m.key, projector), full);
+                    }
+                }
+            }
+        }
     }
 }
