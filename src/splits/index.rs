@@ -175,7 +175,8 @@ impl Memo {
     }
 }
 
-/// How many situations' passes the index keeps before it starts over.
+/// How many situations' passes the index keeps: past it, the pass used
+/// least recently is let go.
 pub(super) const MEMO_SIZE: usize = 16;
 
 /// How many bytes of passes the index keeps: past it, the passes used
@@ -183,9 +184,9 @@ pub(super) const MEMO_SIZE: usize = 16;
 /// about 20 MB, a late-game window a few MB.)
 pub(super) const MEMO_BYTES: usize = 64 << 20;
 
-/// The index's memo of passes by key, bounded by `MEMO_SIZE` (its users
-/// start over when it is full) and by `MEMO_BYTES` (the passes used least
-/// recently go first; the one just added always stays).
+/// The index's memo of passes by key, bounded by `MEMO_SIZE` and by
+/// `MEMO_BYTES` (the passes used least recently go first; the one just
+/// added always stays).
 #[derive(Default)]
 pub(crate) struct MemoMap {
     map: HashMap<String, (Arc<Memo>, std::sync::atomic::AtomicU64)>,
@@ -221,7 +222,7 @@ impl MemoMap {
             self.bytes -= old.bytes();
         }
         self.bytes += size;
-        while self.bytes > MEMO_BYTES && self.map.len() > 1 {
+        while (self.bytes > MEMO_BYTES || self.map.len() > MEMO_SIZE) && self.map.len() > 1 {
             let oldest = self.map.iter().filter(|(k, _)| **k != key).min_by_key(|(_, (_, used))| used.load(Relaxed)).map(|(k, _)| k.clone());
             let Some(oldest) = oldest else { break };
             if let Some((gone, _)) = self.map.remove(&oldest) {
@@ -737,5 +738,14 @@ mod memo_tests {
         assert_eq!(m.bytes, m.get("huge").map_or(0, |p| p.bytes()));
         m.clear();
         assert_eq!((m.len(), m.bytes), (0, 0));
+        // Past MEMO_SIZE passes the least recently used goes: pass 0 is
+        // read along the way (as every table reads the every-snap pass), so
+        // pass 1 goes first.
+        for k in 0..=MEMO_SIZE {
+            m.insert(k.to_string(), pass_of(0));
+            let _ = m.get("0");
+        }
+        assert_eq!(m.len(), MEMO_SIZE);
+        assert!(m.get("0").is_some() && m.get("1").is_none() && m.get(&MEMO_SIZE.to_string()).is_some());
     }
 }

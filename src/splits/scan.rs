@@ -2,7 +2,7 @@
 //! sums per passer, per state cell, per season and for the league (`Sums`),
 //! and the raw value of a metric from sums.
 
-use super::index::{memo_key, Layout, Memo, Plan, SplitIndex, MEMO_SIZE};
+use super::index::{memo_key, Layout, Memo, Plan, SplitIndex};
 use super::metrics::{metric_index, SnapValues, Stat, CELLS, METRICS};
 use crate::plays::Plays;
 use crate::situation::{Group, Situation};
@@ -299,12 +299,8 @@ pub(super) fn memo(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) ->
     }
     let m = Arc::new(pass(ix, p, v, s));
     if let Ok(mut c) = ix.memo.lock() {
-        if c.len() >= MEMO_SIZE {
-            // Start over, but keep the every-snap passes: every table's
-            // "his normal" reads one, and it is the longest pass to make again.
-            let every: Vec<String> = Group::ALL.iter().map(|&group| memo_key(&Situation { group, ..Situation::default() })).collect();
-            c.retain(|k, _| every.contains(k));
-        }
+        // Bounded by count and bytes, least recently used out: every
+        // table reads an every-snap pass for "his normal", so those stay.
         c.insert(key, m.clone());
     }
     m
