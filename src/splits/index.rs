@@ -203,6 +203,7 @@ impl MemoMap {
         Some(m)
     }
 
+    #[cfg(test)]
     pub(super) fn len(&self) -> usize {
         self.map.len()
     }

@@ -142,12 +142,12 @@ fn lift_beats_raw_difference_and_covers() {
 }
 
 /// Leaving out the pairs of grid points below `PRUNE` of the weight moves no
-/// estimate or interval end by as much as 1e-6 of the interval's width,
+/// estimate or interval end by as much as 1e-4 of the interval's width,
 /// against the whole grid (two levels and one), with many units (a narrow
 /// posterior, most pairs left out) and few (a wide one).
 #[test]
 fn pruned_grid_matches_the_whole_grid() {
-    let mut dropped = 0;
+    let (mut dropped, mut worst) = (0, 0.0f64);
     for (rep, k) in [(0u64, 400usize), (1, 80), (2, 12), (3, 4)] {
         let mut rng = Rng(500 + rep);
         let mut rows = Vec::new();
@@ -181,11 +181,13 @@ fn pruned_grid_matches_the_whole_grid() {
                     let (plo, phi) = normal_interval(x.0, x.1, 0.9).unwrap();
                     let width = hi - lo;
                     let moved = (x.0 - y.0).abs().max((plo - lo).abs()).max((phi - hi).abs());
-                    assert!(moved < 1e-6 * width, "k {k}: moved {moved:e} of width {width:e}");
+                    worst = worst.max(moved / width);
+                    assert!(moved < 1e-4 * width, "k {k}: moved {moved:e} of width {width:e}");
                 }
             }
         }
     }
+    eprintln!("{dropped} pairs left out; the most anything moved: {worst:e} of its interval's width");
     // The threshold must leave something out, or the test checks nothing.
     assert!(dropped > 1000, "only {dropped} pairs left out");
 }
