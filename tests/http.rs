@@ -14,6 +14,11 @@ fn busiest_passer(base: &str) -> String {
     j["rows"][0]["passer"].as_str().expect("a passer").to_string()
 }
 
+/// Every cookie an answer sets, as a request's Cookie header would send them.
+fn cookies_set(r: &common::Reply) -> String {
+    r.headers.iter().filter(|(k, _)| k.eq_ignore_ascii_case("set-cookie")).filter_map(|(_, v)| v.split(';').next()).collect::<Vec<_>>().join("; ")
+}
+
 #[test]
 fn every_page_and_api_answers_for_every_preset() {
     let base = demo_server();
@@ -223,9 +228,37 @@ fn choosing_our_passer_sets_a_cookie() {
     let passer = busiest_passer(base);
     let r = get(&format!("{base}/choose?team=&passer={}", enc(&passer)));
     assert_eq!(r.status, 303);
-    let cookie = r.header("set-cookie").unwrap().split(';').next().unwrap().to_string();
+    let cookie = cookies_set(&r);
+    assert!(cookie.contains("lg_passer="), "{cookie}");
     let page = get_with(&format!("{base}/explore?preset=end-of-game"), &[("Cookie", &cookie)]).body;
-    assert!(page.contains("class=\"ours\""), "our passer's row is highlighted");
+    assert!(page.contains("<tr class=\"ours\">"), "our passer's row is highlighted");
+}
+
+/// A repeated view (explorer, passer profile, splits JSON) gets the same
+/// answer, with the security headers; another "our passer" cookie gets its
+/// own page, with his row marked; a refused request stays refused.
+#[test]
+fn repeated_views_get_the_same_answer_and_each_passer_cookie_its_own() {
+    let base = demo_server();
+    let passer = busiest_passer(base);
+    for url in [format!("{base}/explore?preset=end-of-game&min=7"), format!("{base}/passer?passer={}&min=7", enc(&passer)), format!("{base}/api/splits?preset=end-of-game&min=7")] {
+        let (a, b) = (get(&url), get(&url));
+        assert_eq!((a.status, b.status), (200, 200), "{url}");
+        assert_eq!(a.body, b.body, "{url}");
+        assert_eq!(a.header("content-type"), b.header("content-type"), "{url}");
+        assert_eq!(b.header("x-content-type-options"), Some("nosniff"), "{url}");
+    }
+    let url = format!("{base}/explore?preset=end-of-game&min=7");
+    let plain = get(&url).body;
+    let chosen = get(&format!("{base}/choose?team=&passer={}", enc(&passer)));
+    let cookie = cookies_set(&chosen);
+    let mine = get_with(&url, &[("Cookie", &cookie)]).body;
+    assert!(!plain.contains("<tr class=\"ours\">"), "no passer's row is ours without the cookie");
+    assert!(mine.contains("<tr class=\"ours\">") && mine.contains(&format!("our passer: <strong>{passer}</strong>")), "the cookie's passer {passer} is marked");
+    assert_eq!(get_with(&url, &[("Cookie", &cookie)]).body, mine);
+    for _ in 0..2 {
+        assert_eq!(get(&format!("{base}/explore?preset=end-of-game&min=7&downn=3")).status, 400);
+    }
 }
 
 #[test]

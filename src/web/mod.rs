@@ -12,6 +12,7 @@ mod notes;
 mod pages;
 mod service;
 pub mod memory;
+mod finished;
 pub mod query;
 mod tables;
 
@@ -116,6 +117,8 @@ pub struct AppState {
     /// never changes until a reload, which empties it), bounded by count
     /// and bytes (`tables::TableCache`).
     splits_cache: std::sync::Mutex<tables::TableCache>,
+    /// Finished answers of the read-only views, by request (`finished`).
+    finished: std::sync::Mutex<finished::FinishedCache>,
     /// The staff's film notes and cut-up lists (None when the database
     /// could not be opened; the rest of the server still works).
     notes: Option<Arc<NoteStore>>,
@@ -148,6 +151,7 @@ impl AppState {
             token: cfg.token,
             reload_note: RwLock::new(None),
             splits_cache: std::sync::Mutex::new(tables::TableCache::default()),
+            finished: std::sync::Mutex::new(finished::FinishedCache::default()),
             notes,
         }
     }
@@ -183,6 +187,9 @@ impl AppState {
                     Err(p) => *p.into_inner() = new,
                 }
                 if let Ok(mut c) = self.splits_cache.lock() {
+                    c.clear();
+                }
+                if let Ok(mut c) = self.finished.lock() {
                     c.clear();
                 }
                 memory::release_free_memory();

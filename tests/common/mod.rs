@@ -75,6 +75,14 @@ fn agent() -> ureq::Agent {
     ureq::AgentBuilder::new().redirects(0).timeout(std::time::Duration::from_secs(60)).build()
 }
 
+/// Every header of an answer, a repeated one (Set-Cookie) once per value.
+fn all_headers(resp: &ureq::Response) -> Vec<(String, String)> {
+    let mut names = resp.headers_names();
+    names.sort();
+    names.dedup();
+    names.into_iter().flat_map(|n| resp.all(&n).into_iter().map(move |v| (n.clone(), v.to_string())).collect::<Vec<_>>()).collect()
+}
+
 pub fn get(url: &str) -> Reply {
     get_with(url, &[])
 }
@@ -90,7 +98,7 @@ pub fn get_with(url: &str, headers: &[(&str, &str)]) -> Reply {
         Err(e) => panic!("GET {url}: {e}"),
     };
     let status = resp.status();
-    let headers = resp.headers_names().into_iter().filter_map(|n| resp.header(&n).map(|v| (n.clone(), v.to_string()))).collect();
+    let headers = all_headers(&resp);
     let body = resp.into_string().unwrap_or_default();
     Reply { status, body, headers }
 }
@@ -102,7 +110,7 @@ pub fn post(url: &str) -> Reply {
         Err(e) => panic!("POST {url}: {e}"),
     };
     let status = resp.status();
-    let headers = resp.headers_names().into_iter().filter_map(|n| resp.header(&n).map(|v| (n.clone(), v.to_string()))).collect();
+    let headers = all_headers(&resp);
     Reply { status, body: resp.into_string().unwrap_or_default(), headers }
 }
 

@@ -229,8 +229,8 @@ fn number_href(prefix: &str, situation: &Situation, name: &str, metric: &str, pr
 }
 
 pub async fn explore(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
-    let st2 = st.clone();
-    super::super::service::engine(&st, move || explore_now(st2, headers, q)).await
+    let (st2, h2, q2) = (st.clone(), headers.clone(), q.clone());
+    super::super::finished::answer(&st, "/explore", &headers, q.as_deref(), move || explore_now(st2, h2, q2)).await
 }
 
 fn explore_now(st: Shared, headers: HeaderMap, q: Option<String>) -> Response {

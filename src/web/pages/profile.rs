@@ -227,8 +227,8 @@ const LIFT_WORD_KEYS: &[&str] = &["epa", "success", "cpoe", "rating", "sack_rate
 pub(super) const PROFILE_KEYS: &[&str] = &["epa", "success", "cpoe", "rating", "anya", "sack_rate", "int_rate", "wpa"];
 
 pub async fn profile(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
-    let st2 = st.clone();
-    super::super::service::engine(&st, move || profile_now(st2, headers, q)).await
+    let (st2, h2, q2) = (st.clone(), headers.clone(), q.clone());
+    super::super::finished::answer(&st, "/passer", &headers, q.as_deref(), move || profile_now(st2, h2, q2)).await
 }
 
 fn profile_now(st: Shared, headers: HeaderMap, q: Option<String>) -> Response {
