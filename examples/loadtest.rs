@@ -2,9 +2,12 @@
 //! (plain std threads and TCP, HTTP/1.1) for a while, each asking in turn
 //! for the explorer (all seasons and one season), `/api/splits` and
 //! passer profiles; prints p50/p99, errors and timeouts per endpoint, and
-//! the server's peak RSS when its pid is given.
+//! the server's peak RSS when its pid is given. With `fresh` last, every
+//! request asks for one of 200 minimum-dropback settings (`min=`), so
+//! nearly every answer is a table the server has not finished before (its
+//! situations' passes are memoised): the engine's path, not its caches.
 //!
-//! `cargo run --release --example loadtest -- http://127.0.0.1:8750 [clients] [seconds] [server pid]`
+//! `cargo run --release --example loadtest -- http://127.0.0.1:8750 [clients] [seconds] [server pid] [fresh]`
 
 use std::io::{BufRead, BufReader, Read, Write};
 use std::net::TcpStream;
@@ -90,7 +93,8 @@ fn main() {
     let base = args.get(1).cloned().unwrap_or_else(|| "http://127.0.0.1:8750".into());
     let clients: usize = args.get(2).and_then(|s| s.parse().ok()).unwrap_or(32);
     let secs: u64 = args.get(3).and_then(|s| s.parse().ok()).unwrap_or(30);
-    let pid = args.get(4).cloned();
+    let pid = args.get(4).cloned().filter(|a| a != "fresh");
+    let fresh = args.last().is_some_and(|a| a == "fresh");
     let host = base.trim_start_matches("http://").trim_end_matches('/').to_string();
 
     // The league's seasons and busiest passers, from the API.
@@ -117,7 +121,7 @@ fn main() {
         ("/api/splits".into(), vec!["/api/splits?preset=end-of-game".into(), format!("/api/splits?preset=two-minute-drill&season={last}")]),
     ];
     endpoints.push(("passer profile".into(), passers.iter().map(|p| format!("/passer?passer={}", enc(p))).collect()));
-    println!("load test: {clients} clients, {secs} s, {base}; passers: {}", passers.join(", "));
+    println!("load test: {clients} clients, {secs} s, {base}{}; passers: {}", if fresh { ", a new minimum on each request" } else { "" }, passers.join(", "));
     println!("load average at the start: {}", load_average());
     if let Some((rss, peak)) = pid.as_deref().and_then(rss_mib) {
         println!("server before the test: resident {rss:.0} MiB, peak {peak:.0} MiB");
@@ -136,6 +140,7 @@ fn main() {
                     let e = k % endpoints.len();
                     let urls = &endpoints[e].1;
                     let url = &urls[(k / endpoints.len()) % urls.len().max(1)];
+                    let url = if fresh { format!("{url}&min={}", 5 + (k * 7919) % 200) } else { url.clone() };
                     k += 1;
                     let t = Instant::now();
                     let result = (|| -> std::io::Result<u16> {
