@@ -3,6 +3,7 @@
 //! situation → splits → web / api / export / report. No module imports one
 //! further up the chain.
 
+pub mod bounded;
 pub mod charts;
 pub mod cli;
 pub mod export;

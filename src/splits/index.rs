@@ -186,52 +186,12 @@ pub(super) const MEMO_BYTES: usize = 64 << 20;
 
 /// The index's memo of passes by key, bounded by `MEMO_SIZE` and by
 /// `MEMO_BYTES` (the passes used least recently go first; the one just
-/// added always stays).
-#[derive(Default)]
-pub(crate) struct MemoMap {
-    map: HashMap<String, (Arc<Memo>, std::sync::atomic::AtomicU64)>,
-    bytes: usize,
-    tick: std::sync::atomic::AtomicU64,
-}
+/// added always stays; each pass weighs `Memo::bytes`).
+pub(crate) type MemoMap = crate::bounded::Bounded<Arc<Memo>>;
 
-impl MemoMap {
-    /// The pass kept under `key`, marked as just used.
-    pub(super) fn get(&self, key: &str) -> Option<&Arc<Memo>> {
-        use std::sync::atomic::Ordering::Relaxed;
-        let (m, used) = self.map.get(key)?;
-        used.store(self.tick.fetch_add(1, Relaxed), Relaxed);
-        Some(m)
-    }
-
-    #[cfg(test)]
-    pub(super) fn len(&self) -> usize {
-        self.map.len()
-    }
-
-    pub(super) fn clear(&mut self) {
-        self.map.clear();
-        self.bytes = 0;
-    }
-
-    /// Keep `m` under `key`, then let the passes used least recently go
-    /// until the rest fit in `MEMO_BYTES`.
-    pub(super) fn insert(&mut self, key: String, m: Arc<Memo>) {
-        use std::sync::atomic::{AtomicU64, Ordering::Relaxed};
-        let size = m.bytes();
-        let now = self.tick.fetch_add(1, Relaxed);
-        if let Some((old, _)) = self.map.insert(key.clone(), (m, AtomicU64::new(now))) {
-            self.bytes -= old.bytes();
-        }
-        self.bytes += size;
-        while (self.bytes > MEMO_BYTES || self.map.len() > MEMO_SIZE) && self.map.len() > 1 {
-            let oldest = self.map.iter().filter(|(k, _)| **k != key).min_by_key(|(_, (_, used))| used.load(Relaxed)).map(|(k, _)| k.clone());
-            let Some(oldest) = oldest else { break };
-            if let Some((gone, _)) = self.map.remove(&oldest) {
-                self.bytes -= gone.bytes();
-            }
-        }
-        tracing::debug!(kept = self.map.len(), bytes = self.bytes, added = size, "split index memo");
-    }
+/// An empty memo with the index's bounds.
+pub(super) fn memo_map() -> MemoMap {
+    MemoMap::new(MEMO_SIZE, MEMO_BYTES)
 }
 
 /// What the classification pass learns about each metric's values.
@@ -517,7 +477,7 @@ impl SplitIndex {
             ints: column!(ints, n_ints),
             reals: column!(reals, n_reals),
             snap: snaps,
-            memo: Mutex::new(MemoMap::default()),
+            memo: Mutex::new(memo_map()),
             extra: Mutex::new(HashMap::new()),
             league_fits: Mutex::new(HashMap::new()),
             seasons,
@@ -717,33 +677,37 @@ mod memo_tests {
 
     #[test]
     fn the_memo_lets_the_least_recently_used_passes_go_past_its_bytes() {
-        let mut m = MemoMap::default();
+        let mut m = memo_map();
         let each = MEMO_BYTES / (3 << 20);
         for k in ["a", "b", "c"] {
-            m.insert(k.to_string(), pass_of(each));
+            let p = pass_of(each);
+            m.insert(k.to_string(), p.clone(), p.bytes());
         }
         assert_eq!(m.len(), 3);
-        assert!(m.bytes <= MEMO_BYTES);
+        assert!(m.bytes() <= MEMO_BYTES);
         let _ = m.get("a");
-        m.insert("d".to_string(), pass_of(each));
+        let p = pass_of(each);
+        m.insert("d".to_string(), p.clone(), p.bytes());
         // "b" was used least recently; "a" was just read.
         assert!(m.get("b").is_none());
         assert!(m.get("a").is_some() && m.get("c").is_some() && m.get("d").is_some());
-        assert!(m.bytes <= MEMO_BYTES, "{} > {MEMO_BYTES}", m.bytes);
-        assert_eq!(m.bytes, ["a", "c", "d"].iter().map(|k| m.get(k).map_or(0, |p| p.bytes())).sum::<usize>());
+        assert!(m.bytes() <= MEMO_BYTES, "{} > {MEMO_BYTES}", m.bytes());
+        assert_eq!(m.bytes(), ["a", "c", "d"].iter().map(|k| m.get(k).map_or(0, |p| p.bytes())).sum::<usize>());
         // A pass bigger than the whole budget stays alone; replacing a key
         // counts its bytes once.
-        m.insert("huge".to_string(), pass_of(2 * MEMO_BYTES >> 20));
+        let p = pass_of(2 * MEMO_BYTES >> 20);
+        m.insert("huge".to_string(), p.clone(), p.bytes());
         assert_eq!(m.len(), 1);
-        m.insert("huge".to_string(), pass_of(1));
-        assert_eq!(m.bytes, m.get("huge").map_or(0, |p| p.bytes()));
+        let p = pass_of(1);
+        m.insert("huge".to_string(), p.clone(), p.bytes());
+        assert_eq!(m.bytes(), m.get("huge").map_or(0, |p| p.bytes()));
         m.clear();
-        assert_eq!((m.len(), m.bytes), (0, 0));
+        assert_eq!((m.len(), m.bytes()), (0, 0));
         // Past MEMO_SIZE passes the least recently used goes: pass 0 is
         // read along the way (as every table reads the every-snap pass), so
         // pass 1 goes first.
         for k in 0..=MEMO_SIZE {
-            m.insert(k.to_string(), pass_of(0));
+            m.insert(k.to_string(), pass_of(0), 0);
             let _ = m.get("0");
         }
         assert_eq!(m.len(), MEMO_SIZE);

@@ -294,14 +294,15 @@ fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
 /// The pass for `s` (its seasons and passer aside), memoised in the index.
 pub(super) fn memo(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Arc<Memo> {
     let key = memo_key(s);
-    if let Some(m) = ix.memo.lock().ok().and_then(|c| c.get(&key).cloned()) {
+    if let Some(m) = ix.memo.lock().ok().and_then(|mut c| c.get(&key)) {
         return m;
     }
     let m = Arc::new(pass(ix, p, v, s));
     if let Ok(mut c) = ix.memo.lock() {
         // Bounded by count and bytes, least recently used out: every
         // table reads an every-snap pass for "his normal", so those stay.
-        c.insert(key, m.clone());
+        c.insert(key, m.clone(), m.bytes());
+        tracing::debug!(kept = c.len(), bytes = c.bytes(), "split index memo");
     }
     m
 }

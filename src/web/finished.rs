@@ -11,64 +11,19 @@ use super::Shared;
 use axum::body::{Body, Bytes};
 use axum::http::{HeaderMap, StatusCode};
 use axum::response::{IntoResponse, Response};
-use std::collections::HashMap;
 use std::sync::Arc;
 
 /// How many bytes of finished answers are kept at most (a 25-season
 /// explorer page is about 0.5 MB, its splits JSON about 3 MB).
 pub const FINISHED_BYTES: usize = 32 << 20;
 
-/// One kept answer: its headers and body.
-struct Kept {
-    headers: HeaderMap,
-    body: Bytes,
-    used: u64,
-}
+/// Finished answers (headers and body) by key, least recently used first
+/// out, each weighing its body's bytes.
+pub type FinishedCache = crate::bounded::Bounded<(HeaderMap, Bytes)>;
 
-/// Finished answers by key, least recently used first out.
-#[derive(Default)]
-pub struct FinishedCache {
-    map: HashMap<String, Kept>,
-    bytes: usize,
-    tick: u64,
-}
-
-impl FinishedCache {
-    /// The answer under `key`, marked as just used.
-    fn get(&mut self, key: &str) -> Option<Response> {
-        self.tick += 1;
-        let k = self.map.get_mut(key)?;
-        k.used = self.tick;
-        let mut r = Response::new(Body::from(k.body.clone()));
-        *r.headers_mut() = k.headers.clone();
-        Some(r)
-    }
-
-    /// Keep an answer under `key`, then let those used least recently go
-    /// until the rest fit in `budget` bytes (the one just added stays).
-    fn insert(&mut self, key: String, headers: HeaderMap, body: Bytes, budget: usize) {
-        self.tick += 1;
-        self.bytes += body.len();
-        if let Some(old) = self.map.insert(key.clone(), Kept { headers, body, used: self.tick }) {
-            self.bytes -= old.body.len();
-        }
-        while self.bytes > budget && self.map.len() > 1 {
-            let Some(oldest) = self.map.iter().filter(|(k, _)| **k != key).min_by_key(|(_, v)| v.used).map(|(k, _)| k.clone()) else { break };
-            if let Some(gone) = self.map.remove(&oldest) {
-                self.bytes -= gone.body.len();
-            }
-        }
-    }
-
-    pub fn clear(&mut self) {
-        self.map.clear();
-        self.bytes = 0;
-    }
-
-    #[cfg(test)]
-    fn bytes(&self) -> usize {
-        self.bytes
-    }
+/// An empty cache of at most `FINISHED_BYTES` (no bound on the count).
+pub fn finished_cache() -> FinishedCache {
+    FinishedCache::new(usize::MAX, FINISHED_BYTES)
 }
 
 /// The answer to `path?q` for this request's team and passer: kept, or made
@@ -78,7 +33,9 @@ pub async fn answer(st: &Shared, path: &str, headers: &HeaderMap, q: Option<&str
     let (team, passer) = ours(st, headers);
     let league = Arc::as_ptr(&st.loaded().league) as usize;
     let key = format!("{league:x}|{path}?{}|{team:?}|{passer:?}", q.unwrap_or(""));
-    if let Some(r) = st.finished.lock().ok().and_then(|mut c| c.get(&key)) {
+    if let Some((headers, body)) = st.finished.lock().ok().and_then(|mut c| c.get(&key)) {
+        let mut r = Response::new(Body::from(body));
+        *r.headers_mut() = headers;
         return r;
     }
     let made = engine(st, make).await;
@@ -90,8 +47,8 @@ pub async fn answer(st: &Shared, path: &str, headers: &HeaderMap, q: Option<&str
         return (StatusCode::INTERNAL_SERVER_ERROR, "the answer could not be read back").into_response();
     };
     if let Ok(mut c) = st.finished.lock() {
-        c.insert(key, parts.headers.clone(), body.clone(), FINISHED_BYTES);
-        tracing::debug!(kept = c.map.len(), bytes = c.bytes, "finished answers");
+        c.insert(key, (parts.headers.clone(), body.clone()), body.len());
+        tracing::debug!(kept = c.len(), bytes = c.bytes(), "finished answers");
     }
     Response::from_parts(parts, Body::from(body))
 }
@@ -101,28 +58,28 @@ mod tests {
     use super::*;
 
     fn kept(c: &mut FinishedCache, key: &str) -> Option<usize> {
-        c.map.get(key).map(|k| k.body.len()).filter(|_| c.get(key).is_some())
+        c.get(key).map(|(_, b)| b.len())
     }
 
     #[test]
     fn least_recently_used_answers_go_past_the_budget() {
-        let mut c = FinishedCache::default();
-        let body = |n: usize| Bytes::from(vec![b'x'; n]);
-        c.insert("a".into(), HeaderMap::new(), body(40), 100);
-        c.insert("b".into(), HeaderMap::new(), body(40), 100);
+        let mut c = FinishedCache::new(usize::MAX, 100);
+        let body = |n: usize| (HeaderMap::new(), Bytes::from(vec![b'x'; n]));
+        c.insert("a".into(), body(40), 40);
+        c.insert("b".into(), body(40), 40);
         assert_eq!(c.bytes(), 80);
         // "a" read, so "b" is the least recently used when "c" comes.
         assert_eq!(kept(&mut c, "a"), Some(40));
-        c.insert("c".into(), HeaderMap::new(), body(40), 100);
+        c.insert("c".into(), body(40), 40);
         assert_eq!((kept(&mut c, "a"), kept(&mut c, "b"), kept(&mut c, "c")), (Some(40), None, Some(40)));
         assert_eq!(c.bytes(), 80);
         // The same key again counts its bytes once; one bigger than the
         // budget stays alone.
-        c.insert("c".into(), HeaderMap::new(), body(10), 100);
+        c.insert("c".into(), body(10), 10);
         assert_eq!(c.bytes(), 50);
-        c.insert("d".into(), HeaderMap::new(), body(500), 100);
-        assert_eq!((c.map.len(), c.bytes()), (1, 500));
+        c.insert("d".into(), body(500), 500);
+        assert_eq!((c.len(), c.bytes()), (1, 500));
         c.clear();
-        assert_eq!((c.map.len(), c.bytes()), (0, 0));
+        assert_eq!((c.len(), c.bytes()), (0, 0));
     }
 }

@@ -150,8 +150,8 @@ impl AppState {
             passer: cfg.passer,
             token: cfg.token,
             reload_note: RwLock::new(None),
-            splits_cache: std::sync::Mutex::new(tables::TableCache::default()),
-            finished: std::sync::Mutex::new(finished::FinishedCache::default()),
+            splits_cache: std::sync::Mutex::new(tables::table_cache()),
+            finished: std::sync::Mutex::new(finished::finished_cache()),
             notes,
         }
     }
@@ -225,7 +225,7 @@ impl AppState {
         }
         let t = Arc::new(crate::splits::split_table_in(&loaded.index, league.plays(), &league.values(), situation, min, focus));
         if let Ok(mut c) = self.splits_cache.lock() {
-            c.insert(key, t.clone());
+            tables::keep(&mut c, key, t.clone());
             tracing::debug!(tables = c.len(), bytes = c.bytes(), "split table cache");
         }
         t

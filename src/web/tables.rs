@@ -3,7 +3,6 @@
 //! tables used least recently go first.
 
 use crate::splits::{Cell, PasserRow, SplitTable};
-use std::collections::HashMap;
 use std::mem::size_of;
 use std::sync::Arc;
 
@@ -21,54 +20,19 @@ pub fn table_bytes(t: &SplitTable) -> usize {
     size_of::<SplitTable>() + t.situation.capacity() + t.rows.iter().map(row).sum::<usize>()
 }
 
-/// Split tables by key, least recently used first out.
-#[derive(Default)]
-pub struct TableCache {
-    map: HashMap<String, (Arc<SplitTable>, usize, u64)>,
-    bytes: usize,
-    tick: u64,
+/// Split tables by key, least recently used first out, each weighing
+/// `table_bytes`.
+pub type TableCache = crate::bounded::Bounded<Arc<SplitTable>>;
+
+/// An empty cache with the server's bounds.
+pub fn table_cache() -> TableCache {
+    TableCache::new(TABLES_AT_MOST, TABLE_BYTES)
 }
 
-impl TableCache {
-    /// The table under `key`, marked as just used.
-    pub fn get(&mut self, key: &str) -> Option<Arc<SplitTable>> {
-        self.tick += 1;
-        let e = self.map.get_mut(key)?;
-        e.2 = self.tick;
-        Some(e.0.clone())
-    }
-
-    /// Keep `t` under `key`, then let the tables used least recently go
-    /// until at most `TABLES_AT_MOST` and `TABLE_BYTES` are kept (the one
-    /// just added always stays).
-    pub fn insert(&mut self, key: String, t: Arc<SplitTable>) {
-        self.tick += 1;
-        let size = table_bytes(&t);
-        if let Some((_, old, _)) = self.map.insert(key.clone(), (t, size, self.tick)) {
-            self.bytes -= old;
-        }
-        self.bytes += size;
-        while (self.bytes > TABLE_BYTES || self.map.len() > TABLES_AT_MOST) && self.map.len() > 1 {
-            let Some(oldest) = self.map.iter().filter(|(k, _)| **k != key).min_by_key(|(_, e)| e.2).map(|(k, _)| k.clone()) else { break };
-            if let Some((_, gone, _)) = self.map.remove(&oldest) {
-                self.bytes -= gone;
-            }
-        }
-    }
-
-    pub fn clear(&mut self) {
-        self.map.clear();
-        self.bytes = 0;
-    }
-
-    pub fn len(&self) -> usize {
-        self.map.len()
-    }
-
-    /// Bytes of the tables kept (as `table_bytes` counts them).
-    pub fn bytes(&self) -> usize {
-        self.bytes
-    }
+/// Keep `t` under `key` in `c`, weighed by `table_bytes`.
+pub fn keep(c: &mut TableCache, key: String, t: Arc<SplitTable>) {
+    let size = table_bytes(&t);
+    c.insert(key, t, size);
 }
 
 #[cfg(test)]
@@ -85,15 +49,15 @@ mod tests {
         let size = table_bytes(&table);
         let cells: usize = table.rows.iter().map(|r| r.cells.len()).sum();
         assert!(size >= cells * size_of::<Cell>() && cells > 100, "{size} bytes for {cells} cells");
-        let mut c = TableCache::default();
+        let mut c = table_cache();
         let fit = (TABLE_BYTES / size).min(TABLES_AT_MOST);
         assert!(fit >= 2, "a table of {size} bytes leaves the cache no room");
         for k in 0..fit {
-            c.insert(format!("t{k}"), table.clone());
+            keep(&mut c, format!("t{k}"), table.clone());
         }
         assert_eq!(c.len(), fit);
         assert!(c.get("t0").is_some());
-        c.insert("new".into(), table.clone());
+        keep(&mut c, "new".into(), table.clone());
         assert_eq!(c.len(), fit, "one went to make room");
         assert!(c.get("t1").is_none(), "the table used least recently went");
         assert!(c.get("t0").is_some() && c.get("new").is_some());
