@@ -540,3 +540,40 @@ fn projector_view_is_kept_on_every_page_link() {
         assert!(checked >= 8, "{page}: only {checked} links checked");
     }
 }
+
+/// The tables warmed at start are the ones the first pages ask for: after
+/// `warm`, the explorer's default view and a preset over the latest season
+/// compute no table of their own, and a passer's profile computes one only
+/// for each preset where he is short of the minimum (his row is then
+/// estimated too).
+#[test]
+fn the_warmed_tables_are_the_ones_the_first_pages_ask() {
+    let league = common::demo_league();
+    let latest = *league.plays().seasons().last().expect("seasons");
+    let app = lategame::web::App::new(league, lategame::web::AppConfig::new(common::league_config(&lategame::league::demo_path())));
+    let state = app.state.clone();
+    assert_eq!(state.tables_kept(), 0);
+    let made = state.warm();
+    assert_eq!(made, 2 * PRESETS.len());
+    assert_eq!(state.tables_kept(), made);
+    let base = common::spawn_app(app);
+    for path in ["/explore".to_string(), format!("/explore?preset=end-of-game&season={latest}")] {
+        assert_eq!(get(&format!("{base}{path}")).status, 200, "{path}");
+        assert_eq!(state.tables_kept(), made, "{path} computed a table the warm-up had not");
+    }
+    // Per preset (all seasons), who is qualified and who has a row.
+    let tables: Vec<serde_json::Value> = PRESETS.iter().map(|k| get(&format!("{base}/api/splits?preset={k}")).json()).collect();
+    assert_eq!(state.tables_kept(), made, "the JSON of a warmed preset computed a table");
+    let short_in = |name: &str| tables.iter().filter(|t| t["rows"].as_array().expect("rows").iter().any(|r| r["passer"] == name && r["qualified"] == false)).count();
+    let every = &tables[PRESETS.iter().position(|k| *k == "every-snap").expect("every-snap")];
+    let names: Vec<String> = every["rows"].as_array().expect("rows").iter().map(|r| r["passer"].as_str().expect("name").to_string()).collect();
+    // A passer qualified everywhere and one short somewhere.
+    let everywhere = names.iter().find(|n| short_in(n) == 0).expect("a passer qualified in every preset");
+    let somewhere = names.iter().find(|n| short_in(n) > 0).expect("a passer short of the minimum in some preset");
+    let mut kept = made;
+    for name in [everywhere, somewhere] {
+        assert_eq!(get(&format!("{base}/passer?passer={}", common::enc(name))).status, 200, "{name}");
+        kept += short_in(name);
+        assert_eq!(state.tables_kept(), kept, "profile of {name} (short in {} presets)", short_in(name));
+    }
+}

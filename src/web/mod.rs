@@ -231,6 +231,50 @@ impl AppState {
         t
     }
 
+    /// Compute the tables the staff opens first, so the first explorer
+    /// page and every passer's profile find them ready: each preset over
+    /// all seasons and over the latest one, at the default one-score bound
+    /// and minimum (what a profile and the explorer ask when the address
+    /// says nothing else). Returns how many tables it computed.
+    pub fn warm(&self) -> usize {
+        let loaded = self.loaded();
+        let latest = loaded.league.plays().seasons().last().copied();
+        let base = crate::situation::Situation::default();
+        let seasons = std::iter::once(None).chain(latest.map(|y| Some(vec![y])));
+        let mut made = 0;
+        for seasons in seasons {
+            for preset in crate::situation::Preset::ALL {
+                let s = crate::situation::Situation { seasons: seasons.clone(), ..preset.situation(base.one_score) };
+                let min = crate::splits::default_min_dropbacks(&s);
+                // Another league loaded meanwhile: its own warm-up follows.
+                if !Arc::ptr_eq(&self.loaded(), &loaded) {
+                    return made;
+                }
+                self.split_table(&s, min, None);
+                made += 1;
+            }
+        }
+        made
+    }
+
+    /// `warm` on a thread of its own, logged; the server answers meanwhile.
+    pub fn warm_in_background(self: &Arc<Self>) {
+        let st = self.clone();
+        let spawned = std::thread::Builder::new().name("warm".into()).spawn(move || {
+            let t = std::time::Instant::now();
+            let n = st.warm();
+            tracing::info!(tables = n, "preset tables ready in {:.0} ms", t.elapsed().as_secs_f64() * 1000.0);
+        });
+        if let Err(e) = spawned {
+            tracing::warn!("preset tables not computed ahead: {e}");
+        }
+    }
+
+    /// How many split tables the server keeps now.
+    pub fn tables_kept(&self) -> usize {
+        self.splits_cache.lock().map(|c| c.len()).unwrap_or(0)
+    }
+
     pub fn reload_note(&self) -> Option<String> {
         self.reload_note.read().ok().and_then(|g| g.clone())
     }
@@ -363,6 +407,7 @@ pub fn serve_blocking(league: League, cfg: ServeConfig) -> Result<(), ServeError
     if let Some((rss, peak)) = memory::resident_mib() {
         tracing::info!("resident {rss:.0} MiB after start-up (peak {peak:.0} MiB)");
     }
+    app.state.warm_in_background();
     let rt = tokio::runtime::Builder::new_multi_thread().enable_all().build()?;
     rt.block_on(async move {
         let listener = tokio::net::TcpListener::bind(addr).await.map_err(|source| ServeError::Bind { addr, source })?;

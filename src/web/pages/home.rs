@@ -108,6 +108,9 @@ pub async fn choose(RawQuery(q): RawQuery) -> Response {
 
 pub async fn reload(State(st): State<Shared>) -> Response {
     let st2 = st.clone();
-    let _ = tokio::task::spawn_blocking(move || st2.reload()).await;
+    let reloaded = tokio::task::spawn_blocking(move || st2.reload()).await;
+    if matches!(reloaded, Ok(Ok(()))) {
+        st.warm_in_background();
+    }
     Redirect::to("/").into_response()
 }
