@@ -154,18 +154,16 @@ pub fn play_list(p: &Plays, v: &SnapValues, s: &Situation, passer: Option<&str>,
 /// The positions of `play_list`'s snaps (ascending), without writing them
 /// out: a page of a long list writes only its own snaps.
 pub fn play_indices(p: &Plays, v: &SnapValues, s: &Situation, passer: Option<&str>, metric: Option<&MetricDef>) -> Vec<usize> {
-    let who = match passer {
+    let keep = |i: usize| p.dropback[i] && metric.is_none_or(|m| in_unit(p, v, m.unit, i)) && s.matches(p, v.wp, i);
+    match passer {
+        // His snaps first (one pass over a column of ids), then the filters
+        // on those few.
         Some(name) => match p.passer_index(name) {
-            Some(w) => Some(w),
-            None => return Vec::new(),
+            Some(w) => p.passer.iter().enumerate().filter(|&(_, &x)| x == w).map(|(i, _)| i).filter(|&i| keep(i)).collect(),
+            None => Vec::new(),
         },
-        None => None,
-    };
-    (0..p.len())
-        .filter(|&i| p.dropback[i] && who.is_none_or(|w| p.passer[i] == w))
-        .filter(|&i| metric.is_none_or(|m| in_unit(p, v, m.unit, i)))
-        .filter(|&i| s.matches(p, v.wp, i))
-        .collect()
+        None => (0..p.len()).filter(|&i| keep(i)).collect(),
+    }
 }
 
 /// Every snap of one game, in order (for the game-flow page).
