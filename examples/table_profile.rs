@@ -3,8 +3,9 @@
 //! `cargo run --release --example table_profile -- FILE [WHAT] [RUNS]`,
 //! WHAT one of `table` (repeated query), `new` (a new margin window each
 //! call), `fresh` (nothing memoised), `profile` (nothing memoised),
-//! `profile-memo` (another passer, passes kept), or `all` (each in turn,
-//! default). Models come from the cache folder (`LATEGAME_CACHE_DIR`).
+//! `profile-memo` (another passer, passes kept), `profile-new` (30
+//! passers never asked before, each once: the first and the later ones),
+//! or `all` (each in turn, default). Models come from the cache folder (`LATEGAME_CACHE_DIR`).
 
 use lategame::league::{League, LeagueConfig};
 use lategame::situation::{Preset, Range, Situation};
@@ -74,6 +75,28 @@ fn main() -> anyhow::Result<()> {
             "profile, passes memoised",
             time(&mut |k| drop(std::hint::black_box(splits::profile_in(&ix, p, &v, &busy[k % busy.len()], &base, &s, 20)))),
         );
+    }
+    if all || what == "profile-new" {
+        // 30 passers spread over the every-snap table (busy ones and
+        // seldom-seen ones), each asked once, in a new index.
+        let every = splits::split_table_in(&ix, p, &v, &Preset::EverySnap.situation(8), 20, None);
+        let step = (every.rows.len() / 30).max(1);
+        let names: Vec<String> = every.rows.iter().step_by(step).take(30).map(|r| r.passer.clone()).collect();
+        let ix = splits::SplitIndex::build(p, &v);
+        let mut ms: Vec<f64> = names
+            .iter()
+            .map(|name| {
+                let t = Instant::now();
+                drop(std::hint::black_box(splits::profile_in(&ix, p, &v, name, &base, &s, 20)));
+                t.elapsed().as_secs_f64() * 1000.0
+            })
+            .collect();
+        println!("profile, first passer (passes made)        {:>8.2} ms   load {}", ms[0], load());
+        println!("profile, second passer                     {:>8.2} ms", ms[1]);
+        let mut later = ms.split_off(2);
+        later.sort_by(|a, b| a.total_cmp(b));
+        let q = |f: f64| later[((later.len() as f64 * f) as usize).min(later.len() - 1)];
+        println!("profile, passers 3-{} (each new)            p50 {:>8.2} ms   p90 {:>8.2} ms   max {:>8.2} ms   load {}", names.len(), q(0.5), q(0.9), q(1.0), load());
     }
     Ok(())
 }

@@ -181,8 +181,10 @@ pub(super) const MEMO_SIZE: usize = 16;
 
 /// How many bytes of passes the index keeps: past it, the passes used
 /// least recently are let go. (On 25 seasons the every-snap pass holds
-/// about 20 MB, a late-game window a few MB.)
-pub(super) const MEMO_BYTES: usize = 64 << 20;
+/// about 27 MB, a late-game window 1-13 MB: a passer's profile reads every
+/// preset's pass, 61 MB together, so the bound leaves room for them and a
+/// few more views.)
+pub(super) const MEMO_BYTES: usize = 96 << 20;
 
 /// The index's memo of passes by key, bounded by `MEMO_SIZE` and by
 /// `MEMO_BYTES` (the passes used least recently go first; the one just

@@ -5,6 +5,8 @@
 //! league and season-to-season stability; the passer profile; the snaps behind a number.
 //! Pages, JSON, CSV and the PDF report are all views of these values.
 
+mod cell;
+mod estimates;
 mod index;
 pub mod metrics;
 pub mod review;
@@ -12,6 +14,8 @@ mod lift;
 mod normal;
 mod opponent;
 mod profile;
+#[cfg(test)]
+mod profile_tests;
 #[cfg(test)]
 mod reference;
 mod scan;
@@ -25,7 +29,7 @@ pub use metrics::{headings, is_style, metric_group, metric_index, MetricDef, Sna
 pub use snaps::{coach_spot, down_distance, game_snaps, play_indices, play_list, quarter, result_text, snap_at, Snap};
 pub use index::SplitIndex;
 pub use opponent::{fit_metric as opponent_fit_metric, opponent_fit, Adjusted, OpponentFit, ADJUSTED_METRIC, OPPONENT_WORDS};
-pub use profile::{epa_distribution, epa_distribution_in, profile, profile_in, profile_with, EpaDistribution, Profile, ProfileLine, SeasonLine};
-pub use table::{default_min_dropbacks, split_table, split_table_for, split_table_in, Cell, MetricInfo, PasserRow, SortBy, SplitTable, DEFAULT_MIN_DROPBACKS, DEFAULT_MIN_VS_ONE_DEFENSE};
+pub use profile::{epa_distribution, epa_distribution_in, profile, profile_in, EpaDistribution, Profile, ProfileLine, SeasonLine};
+pub use table::{default_min_dropbacks, split_table, split_table_for, split_table_in, split_row_in, Cell, MetricInfo, PasserRow, SortBy, SplitRow, SplitTable, DEFAULT_MIN_DROPBACKS, DEFAULT_MIN_VS_ONE_DEFENSE};
 pub use tags::{tag_breakdown, tag_breakdown_in, TagBreakdown, TagBreakdownError, TagLine};
 pub use words::{lift_above_zero, lift_words, stability_words, LIFT_RULE};

@@ -3,9 +3,10 @@
 
 use super::metrics::{metric_index, SnapValues, METRICS};
 use super::index::SplitIndex;
-use super::scan::{accumulate_seasons, matching_snaps, raw_value};
-use super::table::{split_table_in, MetricInfo, PasserRow, SplitTable};
+use super::scan::{accumulate_seasons, matching_snaps, memo, raw_value};
+use super::snaps::play_indices;
 use std::sync::Arc;
+use super::table::{split_row_in, MetricInfo, PasserRow, SplitRow};
 use crate::plays::Plays;
 use crate::situation::{Preset, Situation};
 use rayon::prelude::*;
@@ -52,60 +53,48 @@ pub fn profile(p: &Plays, v: &SnapValues, passer: &str, base: &Situation, trend:
     profile_in(&SplitIndex::build(p, v), p, v, passer, base, trend, min_dropbacks)
 }
 
-/// `profile` on a league already indexed (`ix` built from `p`, `v`).
+/// `profile` on a league already indexed (`ix` built from `p`, `v`): his
+/// row of each preset's table (`split_row_in`: his estimates alone, ranked
+/// among the qualified passers' estimates the index keeps per preset, so
+/// no whole table is built). The every-snap row comes first (its pass is
+/// every row's "his normal", and the opponent model's fit is on every
+/// snap: made once), then the other presets side by side, then the season
+/// trend.
 pub fn profile_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, passer: &str, base: &Situation, trend: &Situation, min_dropbacks: u32) -> Option<Profile> {
-    let table = |s: &Situation| Arc::new(split_table_in(ix, p, v, s, min_dropbacks, Some(passer)));
-    profile_with(ix, p, v, passer, base, trend, &table)
-}
-
-/// `profile_in` with each preset's table (focused on `passer`) from
-/// `table`, e.g. a cache of tables already computed. The every-snap table
-/// comes first (its pass is every table's "his normal", and the opponent
-/// model's fit is on every snap: made once), then the other presets side
-/// by side, then the season trend.
-pub fn profile_with(
-    ix: &SplitIndex,
-    p: &Plays,
-    v: &SnapValues,
-    passer: &str,
-    base: &Situation,
-    trend: &Situation,
-    table: &(dyn Fn(&Situation) -> Arc<SplitTable> + Sync),
-) -> Option<Profile> {
     let who = p.passer_index(passer)?;
     let mut metrics = Vec::new();
     let mut presets = Vec::new();
     let mut team = None;
     let situation = |preset: Preset| Situation { seasons: base.seasons.clone(), ..preset.situation(base.one_score) };
-    let every = table(&situation(Preset::EverySnap));
-    let tables: Vec<(Situation, Arc<SplitTable>)> = Preset::ALL
+    let row = |s: &Situation| split_row_in(ix, p, v, s, min_dropbacks, passer);
+    let every = row(&situation(Preset::EverySnap));
+    let rows: Vec<(Situation, SplitRow)> = Preset::ALL
         .par_iter()
         .map(|&preset| {
             let s = situation(preset);
-            let t = if preset == Preset::EverySnap { every.clone() } else { table(&s) };
-            (s, t)
+            let r = if preset == Preset::EverySnap { every.clone() } else { row(&s) };
+            (s, r)
         })
         .collect();
-    // After the tables: the trend's situation is usually one of them, and
+    // After the rows: the trend's situation is usually one of them, and
     // its pass is kept by now.
     let sums = accumulate_seasons(ix, p, v, &trend.with_seasons(None));
-    for (preset, (s, t)) in Preset::ALL.into_iter().zip(tables) {
-        let row = t.row(passer).cloned();
+    for (preset, (s, t)) in Preset::ALL.into_iter().zip(rows) {
         if team.is_none() {
-            team = row.as_ref().map(|r| r.team.clone());
+            team = t.row.as_ref().map(|r| r.team.clone());
         }
         if metrics.is_empty() {
-            metrics = t.metrics.clone();
+            metrics = t.metrics;
         }
         presets.push(ProfileLine {
             preset: preset.key(),
             label: preset.label(),
             query: s.to_query(),
-            league: t.league.clone(),
-            league_lift: t.league_lift.clone(),
+            league: t.league,
+            league_lift: t.league_lift,
             league_dropbacks: t.league_dropbacks,
-            qualified_passers: t.qualified().count(),
-            row,
+            qualified_passers: t.qualified,
+            row: t.row,
         });
     }
     let nm = METRICS.len();
@@ -149,34 +138,44 @@ pub fn epa_distribution(p: &Plays, v: &SnapValues, s: &Situation, passer: &str) 
     epa_distribution_in(&SplitIndex::build(p, v), p, v, s, passer)
 }
 
-/// `epa_distribution` on a league already indexed (`ix` built from `p`, `v`).
+/// `epa_distribution` on a league already indexed (`ix` built from `p`,
+/// `v`). The league's histogram is kept beside the situation's pass (per
+/// season list); the passer's comes from his own snaps (one pass over the
+/// passer column, the situation's filters on those only).
 pub fn epa_distribution_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, passer: &str) -> EpaDistribution {
-    let (lo, hi, width) = (-4.0, 4.0, 0.5);
-    let bins = ((hi - lo) / width) as usize;
-    let edges: Vec<f64> = (0..=bins).map(|k| lo + k as f64 * width).collect();
-    let (mut mine, mut all) = (vec![0.0; bins], vec![0.0; bins]);
-    let (mut nm, mut na) = (0usize, 0usize);
-    let who = p.passer_index(passer);
+    let edges: Vec<f64> = (0..=BINS).map(|k| LO + k as f64 * WIDTH).collect();
+    let league = if s.passer.is_none() {
+        let m = memo(ix, p, v, s);
+        m.derived(&format!("epa histogram {:?}", s.seasons), || histogram(p, v, s, &matching_snaps(ix, p, v, s)))
+    } else {
+        Arc::new(histogram(p, v, s, &matching_snaps(ix, p, v, s)))
+    };
+    let (mine, passer_n) = histogram(p, v, s, &play_indices(p, v, s, Some(passer), None));
+    EpaDistribution { edges, passer: mine, league: league.0.clone(), passer_n, league_n: league.1 }
+}
+
+const LO: f64 = -4.0;
+const HI: f64 = 4.0;
+const WIDTH: f64 = 0.5;
+const BINS: usize = ((HI - LO) / WIDTH) as usize;
+
+/// Shares of the snaps `rows` per bin of EPA (ends collect the tails), and
+/// how many they are; with a passer filter in `s`, only his.
+fn histogram(p: &Plays, v: &SnapValues, s: &Situation, rows: &[usize]) -> (Vec<f64>, usize) {
+    let mut h = vec![0.0; BINS];
+    let mut n = 0usize;
     let only = s.passer.as_deref();
-    for i in matching_snaps(ix, p, v, s) {
+    for &i in rows {
         if only.is_some_and(|name| p.passer_name(i) != Some(name)) {
             continue;
         }
         let e = v.epa.get(i).copied().unwrap_or(0.0);
-        let b = (((e - lo) / width).floor().max(0.0) as usize).min(bins - 1);
-        all[b] += 1.0;
-        na += 1;
-        if Some(p.passer[i]) == who {
-            mine[b] += 1.0;
-            nm += 1;
-        }
+        let b = (((e - LO) / WIDTH).floor().max(0.0) as usize).min(BINS - 1);
+        h[b] += 1.0;
+        n += 1;
     }
-    let norm = |v: &mut Vec<f64>, n: usize| {
-        if n > 0 {
-            v.iter_mut().for_each(|x| *x /= n as f64);
-        }
-    };
-    norm(&mut mine, nm);
-    norm(&mut all, na);
-    EpaDistribution { edges, passer: mine, league: all, passer_n: nm, league_n: na }
+    if n > 0 {
+        h.iter_mut().for_each(|x| *x /= n as f64);
+    }
+    (h, n)
 }

@@ -3,93 +3,21 @@
 //! baseline, estimate, lift and their intervals, percentile, chance of beating
 //! the league) for a situation, and the metric descriptions that travel with it.
 
+pub use super::cell::{Cell, PasserRow};
+use super::estimates::{estimates, fill, ranks_key, ranks_of, Ranks, Shown};
 use super::index::SplitIndex;
 use super::index::Memo;
-use super::lift::{self, fit, normals, posteriors, Derived, Fit, RATING_PARTS};
 use super::metrics::{higher_is_better, is_style, metric_index, SnapValues, Stat, METRICS};
 use super::normal::every_snap;
 use super::scan::{accumulate, memo, rating_from, raw_value, seasons_of, Acc, CellSums, Sums};
 use super::shrink::{adjusted, stability};
-use crate::stats::multilevel::{normal_interval, prob_above, PasserPost};
+use crate::stats::multilevel::normal_interval;
 use crate::plays::Plays;
 use crate::situation::{Group, Situation};
 use crate::stats;
 use rayon::prelude::*;
 use serde::Serialize;
 use std::sync::Arc;
-
-/// One number in the table, with everything said about it. Every interval
-/// is a 90% interval; values are in display units (percentages ×100).
-#[derive(Debug, Clone, Serialize, Default)]
-pub struct Cell {
-    pub key: &'static str,
-    /// The passer's raw value.
-    pub value: Option<f64>,
-    /// Snaps it is taken over.
-    pub n: f64,
-    /// League value in the same situation and seasons.
-    pub league: Option<f64>,
-    pub diff: Option<f64>,
-    /// What the league does on his mix of downs, distances and field zones:
-    /// each cell's league value without his own snaps (thin cells smoothed),
-    /// weighted by his count of snaps there.
-    pub adjusted_league: Option<f64>,
-    pub adjusted_diff: Option<f64>,
-    /// 90% interval of `adjusted_diff` (his sampling noise and the baseline's).
-    pub adjusted_diff_lo: Option<f64>,
-    pub adjusted_diff_hi: Option<f64>,
-    /// Estimate from the two-level model: centred on his own level elsewhere
-    /// plus the situation's effect, with its 90% interval.
-    pub estimate: Option<f64>,
-    pub lo: Option<f64>,
-    pub hi: Option<f64>,
-    /// The share of the spread in such raw numbers that is real difference
-    /// between passers rather than sampling noise.
-    pub signal: Option<f64>,
-    /// His level on his other snaps in the same seasons (estimated).
-    pub normal: Option<f64>,
-    /// Lift: his value here minus his own level on his other snaps, with its
-    /// 90% interval; the passer × situation part is shrunk toward 0.
-    pub lift: Option<f64>,
-    pub lift_lo: Option<f64>,
-    pub lift_hi: Option<f64>,
-    /// The share of the spread in raw differences (here minus elsewhere) that
-    /// is real lift rather than noise: often small.
-    pub lift_signal: Option<f64>,
-    /// Among qualified passers, 100 = best (on the estimate); for style
-    /// metrics (no better direction) 100 = most.
-    pub percentile: Option<f64>,
-    /// The posterior probability that his true value is better than the
-    /// league value (for style metrics: higher than it).
-    pub p_better: Option<f64>,
-}
-
-/// One row: a passer, or a team when the table is grouped by offense or
-/// defense (then `passer` and `team` both hold the team's code).
-#[derive(Debug, Clone, Serialize)]
-pub struct PasserRow {
-    pub passer: String,
-    pub team: String,
-    pub qualified: bool,
-    pub dropbacks: u32,
-    pub cells: Vec<Cell>,
-    /// EPA per dropback with the defenses he faced taken out: his raw value
-    /// minus the snap-weighted effect of the defense-seasons he threw
-    /// against here (a crossed passer + defense model, `splits::opponent`),
-    /// with its 90% interval.
-    pub epa_opp_adj: Option<f64>,
-    pub epa_opp_adj_lo: Option<f64>,
-    pub epa_opp_adj_hi: Option<f64>,
-    /// The average effect of the defenses he faced (EPA per dropback;
-    /// negative: tougher than the league's average defense here).
-    pub epa_opp_faced: Option<f64>,
-}
-
-impl PasserRow {
-    pub fn cell(&self, key: &str) -> Option<&Cell> {
-        self.cells.iter().find(|c| c.key == key)
-    }
-}
 
 #[derive(Debug, Clone, Serialize)]
 pub struct MetricInfo {
@@ -179,27 +107,6 @@ impl SplitTable {
     }
 }
 
-/// Percentile ranks among a set of values, as `stats::percentile_rank`
-/// gives them (the share below plus half the share equal, NaN left out), by
-/// binary search in the sorted values.
-struct Ranks(Vec<f64>);
-
-impl Ranks {
-    fn new(values: impl Iterator<Item = f64>) -> Ranks {
-        let mut v: Vec<f64> = values.filter(|x| !x.is_nan()).collect();
-        v.sort_by(|a, b| a.total_cmp(b));
-        Ranks(v)
-    }
-    fn percentile(&self, x: f64) -> Option<f64> {
-        if x.is_nan() || self.0.is_empty() {
-            return None;
-        }
-        let below = self.0.partition_point(|&v| v < x);
-        let equal = self.0.partition_point(|&v| v <= x) - below;
-        Some((below as f64 + 0.5 * equal as f64) / self.0.len() as f64 * 100.0)
-    }
-}
-
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
 pub enum SortBy {
     Value,
@@ -247,13 +154,53 @@ pub fn split_table_for(p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: 
 /// `split_table_for` on a league already indexed (`ix` built from `p`, `v`).
 pub fn split_table_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32, focus: Option<&str>) -> SplitTable {
     let sums = accumulate(ix, p, v, s);
+    table_of(ix, p, v, s, &sums, min_dropbacks, focus, None)
+}
+
+/// One row of a split table and the league line beside it.
+#[derive(Debug, Clone)]
+pub struct SplitRow {
+    pub metrics: Vec<MetricInfo>,
+    /// League values (counts are league totals), as `SplitTable::league`.
+    pub league: Vec<Option<f64>>,
+    pub league_lift: Vec<Option<f64>>,
+    pub league_dropbacks: u32,
+    /// How many rows of the whole table are qualified.
+    pub qualified: usize,
+    /// The row (with its estimates even when short of the minimum); `None`
+    /// when it has no dropback in the situation.
+    pub row: Option<PasserRow>,
+}
+
+/// The row of `name` (a passer, or a team by the grouping) as
+/// `split_table_in(ix, p, v, s, min_dropbacks, Some(name))` gives it, with
+/// the league line, without estimating anyone else: the percentiles rank
+/// him among the qualified passers' estimates, kept per situation, seasons
+/// and minimum in the index's memo (made once, by the first row or table
+/// asked).
+pub fn split_row_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32, name: &str) -> SplitRow {
+    let sums = accumulate(ix, p, v, s);
+    let names = |who: u32| match s.group {
+        Group::Passer => p.passers.get(who as usize),
+        Group::Offense | Group::Defense => p.teams.get(who as usize),
+    };
+    let who = sums.passers.keys().copied().find(|&w| names(w).is_some_and(|n| n == name));
+    let qualified = sums.passers.values().filter(|ps| ps.accs[metric_index("dropbacks").unwrap_or(0)].n as u32 >= min_dropbacks.max(1)).count();
+    let t = table_of(ix, p, v, s, &sums, min_dropbacks, Some(name), Some(who.unwrap_or(u32::MAX)));
+    SplitRow { qualified, row: t.rows.into_iter().next(), metrics: t.metrics, league: t.league, league_lift: t.league_lift, league_dropbacks: t.league_dropbacks }
+}
+
+/// The table from the situation's sums: every row, or only the row of
+/// `only` (a passer or team id).
+#[allow(clippy::too_many_arguments)]
+fn table_of(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, sums: &Sums, min_dropbacks: u32, focus: Option<&str>, only: Option<u32>) -> SplitTable {
     let normal = every_snap(ix, p, v, s);
     // EPA per dropback against an average defense (`splits::opponent`),
     // fitted beside the table; for passer rows only (a team row has no
     // single passer to adjust).
     let memo = memo(ix, p, v, &s.without_row_pick());
     let ((mut table, whos), opp) = rayon::join(
-        || build_table(ix, p, &sums, &normal, s, min_dropbacks, focus, &memo),
+        || build_table(ix, p, sums, &normal, s, min_dropbacks, focus, only, &memo),
         || if s.group == Group::Passer { super::opponent::opponent_fit(ix, p, v, s) } else { None },
     );
     if let Some(fit) = opp {
@@ -267,11 +214,13 @@ pub fn split_table_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation,
 }
 
 /// The table from the sums, and each row's id (passer or team, by the
-/// grouping). The model fits (per season list) and the stability (per
-/// minimum) are kept beside the situation's pass in `memo`: they depend on
-/// nothing else.
+/// grouping); with `only`, that id's row alone (none when it has no
+/// snap), ranked among the qualified rows' estimates kept in `memo`. The
+/// model fits (per season list), the ranks (per season list and minimum)
+/// and the stability (per minimum) are kept beside the situation's pass in
+/// `memo`: they depend on nothing else.
 #[allow(clippy::too_many_arguments)]
-pub(super) fn build_table(ix: &SplitIndex, p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, min_dropbacks: u32, focus: Option<&str>, memo: &Arc<Memo>) -> (SplitTable, Vec<u32>) {
+pub(super) fn build_table(ix: &SplitIndex, p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, min_dropbacks: u32, focus: Option<&str>, only: Option<u32>, memo: &Arc<Memo>) -> (SplitTable, Vec<u32>) {
     let nm = METRICS.len();
     let db = metric_index("dropbacks").unwrap_or(0);
     let group = s.group;
@@ -302,6 +251,12 @@ pub(super) fn build_table(ix: &SplitIndex, p: &Plays, sums: &Sums, normal: &Sums
         Group::Passer => &p.passers[who as usize],
         Group::Offense | Group::Defense => &p.teams[who as usize],
     };
+    let qualified: Vec<bool> = sums.passers.values().map(|ps| ps.accs[db].n as u32 >= min_dropbacks.max(1)).collect();
+    // The rows built: every one, or `only`'s (positions in `sums.passers`).
+    let kept: Vec<usize> = match only {
+        None => (0..sums.passers.len()).collect(),
+        Some(w) => sums.passers.keys().position(|&k| k == w).into_iter().collect(),
+    };
     // The rows' raw numbers and baselines, side by side with the posteriors
     // below (neither needs the other).
     let build_rows = || -> Vec<PasserRow> {
@@ -311,7 +266,9 @@ pub(super) fn build_table(ix: &SplitIndex, p: &Plays, sums: &Sums, normal: &Sums
         sums
             .passers
             .iter()
-            .map(|(&who, ps)| {
+            .enumerate()
+            .filter(|(i, _)| kept.binary_search(i).is_ok())
+            .map(|(_, (&who, ps))| {
                 let dropbacks = ps.accs[db].n as u32;
                 if sums.cells_of(ix, group, ps, &mut scratch) {
                     adjusted(&ix.layout, sums, &ps.accs, &scratch, &snap_var, league_rating, &mut baselines);
@@ -354,83 +311,52 @@ pub(super) fn build_table(ix: &SplitIndex, p: &Plays, sums: &Sums, normal: &Sums
             .collect()
     };
 
-    // The two-level model per metric, priors from every passer; the metrics
-    // are independent, so rayon's threads share them (results in metric
-    // order; a panic in one reaches the caller). The rating is put together
-    // from its shrunk parts afterwards.
+    // The two-level model per metric for the wanted rows: the qualified
+    // ones, our passer and the picked row (or `only`'s alone).
     let pick = s.row_pick();
     let picked = |name: &str| pick.is_some_and(|x| if group == Group::Passer { x == name } else { x.eq_ignore_ascii_case(name) });
     let wanted: Vec<bool> = sums
         .passers
-        .iter()
-        .map(|(&who, ps)| {
-            let name = name_of(who);
-            ps.accs[db].n as u32 >= min_dropbacks.max(1) || focus == Some(name.as_str()) || picked(name)
+        .keys()
+        .zip(&qualified)
+        .map(|(&who, &q)| match only {
+            Some(w) => who == w,
+            None => q || focus == Some(name_of(who).as_str()) || picked(name_of(who)),
         })
         .collect();
+    let (mut rows, derived) = rayon::join(build_rows, || estimates(sums, normal, s, &wanted, memo));
     let rating_j = metric_index("rating");
-    let parts: Vec<usize> = RATING_PARTS.iter().filter_map(|k| metric_index(k)).collect();
-    let jobs: Vec<usize> = (0..nm).filter(|&j| (METRICS[j].stat != Stat::Count && Some(j) != rating_j) || parts.contains(&j)).collect();
-    let compute_posts = || {
-        let fits = memo.derived(&format!("fits {:?}", s.seasons), || {
-            let mut fits: Vec<Option<Fit>> = vec![None; nm];
-            for (j, f) in jobs.par_iter().map(|&j| (j, fit(sums, normal, j))).collect::<Vec<_>>() {
-                fits[j] = f;
+    for (j, est) in derived.iter().enumerate() {
+        let Some(est) = est else { continue };
+        let (shown, league_raw) = (Shown::of(j, rating_j), league[j].map(|x| x / METRICS[j].scale));
+        for (row, &i) in rows.iter_mut().zip(&kept) {
+            if let Some(d) = &est[i] {
+                fill(&mut row.cells[j], d, shown, league_raw, better_up[j]);
             }
-            fits
-        });
-        let mut posts: Vec<Option<Vec<Option<PasserPost>>>> = vec![None; nm];
-        let normals = normals(sums, normal);
-        let results: Vec<(usize, Vec<Option<PasserPost>>)> = jobs.par_iter().map(|&j| (j, posteriors(fits[j].as_ref(), sums, &normals, j, &wanted))).collect();
-        for (j, post) in results {
-            posts[j] = Some(post);
-        }
-        posts
-    };
-    let (mut rows, posts) = rayon::join(build_rows, compute_posts);
-    let mut derived: Vec<Option<Vec<Option<Derived>>>> =
-        posts.iter().enumerate().map(|(j, p)| (METRICS[j].stat != Stat::Count).then(|| p.as_ref().map(|v| v.iter().map(|x| x.as_ref().map(Derived::from)).collect())).flatten()).collect();
-    if let (Some(rj), [a, b, c, d]) = (rating_j, parts.as_slice()) {
-        if let (Some(pa), Some(pb), Some(pc), Some(pd)) = (&posts[*a], &posts[*b], &posts[*c], &posts[*d]) {
-            derived[rj] = Some((0..rows.len()).map(|i| Some(lift::rating([pa[i].as_ref()?, pb[i].as_ref()?, pc[i].as_ref()?, pd[i].as_ref()?]))).collect());
         }
     }
-    for (j, est) in derived.into_iter().enumerate() {
-        let Some(est) = est else { continue };
-        let m = &METRICS[j];
-        let rate = m.stat == Stat::Rate;
-        let is_rating = Some(j) == rating_j;
-        let bound = |x: f64| if rate { x.clamp(0.0, 1.0) } else if is_rating { x.clamp(0.0, 158.3) } else { x };
-        let league_raw = league[j].map(|x| x / m.scale);
-        for (row, d) in rows.iter_mut().zip(est) {
-            let Some(d) = d else { continue };
-            let c = &mut row.cells[j];
-            c.estimate = Some(bound(d.value.0) * m.scale);
-            if let Some((lo, hi)) = normal_interval(d.value.0, d.value.1, stats::INTERVAL_LEVEL) {
-                (c.lo, c.hi) = (Some(bound(lo) * m.scale), Some(bound(hi) * m.scale));
-            }
-            c.signal = Some(d.signal);
-            c.normal = Some(bound(d.level.0) * m.scale);
-            if let Some((l, lv)) = d.lift {
-                c.lift = Some(l * m.scale);
-                if let Some((lo, hi)) = normal_interval(l, lv, stats::INTERVAL_LEVEL) {
-                    (c.lift_lo, c.lift_hi) = (Some(lo * m.scale), Some(hi * m.scale));
-                }
-                c.lift_signal = d.lift_signal;
-            }
-            c.p_better = league_raw.and_then(|lg| prob_above(d.value.0, d.value.1, lg)).map(|pa| if better_up[j] { pa } else { 1.0 - pa });
+    // Percentiles on the estimate, among qualified passers: from these
+    // rows when they are every row, else from the qualified rows'
+    // estimates made once and kept.
+    let ranks: Arc<Vec<Option<Ranks>>> = match only {
+        None => {
+            let mine = ranks_of(&derived, &qualified);
+            memo.derived(&ranks_key(s, min_dropbacks), || mine)
         }
-        // Percentile on the estimate, among qualified passers.
-        let ests = Ranks::new(rows.iter().filter(|r| r.qualified).filter_map(|r| r.cells[j].estimate));
+        Some(_) => memo.derived(&ranks_key(s, min_dropbacks), || ranks_of(&estimates(sums, normal, s, &qualified, memo), &qualified)),
+    };
+    for (j, r) in ranks.iter().enumerate() {
+        let Some(r) = r else { continue };
         for row in rows.iter_mut() {
             let c = &mut row.cells[j];
-            if let Some(pr) = c.estimate.and_then(|e| ests.percentile(e)) {
+            if let Some(pr) = c.estimate.and_then(|e| r.percentile(e)) {
                 c.percentile = Some(if better_up[j] { pr } else { 100.0 - pr });
             }
         }
     }
 
-    let mut rows: Vec<(PasserRow, u32)> = rows.into_iter().zip(sums.passers.keys().copied()).collect();
+    let whos: Vec<u32> = sums.passers.keys().copied().collect();
+    let mut rows: Vec<(PasserRow, u32)> = rows.into_iter().zip(kept.iter().map(|&i| whos[i])).collect();
     if pick.is_some() {
         rows.retain(|r| picked(&r.0.passer));
     }

@@ -95,8 +95,8 @@ fn profile_now(st: Shared, q: Option<String>) -> Response {
     let lg = &loaded.league;
     let trend = super::service::trend_situation(&params);
     let base = crate::situation::Situation { passer: None, ..params.situation.clone() };
-    let table = |s: &crate::situation::Situation| st.split_table(s, params.min_dropbacks, Some(&passer));
-    match splits::profile_with(&loaded.index, lg.plays(), &lg.values(), &passer, &base, &trend, &table) {
+    // His row of each preset alone (`split_row_in`), not the whole tables.
+    match splits::profile_in(&loaded.index, lg.plays(), &lg.values(), &passer, &base, &trend, params.min_dropbacks) {
         Some(p) => Json(p).into_response(),
         None => not_found(&format!("no passer named {passer} in this league")),
     }

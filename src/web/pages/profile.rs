@@ -245,7 +245,8 @@ fn profile_now(st: Shared, headers: HeaderMap, q: Option<String>) -> Response {
     };
     let trend = trend_situation(&params);
     let base = Situation { passer: None, ..params.situation.clone() };
-    let Some(prof) = splits::profile_with(ix, p, &lg.values(), &name, &base, &trend, &|s: &Situation| st.split_table(s, params.min_dropbacks, Some(&name))) else {
+    // His row of each preset alone (`split_row_in`), not the whole tables.
+    let Some(prof) = splits::profile_in(ix, p, &lg.values(), &name, &base, &trend, params.min_dropbacks) else {
         return error_page(&st, &headers, StatusCode::NOT_FOUND, "No such passer", format!("No passer named {name} in this league."), "/");
     };
     let ch = chrome(&st, &headers, Some(&params), format!("Passer profile: {name}"), "passer", "/passer");
