@@ -3,7 +3,7 @@
 //! empty cache folder (load, fit EP/WP/CP and the throw-value model, score,
 //! calibrate in the background); the warm start opens the same file again
 //! with that folder filled. `RUST_LOG=info` shows the stages inside
-//! `League::open_with`.
+//! `League::open_with`; `KEEP=DIR` keeps the cache files written.
 
 use lategame::league::{League, LeagueConfig};
 use std::time::Instant;
@@ -60,6 +60,15 @@ fn main() -> anyhow::Result<()> {
     assert!(league.scored.from_cache && league.scored.scores_from_cache);
     c.lap("warm start: open");
     drop(league);
+    // KEEP=DIR: keep the cache files (coefficients, scores) there, to
+    // compare two builds byte for byte.
+    if let Some(keep) = std::env::var_os("KEEP") {
+        std::fs::create_dir_all(&keep)?;
+        for e in std::fs::read_dir(&dir)? {
+            let e = e?;
+            std::fs::copy(e.path(), std::path::Path::new(&keep).join(e.file_name()))?;
+        }
+    }
     let _ = std::fs::remove_dir_all(&dir);
     Ok(())
 }
