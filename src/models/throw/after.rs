@@ -180,7 +180,7 @@ mod tests {
         let i = (0..plays.len()).find(|&i| super::super::applies(&plays, i) && plays.down[i] == 3).expect("a 3rd-down pass");
         let (s0, st) = (Situation::of_snap(&plays, &ep, i), State::of_snap(&plays, i));
         let mut priced = Priced { models: &models, s0: &s0, st: &st, seen: Vec::new() };
-        let asked = [(6.0, after_gain(&st, 0)), (5.6, after_gain(&st, 0)), (6.4, after_gain(&st, 0)), (7.0, after_gain(&st, 0)), (6.0, Next::PickSix), (6.0, Next::Over(30)), (6.0, Next::Over(30)), (6.0, after_gain(&st, 12)), (7.0, after_gain(&st, 12))];
+        let asked: [(f64, Next); 9] = [(6.0, after_gain(&st, 0)), (5.6, after_gain(&st, 0)), (6.4, after_gain(&st, 0)), (7.0, after_gain(&st, 0)), (6.0, Next::PickSix), (6.0, Next::Over(30)), (6.0, Next::Over(30)), (6.0, after_gain(&st, 12)), (7.0, after_gain(&st, 12))];
         for (secs, next) in asked {
             let alone = wp_after(&models, &s0, &st, secs.round() as i32, next);
             assert_eq!(priced.wp(secs, next).to_bits(), alone.to_bits(), "{secs} {next:?}");
