@@ -82,15 +82,20 @@ impl League {
             path.display()
         );
         let t = std::time::Instant::now();
-        let scored = models::fit_and_score_in(loaded.plays, &loaded.fingerprint, cfg.refit, cfg.cache_dir.as_deref())
-            .map_err(|e| LeagueError::Models(format!("{e:#}")))?;
+        let (dir, fingerprint) = (cfg.cache_dir.as_deref(), loaded.fingerprint.clone());
+        // The throw-value fit reads only the snaps: it runs beside EP/WP/CP.
+        let (scored, restored) = models::fit_and_score_beside(loaded.plays, &fingerprint, cfg.refit, dir, |p| {
+            models::throw::fit_cached(p, &fingerprint, dir, cfg.refit)
+        })
+        .map_err(|e| LeagueError::Models(format!("{e:#}")))?;
+        let restored = restored.map_err(|e| LeagueError::Models(e.to_string()))?;
         let score_seconds = secs(t);
         let t = std::time::Instant::now();
-        let (throw_model, throw) = throw_values_cached(&scored, cfg.cache_dir.as_deref(), cfg.refit).map_err(|e| LeagueError::Models(e.to_string()))?;
+        let (throw_model, throw) = throw_scores(&scored, restored, dir);
         tracing::info!(
             load_seconds,
             models_and_scores_seconds = score_seconds,
-            throw_seconds = secs(t),
+            throw_scoring_seconds = secs(t),
             models_from_cache = scored.from_cache,
             scores_from_cache = scored.scores_from_cache,
             "league open in {:.2} s",
@@ -124,12 +129,19 @@ pub fn throw_values(scored: &Scored) -> Result<(Option<ThrowModel>, ThrowScores)
 /// values read back from `dir` when the model came from it
 /// (`models::throw::scores_cached`).
 pub fn throw_values_cached(scored: &Scored, dir: Option<&Path>, refit: bool) -> Result<(Option<ThrowModel>, ThrowScores), models::ModelError> {
+    let restored = models::throw::fit_cached(&scored.plays, &scored.fingerprint, dir, refit)?;
+    Ok(throw_scores(scored, restored, dir))
+}
+
+/// The passes scored with a throw-value model from `fit_cached` (NaN
+/// everywhere without one), or their values read back from `dir` when the
+/// model came from it (`models::throw::scores_cached`).
+fn throw_scores(scored: &Scored, restored: models::throw::Restored, dir: Option<&Path>) -> (Option<ThrowModel>, ThrowScores) {
     let started = std::time::Instant::now();
     let p = &scored.plays;
-    let restored = models::throw::fit_cached(p, &scored.fingerprint, dir, refit)?;
     let Some(model) = restored.model else {
         let nan = vec![f64::NAN; p.len()];
-        return Ok((None, ThrowScores { chosen: nan.clone(), league: nan.clone(), choice: nan.clone(), execution: nan.clone(), league_sticks: nan }));
+        return (None, ThrowScores { chosen: nan.clone(), league: nan.clone(), choice: nan.clone(), execution: nan.clone(), league_sticks: nan });
     };
     let s = &scored.scores;
     let cache = models::throw::ScoresCache { dir, fingerprint: &scored.fingerprint, read: restored.from_cache };
@@ -141,7 +153,7 @@ pub fn throw_values_cached(scored: &Scored, dir: Option<&Path>, refit: bool) -> 
         seconds = started.elapsed().as_secs_f64(),
         "throw-value model ready and passes scored"
     );
-    Ok((Some(model), values))
+    (Some(model), values)
 }
 
 /// The bundled demo league (used when no file is given).

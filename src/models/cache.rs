@@ -5,9 +5,11 @@
 //! under the same key (`load_part`, `store_part`), so the background
 //! calibration, which rewrites the models' entry, never races them. The
 //! per-snap scores sit beside them as raw columns (`columns`), so a warm
-//! start reads them instead of scoring every snap again.
+//! start reads them instead of scoring every snap again. Every write
+//! keeps the folder bounded (`prune`); every read marks the entry used.
 
 pub mod columns;
+pub mod prune;
 pub use columns::{columns_file_name, digest, load_columns, store_columns, ColumnsKey, Miss};
 
 use super::{Calibration, Models, MODEL_VERSION};
@@ -82,6 +84,7 @@ pub fn load_part<T: DeserializeOwned>(dir: &Path, part: &str, fingerprint: &str)
     if entry.fingerprint != fingerprint || entry.model_version != MODEL_VERSION || entry.part != part {
         return Ok(None);
     }
+    touch(&path);
     Ok(Some(entry.value))
 }
 
@@ -89,17 +92,26 @@ pub fn load_part<T: DeserializeOwned>(dir: &Path, part: &str, fingerprint: &str)
 pub fn store_part<T: Serialize>(dir: &Path, part: &str, fingerprint: &str, value: &T) -> Result<PathBuf> {
     let entry = Part { fingerprint: fingerprint.to_string(), model_version: MODEL_VERSION.to_string(), part: part.to_string(), value };
     let text = serde_json::to_string(&entry).map_err(ModelError::Serialize)?;
-    write_bytes(dir, &part_file_name(part, fingerprint), text.as_bytes())
+    write_bytes(dir, &part_file_name(part, fingerprint), fingerprint, text.as_bytes())
+}
+
+/// Mark a file just read as recently used (its modification time now, the
+/// age `prune` goes by); a file that cannot be touched is left as it is.
+pub fn touch(path: &Path) {
+    if let Ok(f) = std::fs::OpenOptions::new().append(true).open(path) {
+        let _ = f.set_modified(std::time::SystemTime::now());
+    }
 }
 
 /// Write `bytes` to `dir/name` through a temporary file and a rename, so a
 /// reader never sees half a file.
-fn write_bytes(dir: &Path, name: &str, text: &[u8]) -> Result<PathBuf> {
+fn write_bytes(dir: &Path, name: &str, fingerprint: &str, text: &[u8]) -> Result<PathBuf> {
     std::fs::create_dir_all(dir).map_err(|source| ModelError::CacheIo { path: dir.to_path_buf(), source })?;
     let path = dir.join(name);
     let tmp = dir.join(format!("{name}.tmp{}", std::process::id()));
     std::fs::write(&tmp, text).map_err(|source| ModelError::CacheIo { path: tmp.clone(), source })?;
     std::fs::rename(&tmp, &path).map_err(|source| ModelError::CacheIo { path: path.clone(), source })?;
+    prune::after_write(dir, &key(fingerprint), fingerprint);
     Ok(path)
 }
 
@@ -116,6 +128,7 @@ pub fn load(dir: &Path, fingerprint: &str) -> Result<Option<Entry>> {
     if entry.fingerprint != fingerprint || entry.model_version != MODEL_VERSION {
         return Ok(None);
     }
+    touch(&path);
     Ok(Some(entry))
 }
 
@@ -134,6 +147,6 @@ pub fn store(
         calibration: calibration.cloned(),
     };
     let text = serde_json::to_string(&entry).map_err(ModelError::Serialize)?;
-    write_bytes(dir, &file_name(fingerprint), text.as_bytes())
+    write_bytes(dir, &file_name(fingerprint), fingerprint, text.as_bytes())
 }
 

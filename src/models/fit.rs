@@ -68,25 +68,23 @@ pub fn fit_rows_from(plays: &Plays, rows: &[u32], init: Option<&Models>) -> Resu
         return Err(ModelError::NoSnaps);
     }
     let opts = options();
-    let ep = ep::fit(plays, rows, &opts, init.map(|m| &m.ep))?;
-    let ep_all = ep.score_all_blind(plays);
-    let wp = wp::fit(
-        plays,
-        &ep_all,
-        rows,
-        wp::WpKind::Full,
-        &opts,
-        init.map(|m| &m.wp),
-    )?;
-    let baseline = wp::fit(
-        plays,
-        &ep_all,
-        rows,
-        wp::WpKind::Baseline,
-        &opts,
-        init.map(|m| &m.baseline),
-    )?;
-    let cp = cp::fit(plays, rows, &opts, init.and_then(|m| m.cp.as_ref()))?;
+    // CP reads no EP; the two WP fits read EP and not each other: each
+    // fit runs beside the others it does not need (the same fits as one
+    // after another; errors in the same order).
+    let (ep_wp, cp) = rayon::join(
+        || -> Result<_> {
+            let ep = ep::fit(plays, rows, &opts, init.map(|m| &m.ep))?;
+            let ep_all = ep.score_all_blind(plays);
+            let (wp, baseline) = rayon::join(
+                || wp::fit(plays, &ep_all, rows, wp::WpKind::Full, &opts, init.map(|m| &m.wp)),
+                || wp::fit(plays, &ep_all, rows, wp::WpKind::Baseline, &opts, init.map(|m| &m.baseline)),
+            );
+            Ok((ep, wp?, baseline?))
+        },
+        || cp::fit(plays, rows, &opts, init.and_then(|m| m.cp.as_ref())),
+    );
+    let (ep, wp, baseline) = ep_wp?;
+    let cp = cp?;
     let report = FitReport {
         snaps: rows.len(),
         ep: ep.fit.stats.clone(),

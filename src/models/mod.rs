@@ -24,7 +24,7 @@ pub use error::ModelError;
 pub use fit::{fit, fit_rows, fit_rows_from, FitReport, Models, Scores};
 pub use logit::FitStats as ModelReport;
 pub use pending::{CalibStatus, CalibrationCell};
-pub use scored::{calibrate, fit_and_score, fit_and_score_in, scored_frame, Scored};
+pub use scored::{calibrate, fit_and_score, fit_and_score_beside, fit_and_score_in, scored_frame, Scored};
 
 /// Bumped whenever features, labels or conventions change; part of the cache key.
 pub const MODEL_VERSION: &str = "lategame-models-6";

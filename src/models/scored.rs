@@ -92,6 +92,52 @@ pub fn fit_and_score_in(
     refit: bool,
     dir: Option<&std::path::Path>,
 ) -> Result<Scored> {
+    fit_and_score_beside(plays, fingerprint, refit, dir, |_| ()).map(|(s, ())| s)
+}
+
+/// `fit_and_score_in`, with `beside` run on the same snaps at the same
+/// time (`rayon::join`): a model that needs none of these scores (the
+/// throw-value fit) is fitted while EP/WP/CP are fitted and score every
+/// snap. The calibration starts once both are done.
+pub fn fit_and_score_beside<T: Send>(
+    plays: Plays,
+    fingerprint: &str,
+    refit: bool,
+    dir: Option<&std::path::Path>,
+    beside: impl FnOnce(&Plays) -> T + Send,
+) -> Result<(Scored, T)> {
+    let (ready, other) = rayon::join(|| models_and_scores(&plays, fingerprint, refit, dir), || beside(&plays));
+    let Ready { models, calibration, from_cache, scores, scores_from_cache } = ready?;
+    let plays = Arc::new(plays);
+    let calibration = match calibration {
+        Some(c) => CalibrationCell::ready(c),
+        None => {
+            let store = dir.map(|d| (d.to_path_buf(), fingerprint.to_string()));
+            CalibrationCell::spawn(plays.clone(), models.clone(), store)
+        }
+    };
+    let scored = Scored {
+        plays,
+        scores,
+        models,
+        calibration,
+        fingerprint: fingerprint.to_string(),
+        from_cache,
+        scores_from_cache,
+    };
+    Ok((scored, other))
+}
+
+/// The models and every snap's scores, from the cache or computed.
+struct Ready {
+    models: Models,
+    calibration: Option<Calibration>,
+    from_cache: bool,
+    scores: Scores,
+    scores_from_cache: bool,
+}
+
+fn models_and_scores(plays: &Plays, fingerprint: &str, refit: bool, dir: Option<&std::path::Path>) -> Result<Ready> {
     let cached = match (dir, refit) {
         (Some(d), false) => match cache::load(d, fingerprint) {
             Ok(e) => e,
@@ -105,7 +151,7 @@ pub fn fit_and_score_in(
     let (models, calibration, from_cache) = match cached {
         Some(e) => (e.models, e.calibration, true),
         None => {
-            let models = fit(&plays)?;
+            let models = fit(plays)?;
             if let Some(d) = dir {
                 match cache::store(d, fingerprint, &models, None) {
                     Ok(p) => tracing::info!("fitted models cached in {}", p.display()),
@@ -132,7 +178,7 @@ pub fn fit_and_score_in(
     let scores = match restored {
         Some(s) => s,
         None => {
-            let s = models.score(&plays);
+            let s = models.score(plays);
             if let (Some(d), Some(m)) = (dir, &digest) {
                 store_scores(d, fingerprint, m, &s);
             }
@@ -140,23 +186,7 @@ pub fn fit_and_score_in(
         }
     };
     tracing::info!(models_from_cache = from_cache, scores_from_cache, "snaps scored in {:.0} ms", t.elapsed().as_secs_f64() * 1000.0);
-    let plays = Arc::new(plays);
-    let calibration = match calibration {
-        Some(c) => CalibrationCell::ready(c),
-        None => {
-            let store = dir.map(|d| (d.to_path_buf(), fingerprint.to_string()));
-            CalibrationCell::spawn(plays.clone(), models.clone(), store)
-        }
-    };
-    Ok(Scored {
-        plays,
-        scores,
-        models,
-        calibration,
-        fingerprint: fingerprint.to_string(),
-        from_cache,
-        scores_from_cache,
-    })
+    Ok(Ready { models, calibration, from_cache, scores, scores_from_cache })
 }
 
 /// The scored league as one frame: every column of the play file (same

@@ -214,21 +214,60 @@ pub fn fit(p: &Plays, rows: &[u32], opts: &FitOptions) -> Result<Option<ThrowMod
     }
     let band = |i: usize| band_of(p.air_yards[i].unwrap_or(0));
     let bands: Vec<u8> = train.iter().map(|&i| band(i as usize) as u8).collect();
-    let mix_design = FnDesign { rows: &train, p: NS, f: |i: usize, out: &mut [f64]| state_features(&State::of_snap(p, i), out) };
-    let mix = logit::fit(&mix_design, Labels::Classes { y: &bands, classes: BANDS, reference: 1 }, None, opts)
-        .map_err(|source| super::ModelError::Fit { model: "throw depth mix", rows: train.len(), what: "passes", source })?;
     let outcomes: Vec<u8> = train.iter().map(|&i| outcome_of(p, i as usize) as u8).collect();
-    let out_design = FnDesign { rows: &train, p: NO, f: |i: usize, out: &mut [f64]| outcome_features(&State::of_snap(p, i), band(i), out) };
-    let outcome = logit::fit(&out_design, Labels::Classes { y: &outcomes, classes: 3, reference: INCOMPLETE }, None, opts)
-        .map_err(|source| super::ModelError::Fit { model: "throw outcomes", rows: train.len(), what: "passes", source })?;
+    // The two fits and the tables below read only the snaps: side by side.
+    let ((mix, outcome), tables) = rayon::join(
+        || {
+            rayon::join(
+                || {
+                    let design = FnDesign { rows: &train, p: NS, f: |i: usize, out: &mut [f64]| state_features(&State::of_snap(p, i), out) };
+                    logit::fit(&design, Labels::Classes { y: &bands, classes: BANDS, reference: 1 }, None, opts)
+                        .map_err(|source| super::ModelError::Fit { model: "throw depth mix", rows: train.len(), what: "passes", source })
+                },
+                || {
+                    let design = FnDesign { rows: &train, p: NO, f: |i: usize, out: &mut [f64]| outcome_features(&State::of_snap(p, i), band(i), out) };
+                    logit::fit(&design, Labels::Classes { y: &outcomes, classes: 3, reference: INCOMPLETE }, None, opts)
+                        .map_err(|source| super::ModelError::Fit { model: "throw outcomes", rows: train.len(), what: "passes", source })
+                },
+            )
+        },
+        || count_tables(p, &train),
+    );
+    let (mix, outcome) = (mix?, outcome?);
+    Ok(Some(ThrowModel {
+        mix_stats: mix.stats.clone(),
+        outcome_stats: outcome.stats.clone(),
+        mix,
+        outcome,
+        gains: tables.gains,
+        runoff: tables.runoff,
+        int_spot: tables.int_spot,
+        pick_six: tables.pick_six,
+        catch_fumble: tables.catch_fumble,
+        air_past: air_past(p, &train),
+        air_mean: air_mean(p, &train),
+    }))
+}
 
+/// The model's tables counted from the league's throws (`ThrowModel`'s
+/// fields of the same names).
+struct Tables {
+    gains: [[f64; GAIN_POINTS]; BANDS],
+    runoff: [[[f64; BANDS]; 3]; REGIMES],
+    int_spot: [f64; BANDS],
+    pick_six: [f64; BANDS],
+    catch_fumble: [f64; BANDS],
+}
+
+fn count_tables(p: &Plays, train: &[u32]) -> Tables {
+    let band = |i: usize| band_of(p.air_yards[i].unwrap_or(0));
     // Gains on catches, clock used, where interceptions leave the ball.
     let mut gains: Vec<Vec<f64>> = vec![Vec::new(); BANDS];
     let mut gaps: Vec<Vec<f64>> = vec![Vec::new(); REGIMES * 3 * BANDS];
     let mut gaps_any: Vec<Vec<f64>> = vec![Vec::new(); 3];
     let (mut spot, mut spot_n, mut six, mut ints) = ([0.0; BANDS], [0.0; BANDS], [0.0; BANDS], [0.0; BANDS]);
     let (mut catches, mut fumbles) = ([0.0; BANDS], [0.0; BANDS]);
-    for &r in &train {
+    for &r in train {
         let i = r as usize;
         let b = band(i);
         let o = outcome_of(p, i);
@@ -286,19 +325,7 @@ pub fn fit(p: &Plays, rows: &[u32], opts: &FitOptions) -> Result<Option<ThrowMod
     let pick_six = std::array::from_fn(|b| if ints[b] >= 10.0 { six[b] / ints[b] } else { all_six });
     let all_fumble = fumbles.iter().sum::<f64>() / catches.iter().sum::<f64>().max(1.0);
     let catch_fumble = std::array::from_fn(|b| if catches[b] >= 50.0 { fumbles[b] / catches[b] } else { all_fumble });
-    Ok(Some(ThrowModel {
-        mix_stats: mix.stats.clone(),
-        outcome_stats: outcome.stats.clone(),
-        mix,
-        outcome,
-        gains: gq,
-        runoff,
-        int_spot,
-        pick_six,
-        catch_fumble,
-        air_past: air_past(p, &train),
-        air_mean: air_mean(p, &train),
-    }))
+    Tables { gains: gq, runoff, int_spot, pick_six, catch_fumble }
 }
 
 impl ThrowModel {

@@ -93,7 +93,24 @@ pub fn store_columns(dir: &Path, k: &ColumnsKey, columns: &[&[f64]]) -> Result<P
         }
     }
     out.extend_from_slice(&sum.to_le_bytes());
-    write_bytes(dir, &columns_file_name(k.part, k.fingerprint), &out)
+    write_bytes(dir, &columns_file_name(k.part, k.fingerprint), k.fingerprint, &out)
+}
+
+/// The fingerprint in a columns file's header, if it has a readable one.
+pub(super) fn header_fingerprint(path: &Path) -> Option<String> {
+    let mut f = std::fs::File::open(path).ok()?;
+    let mut head = [0u8; 12];
+    f.read_exact(&mut head).ok()?;
+    if &head[..8] != MAGIC {
+        return None;
+    }
+    let len = u32::from_le_bytes([head[8], head[9], head[10], head[11]]) as usize;
+    if len > 1 << 20 {
+        return None;
+    }
+    let mut text = vec![0u8; len];
+    f.read_exact(&mut text).ok()?;
+    serde_json::from_slice::<Header>(&text).ok().map(|h| h.fingerprint)
 }
 
 /// Why a columns file was not used (logged by the caller; never fatal).
@@ -174,6 +191,7 @@ pub fn load_columns(dir: &Path, k: &ColumnsKey, rows: usize) -> std::result::Res
     if u64::from_le_bytes(tail) != sum {
         return Err(Miss::Checksum);
     }
+    super::touch(&path);
     Ok(out)
 }
 

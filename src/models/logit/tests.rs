@@ -420,3 +420,57 @@ fn subsampled_hessian_reaches_the_same_optimum() {
         assert!((a - b).abs() < 1e-6, "{a} vs {b}");
     }
 }
+
+/// The softmax before the class rows were interleaved: one `dot` per row.
+fn softmax_one_row_at_a_time(coef: &[Vec<f64>], free: &[usize], reference: usize, x: &[f64], out: &mut [f64]) {
+    out.iter_mut().for_each(|v| *v = 0.0);
+    let eta: Vec<f64> = coef.iter().map(|c| pass::dot(c, x)).collect();
+    let max = eta.iter().fold(0.0f64, |m, &e| m.max(e));
+    let mut sum = (-max).exp();
+    out[reference] = sum;
+    for (j, &c) in free.iter().enumerate() {
+        out[c] = (eta[j] - max).exp();
+        sum += out[c];
+    }
+    out.iter_mut().for_each(|v| *v /= sum);
+}
+
+#[test]
+fn interleaved_rows_give_the_same_bits_as_one_dot_per_row() {
+    let mut rng = ChaCha8Rng::seed_from_u64(11);
+    let mut checked = 0;
+    for m in 1..=9 {
+        for p in [1, 2, 5, 16, 25, 40] {
+            for _ in 0..50 {
+                let coef: Vec<Vec<f64>> = (0..m).map(|_| (0..p).map(|_| rng.random_range(-3.0..3.0) * 10f64.powi(rng.random_range(-8..3))).collect()).collect();
+                // Zeros of both signs, as dummies and empty features give.
+                let x: Vec<f64> = (0..p)
+                    .map(|_| match rng.random_range(0..4) {
+                        0 => 0.0,
+                        1 => -0.0,
+                        _ => rng.random_range(-50.0..50.0),
+                    })
+                    .collect();
+                let mut eta = [0.0; 16];
+                pass::linear_predictors(&coef, &x, &mut eta);
+                for j in 0..m {
+                    assert_eq!(eta[j].to_bits(), pass::dot(&coef[j], &x).to_bits(), "m {m}, p {p}, row {j}");
+                }
+                let classes = m + 1;
+                let reference = rng.random_range(0..classes);
+                let free: Vec<usize> = (0..classes).filter(|&c| c != reference).collect();
+                let (mut a, mut b) = (vec![0.0; classes], vec![0.0; classes]);
+                pass::softmax_row(&coef, &free, reference, &x, &mut a);
+                softmax_one_row_at_a_time(&coef, &free, reference, &x, &mut b);
+                assert_eq!(a.iter().map(|v| v.to_bits()).collect::<Vec<_>>(), b.iter().map(|v| v.to_bits()).collect::<Vec<_>>());
+                assert!((a.iter().sum::<f64>() - 1.0).abs() < 1e-12);
+                checked += 1;
+            }
+        }
+    }
+    assert_eq!(checked, 9 * 6 * 50);
+    // All products -0.0: the sum is -0.0, as `Sum` gives.
+    let mut eta = [0.0; 16];
+    pass::linear_predictors(&[vec![1.0, 2.0], vec![-1.0, 3.0], vec![0.0, 1.0]], &[-0.0, -0.0], &mut eta);
+    assert_eq!(eta[0].to_bits(), pass::dot(&[1.0, 2.0], &[-0.0, -0.0]).to_bits());
+}
