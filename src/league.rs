@@ -83,19 +83,30 @@ impl League {
         );
         let t = std::time::Instant::now();
         let (dir, fingerprint) = (cfg.cache_dir.as_deref(), loaded.fingerprint.clone());
-        // The throw-value fit reads only the snaps: it runs beside EP/WP/CP.
-        let (scored, restored) = models::fit_and_score_beside(loaded.plays, &fingerprint, cfg.refit, dir, |p| {
-            models::throw::fit_cached(p, &fingerprint, dir, cfg.refit)
-        })
+        // The throw-value fit reads only the snaps: it runs beside EP/WP/CP;
+        // the passes are priced with their scores before the calibration
+        // starts.
+        let mut throw_seconds = 0.0;
+        let (scored, thrown) = models::fit_and_score_beside(
+            loaded.plays,
+            &fingerprint,
+            cfg.refit,
+            dir,
+            |p| models::throw::fit_cached(p, &fingerprint, dir, cfg.refit),
+            |scored, restored| {
+                let t = std::time::Instant::now();
+                let out = restored.map(|r| throw_scores(scored, r, dir));
+                throw_seconds = secs(t);
+                out
+            },
+        )
         .map_err(|e| LeagueError::Models(format!("{e:#}")))?;
-        let restored = restored.map_err(|e| LeagueError::Models(e.to_string()))?;
-        let score_seconds = secs(t);
-        let t = std::time::Instant::now();
-        let (throw_model, throw) = throw_scores(&scored, restored, dir);
+        let (throw_model, throw) = thrown.map_err(|e| LeagueError::Models(e.to_string()))?;
+        let score_seconds = secs(t) - throw_seconds;
         tracing::info!(
             load_seconds,
             models_and_scores_seconds = score_seconds,
-            throw_scoring_seconds = secs(t),
+            throw_scoring_seconds = throw_seconds,
             models_from_cache = scored.from_cache,
             scores_from_cache = scored.scores_from_cache,
             "league open in {:.2} s",

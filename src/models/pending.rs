@@ -40,6 +40,28 @@ struct Inner {
     stop: AtomicBool,
 }
 
+/// Holds a calibration thread back until opened (`open`, or dropped: a
+/// start-up that fails on the way still lets it run and end).
+pub(super) struct Hold(Arc<(Mutex<bool>, Condvar)>);
+
+impl Hold {
+    pub(super) fn open(self) {}
+
+    fn wait(gate: &(Mutex<bool>, Condvar)) {
+        let mut open = gate.0.lock().unwrap_or_else(|p| p.into_inner());
+        while !*open {
+            open = gate.1.wait(open).unwrap_or_else(|p| p.into_inner());
+        }
+    }
+}
+
+impl Drop for Hold {
+    fn drop(&mut self) {
+        *self.0 .0.lock().unwrap_or_else(|p| p.into_inner()) = true;
+        self.0 .1.notify_all();
+    }
+}
+
 /// The calibration of one scored league: ready (from the cache) or being
 /// computed on its own thread. Clones share the same calibration.
 #[derive(Clone)]
@@ -71,14 +93,35 @@ impl CalibrationCell {
     /// thread; when done, store models and calibration under `store`. The
     /// first guess of a refit's time is the full fit's.
     pub fn spawn(plays: Arc<Plays>, models: Models, store: Store) -> CalibrationCell {
+        CalibrationCell::spawn_held(plays, models, store).0
+    }
+
+    /// `spawn`, with the refits held back until the `Hold` is opened or
+    /// dropped: the rest of the start-up (the throw values) gets the cores
+    /// first, so the first page comes sooner.
+    pub(super) fn spawn_held(plays: Arc<Plays>, models: Models, store: Store) -> (CalibrationCell, Hold) {
         let guess = models.report.seconds.max(0.1);
         let cell = CalibrationCell::with(State::Computing { started: Instant::now(), done: 0, folds: 0, guess_per_fold: guess });
         let worker = cell.clone();
-        let job = move || worker.run(&plays, &models, store);
+        let hold = Hold(Arc::new((Mutex::new(false), Condvar::new())));
+        let gate = hold.0.clone();
+        let job = move || {
+            Hold::wait(&gate);
+            worker.restart_clock();
+            worker.run(&plays, &models, store)
+        };
         if let Err(e) = std::thread::Builder::new().name("lategame-calibration".into()).spawn(job) {
             cell.set(State::Failed(format!("could not start the calibration thread: {e}")));
         }
-        cell
+        (cell, hold)
+    }
+
+    /// The time left is counted from when the refits start, not from the
+    /// wait before them.
+    fn restart_clock(&self) {
+        if let State::Computing { started, .. } = &mut *self.lock() {
+            *started = Instant::now();
+        }
     }
 
     fn run(&self, plays: &Plays, models: &Models, store: Store) {
@@ -226,6 +269,27 @@ impl Serialize for CalibrationCell {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_held_thread_waits_until_the_hold_is_opened_or_dropped() {
+        for dropped in [false, true] {
+            let hold = Hold(Arc::new((Mutex::new(false), Condvar::new())));
+            let gate = hold.0.clone();
+            let (tx, rx) = std::sync::mpsc::channel();
+            let waiter = std::thread::spawn(move || {
+                Hold::wait(&gate);
+                tx.send(()).ok();
+            });
+            assert!(rx.recv_timeout(std::time::Duration::from_millis(100)).is_err(), "ran before the hold opened");
+            if dropped {
+                drop(hold);
+            } else {
+                hold.open();
+            }
+            assert!(rx.recv_timeout(std::time::Duration::from_secs(10)).is_ok(), "still held after opening");
+            waiter.join().expect("waiter");
+        }
+    }
 
     #[test]
     fn rounding_of_the_estimate() {

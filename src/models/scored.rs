@@ -92,28 +92,32 @@ pub fn fit_and_score_in(
     refit: bool,
     dir: Option<&std::path::Path>,
 ) -> Result<Scored> {
-    fit_and_score_beside(plays, fingerprint, refit, dir, |_| ()).map(|(s, ())| s)
+    fit_and_score_beside(plays, fingerprint, refit, dir, |_| (), |_, ()| ()).map(|(s, ())| s)
 }
 
 /// `fit_and_score_in`, with `beside` run on the same snaps at the same
 /// time (`rayon::join`): a model that needs none of these scores (the
 /// throw-value fit) is fitted while EP/WP/CP are fitted and score every
-/// snap. The calibration starts once both are done.
-pub fn fit_and_score_beside<T: Send>(
+/// snap; then `then` gets the scored league and what `beside` returned
+/// (the throw values priced with the scores). The calibration's refits
+/// wait until `then` is done, so they do not share the cores with it.
+pub fn fit_and_score_beside<T: Send, U>(
     plays: Plays,
     fingerprint: &str,
     refit: bool,
     dir: Option<&std::path::Path>,
     beside: impl FnOnce(&Plays) -> T + Send,
-) -> Result<(Scored, T)> {
+    then: impl FnOnce(&Scored, T) -> U,
+) -> Result<(Scored, U)> {
     let (ready, other) = rayon::join(|| models_and_scores(&plays, fingerprint, refit, dir), || beside(&plays));
     let Ready { models, calibration, from_cache, scores, scores_from_cache } = ready?;
     let plays = Arc::new(plays);
-    let calibration = match calibration {
-        Some(c) => CalibrationCell::ready(c),
+    let (calibration, hold) = match calibration {
+        Some(c) => (CalibrationCell::ready(c), None),
         None => {
             let store = dir.map(|d| (d.to_path_buf(), fingerprint.to_string()));
-            CalibrationCell::spawn(plays.clone(), models.clone(), store)
+            let (cell, hold) = CalibrationCell::spawn_held(plays.clone(), models.clone(), store);
+            (cell, Some(hold))
         }
     };
     let scored = Scored {
@@ -125,7 +129,11 @@ pub fn fit_and_score_beside<T: Send>(
         from_cache,
         scores_from_cache,
     };
-    Ok((scored, other))
+    let after = then(&scored, other);
+    if let Some(h) = hold {
+        h.open();
+    }
+    Ok((scored, after))
 }
 
 /// The models and every snap's scores, from the cache or computed.
