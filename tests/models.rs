@@ -676,6 +676,11 @@ fn fit_time_per_model() {
     let ep = ep.expect("ep");
     let mut blind = Vec::new();
     time("ep blind scores", &mut || blind = ep.score_all_blind(&plays));
+    time("wp drive model (estimate and solve)", &mut || {
+        let d = models::wp::drive::DriveParams::estimate(&plays, &rows).expect("drives");
+        let t = d.solve();
+        assert!(t.value(0.0, 900.0, 25.0) > 0.0);
+    });
     time("wp", &mut || {
         models::wp::fit(&plays, &blind, &rows, models::wp::WpKind::Full, &opts, None).expect("wp");
     });
