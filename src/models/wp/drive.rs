@@ -166,20 +166,16 @@ impl DriveParams {
             if nb == 0.0 {
                 return None;
             }
+            let (rest, nr) = count(all.iter().filter(|d| d.zone == z && d.mode == Mode::Other));
             for md in [Mode::Other, Mode::Trail, Mode::Lead] {
-                let (own, n) = if md == Mode::Other {
-                    (BTreeMap::new(), 0.0)
-                } else {
-                    count(all.iter().filter(|d| d.zone == z && d.mode == md))
+                // A late mode's own drives, shrunk toward all of the zone's;
+                // the rest of the game is its own drives (all of the zone's
+                // when it has none).
+                let (own, n) = match md {
+                    Mode::Other => (BTreeMap::new(), 0.0),
+                    _ => count(all.iter().filter(|d| d.zone == z && d.mode == md)),
                 };
-                // The rest of the game's drives as the prior of a late mode.
-                let (rest, nr) = if md == Mode::Other {
-                    count(all.iter().filter(|d| d.zone == z && d.mode == Mode::Other))
-                } else {
-                    (BTreeMap::new(), 0.0)
-                };
-                let (prior, np) = if md == Mode::Other { (&rest, nr) } else { (&base, nb) };
-                let (prior, np) = if np > 0.0 { (prior, np) } else { (&base, nb) };
+                let (prior, np) = if md == Mode::Other && nr > 0.0 { (&rest, nr) } else { (&base, nb) };
                 let w_own = n / (n + SHRINK_DRIVES);
                 let mut merged: BTreeMap<Key, (f64, f64)> = BTreeMap::new();
                 for (k, &(c, s)) in own.iter() {
