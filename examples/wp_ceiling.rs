@@ -12,7 +12,9 @@
 //! `--csv` writes one row per stratum snap (state, held-out WP, baseline,
 //! oracle, result) for a closer look; `--all-csv` every held-out snap of the
 //! second half and overtime (WP, baseline, result); `--rollouts 0` skips
-//! the oracle (the held-out fits only).
+//! the oracle (the held-out fits only); `--oracle-from FILE` reads the
+//! oracle back from an earlier run's `--csv` of the same seed and seasons
+//! instead of playing on again (the rows' `oracle` column, offense's side).
 
 use anyhow::{bail, Context};
 use lategame::models::calib::held_out_predictions;
@@ -31,10 +33,11 @@ struct Args {
     rollouts: usize,
     csv: Option<String>,
     all_csv: Option<String>,
+    oracle_from: Option<String>,
 }
 
 fn args() -> anyhow::Result<Args> {
-    let mut a = Args { seed: 101, seasons: 5, rollouts: 300, csv: None, all_csv: None };
+    let mut a = Args { seed: 101, seasons: 5, rollouts: 300, csv: None, all_csv: None, oracle_from: None };
     let mut it = std::env::args().skip(1);
     while let Some(flag) = it.next() {
         let mut value = || it.next().with_context(|| format!("{flag} needs a value"));
@@ -44,6 +47,7 @@ fn args() -> anyhow::Result<Args> {
             "--rollouts" => a.rollouts = value()?.parse()?,
             "--csv" => a.csv = Some(value()?),
             "--all-csv" => a.all_csv = Some(value()?),
+            "--oracle-from" => a.oracle_from = Some(value()?),
             other => bail!("unknown argument {other}"),
         }
     }
@@ -106,13 +110,46 @@ fn gain_band(rows: &[Row], sq: &dyn Fn(&Row) -> f64) -> (f64, f64) {
     (draws[20], draws[379])
 }
 
+/// The oracle column of an earlier `--csv` (offense's side, kept as is).
+fn read_oracle(path: &str) -> anyhow::Result<Vec<lategame::sim::oracle::OracleSnap>> {
+    let text = std::fs::read_to_string(path).with_context(|| format!("reading {path}"))?;
+    let mut lines = text.lines();
+    let head: Vec<&str> = lines.next().context("empty oracle file")?.split(',').collect();
+    let col = |n: &str| head.iter().position(|h| *h == n).with_context(|| format!("no {n} column"));
+    let (g, s, o) = (col("game")?, col("seq")?, col("oracle")?);
+    lines
+        .map(|l| {
+            let f: Vec<&str> = l.split(',').collect();
+            Ok(lategame::sim::oracle::OracleSnap { game: f[g].to_string(), seq: f[s].parse()?, home_win: f[o].parse()? })
+        })
+        .collect()
+}
+
+/// The largest gap between mean forecast and observed share over five
+/// equal-count bins of the forecast.
+fn worst_bin(rows: &[&Row]) -> f64 {
+    let mut v: Vec<(f64, f64)> = rows.iter().map(|r| (r.wp, r.actual)).collect();
+    v.sort_by(|a, b| a.0.total_cmp(&b.0));
+    (0..5)
+        .map(|k| {
+            let b = &v[k * v.len() / 5..(k + 1) * v.len() / 5];
+            let n = b.len().max(1) as f64;
+            (b.iter().map(|x| x.0).sum::<f64>() / n - b.iter().map(|x| x.1).sum::<f64>() / n).abs()
+        })
+        .fold(0.0, f64::max)
+}
+
 fn main() -> anyhow::Result<()> {
     let a = args()?;
     let cfg = SimConfig { seasons: a.seasons, seed: a.seed, first_season: 2020 };
     let t = Instant::now();
     let none = |_: i32, _: i32, _: i32| false;
-    let opts = OracleOptions { rollouts: a.rollouts, pick: if a.rollouts == 0 { &none } else { &late_close } };
-    let (out, oracle) = simulate_with_oracle(&cfg, &opts);
+    let replay = a.rollouts == 0 || a.oracle_from.is_some();
+    let opts = OracleOptions { rollouts: a.rollouts, pick: if replay { &none } else { &late_close } };
+    let (out, mut oracle) = simulate_with_oracle(&cfg, &opts);
+    if let Some(path) = &a.oracle_from {
+        oracle = read_oracle(path)?;
+    }
     println!(
         "seed {}, {} seasons: {} snaps, {} late-and-close snaps played on {} times each ({:.0} s)",
         a.seed,
@@ -141,7 +178,7 @@ fn main() -> anyhow::Result<()> {
             }
             bail!("no oracle value at {key} snap {}", plays.seq[i])
         };
-        let side = |home: f64| if plays.off_home[i] { home } else { 1.0 - home };
+        let side = |home: f64| if plays.off_home[i] || a.oracle_from.is_some() { home } else { 1.0 - home };
         rows.push(Row {
             snap: i,
             game: p.game,
@@ -160,7 +197,7 @@ fn main() -> anyhow::Result<()> {
             writeln!(f, "{},{},{},{},{}", plays.games[plays.game[i] as usize].key, plays.seq[i], p.wp, p.base, p.actual)?;
         }
     }
-    if a.rollouts == 0 {
+    if a.rollouts == 0 && a.oracle_from.is_none() {
         return Ok(());
     }
     let all: Vec<&Row> = rows.iter().collect();
@@ -173,6 +210,8 @@ fn main() -> anyhow::Result<()> {
     let b_or = brier(&all, &|r| r.oracle) - noise(&|r| r.oracle);
     let games = rows.iter().map(|r| r.game).collect::<std::collections::HashSet<_>>().len();
     println!("late & close: {} snaps in {games} games", rows.len());
+    let dist = all.iter().map(|r| (r.wp - r.oracle).powi(2)).sum::<f64>() / all.len().max(1) as f64;
+    println!("  worst of five WP bins {:.3}; mean squared distance to the oracle {dist:.5}", worst_bin(&all));
     println!("  baseline (margin and time) Brier {b_base:.4}");
     let (lo, hi) = gain_band(&rows, &|r| (r.wp - r.actual).powi(2));
     println!("  fitted WP, held out        Brier {b_wp:.4}  gain over baseline {:.1}% [{:.1}%, {:.1}%]", 100.0 * (1.0 - b_wp / b_base), 100.0 * lo, 100.0 * hi);

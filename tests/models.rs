@@ -378,8 +378,16 @@ fn held_out_seasons_are_calibrated() {
 /// within 8), every season held out in turn: each of five equal-count WP
 /// bins within 0.04 of the observed win share (the project's own target).
 /// The target for the Brier score is 12% below the margin-and-time
-/// baseline's; it is NOT met: 10.6% on the bundled file (band 8.9-12.1%),
-/// so this checks 10% to catch regressions and prints the figure. Tried
+/// baseline's; it is NOT met: 10.8% on the bundled file (band 9.0-12.6%),
+/// 1.2 points short, so this checks 10.5% to catch regressions and prints
+/// the figure. It was 10.6% before the 4th period's drive model
+/// (`wp::drive`: outcome, next zone and clock of a possession by start
+/// zone, solved backward over margin x time x zone) entered as three logit
+/// terms; held out by season, gain and mean squared distance to the oracle
+/// (below) went, seed 101: 11.0% to 11.6%, 0.00756 to 0.00678; seed 202:
+/// 8.8% to 9.1%, 0.00753 to 0.00677; this league: 10.6% to 10.8%, 0.00792
+/// to 0.00720; the worst of five bins 0.008-0.022 (this league 0.021 to
+/// 0.022). Tried
 /// and dropped (held out by season, same stratum): a late-game model fit on
 /// the final 10:00 and overtime alone (10.1%), the next score's outcome
 /// against the margin (10.6%), the line against late time (10.4%), key
@@ -455,7 +463,7 @@ fn late_and_close_is_calibrated() {
     let gain = late.brier_gain.value;
     eprintln!("late and close: worst bin gap {worst:.3}, Brier {:.1}% below the baseline", 100.0 * gain);
     assert!(worst <= 0.04, "worst late-and-close bin is {worst:.3} from the observed share");
-    assert!(gain >= 0.10, "late-and-close Brier only {:.1}% below the baseline", 100.0 * gain);
+    assert!(gain >= 0.105, "late-and-close Brier only {:.1}% below the baseline", 100.0 * gain);
 }
 
 /// From the home side, WP before the first snap plus every snap's WPA ends
@@ -668,6 +676,11 @@ fn fit_time_per_model() {
     let ep = ep.expect("ep");
     let mut blind = Vec::new();
     time("ep blind scores", &mut || blind = ep.score_all_blind(&plays));
+    time("wp drive model (estimate and solve)", &mut || {
+        let d = models::wp::drive::DriveParams::estimate(&plays, &rows).expect("drives");
+        let t = d.solve();
+        assert!(t.value(0.0, 900.0, 25.0) > 0.0);
+    });
     time("wp", &mut || {
         models::wp::fit(&plays, &blind, &rows, models::wp::WpKind::Full, &opts, None).expect("wp");
     });

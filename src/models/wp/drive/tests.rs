@@ -1,0 +1,103 @@
+use super::*;
+use crate::models::testkit;
+
+/// Every (mode, zone) cell ends the same way.
+fn uniform(outcomes: &[Outcome]) -> DriveParams {
+    DriveParams { cells: vec![outcomes.to_vec(); NMODE * NZ], drives: 0 }
+}
+
+fn o(swing: i32, keep: bool, steps: u16, share: f64) -> Outcome {
+    Outcome { swing, keep, zone: 1, steps, share }
+}
+
+/// Worked by hand: every possession takes 60 s (12 steps) and gains 3.
+/// Tied with 60 s left: the field goal comes as time runs out, so the team
+/// with the ball wins (V = 1). Tied with 120 s: it goes up 3 with 60 s left
+/// and hands the ball over, the other side ties it at 0:00: ½. Up 3 with
+/// 120 s: up 6, the other side gets only to −3: 1. With 55 s (11 steps)
+/// the drive gets 11/12 of its outcome: 11/12 + ½/12 = 23/24. When a drive
+/// takes 120 s and 60 s are left, half: ½ · 1 + ½ · ½ = 0.75 at a tie.
+#[test]
+fn backward_induction_by_hand() {
+    let t = uniform(&[o(3, false, 12, 1.0)]).solve();
+    assert_eq!(t.get(0, 0, 2), 0.5);
+    assert_eq!(t.get(0, 1, 2), 1.0);
+    assert_eq!(t.get(0, -1, 2), 0.0);
+    assert_eq!(t.get(12, 0, 2), 1.0);
+    assert_eq!(t.get(24, 0, 2), 0.5);
+    assert_eq!(t.get(24, 3, 2), 1.0);
+    assert_eq!(t.get(24, -3, 2), 0.0);
+    assert!((t.get(11, 0, 0) - 23.0 / 24.0).abs() < 1e-12);
+    let slow = uniform(&[o(3, false, 24, 1.0)]).solve();
+    assert_eq!(slow.get(12, 0, 4), 0.75);
+    // Two ways, each half the time, 30 s each, the other side getting the
+    // ball: a touchdown (7) or nothing. Down 4 with 30 s: ½ (score as the
+    // clock ends, or not). Down 4 with 60 s: after a touchdown (up 3) the
+    // other side has 30 s and wins half the time; after nothing it is up
+    // 4 with 30 s and always wins: ½ · ½ + ½ · 0 = ¼.
+    let td = uniform(&[o(7, false, 6, 0.5), o(0, false, 6, 0.5)]).solve();
+    assert_eq!(td.get(6, -4, 1), 0.5);
+    assert_eq!(td.get(12, -4, 1), 0.25);
+    // Keeping the ball after a return score against (−7 each 30 s): with
+    // 60 s left only a lead above 14 holds, 14 ties.
+    let keep = uniform(&[o(-7, true, 6, 1.0)]).solve();
+    assert_eq!(keep.get(12, 15, 0), 1.0);
+    assert_eq!(keep.get(12, 14, 0), 0.5);
+    assert_eq!(keep.get(12, 10, 0), 0.0);
+}
+
+#[test]
+fn value_interpolates_the_grid() {
+    let t = uniform(&[o(7, false, 6, 0.5), o(0, false, 6, 0.5)]).solve();
+    // On grid points (time, margin, a zone's own yard line) it is the grid.
+    assert!((t.value(-4.0, 60.0, 25.0) - t.get(12, -4, 1)).abs() < 1e-12);
+    assert!((t.value(-4.0, 30.0, 82.0) - t.get(6, -4, 4)).abs() < 1e-12);
+    let mid = t.value(-3.5, 60.0, 25.0);
+    assert!((mid - 0.5 * (t.get(12, -4, 1) + t.get(12, -3, 1))).abs() < 1e-12);
+    let between = t.value(-4.0, 62.5, 25.0);
+    assert!((between - 0.5 * (t.get(12, -4, 1) + t.get(13, -4, 1))).abs() < 1e-12);
+    // Off the grid it clamps.
+    assert_eq!(t.value(50.0, 2000.0, 150.0), t.get(NT - 1, MAX_MARGIN, NZ - 1));
+}
+
+#[test]
+fn estimated_from_a_league() {
+    let plays = testkit::league(400, 2, 5);
+    let rows: Vec<u32> = (0..plays.len() as u32).collect();
+    let p = DriveParams::estimate(&plays, &rows).expect("drives in every zone");
+    assert!(p.drives > 5000, "{} drives", p.drives);
+    for c in &p.cells {
+        let s: f64 = c.iter().map(|o| o.share).sum();
+        assert!((s - 1.0).abs() < 1e-9, "shares sum to {s}");
+        assert!(c.iter().all(|o| o.steps >= 1 && o.swing.abs() <= MAX_SWING));
+    }
+    // Drives from deep in the opponent's half score more than from one's own 10.
+    let pts = |z: usize| p.cells[z].iter().map(|o| o.share * o.swing as f64).sum::<f64>();
+    assert!(pts(4) > pts(0) + 1.0, "{} vs {}", pts(4), pts(0));
+    let t0 = std::time::Instant::now();
+    let t = p.solve();
+    eprintln!("drive table solved in {:.1} ms", t0.elapsed().as_secs_f64() * 1e3);
+    for k in 0..NT {
+        for z in 0..NZ {
+            for m in -MAX_MARGIN..MAX_MARGIN {
+                let (a, b) = (t.get(k, m, z), t.get(k, m + 1, z));
+                assert!((0.0..=1.0).contains(&a) && a <= b, "k {k} m {m} z {z}");
+            }
+        }
+    }
+    // Up 8 with the ball and a minute left nearly always wins; a tie at
+    // 15:00 is near a coin flip, the ball at the opponent's 18 worth more.
+    assert!(t.value(8.0, 60.0, 40.0) > 0.95);
+    let tie = t.value(0.0, 900.0, 25.0);
+    assert!((0.4..0.7).contains(&tie), "{tie}");
+    assert!(t.value(0.0, 900.0, 82.0) > tie);
+    // Held-out rows are never read: the drives of one season alone differ.
+    let first: Vec<u32> = rows.iter().copied().filter(|&i| plays.season[i as usize] == plays.season[0]).collect();
+    let q = DriveParams::estimate(&plays, &first).expect("one season");
+    assert!(q.drives < p.drives && q.drives > 1000);
+    // Kept in the cache as shares: a model read back solves the same table.
+    let m = DriveModel::new(p);
+    let back: DriveModel = serde_json::from_str(&serde_json::to_string(&m).expect("json")).expect("parse");
+    assert_eq!(back, m);
+    assert_eq!(back.table(), m.table());
+}
