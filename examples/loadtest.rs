@@ -1,7 +1,7 @@
 //! A load test for `lategame serve`: N clients on keep-alive connections
 //! (plain std threads and TCP, HTTP/1.1) for a while, each asking in turn
 //! for the explorer (all seasons and one season), `/api/splits` and
-//! passer profiles (up to 200 passers, in turn); prints p50/p99, errors and timeouts per endpoint, and
+//! passer profiles (up to 200 passers in turn, LATEGAME_LOADTEST_PASSERS to change); prints p50/p99, errors and timeouts per endpoint, and
 //! the server's peak RSS when its pid is given. With `fresh` last, every
 //! request asks for one of 200 minimum-dropback settings (`min=`), so
 //! nearly every answer is a table the server has not finished before (its
@@ -14,7 +14,8 @@ use std::net::TcpStream;
 use std::sync::{Arc, Mutex};
 use std::time::{Duration, Instant};
 
-/// Passers whose profiles are asked for, in turn.
+/// Passers whose profiles are asked for, in turn (LATEGAME_LOADTEST_PASSERS
+/// sets another number; earlier runs asked for 6).
 const PASSERS: usize = 200;
 /// A request that took longer than this counts as a timeout.
 const TIMEOUT: Duration = Duration::from_secs(10);
@@ -117,7 +118,8 @@ fn main() {
     // Up to 200 passers of every season, so most profile requests in a
     // 30-second test ask for a passer the server has not answered yet.
     let table: serde_json::Value = serde_json::from_str(&fetch("/api/splits?preset=every-snap")).unwrap_or_default();
-    let passers: Vec<String> = table["rows"].as_array().map(|r| r.iter().take(PASSERS).filter_map(|x| x["passer"].as_str().map(str::to_string)).collect()).unwrap_or_default();
+    let how_many = std::env::var("LATEGAME_LOADTEST_PASSERS").ok().and_then(|n| n.parse().ok()).unwrap_or(PASSERS);
+    let passers: Vec<String> = table["rows"].as_array().map(|r| r.iter().take(how_many).filter_map(|x| x["passer"].as_str().map(str::to_string)).collect()).unwrap_or_default();
     let enc = |s: &str| s.bytes().map(|b| if b.is_ascii_alphanumeric() { (b as char).to_string() } else { format!("%{b:02X}") }).collect::<String>();
     let mut endpoints: Vec<(String, Vec<String>)> = vec![
         ("explore, all seasons".into(), vec!["/explore?preset=end-of-game".into()]),
