@@ -543,9 +543,8 @@ fn projector_view_is_kept_on_every_page_link() {
 
 /// The tables warmed at start are the ones the first pages ask for: after
 /// `warm`, the explorer's default view and a preset over the latest season
-/// compute no table of their own, and a passer's profile computes one only
-/// for each preset where he is short of the minimum (his row is then
-/// estimated too).
+/// compute no table of their own, and a passer's profile computes none (his
+/// row of each preset alone).
 #[test]
 fn the_warmed_tables_are_the_ones_the_first_pages_ask() {
     let league = common::demo_league();
@@ -587,4 +586,35 @@ fn the_warmed_tables_are_the_ones_the_first_pages_ask() {
             }
         }
     }
+}
+
+/// The room opens the same page at once: requests for an answer being made
+/// wait for it and get the same bytes; the engine makes it once. Then a
+/// repeat is answered from the kept answers, and another view is made anew.
+#[test]
+fn the_same_page_asked_at_once_is_made_once() {
+    let league = common::demo_league();
+    let app = lategame::web::App::new(league, lategame::web::AppConfig::new(common::league_config(&lategame::league::demo_path())));
+    let state = app.state.clone();
+    let base = common::spawn_app(app);
+    let page = format!("{base}/explore?preset=end-of-game-red-zone&min=7");
+    assert_eq!(state.answers_made(), 0);
+    let replies: Vec<common::Reply> = std::thread::scope(|s| {
+        let asks: Vec<_> = (0..8).map(|_| s.spawn(|| get(&page))).collect();
+        asks.into_iter().map(|h| h.join().expect("request thread")).collect()
+    });
+    for r in &replies {
+        assert_eq!(r.status, 200);
+        assert_eq!(r.body, replies[0].body, "every waiter gets the same page");
+    }
+    assert!(replies[0].body.to_lowercase().contains("red zone"), "the red-zone page");
+    assert_eq!(state.answers_made(), 1, "eight requests at once, one answer made");
+    assert_eq!(get(&page).body, replies[0].body);
+    assert_eq!(state.answers_made(), 1, "a repeat is the kept answer");
+    assert_eq!(get(&format!("{base}/explore?preset=end-of-game-red-zone&min=8")).status, 200);
+    assert_eq!(state.answers_made(), 2, "another view is made");
+    // A bad request is an error for every waiter and is not kept.
+    let bad = format!("{base}/explore?preset=end-of-game-red-zonee");
+    assert_eq!(get(&bad).status, 400);
+    assert_eq!(get(&bad).status, 400);
 }

@@ -4,13 +4,17 @@
 //! address with the same "our team / our passer" gets the same bytes: a
 //! repeat is answered without waiting for an engine permit. Only successful
 //! answers are kept; bounded by bytes, least recently used out; the key
-//! holds the loaded league, and a reload empties the cache.
+//! holds the loaded league, and a reload empties the cache. Requests for an
+//! answer being made wait for it rather than make it again (the projector
+//! and the laptops in the room open the same page at once).
 
 use super::service::{engine, ours};
 use super::Shared;
 use axum::body::{Body, Bytes};
 use axum::http::{HeaderMap, StatusCode};
-use axum::response::{IntoResponse, Response};
+use axum::response::Response;
+use std::collections::HashMap;
+use std::sync::atomic::Ordering;
 use std::sync::Arc;
 
 /// How many bytes of finished answers are kept at most (a 25-season
@@ -26,31 +30,64 @@ pub fn finished_cache() -> FinishedCache {
     FinishedCache::new(usize::MAX, FINISHED_BYTES)
 }
 
-/// The answer to `path?q` for this request's team and passer: kept, or made
-/// by `make` on the engine's pool (`service::engine`) and kept when it is a
-/// success.
+/// An answer as made: status, headers and body.
+#[derive(Clone)]
+pub struct Made {
+    status: StatusCode,
+    headers: HeaderMap,
+    body: Bytes,
+}
+
+/// Answers being made, by key; each waiter holds the same cell.
+pub type InFlight = HashMap<String, Arc<tokio::sync::OnceCell<Made>>>;
+
+/// The answer to `path?q` for this request's team and passer: kept, being
+/// made (then waited for), or made by `make` on the engine's pool
+/// (`service::engine`) and kept when it is a success.
 pub async fn answer(st: &Shared, path: &str, headers: &HeaderMap, q: Option<&str>, make: impl FnOnce() -> Response + Send + 'static) -> Response {
     let (team, passer) = ours(st, headers);
     let league = Arc::as_ptr(&st.loaded().league) as usize;
     let key = format!("{league:x}|{path}?{}|{team:?}|{passer:?}", q.unwrap_or(""));
     if let Some((headers, body)) = st.finished.lock().ok().and_then(|mut c| c.get(&key)) {
-        let mut r = Response::new(Body::from(body));
-        *r.headers_mut() = headers;
-        return r;
+        return respond(Made { status: StatusCode::OK, headers, body });
     }
-    let made = engine(st, make).await;
-    if made.status() != StatusCode::OK {
-        return made;
-    }
-    let (parts, body) = made.into_parts();
-    let Ok(body) = axum::body::to_bytes(body, usize::MAX).await else {
-        return (StatusCode::INTERNAL_SERVER_ERROR, "the answer could not be read back").into_response();
+    let cell = match st.in_flight.lock() {
+        Ok(mut m) => m.entry(key.clone()).or_default().clone(),
+        Err(_) => Arc::new(tokio::sync::OnceCell::new()),
     };
-    if let Ok(mut c) = st.finished.lock() {
-        c.insert(key, (parts.headers.clone(), body.clone()), body.len());
-        tracing::debug!(kept = c.len(), bytes = c.bytes(), "finished answers");
+    let made = cell
+        .get_or_init(|| async {
+            st.answers_made.fetch_add(1, Ordering::Relaxed);
+            let (parts, body) = engine(st, make).await.into_parts();
+            let body = match axum::body::to_bytes(body, usize::MAX).await {
+                Ok(b) => b,
+                Err(_) => return Made { status: StatusCode::INTERNAL_SERVER_ERROR, headers: HeaderMap::new(), body: Bytes::from_static(b"the answer could not be read back") },
+            };
+            if parts.status == StatusCode::OK {
+                if let Ok(mut c) = st.finished.lock() {
+                    c.insert(key.clone(), (parts.headers.clone(), body.clone()), body.len());
+                    tracing::debug!(kept = c.len(), bytes = c.bytes(), "finished answers");
+                }
+            }
+            Made { status: parts.status, headers: parts.headers, body }
+        })
+        .await
+        .clone();
+    // The first waiter to get here takes the cell out (an error is made
+    // again on the next request; a success is kept above).
+    if let Ok(mut m) = st.in_flight.lock() {
+        if m.get(&key).is_some_and(|c| Arc::ptr_eq(c, &cell)) {
+            m.remove(&key);
+        }
     }
-    Response::from_parts(parts, Body::from(body))
+    respond(made)
+}
+
+fn respond(made: Made) -> Response {
+    let mut r = Response::new(Body::from(made.body));
+    *r.status_mut() = made.status;
+    *r.headers_mut() = made.headers;
+    r
 }
 
 #[cfg(test)]

@@ -119,6 +119,11 @@ pub struct AppState {
     splits_cache: std::sync::Mutex<tables::TableCache>,
     /// Finished answers of the read-only views, by request (`finished`).
     finished: std::sync::Mutex<finished::FinishedCache>,
+    /// Answers being made, by the same key: a request for one waits for it
+    /// instead of making it again (`finished::answer`).
+    in_flight: std::sync::Mutex<finished::InFlight>,
+    /// Answers made by the engine for `finished::answer` since start.
+    answers_made: std::sync::atomic::AtomicU64,
     /// The staff's film notes and cut-up lists (None when the database
     /// could not be opened; the rest of the server still works).
     notes: Option<Arc<NoteStore>>,
@@ -152,6 +157,8 @@ impl AppState {
             reload_note: RwLock::new(None),
             splits_cache: std::sync::Mutex::new(tables::table_cache()),
             finished: std::sync::Mutex::new(finished::finished_cache()),
+            in_flight: std::sync::Mutex::new(finished::InFlight::default()),
+            answers_made: std::sync::atomic::AtomicU64::new(0),
             notes,
         }
     }
@@ -273,6 +280,12 @@ impl AppState {
     /// How many split tables the server keeps now.
     pub fn tables_kept(&self) -> usize {
         self.splits_cache.lock().map(|c| c.len()).unwrap_or(0)
+    }
+
+    /// How many answers of the read-only views the engine has made (a
+    /// request that found its answer kept or being made adds none).
+    pub fn answers_made(&self) -> u64 {
+        self.answers_made.load(std::sync::atomic::Ordering::Relaxed)
     }
 
     pub fn reload_note(&self) -> Option<String> {
