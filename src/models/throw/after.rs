@@ -9,7 +9,6 @@ use crate::models::Models;
 use crate::plays::Plays;
 
 /// Where the ball is after an outcome.
-#[derive(Debug, Clone, Copy, PartialEq)]
 enum Next {
     /// The offense keeps it: down, to go, spot.
     Keep(i32, i32, i32),
@@ -22,7 +21,8 @@ enum Next {
 }
 
 /// The offense's WP after an outcome that took `secs` seconds.
-fn wp_after(models: &Models, s0: &Situation, st: &State, secs: i32, next: Next) -> f64 {
+fn wp_after(models: &Models, s0: &Situation, st: &State, secs: f64, next: Next) -> f64 {
+    let secs = secs.round() as i32;
     let secs_half = st.secs_half - secs;
     let end_of_game = secs_half <= 0 && (st.period == 4 || st.period >= 5);
     let margin = |m: f64| if m > 0.0 { 1.0 } else if m < 0.0 { 0.0 } else { 0.5 };
@@ -105,57 +105,32 @@ fn after_gain(st: &State, g: i32) -> Next {
     }
 }
 
-/// The states one snap's throws can leave, each priced once: the same
-/// clock used and the same spot (an incompletion in any band with the same
-/// runoff, gain points that end alike) are looked up, not priced again.
-struct Priced<'a> {
-    models: &'a Models,
-    s0: &'a Situation,
-    st: &'a State,
-    seen: Vec<(i32, Next, f64)>,
-}
-
-impl Priced<'_> {
-    /// The offense's WP after an outcome that took `secs` seconds (rounded
-    /// to whole seconds, as the clock runs).
-    fn wp(&mut self, secs: f64, next: Next) -> f64 {
-        let secs = secs.round() as i32;
-        if let Some(&(_, _, v)) = self.seen.iter().find(|&&(t, n, _)| t == secs && n == next) {
-            return v;
-        }
-        let v = wp_after(self.models, self.s0, self.st, secs, next);
-        self.seen.push((secs, next, v));
-        v
-    }
-}
-
 /// Expected WP after a throw in each band, from the offense's side.
 pub(super) fn expected_wp(model: &ThrowModel, models: &Models, s0: &Situation, st: &State) -> [f64; BANDS] {
     let rg = regime(st);
-    let mut priced = Priced { models, s0, st, seen: Vec::with_capacity(BANDS * (GAIN_POINTS + 4)) };
     std::array::from_fn(|b| {
         let q = model.outcome_probs(st, b);
         let run = |o: usize| model.runoff[rg][o][b];
-        let inc = priced.wp(run(INCOMPLETE), after_gain(st, 0));
+        let inc = wp_after(models, s0, st, run(INCOMPLETE), after_gain(st, 0));
         let nq = GAIN_POINTS as f64;
         // A catch fumbled away leaves the ball where a middle catch ends.
         let kept: f64 = model.gains[b]
             .iter()
-            .map(|&g| priced.wp(run(COMPLETE), after_gain(st, g.round() as i32)))
+            .map(|&g| wp_after(models, s0, st, run(COMPLETE), after_gain(st, g.round() as i32)))
             .sum::<f64>()
             / nq;
         let pf = model.catch_fumble[b];
         let mid = st.ball_on + model.gains[b][GAIN_POINTS / 2].round() as i32;
         let comp = if pf > 0.0 && mid < 100 {
-            (1.0 - pf) * kept + pf * priced.wp(run(COMPLETE), Next::Over(100 - mid.max(1)))
+            (1.0 - pf) * kept + pf * wp_after(models, s0, st, run(COMPLETE), Next::Over(100 - mid.max(1)))
         } else {
             kept
         };
         let mirror = (100 - st.ball_on) as f64 + model.int_spot[b];
         let spot = if mirror < 1.0 { 20 } else { (mirror.round() as i32).min(99) };
         let ps = model.pick_six[b];
-        let int = (1.0 - ps) * priced.wp(run(INTERCEPTED), Next::Over(spot))
-            + ps * priced.wp(run(INTERCEPTED), Next::PickSix);
+        let int = (1.0 - ps) * wp_after(models, s0, st, run(INTERCEPTED), Next::Over(spot))
+            + ps * wp_after(models, s0, st, run(INTERCEPTED), Next::PickSix);
         q[INCOMPLETE] * inc + q[COMPLETE] * comp + q[INTERCEPTED] * int
     })
 }
@@ -165,28 +140,4 @@ pub(super) fn expected_wpa(model: &ThrowModel, models: &Models, p: &Plays, ep: &
     let s0 = Situation::of_snap(p, ep, i);
     let st = State::of_snap(p, i);
     expected_wp(model, models, &s0, &st).map(|w| w - wp_before)
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-    use crate::models::{fit, testkit};
-
-    #[test]
-    fn each_state_is_priced_once_and_as_priced_alone() {
-        let plays = testkit::league(120, 1, 3);
-        let models = fit(&plays).expect("fit");
-        let ep = models.ep.score_all_blind(&plays);
-        let i = (0..plays.len()).find(|&i| super::super::applies(&plays, i) && plays.down[i] == 3).expect("a 3rd-down pass");
-        let (s0, st) = (Situation::of_snap(&plays, &ep, i), State::of_snap(&plays, i));
-        let mut priced = Priced { models: &models, s0: &s0, st: &st, seen: Vec::new() };
-        let asked: [(f64, Next); 9] = [(6.0, after_gain(&st, 0)), (5.6, after_gain(&st, 0)), (6.4, after_gain(&st, 0)), (7.0, after_gain(&st, 0)), (6.0, Next::PickSix), (6.0, Next::Over(30)), (6.0, Next::Over(30)), (6.0, after_gain(&st, 12)), (7.0, after_gain(&st, 12))];
-        for (secs, next) in asked {
-            let alone = wp_after(&models, &s0, &st, secs.round() as i32, next);
-            assert_eq!(priced.wp(secs, next).to_bits(), alone.to_bits(), "{secs} {next:?}");
-        }
-        // 5.6, 6.0 and 6.4 seconds run the same clock: one state.
-        assert_eq!(priced.seen.len(), 6);
-        assert!(priced.seen.iter().all(|&(_, _, v)| (0.0..=1.0).contains(&v)));
-    }
 }
