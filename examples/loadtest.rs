@@ -6,11 +6,17 @@
 //! request asks for one of 200 minimum-dropback settings (`min=`), so
 //! nearly every answer is a table the server has not finished before (its
 //! situations' passes are memoised): the engine's path, not its caches.
+//! With `new` last, every request of every client asks for a situation no
+//! request has asked before (a margin window of its own, `margin=LO..HI`,
+//! on the view's preset): no pass, fit or answer is kept for it, so each one
+//! costs what the engine costs, and 32 such requests at once queue for the
+//! cores.
 //!
-//! `cargo run --release --example loadtest -- http://127.0.0.1:8750 [clients] [seconds] [server pid] [fresh]`
+//! `cargo run --release --example loadtest -- http://127.0.0.1:8750 [clients] [seconds] [server pid] [fresh|new]`
 
 use std::io::{BufRead, BufReader, Read, Write};
 use std::net::TcpStream;
+use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::{Arc, Mutex};
 use std::time::{Duration, Instant};
 
@@ -84,6 +90,14 @@ fn load_average() -> String {
     std::fs::read_to_string("/proc/loadavg").ok().and_then(|s| s.split_whitespace().next().map(str::to_string)).unwrap_or_else(|| "unknown".into())
 }
 
+/// The `n`th margin window, each one different: LO from -9 down to -98,
+/// HI from 1 up to 99, so 8,910 windows before one comes round again (more
+/// than a 30-second test asks at the engine's speed).
+fn margin_window(n: usize) -> (i64, i64) {
+    let n = n % (90 * 99);
+    (-9 - (n % 90) as i64, 1 + (n / 90) as i64)
+}
+
 fn pct(v: &[f64], p: f64) -> f64 {
     if v.is_empty() {
         return f64::NAN;
@@ -96,8 +110,9 @@ fn main() {
     let base = args.get(1).cloned().unwrap_or_else(|| "http://127.0.0.1:8750".into());
     let clients: usize = args.get(2).and_then(|s| s.parse().ok()).unwrap_or(32);
     let secs: u64 = args.get(3).and_then(|s| s.parse().ok()).unwrap_or(30);
-    let pid = args.get(4).cloned().filter(|a| a != "fresh");
+    let pid = args.get(4).cloned().filter(|a| a != "fresh" && a != "new");
     let fresh = args.last().is_some_and(|a| a == "fresh");
+    let new = args.last().is_some_and(|a| a == "new");
     let host = base.trim_start_matches("http://").trim_end_matches('/').to_string();
 
     // The league's seasons and busiest passers, from the API.
@@ -127,7 +142,14 @@ fn main() {
         ("/api/splits".into(), vec!["/api/splits?preset=end-of-game".into(), format!("/api/splits?preset=two-minute-drill&season={last}")]),
     ];
     endpoints.push(("passer profile".into(), passers.iter().map(|p| format!("/passer?passer={}", enc(p))).collect()));
-    println!("load test: {clients} clients, {secs} s, {base}{}; {} passers' profiles", if fresh { ", a new minimum on each request" } else { "" }, passers.len());
+    let mode = if fresh {
+        ", a new minimum on each request"
+    } else if new {
+        ", a situation never asked on each request"
+    } else {
+        ""
+    };
+    println!("load test: {clients} clients, {secs} s, {base}{mode}; {} passers' profiles", passers.len());
     println!("load average at the start: {}", load_average());
     if let Some((rss, peak)) = pid.as_deref().and_then(rss_mib) {
         println!("server before the test: resident {rss:.0} MiB, peak {peak:.0} MiB");
@@ -136,9 +158,11 @@ fn main() {
     let tallies: Arc<Vec<Mutex<Tally>>> = Arc::new(endpoints.iter().map(|_| Mutex::new(Tally::default())).collect());
     let endpoints = Arc::new(endpoints);
     let stop = Instant::now() + Duration::from_secs(secs);
+    // One counter for all clients: request n of the test gets window n.
+    let serial = Arc::new(AtomicUsize::new(0));
     let threads: Vec<_> = (0..clients)
         .map(|c| {
-            let (tallies, endpoints, host) = (tallies.clone(), endpoints.clone(), host.clone());
+            let (tallies, endpoints, host, serial) = (tallies.clone(), endpoints.clone(), host.clone(), serial.clone());
             std::thread::spawn(move || {
                 let mut conn = connect(&host).ok();
                 let mut k = c;
@@ -146,7 +170,14 @@ fn main() {
                     let e = k % endpoints.len();
                     let urls = &endpoints[e].1;
                     let url = &urls[(k / endpoints.len()) % urls.len().max(1)];
-                    let url = if fresh { format!("{url}&min={}", 5 + (k * 7919) % 200) } else { url.clone() };
+                    let url = if fresh {
+                        format!("{url}&min={}", 5 + (k * 7919) % 200)
+                    } else if new {
+                        let (lo, hi) = margin_window(serial.fetch_add(1, Ordering::Relaxed));
+                        format!("{url}&margin={lo}..{hi}")
+                    } else {
+                        url.clone()
+                    };
                     k += 1;
                     let t = Instant::now();
                     let result = (|| -> std::io::Result<u16> {

@@ -33,12 +33,27 @@ fn fmt_tick(v: f64) -> String {
     }
 }
 
+/// The decimals an axis's labels all share: the fewest (up to 3) that
+/// write every tick exactly, so 0, 0.2, ... 1 read "0.0", "0.2", ... "1.0"
+/// rather than "0", "0.20", "1".
+fn tick_decimals(ticks: &[f64]) -> usize {
+    (0..3)
+        .find(|&d| {
+            let k = 10f64.powi(d as i32);
+            ticks.iter().all(|t| ((t * k).round() - t * k).abs() < 1e-6)
+        })
+        .unwrap_or(3)
+}
+
 fn x_axis(shapes: &mut Vec<Shape>, sx: &Scale, y: f64, top: f64, ticks: &[f64]) {
     shapes.push(Shape::Line { x1: sx.r0, y1: y, x2: sx.r1, y2: y, class: "axis" });
+    let d = tick_decimals(ticks);
     for &t in ticks {
         let x = sx.at(t);
         shapes.push(Shape::Line { x1: x, y1: top, x2: x, y2: y, class: "grid" });
-        shapes.push(Shape::Text { x, y: y + 16.0, text: fmt_tick(t), anchor: Anchor::Middle, class: "tick" });
+        // `+ 0.0` writes a negative zero as "0".
+        let text = format!("{:.d$}", t + 0.0);
+        shapes.push(Shape::Text { x, y: y + 16.0, text, anchor: Anchor::Middle, class: "tick" });
     }
 }
 
@@ -356,6 +371,16 @@ mod tests {
         let dots = fig.shapes.iter().filter(|s| matches!(s, Shape::Circle { .. })).count();
         assert_eq!(dots, 1, "no dot where he has no throws");
         assert!(fig.desc.contains("11+: yards needed 14.0, his depth n/a, league's depth 12.0"), "{}", fig.desc);
+    }
+
+    #[test]
+    fn an_axis_writes_its_ticks_with_one_number_of_decimals() {
+        assert_eq!(tick_decimals(&[0.0, 0.2, 0.4, 0.6, 0.8, 1.0]), 1);
+        assert_eq!(tick_decimals(&[-10.0, 0.0, 10.0, 20.0]), 0);
+        assert_eq!(tick_decimals(&[0.0, 0.25, 0.5]), 2);
+        let fig = reliability("wp", &[(0.3, 0.35, 10)], 400.0, 300.0);
+        let labels: Vec<&str> = fig.shapes.iter().filter_map(|s| if let Shape::Text { text, anchor: Anchor::Middle, .. } = s { Some(text.as_str()) } else { None }).collect();
+        assert_eq!(labels, ["0.0", "0.2", "0.4", "0.6", "0.8", "1.0"]);
     }
 
     #[test]
