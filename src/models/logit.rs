@@ -7,6 +7,7 @@ use serde::{Deserialize, Serialize};
 
 mod design;
 mod newton;
+mod nonzero;
 mod pass;
 
 pub use design::{DenseDesign, Design, FnDesign};

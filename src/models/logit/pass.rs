@@ -59,7 +59,7 @@ pub(super) fn softmax_row(coef: &[Vec<f64>], free: &[usize], reference: usize, x
         *v = 0.0;
     }
     let mut eta = [0.0f64; 16];
-    linear_predictors(coef, x, &mut eta);
+    super::nonzero::linear_predictors_nonzero(coef, x, &mut eta);
     let mut max = 0.0f64;
     for &e in &eta[..coef.len()] {
         max = max.max(e);
