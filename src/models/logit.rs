@@ -7,8 +7,8 @@ use serde::{Deserialize, Serialize};
 
 mod design;
 mod newton;
-mod nonzero;
 mod pass;
+mod sums;
 
 pub use design::{DenseDesign, Design, FnDesign};
 use newton::*;

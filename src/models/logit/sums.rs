@@ -1,16 +1,62 @@
-//! Linear predictors over a row's nonzero features only, the same bit for
-//! bit as the dense sums (`dot`, `linear_predictors`): each class's products
-//! are still added first feature to last from -0.0, and a skipped product
-//! is ±0, which leaves a sum unchanged (or only changes the sign of a zero
-//! sum, which no exponential or comparison downstream tells apart).
-//! Coefficients are finite, so no skipped product would have been NaN.
-//! Most rows of the EP and WP designs are two-thirds zeros (late-game,
-//! overtime, kickoff and try terms), so a row costs a third of the adds,
-//! and the classes' sums run side by side instead of four at a time.
+//! Linear predictors of a row: dense (`dot`, `linear_predictors`), and, for
+//! softmax rows, over the row's nonzero features only
+//! (`linear_predictors_nonzero`), the same bit for bit: each class's
+//! products are still added first feature to last from -0.0, and a skipped
+//! product is ±0, which leaves a sum unchanged (or only changes the sign of
+//! a zero sum, which no exponential or comparison downstream tells apart).
+//! Coefficients are finite, so no skipped product would have been NaN. An
+//! EP row has about 12 nonzero features of 28 (one down, the field
+//! position's knots behind the ball, no late-game terms), and its six class
+//! sums run side by side in registers.
 
-use super::pass::linear_predictors;
-#[cfg(test)]
-use super::pass::dot;
+/// One row's linear predictor.
+#[inline]
+pub(super) fn dot(a: &[f64], b: &[f64]) -> f64 {
+    a.iter().zip(b).map(|(x, y)| x * y).sum()
+}
+
+/// `eta[j] = dot(coef[j], x)` for every class row, up to four rows at a
+/// time: each row's products are added in the same order as `dot` (first to
+/// last feature, from -0.0 as `Sum` does), so every value is the same bit
+/// for bit; only the rows' independent sums are interleaved, which the
+/// compiler can keep in one vector register.
+#[inline]
+pub(super) fn linear_predictors(coef: &[Vec<f64>], x: &[f64], eta: &mut [f64]) {
+    let mut j = 0;
+    let m = coef.len();
+    while j < m {
+        match m - j {
+            1 => {
+                eta[j] = dot(&coef[j], x);
+                j += 1;
+            }
+            k => {
+                let n = k.min(4);
+                let rows = &coef[j..j + n];
+                let p = x.len().min(rows[0].len());
+                if rows.iter().any(|c| c.len().min(x.len()) != p) {
+                    for (e, c) in eta[j..j + n].iter_mut().zip(rows) {
+                        *e = dot(c, x);
+                    }
+                } else {
+                    // Fewer than four rows left: the last is repeated and its copies dropped.
+                    let r = |t: usize| &rows[t.min(n - 1)][..p];
+                    let (c0, c1, c2, c3) = (r(0), r(1), r(2), r(3));
+                    let mut s = [-0.0f64; 4];
+                    for a in 0..p {
+                        let xa = x[a];
+                        s[0] += c0[a] * xa;
+                        s[1] += c1[a] * xa;
+                        s[2] += c2[a] * xa;
+                        s[3] += c3[a] * xa;
+                    }
+                    eta[j..j + n].copy_from_slice(&s[..n]);
+                }
+                j += n;
+            }
+        }
+    }
+}
 
 /// Rows up to this many features gather their nonzero positions on the stack.
 const MAX_GATHER: usize = 64;
