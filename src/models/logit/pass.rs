@@ -4,7 +4,9 @@
 
 use super::*;
 
-pub(super) use super::sums::{dot, linear_predictors};
+pub(super) use super::sums::dot;
+#[cfg(test)]
+pub(super) use super::sums::linear_predictors;
 
 /// Softmax over the reference (linear predictor 0) and the free classes;
 /// every other class gets 0.
@@ -101,11 +103,26 @@ pub(super) fn accumulate(pr: Problem, coef: &[Vec<f64>], rows: &[usize], with_he
                 acc.ll += w * t[c] * q[c].max(1e-300).ln();
             }
         }
+        // The row's nonzero features: the Hessian's pairs, and the
+        // gradient of a softmax (several class rows) where a zero feature
+        // would add ±0, which leaves a sum as it was (a sum that starts at
+        // +0 never turns -0), so skipping it changes no bit.
+        let sparse = with_hess || m > 1;
+        if sparse {
+            nz.clear();
+            nz.extend((0..p).filter(|&a| x[a] != 0.0));
+        }
         for (j, &c) in pr.free.iter().enumerate() {
             let r = w * (t[c] - q[c]);
             let g = &mut acc.grad[j * p..(j + 1) * p];
-            for a in 0..p {
-                g[a] += r * x[a];
+            if sparse && r.is_finite() {
+                for &a in &nz {
+                    g[a] += r * x[a];
+                }
+            } else {
+                for a in 0..p {
+                    g[a] += r * x[a];
+                }
             }
         }
         if with_hess {
@@ -117,8 +134,6 @@ pub(super) fn accumulate(pr: Problem, coef: &[Vec<f64>], rows: &[usize], with_he
                     pi += 1;
                 }
             }
-            nz.clear();
-            nz.extend((0..p).filter(|&a| x[a] != 0.0));
             for (ia, &a) in nz.iter().enumerate() {
                 let xa = x[a];
                 let base = starts[a];
