@@ -74,11 +74,14 @@ fn main() -> anyhow::Result<()> {
     // This league (seed 7) is not the one `examples/cold_start.rs` is
     // usually timed on, and it is harder to fit: its EP fit takes 6 Newton
     // iterations on all snaps where a 25-season league of another seed took
-    // 3 (and its throw-outcome fit 3 where that one took 2), about 3 CPU
-    // seconds more. The simulation run in this process first does not slow
-    // the first start: timed in a fresh process on the same file, as
-    // `serve` makes it, it took as much CPU time or more
-    // (`examples/first_start_steps.rs`). The iterations are printed below.
+    // 3 (and its throw-outcome fit 3 where that one took 2): about 3 CPU
+    // seconds more for its first start, in two pairs of runs. The
+    // simulation run in this process first did not measurably slow the
+    // first start: on the same file, after simulating in-process it took
+    // 17.4 and 17.7 CPU s, in a fresh process as `serve` makes it 18.9 and
+    // 16.1 (`examples/first_start_steps.rs`, under a load of about 6; the
+    // in-process run had half the page faults). So it is timed here as it
+    // was. The iterations are printed below.
     // The first start as `serve` makes it: load, EP/WP/CP fitted with the
     // throw-value model beside them, every snap scored, every pass priced;
     // the held-out calibration then runs in the background (pages serve
