@@ -8,6 +8,7 @@ use serde::{Deserialize, Serialize};
 mod design;
 mod newton;
 mod pass;
+mod sums;
 
 pub use design::{DenseDesign, Design, FnDesign};
 use newton::*;

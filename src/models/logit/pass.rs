@@ -4,53 +4,9 @@
 
 use super::*;
 
-#[inline]
-pub(super) fn dot(a: &[f64], b: &[f64]) -> f64 {
-    a.iter().zip(b).map(|(x, y)| x * y).sum()
-}
-
-/// `eta[j] = dot(coef[j], x)` for every class row, up to four rows at a
-/// time: each row's products are added in the same order as `dot` (first to
-/// last feature, from -0.0 as `Sum` does), so every value is the same bit
-/// for bit; only the rows' independent sums are interleaved, which the
-/// compiler can keep in one vector register.
-#[inline]
-pub(super) fn linear_predictors(coef: &[Vec<f64>], x: &[f64], eta: &mut [f64]) {
-    let mut j = 0;
-    let m = coef.len();
-    while j < m {
-        match m - j {
-            1 => {
-                eta[j] = dot(&coef[j], x);
-                j += 1;
-            }
-            k => {
-                let n = k.min(4);
-                let rows = &coef[j..j + n];
-                let p = x.len().min(rows[0].len());
-                if rows.iter().any(|c| c.len().min(x.len()) != p) {
-                    for (e, c) in eta[j..j + n].iter_mut().zip(rows) {
-                        *e = dot(c, x);
-                    }
-                } else {
-                    // Fewer than four rows left: the last is repeated and its copies dropped.
-                    let r = |t: usize| &rows[t.min(n - 1)][..p];
-                    let (c0, c1, c2, c3) = (r(0), r(1), r(2), r(3));
-                    let mut s = [-0.0f64; 4];
-                    for a in 0..p {
-                        let xa = x[a];
-                        s[0] += c0[a] * xa;
-                        s[1] += c1[a] * xa;
-                        s[2] += c2[a] * xa;
-                        s[3] += c3[a] * xa;
-                    }
-                    eta[j..j + n].copy_from_slice(&s[..n]);
-                }
-                j += n;
-            }
-        }
-    }
-}
+pub(super) use super::sums::dot;
+#[cfg(test)]
+pub(super) use super::sums::linear_predictors;
 
 /// Softmax over the reference (linear predictor 0) and the free classes;
 /// every other class gets 0.
@@ -59,7 +15,7 @@ pub(super) fn softmax_row(coef: &[Vec<f64>], free: &[usize], reference: usize, x
         *v = 0.0;
     }
     let mut eta = [0.0f64; 16];
-    linear_predictors(coef, x, &mut eta);
+    super::sums::linear_predictors_nonzero(coef, x, &mut eta);
     let mut max = 0.0f64;
     for &e in &eta[..coef.len()] {
         max = max.max(e);
@@ -147,11 +103,26 @@ pub(super) fn accumulate(pr: Problem, coef: &[Vec<f64>], rows: &[usize], with_he
                 acc.ll += w * t[c] * q[c].max(1e-300).ln();
             }
         }
+        // The row's nonzero features: the Hessian's pairs, and the
+        // gradient of a softmax (several class rows) where a zero feature
+        // would add ±0, which leaves a sum as it was (a sum that starts at
+        // +0 never turns -0), so skipping it changes no bit.
+        let sparse = with_hess || m > 1;
+        if sparse {
+            nz.clear();
+            nz.extend((0..p).filter(|&a| x[a] != 0.0));
+        }
         for (j, &c) in pr.free.iter().enumerate() {
             let r = w * (t[c] - q[c]);
             let g = &mut acc.grad[j * p..(j + 1) * p];
-            for a in 0..p {
-                g[a] += r * x[a];
+            if sparse && r.is_finite() {
+                for &a in &nz {
+                    g[a] += r * x[a];
+                }
+            } else {
+                for a in 0..p {
+                    g[a] += r * x[a];
+                }
             }
         }
         if with_hess {
@@ -163,8 +134,6 @@ pub(super) fn accumulate(pr: Problem, coef: &[Vec<f64>], rows: &[usize], with_he
                     pi += 1;
                 }
             }
-            nz.clear();
-            nz.extend((0..p).filter(|&a| x[a] != 0.0));
             for (ia, &a) in nz.iter().enumerate() {
                 let xa = x[a];
                 let base = starts[a];

@@ -105,13 +105,30 @@ fn after_gain(st: &State, g: i32) -> Next {
     }
 }
 
+/// `f(secs[b])` for each band, worked out once per distinct value of `secs`.
+fn per_band(secs: &[f64; BANDS], f: impl Fn(f64) -> f64) -> [f64; BANDS] {
+    let mut out = [0.0; BANDS];
+    for b in 0..BANDS {
+        out[b] = match (0..b).find(|&k| secs[k] == secs[b]) {
+            Some(k) => out[k],
+            None => f(secs[b]),
+        };
+    }
+    out
+}
+
 /// Expected WP after a throw in each band, from the offense's side.
 pub(super) fn expected_wp(model: &ThrowModel, models: &Models, s0: &Situation, st: &State) -> [f64; BANDS] {
     let rg = regime(st);
+    // An incompletion and a pick-six leave the same state whatever the
+    // band; only the clock they take may differ by band (it seldom does):
+    // priced once per distinct runoff, the same values.
+    let incs = per_band(&model.runoff[rg][INCOMPLETE], |secs| wp_after(models, s0, st, secs, after_gain(st, 0)));
+    let picks = per_band(&model.runoff[rg][INTERCEPTED], |secs| wp_after(models, s0, st, secs, Next::PickSix));
     std::array::from_fn(|b| {
         let q = model.outcome_probs(st, b);
         let run = |o: usize| model.runoff[rg][o][b];
-        let inc = wp_after(models, s0, st, run(INCOMPLETE), after_gain(st, 0));
+        let inc = incs[b];
         let nq = GAIN_POINTS as f64;
         // A catch fumbled away leaves the ball where a middle catch ends.
         let kept: f64 = model.gains[b]
@@ -129,8 +146,7 @@ pub(super) fn expected_wp(model: &ThrowModel, models: &Models, s0: &Situation, s
         let mirror = (100 - st.ball_on) as f64 + model.int_spot[b];
         let spot = if mirror < 1.0 { 20 } else { (mirror.round() as i32).min(99) };
         let ps = model.pick_six[b];
-        let int = (1.0 - ps) * wp_after(models, s0, st, run(INTERCEPTED), Next::Over(spot))
-            + ps * wp_after(models, s0, st, run(INTERCEPTED), Next::PickSix);
+        let int = (1.0 - ps) * wp_after(models, s0, st, run(INTERCEPTED), Next::Over(spot)) + ps * picks[b];
         q[INCOMPLETE] * inc + q[COMPLETE] * comp + q[INTERCEPTED] * int
     })
 }
@@ -140,4 +156,34 @@ pub(super) fn expected_wpa(model: &ThrowModel, models: &Models, p: &Plays, ep: &
     let s0 = Situation::of_snap(p, ep, i);
     let st = State::of_snap(p, i);
     expected_wp(model, models, &s0, &st).map(|w| w - wp_before)
+}
+
+/// The straightforward pricing `expected_wp` must equal: every outcome of
+/// every band priced on its own.
+#[cfg(test)]
+pub(super) fn expected_wp_reference(model: &ThrowModel, models: &Models, s0: &Situation, st: &State) -> [f64; BANDS] {
+    let rg = regime(st);
+    std::array::from_fn(|b| {
+        let q = model.outcome_probs(st, b);
+        let run = |o: usize| model.runoff[rg][o][b];
+        let inc = wp_after(models, s0, st, run(INCOMPLETE), after_gain(st, 0));
+        let kept: f64 = model.gains[b]
+            .iter()
+            .map(|&g| wp_after(models, s0, st, run(COMPLETE), after_gain(st, g.round() as i32)))
+            .sum::<f64>()
+            / GAIN_POINTS as f64;
+        let pf = model.catch_fumble[b];
+        let mid = st.ball_on + model.gains[b][GAIN_POINTS / 2].round() as i32;
+        let comp = if pf > 0.0 && mid < 100 {
+            (1.0 - pf) * kept + pf * wp_after(models, s0, st, run(COMPLETE), Next::Over(100 - mid.max(1)))
+        } else {
+            kept
+        };
+        let mirror = (100 - st.ball_on) as f64 + model.int_spot[b];
+        let spot = if mirror < 1.0 { 20 } else { (mirror.round() as i32).min(99) };
+        let ps = model.pick_six[b];
+        let int = (1.0 - ps) * wp_after(models, s0, st, run(INTERCEPTED), Next::Over(spot))
+            + ps * wp_after(models, s0, st, run(INTERCEPTED), Next::PickSix);
+        q[INCOMPLETE] * inc + q[COMPLETE] * comp + q[INTERCEPTED] * int
+    })
 }

@@ -157,3 +157,38 @@ fn cached_throw_values_read_back_bit_for_bit() {
     }
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// Every pass of the demo league priced by `score_all` as by the
+/// straightforward reference (each outcome of each band priced on its own),
+/// bit for bit; and runoffs that differ by band (the reference's case the
+/// shortcut must not take) still agree.
+#[test]
+fn pricing_equals_the_straightforward_reference_on_the_demo_league() {
+    let path = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("demo-data/league.parquet");
+    let plays = crate::playfile::load(&path, &Default::default()).expect("demo league").plays;
+    let models = fit(&plays).expect("fit");
+    let s = models.score(&plays);
+    let rows: Vec<u32> = (0..plays.len() as u32).collect();
+    let mut m = super::fit(&plays, &rows, &Default::default()).expect("fit").expect("air yards");
+    for pass in 0..2 {
+        if pass == 1 {
+            // Every band its own clock.
+            for (b, r) in m.runoff.iter_mut().flatten().flat_map(|o| o.iter_mut().enumerate()) {
+                *r += b as f64;
+            }
+        }
+        let t = score_all(&m, &models, &plays, &s.ep, &s.wp, &s.wpa);
+        let mut n = 0;
+        for i in (0..plays.len()).filter(|&i| applies(&plays, i)) {
+            let s0 = crate::models::wp::Situation::of_snap(&plays, &s.ep, i);
+            let st = State::of_snap(&plays, i);
+            let ev = after::expected_wp_reference(&m, &models, &s0, &st).map(|w| w - s.wp[i]);
+            let mix = m.band_mix(&st);
+            let league: f64 = mix.iter().zip(&ev).map(|(w, e)| w * e).sum();
+            let chosen = ev[band_of(plays.air_yards[i].unwrap_or(0))];
+            assert_eq!((t.chosen[i].to_bits(), t.league[i].to_bits()), (chosen.to_bits(), league.to_bits()), "snap {i}");
+            n += 1;
+        }
+        assert!(n > 10_000, "{n} passes");
+    }
+}
