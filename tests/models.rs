@@ -679,7 +679,7 @@ fn fit_time_per_model() {
     time("wp drive model (estimate and solve)", &mut || {
         let d = models::wp::drive::DriveParams::estimate(&plays, &rows).expect("drives");
         let t = d.solve();
-        assert!(t.value(0.0, 900.0, 25.0) > 0.0);
+        assert!(t.value(0.0, 900.0, 25.0, 3, 3) > 0.0);
     });
     time("wp", &mut || {
         models::wp::fit(&plays, &blind, &rows, models::wp::WpKind::Full, &opts, None).expect("wp");
