@@ -21,6 +21,7 @@ pub mod overtime;
 
 use crate::plays::Plays;
 use overtime::OvertimeTable;
+use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 use std::sync::{Arc, OnceLock};
@@ -326,7 +327,10 @@ impl DriveParams {
             let secs = k as i32 * STEP_SECS;
             let (done, now) = v.split_at_mut(k * per_k);
             let now = &mut now[..per_k];
-            for m in -MAX_MARGIN..=MAX_MARGIN {
+            // Each margin's row of the step depends only on earlier steps.
+            let done: &[f64] = done;
+            now.par_chunks_mut(NZ * NTO * NTO).enumerate().for_each(|(mi, row)| {
+                let m = mi as i32 - MAX_MARGIN;
                 let md = mode(secs, m);
                 for z in 0..NZ {
                     for a in 0..NTO {
@@ -351,11 +355,11 @@ impl DriveParams {
                                         1.0 - done[at(k - steps, -after, o.zone as usize, b2, a2)]
                                     };
                             }
-                            now[at(0, m, z, a, b)] = p.clamp(0.0, 1.0);
+                            row[(z * NTO + a) * NTO + b] = p.clamp(0.0, 1.0);
                         }
                     }
                 }
-            }
+            });
             // A bigger lead is never worse: the late modes switch at a tie,
             // which could otherwise break the order by a hair.
             for z in 0..NZ {
