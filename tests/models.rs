@@ -378,9 +378,25 @@ fn held_out_seasons_are_calibrated() {
 /// within 8), every season held out in turn: each of five equal-count WP
 /// bins within 0.04 of the observed win share (the project's own target).
 /// The target for the Brier score is 12% below the margin-and-time
-/// baseline's; it is NOT met: 10.8% on the bundled file (band 9.0-12.6%),
-/// 1.2 points short, so this checks 10.5% to catch regressions and prints
-/// the figure. It was 10.6% before the 4th period's drive model
+/// baseline's; it is NOT met: 11.2% on the bundled file (band 9.3-12.9%),
+/// 0.8 points short, so this checks
+/// 11.0% to catch regressions and prints the figure. It was 10.8% before
+/// the drive model counted late drives by the trailing side's timeouts
+/// (0-1 or 2-3, and the timeouts each side used), a level offense in the
+/// final 2:00 apart, and overtime was solved by its rules from the drive
+/// model's possessions (`wp::drive::overtime`) in place of six overtime
+/// terms. Held out by season, gain / distance to the oracle, seeds 7 (this
+/// league) / 101 / 202: before 10.8% / 11.6% / 9.1%, 0.00720 / 0.00678 /
+/// 0.00677; timeouts 10.8% / 11.6% / 9.1%, 0.00719 / 0.00675 / 0.00673;
+/// with the level mode 0.00718 / 0.00674 / 0.00672; with the overtime
+/// model 11.2% / 11.8% / 9.2%, 0.00716 / 0.00662 / 0.00675; worst of five
+/// bins 0.020 / 0.015 / 0.008. Overtime is 7% of this league's stratum
+/// snaps and 12% of the gap between the model's squared error and the
+/// oracle's; its own stratum's gain went from 16.9% to 21.2% here. Tried this round and dropped: late snaps weighed 2-3x (see
+/// `wp::fit`), a leading offense's late window widened to 12:00, a
+/// trailing one's to 9:00 when two scores down, the late modes split
+/// again at 2:00 (0.00727 / 0.00678 / 0.00677). It was 10.6% before the
+/// 4th period's drive model
 /// (`wp::drive`: outcome, next zone and clock of a possession by start
 /// zone, solved backward over margin x time x zone) entered as three logit
 /// terms; held out by season, gain and mean squared distance to the oracle
@@ -463,7 +479,7 @@ fn late_and_close_is_calibrated() {
     let gain = late.brier_gain.value;
     eprintln!("late and close: worst bin gap {worst:.3}, Brier {:.1}% below the baseline", 100.0 * gain);
     assert!(worst <= 0.04, "worst late-and-close bin is {worst:.3} from the observed share");
-    assert!(gain >= 0.105, "late-and-close Brier only {:.1}% below the baseline", 100.0 * gain);
+    assert!(gain >= 0.110, "late-and-close Brier only {:.1}% below the baseline", 100.0 * gain);
 }
 
 /// From the home side, WP before the first snap plus every snap's WPA ends
@@ -679,7 +695,7 @@ fn fit_time_per_model() {
     time("wp drive model (estimate and solve)", &mut || {
         let d = models::wp::drive::DriveParams::estimate(&plays, &rows).expect("drives");
         let t = d.solve();
-        assert!(t.value(0.0, 900.0, 25.0) > 0.0);
+        assert!(t.value(0.0, 900.0, 25.0, 3, 3) > 0.0);
     });
     time("wp", &mut || {
         models::wp::fit(&plays, &blind, &rows, models::wp::WpKind::Full, &opts, None).expect("wp");

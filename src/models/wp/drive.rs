@@ -4,15 +4,24 @@
 //! margin up to the next possession (a touchdown with its try, a field
 //! goal, nothing, a return score), who has the ball next and where, and the
 //! game-clock seconds it took (in buckets). Drives of an offense trailing in
-//! the final 5:00 (hurry-up) and of one leading there (running the clock)
-//! are counted apart, shrunk toward the other drives when few. Backward
-//! induction over margin −30..+30 × time left in 5 s steps (0 to 15:00) ×
-//! zone then gives P(the team with the ball wins), ties ½ at 0:00 (an
-//! overtime is a coin flip). The team without the ball is the same table
-//! from the other side (1 − V at the negated margin), so the grid needs no
+//! the final 5:00 (hurry-up), of one leading there (running the clock) and
+//! of one level in the final 2:00 are counted apart, shrunk toward the
+//! other drives when few; those late drives are split again by the
+//! trailing side's timeouts, 0-1 or 2-3 (the offense's when it trails or
+//! is level, the defense's when it leads: they stop the clock), and
+//! every drive carries the timeouts each side used up to the next
+//! possession. Backward induction over margin −30..+30 × time left in 5 s
+//! steps (0 to 15:00) × zone × each side's timeouts (0-3) then gives P(the
+//! team with the ball wins), ties ½ at 0:00 (an overtime is a coin flip).
+//! The team without the ball is the same table from the other side (1 − V
+//! at the negated margin, timeouts swapped), so the grid needs no
 //! possession axis.
 
+pub mod overtime;
+
 use crate::plays::Plays;
+use overtime::OvertimeTable;
+use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 use std::sync::{Arc, OnceLock};
@@ -21,8 +30,8 @@ use std::sync::{Arc, OnceLock};
 /// goal line) a possession starts in, and the yard line each zone stands
 /// for when values are interpolated between zones.
 pub const ZONE_FROM: [i32; 5] = [0, 20, 30, 50, 70];
-const ZONE_AT: [f64; 5] = [12.0, 25.0, 40.0, 60.0, 82.0];
-const NZ: usize = ZONE_FROM.len();
+pub const ZONE_AT: [f64; 5] = [12.0, 25.0, 40.0, 60.0, 82.0];
+pub const NZ: usize = ZONE_FROM.len();
 /// Grid step and span of the time axis (seconds left in regulation).
 pub const STEP_SECS: i32 = 5;
 pub const SPAN_SECS: i32 = 900;
@@ -35,27 +44,48 @@ const DURATION_TO: [i32; 5] = [60, 120, 180, 240, 330];
 /// The window in which a trailing offense hurries and a leading one runs
 /// the clock (seconds left in regulation).
 pub const LATE_MODE_SECS: i32 = 300;
+/// The window in which an offense level on the scoreboard plays for the
+/// last score (counted apart as the other late modes). Held out by season,
+/// it took the mean squared distance to the oracle from 0.00719 / 0.00675 /
+/// 0.00673 to 0.00718 / 0.00674 / 0.00672 (seeds 7 / 101 / 202); a
+/// leading offense's window widened to 12:00 or a trailing one's to 9:00
+/// when two scores down did no better.
+pub const TIE_MODE_SECS: i32 = 120;
+/// The timeouts class a late drive is counted in by the trailing (or
+/// level) side's timeouts: 0-1 or 2-3. One class per count (0-3) did as
+/// well on the oracle distance with noisier shares (gain over the baseline
+/// 10.9% / 11.6% / 9.1% against 10.8% / 11.6% / 9.1%, distance 0.00720 /
+/// 0.00675 / 0.00673 against 0.00719 / 0.00675 / 0.00673).
+const TO_CLASS: [usize; NTO] = [0, 0, 1, 1];
 /// Drives a late mode's own counts weigh as much as (shrinkage toward all
 /// the zone's drives). Held out by season (seeds 101 / 202 / 7), 10 or 200
 /// in place of 40 moved the late-and-close gain by at most 0.1 point.
 const SHRINK_DRIVES: f64 = 40.0;
 /// Largest margin change one possession is counted with (beyond: clamped).
 const MAX_SWING: i32 = 9;
+/// Timeouts a side can hold on the grid (0-3).
+pub const NTO: usize = 4;
 
 /// How the offense plays: the rest of the game, hurrying while trailing
-/// late, running the clock while leading late.
+/// late, running the clock while leading late, playing for the last score
+/// while level in the final 2:00.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 enum Mode {
     Other = 0,
     Trail = 1,
     Lead = 2,
+    Tie = 3,
 }
-const NMODE: usize = 3;
+const NMODE: usize = 4;
 
 fn mode(secs: i32, margin: i32) -> Mode {
-    match (secs <= LATE_MODE_SECS, margin.signum()) {
-        (true, -1) => Mode::Trail,
-        (true, 1) => Mode::Lead,
+    if secs > LATE_MODE_SECS {
+        return Mode::Other;
+    }
+    match margin.signum() {
+        -1 => Mode::Trail,
+        1 => Mode::Lead,
+        _ if secs <= TIE_MODE_SECS => Mode::Tie,
         _ => Mode::Other,
     }
 }
@@ -78,6 +108,12 @@ pub struct Outcome {
     pub zone: u8,
     /// Grid steps of game clock the possession took (mean of its bucket).
     pub steps: u16,
+    /// Timeouts the team with the ball and the other one used up to the
+    /// next possession.
+    #[serde(default)]
+    pub off_used: u8,
+    #[serde(default)]
+    pub def_used: u8,
     pub share: f64,
 }
 
@@ -90,6 +126,27 @@ struct Drive {
     keep: bool,
     next_zone: usize,
     secs: i32,
+    /// Timeouts the offense and the defense held at the drive's start.
+    off_to: usize,
+    def_to: usize,
+    off_used: u8,
+    def_used: u8,
+}
+
+/// The trailing side's timeouts a late drive is split by (the offense's
+/// when it trails, the defense's when it leads; none otherwise).
+fn to_class(mode: Mode, off_to: usize, def_to: usize) -> usize {
+    let class = |t: usize| TO_CLASS[t.min(NTO - 1)];
+    match mode {
+        Mode::Other => 0,
+        Mode::Trail | Mode::Tie => class(off_to),
+        Mode::Lead => class(def_to),
+    }
+}
+
+/// Index of the (mode, zone, timeouts class) cell.
+fn cell_of(mode: Mode, zone: usize, class: usize) -> usize {
+    (mode as usize * NZ + zone) * NTO + class
 }
 
 /// The possessions among `rows` that another possession of the same half
@@ -117,7 +174,17 @@ fn drives(plays: &Plays, rows: &[u32]) -> Vec<Drive> {
             }
             let keep = plays.offense[j] == plays.offense[i];
             let after = if keep { plays.margin[j] } else { -plays.margin[j] };
+            let (off_next, def_next) = if keep {
+                (plays.off_timeouts[j], plays.def_timeouts[j])
+            } else {
+                (plays.def_timeouts[j], plays.off_timeouts[j])
+            };
+            let (off_to, def_to) = (plays.off_timeouts[i].clamp(0, 3), plays.def_timeouts[i].clamp(0, 3));
             out.push(Drive {
+                off_to: off_to as usize,
+                def_to: def_to as usize,
+                off_used: (off_to - off_next).clamp(0, 3) as u8,
+                def_used: (def_to - def_next).clamp(0, 3) as u8,
                 mode: mode(plays.secs_game[i], plays.margin[i]),
                 zone: zone(plays.ball_on[i]),
                 swing: (after - plays.margin[i]).clamp(-MAX_SWING, MAX_SWING),
@@ -130,75 +197,111 @@ fn drives(plays: &Plays, rows: &[u32]) -> Vec<Drive> {
     out
 }
 
-/// Shares of the outcomes of (mode, zone) cells, estimated from drives.
+/// Shares of the outcomes of (mode, zone, timeouts class) cells, estimated
+/// from drives.
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
 pub struct DriveParams {
-    /// Indexed `mode * zones + zone`.
+    /// Indexed `(mode * zones + zone) * NTO + class` (`cell_of`); the rest
+    /// of the game has one class, kept at 0 and copied to the others.
     pub cells: Vec<Vec<Outcome>>,
     /// Drives counted.
     pub drives: usize,
 }
 
-type Key = (i32, bool, u8, usize);
+/// (swing, keep, next zone, duration bucket, timeouts used by the offense,
+/// by the defense).
+type Key = (i32, bool, u8, usize, u8, u8);
+/// Shares of each key with the seconds taken, summed over drives and
+/// divided by their count (a distribution).
+type Shares = BTreeMap<Key, (f64, f64)>;
 
-/// Counts of (swing, keep, next zone, duration bucket) with the seconds
-/// summed, for one cell.
-fn count<'a>(ds: impl Iterator<Item = &'a Drive>) -> (BTreeMap<Key, (f64, f64)>, f64) {
-    let mut m: BTreeMap<Key, (f64, f64)> = BTreeMap::new();
+/// The outcome shares of some drives, with their count.
+fn count<'a>(ds: impl Iterator<Item = &'a Drive>) -> (Shares, f64) {
+    let mut m: Shares = BTreeMap::new();
     let mut n = 0.0;
     for d in ds {
         let b = DURATION_TO.iter().position(|&t| d.secs < t).unwrap_or(DURATION_TO.len());
-        let e = m.entry((d.swing, d.keep, d.next_zone as u8, b)).or_default();
+        let e = m.entry((d.swing, d.keep, d.next_zone as u8, b, d.off_used, d.def_used)).or_default();
         e.0 += 1.0;
         e.1 += d.secs as f64;
         n += 1.0;
     }
+    if n > 0.0 {
+        for e in m.values_mut() {
+            e.0 /= n;
+            e.1 /= n;
+        }
+    }
     (m, n)
 }
 
+/// `n` drives' own shares shrunk toward `prior` (weight n / (n + SHRINK_DRIVES)).
+fn shrink(own: &Shares, n: f64, prior: &Shares) -> Shares {
+    let w = n / (n + SHRINK_DRIVES);
+    let mut merged = Shares::new();
+    for (k, &(c, s)) in own {
+        let e = merged.entry(*k).or_default();
+        e.0 += w * c;
+        e.1 += w * s;
+    }
+    for (k, &(c, s)) in prior {
+        let e = merged.entry(*k).or_default();
+        e.0 += (1.0 - w) * c;
+        e.1 += (1.0 - w) * s;
+    }
+    merged
+}
+
+fn outcomes(m: &Shares) -> Vec<Outcome> {
+    m.iter()
+        .map(|(&(swing, keep, zone, _, off_used, def_used), &(share, secs))| Outcome {
+            swing,
+            keep,
+            zone,
+            steps: ((secs / share / STEP_SECS as f64).round() as u16).max(1),
+            off_used,
+            def_used,
+            share,
+        })
+        .collect()
+}
+
 impl DriveParams {
+    /// The outcomes of a possession starting in `zone` outside the late
+    /// modes (what the overtime model plays drives with).
+    pub fn plain(&self, zone: usize) -> &[Outcome] {
+        &self.cells[cell_of(Mode::Other, zone.min(NZ - 1), 0)]
+    }
+
     /// Estimated from the drives among `rows`; `None` when a zone has no
     /// drive at all to learn from.
     pub fn estimate(plays: &Plays, rows: &[u32]) -> Option<DriveParams> {
         let all = drives(plays, rows);
-        let mut cells = vec![Vec::new(); NMODE * NZ];
+        let mut cells = vec![Vec::new(); NMODE * NZ * NTO];
         for z in 0..NZ {
             let (base, nb) = count(all.iter().filter(|d| d.zone == z));
             if nb == 0.0 {
                 return None;
             }
+            // The rest of the game: its own drives (all of the zone's when
+            // it has none), one class.
             let (rest, nr) = count(all.iter().filter(|d| d.zone == z && d.mode == Mode::Other));
-            for md in [Mode::Other, Mode::Trail, Mode::Lead] {
-                // A late mode's own drives, shrunk toward all of the zone's;
-                // the rest of the game is its own drives (all of the zone's
-                // when it has none).
-                let (own, n) = match md {
-                    Mode::Other => (BTreeMap::new(), 0.0),
-                    _ => count(all.iter().filter(|d| d.zone == z && d.mode == md)),
-                };
-                let (prior, np) = if md == Mode::Other && nr > 0.0 { (&rest, nr) } else { (&base, nb) };
-                let w_own = n / (n + SHRINK_DRIVES);
-                let mut merged: BTreeMap<Key, (f64, f64)> = BTreeMap::new();
-                for (k, &(c, s)) in own.iter() {
-                    let e = merged.entry(*k).or_default();
-                    e.0 += w_own * c / n;
-                    e.1 += w_own * s / n;
+            let other = outcomes(if nr > 0.0 { &rest } else { &base });
+            for c in 0..NTO {
+                cells[cell_of(Mode::Other, z, c)] = other.clone();
+            }
+            for md in [Mode::Trail, Mode::Lead, Mode::Tie] {
+                // A late mode's own drives shrunk toward all of the zone's,
+                // then each timeouts class's toward that.
+                let (own, n) = count(all.iter().filter(|d| d.zone == z && d.mode == md));
+                let pooled = shrink(&own, n, &base);
+                for c in 0..NTO {
+                    let (own_c, n_c) = count(
+                        all.iter()
+                            .filter(|d| d.zone == z && d.mode == md && to_class(md, d.off_to, d.def_to) == c),
+                    );
+                    cells[cell_of(md, z, c)] = outcomes(&shrink(&own_c, n_c, &pooled));
                 }
-                for (k, &(c, s)) in prior.iter() {
-                    let e = merged.entry(*k).or_default();
-                    e.0 += (1.0 - w_own) * c / np;
-                    e.1 += (1.0 - w_own) * s / np;
-                }
-                cells[md as usize * NZ + z] = merged
-                    .into_iter()
-                    .map(|((swing, keep, zone, _), (share, secs))| Outcome {
-                        swing,
-                        keep,
-                        zone,
-                        steps: ((secs / share / STEP_SECS as f64).round() as u16).max(1),
-                        share,
-                    })
-                    .collect();
             }
         }
         Some(DriveParams { cells, drives: all.len() })
@@ -206,8 +309,8 @@ impl DriveParams {
 
     /// Backward induction over the grid.
     pub fn solve(&self) -> DriveTable {
-        let mut v = vec![0.0; NT * NM * NZ];
-        let at = |k: usize, m: i32, z: usize| (k * NM + (m + MAX_MARGIN) as usize) * NZ + z;
+        let per_k = NM * NZ * NTO * NTO;
+        let mut v = vec![0.0; NT * per_k];
         let end = |m: i32| match m.signum() {
             1 => 1.0,
             -1 => 0.0,
@@ -215,48 +318,70 @@ impl DriveParams {
         };
         for m in -MAX_MARGIN..=MAX_MARGIN {
             for z in 0..NZ {
-                v[at(0, m, z)] = end(m);
+                for ab in 0..NTO * NTO {
+                    v[at(0, m, z, ab / NTO, ab % NTO)] = end(m);
+                }
             }
         }
         for k in 1..NT {
             let secs = k as i32 * STEP_SECS;
-            for m in -MAX_MARGIN..=MAX_MARGIN {
-                let cell = mode(secs, m) as usize * NZ;
+            let (done, now) = v.split_at_mut(k * per_k);
+            let now = &mut now[..per_k];
+            // Each margin's row of the step depends only on earlier steps.
+            let done: &[f64] = done;
+            now.par_chunks_mut(NZ * NTO * NTO).enumerate().for_each(|(mi, row)| {
+                let m = mi as i32 - MAX_MARGIN;
+                let md = mode(secs, m);
                 for z in 0..NZ {
-                    let mut p = 0.0;
-                    for o in &self.cells[cell + z] {
-                        let after = (m + o.swing).clamp(-MAX_MARGIN, MAX_MARGIN);
-                        let steps = o.steps as usize;
-                        p += o.share
-                            * if steps > k {
-                                // The clock runs out first: the drive gets the
-                                // share of its outcome its time allows (none
-                                // of it: 0.1 point worse on seed 202, the
-                                // oracle distance up 0.3-0.7% on all three).
-                                let f = k as f64 / steps as f64;
-                                f * end(after) + (1.0 - f) * end(m)
-                            } else if o.keep {
-                                v[at(k - steps, after, o.zone as usize)]
-                            } else {
-                                1.0 - v[at(k - steps, -after, o.zone as usize)]
-                            };
+                    for a in 0..NTO {
+                        for b in 0..NTO {
+                            let mut p = 0.0;
+                            for o in &self.cells[cell_of(md, z, to_class(md, a, b))] {
+                                let after = (m + o.swing).clamp(-MAX_MARGIN, MAX_MARGIN);
+                                let steps = o.steps as usize;
+                                let a2 = a.saturating_sub(o.off_used as usize);
+                                let b2 = b.saturating_sub(o.def_used as usize);
+                                p += o.share
+                                    * if steps > k {
+                                        // The clock runs out first: the drive gets the
+                                        // share of its outcome its time allows (none
+                                        // of it: 0.1 point worse on seed 202, the
+                                        // oracle distance up 0.3-0.7% on all three).
+                                        let f = k as f64 / steps as f64;
+                                        f * end(after) + (1.0 - f) * end(m)
+                                    } else if o.keep {
+                                        done[at(k - steps, after, o.zone as usize, a2, b2)]
+                                    } else {
+                                        1.0 - done[at(k - steps, -after, o.zone as usize, b2, a2)]
+                                    };
+                            }
+                            row[(z * NTO + a) * NTO + b] = p.clamp(0.0, 1.0);
+                        }
                     }
-                    v[at(k, m, z)] = p.clamp(0.0, 1.0);
                 }
-            }
+            });
             // A bigger lead is never worse: the late modes switch at a tie,
             // which could otherwise break the order by a hair.
             for z in 0..NZ {
-                for m in -MAX_MARGIN + 1..=MAX_MARGIN {
-                    let (lo, hi) = (at(k, m - 1, z), at(k, m, z));
-                    if v[hi] < v[lo] {
-                        v[hi] = v[lo];
+                for ab in 0..NTO * NTO {
+                    let (a, b) = (ab / NTO, ab % NTO);
+                    for m in -MAX_MARGIN + 1..=MAX_MARGIN {
+                        let (lo, hi) = (at(0, m - 1, z, a, b), at(0, m, z, a, b));
+                        if now[hi] < now[lo] {
+                            now[hi] = now[lo];
+                        }
                     }
                 }
             }
         }
         DriveTable { v }
     }
+}
+
+/// Index of a grid cell: time step, margin, zone, timeouts of the team with
+/// the ball and of the other.
+fn at(k: usize, m: i32, z: usize, a: usize, b: usize) -> usize {
+    ((((k * NM) + (m.clamp(-MAX_MARGIN, MAX_MARGIN) + MAX_MARGIN) as usize) * NZ + z) * NTO + a) * NTO + b
 }
 
 /// P(the team with the ball wins) over the grid.
@@ -266,14 +391,15 @@ pub struct DriveTable {
 }
 
 impl DriveTable {
-    fn get(&self, k: usize, m: i32, z: usize) -> f64 {
-        self.v[(k * NM + (m.clamp(-MAX_MARGIN, MAX_MARGIN) + MAX_MARGIN) as usize) * NZ + z]
+    fn get(&self, k: usize, m: i32, z: usize, a: usize, b: usize) -> f64 {
+        self.v[at(k, m, z, a, b)]
     }
 
     /// P(the team with the ball at `ball_on` wins) with `margin` (may be
-    /// fractional) and `secs` left in regulation (0-900), interpolated
-    /// linearly in all three.
-    pub fn value(&self, margin: f64, secs: f64, ball_on: f64) -> f64 {
+    /// fractional), `secs` left in regulation (0-900) and the timeouts
+    /// the team with the ball and the other hold (clamped to 0-3),
+    /// interpolated linearly in the first three.
+    pub fn value(&self, margin: f64, secs: f64, ball_on: f64, off_to: i32, def_to: i32) -> f64 {
         let t = (secs / STEP_SECS as f64).clamp(0.0, (NT - 1) as f64);
         let (k0, ft) = (t.floor() as usize, t.fract());
         let k1 = (k0 + 1).min(NT - 1);
@@ -282,13 +408,14 @@ impl DriveTable {
         let b = ball_on.clamp(ZONE_AT[0], ZONE_AT[NZ - 1]);
         let z0 = ZONE_AT.iter().rposition(|&c| b >= c).unwrap_or(0).min(NZ - 2);
         let fz = ((b - ZONE_AT[z0]) / (ZONE_AT[z0 + 1] - ZONE_AT[z0])).clamp(0.0, 1.0);
+        let (ta, tb) = (off_to.clamp(0, 3) as usize, def_to.clamp(0, 3) as usize);
         let mut p = 0.0;
         for (k, wk) in [(k0, 1.0 - ft), (k1, ft)] {
             for (mm, wm) in [(m0, 1.0 - fm), (m0 + 1, fm)] {
                 for (z, wz) in [(z0, 1.0 - fz), (z0 + 1, fz)] {
                     let w = wk * wm * wz;
                     if w > 0.0 {
-                        p += w * self.get(k, mm, z);
+                        p += w * self.get(k, mm, z, ta, tb);
                     }
                 }
             }
@@ -305,6 +432,8 @@ pub struct DriveModel {
     pub params: DriveParams,
     #[serde(skip)]
     table: OnceLock<Arc<DriveTable>>,
+    #[serde(skip)]
+    ot: OnceLock<Arc<OvertimeTable>>,
 }
 
 impl PartialEq for DriveModel {
@@ -316,12 +445,17 @@ impl PartialEq for DriveModel {
 
 impl DriveModel {
     pub fn new(params: DriveParams) -> DriveModel {
-        DriveModel { params, table: OnceLock::new() }
+        DriveModel { params, table: OnceLock::new(), ot: OnceLock::new() }
     }
 
     /// The solved table (solved now if not yet).
     pub fn table(&self) -> &DriveTable {
         self.table.get_or_init(|| Arc::new(self.params.solve()))
+    }
+
+    /// The overtime table from the same possessions (solved now if not yet).
+    pub fn overtime(&self) -> &OvertimeTable {
+        self.ot.get_or_init(|| Arc::new(OvertimeTable::solve(&self.params)))
     }
 }
 

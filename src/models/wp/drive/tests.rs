@@ -1,13 +1,21 @@
 use super::*;
 use crate::models::testkit;
 
-/// Every (mode, zone) cell ends the same way.
+/// Every (mode, zone, timeouts class) cell ends the same way.
 fn uniform(outcomes: &[Outcome]) -> DriveParams {
-    DriveParams { cells: vec![outcomes.to_vec(); NMODE * NZ], drives: 0 }
+    DriveParams { cells: vec![outcomes.to_vec(); NMODE * NZ * NTO], drives: 0 }
 }
 
 fn o(swing: i32, keep: bool, steps: u16, share: f64) -> Outcome {
-    Outcome { swing, keep, zone: 1, steps, share }
+    Outcome { swing, keep, zone: 1, steps, off_used: 0, def_used: 0, share }
+}
+
+/// A table cell with both sides holding three timeouts (what the
+/// timeout-free worked examples below assume).
+impl DriveTable {
+    fn g(&self, k: usize, m: i32, z: usize) -> f64 {
+        self.get(k, m, z, 3, 3)
+    }
 }
 
 /// Worked by hand: every possession takes 60 s (12 steps) and gains 3.
@@ -20,44 +28,83 @@ fn o(swing: i32, keep: bool, steps: u16, share: f64) -> Outcome {
 #[test]
 fn backward_induction_by_hand() {
     let t = uniform(&[o(3, false, 12, 1.0)]).solve();
-    assert_eq!(t.get(0, 0, 2), 0.5);
-    assert_eq!(t.get(0, 1, 2), 1.0);
-    assert_eq!(t.get(0, -1, 2), 0.0);
-    assert_eq!(t.get(12, 0, 2), 1.0);
-    assert_eq!(t.get(24, 0, 2), 0.5);
-    assert_eq!(t.get(24, 3, 2), 1.0);
-    assert_eq!(t.get(24, -3, 2), 0.0);
-    assert!((t.get(11, 0, 0) - 23.0 / 24.0).abs() < 1e-12);
+    assert_eq!(t.g(0, 0, 2), 0.5);
+    assert_eq!(t.g(0, 1, 2), 1.0);
+    assert_eq!(t.g(0, -1, 2), 0.0);
+    assert_eq!(t.g(12, 0, 2), 1.0);
+    assert_eq!(t.g(24, 0, 2), 0.5);
+    assert_eq!(t.g(24, 3, 2), 1.0);
+    assert_eq!(t.g(24, -3, 2), 0.0);
+    assert!((t.g(11, 0, 0) - 23.0 / 24.0).abs() < 1e-12);
     let slow = uniform(&[o(3, false, 24, 1.0)]).solve();
-    assert_eq!(slow.get(12, 0, 4), 0.75);
+    assert_eq!(slow.g(12, 0, 4), 0.75);
     // Two ways, each half the time, 30 s each, the other side getting the
     // ball: a touchdown (7) or nothing. Down 4 with 30 s: ½ (score as the
     // clock ends, or not). Down 4 with 60 s: after a touchdown (up 3) the
     // other side has 30 s and wins half the time; after nothing it is up
     // 4 with 30 s and always wins: ½ · ½ + ½ · 0 = ¼.
     let td = uniform(&[o(7, false, 6, 0.5), o(0, false, 6, 0.5)]).solve();
-    assert_eq!(td.get(6, -4, 1), 0.5);
-    assert_eq!(td.get(12, -4, 1), 0.25);
+    assert_eq!(td.g(6, -4, 1), 0.5);
+    assert_eq!(td.g(12, -4, 1), 0.25);
     // Keeping the ball after a return score against (−7 each 30 s): with
     // 60 s left only a lead above 14 holds, 14 ties.
     let keep = uniform(&[o(-7, true, 6, 1.0)]).solve();
-    assert_eq!(keep.get(12, 15, 0), 1.0);
-    assert_eq!(keep.get(12, 14, 0), 0.5);
-    assert_eq!(keep.get(12, 10, 0), 0.0);
+    assert_eq!(keep.g(12, 15, 0), 1.0);
+    assert_eq!(keep.g(12, 14, 0), 0.5);
+    assert_eq!(keep.g(12, 10, 0), 0.0);
+}
+
+/// The trailing side's timeouts, worked by hand. Drives of a trailing
+/// offense (final 5:00) with 0-1 timeouts score 3 in 24 steps, with 2-3 in
+/// 12, and hand the ball over; all other drives gain nothing in 12 steps.
+/// Down 1 with 12 steps (60 s) left: with 2 or 3 timeouts the field goal
+/// comes in time (1); with 0 or 1 the drive gets half of it. Down 1 with 24
+/// steps and 3 timeouts: up 2 with 12 steps left, the other side, down 2,
+/// scores in time with 3 timeouts (0 for us) and gets half of it with 1
+/// (½ for us): the other side's timeouts are read from its own side.
+#[test]
+fn timeouts_of_the_trailing_side() {
+    let mut p = uniform(&[o(0, false, 12, 1.0)]);
+    for z in 0..NZ {
+        for c in 0..2 {
+            p.cells[cell_of(Mode::Trail, z, c)] = vec![o(3, false, 24 - 12 * c as u16, 1.0)];
+        }
+    }
+    let t = p.solve();
+    assert_eq!(t.get(12, -1, 1, 3, 0), 1.0);
+    assert_eq!(t.get(12, -1, 1, 2, 0), 1.0);
+    assert!((t.get(12, -1, 1, 1, 3) - 0.5).abs() < 1e-12);
+    assert!((t.get(12, -1, 1, 0, 3) - 0.5).abs() < 1e-12);
+    assert_eq!(t.get(24, -1, 1, 3, 3), 0.0);
+    assert!((t.get(24, -1, 1, 3, 1) - 0.5).abs() < 1e-12);
+    // Timeouts used are taken off: a trailing offense with 2-3 timeouts
+    // keeps the ball one step per timeout it calls; with 0-1 it scores 3
+    // in one step.
+    let mut q = uniform(&[o(0, false, 12, 1.0)]);
+    for z in 0..NZ {
+        q.cells[cell_of(Mode::Trail, z, 0)] = vec![o(3, false, 1, 1.0)];
+        q.cells[cell_of(Mode::Trail, z, 1)] = vec![Outcome { off_used: 1, ..o(0, true, 1, 1.0) }];
+    }
+    let t = q.solve();
+    assert_eq!(t.get(1, -1, 1, 1, 3), 1.0);
+    assert_eq!(t.get(2, -1, 1, 2, 3), 1.0);
+    assert_eq!(t.get(1, -1, 1, 2, 3), 0.0);
+    assert_eq!(t.get(3, -1, 1, 3, 3), 1.0);
+    assert_eq!(t.get(2, -1, 1, 3, 3), 0.0);
 }
 
 #[test]
 fn value_interpolates_the_grid() {
     let t = uniform(&[o(7, false, 6, 0.5), o(0, false, 6, 0.5)]).solve();
     // On grid points (time, margin, a zone's own yard line) it is the grid.
-    assert!((t.value(-4.0, 60.0, 25.0) - t.get(12, -4, 1)).abs() < 1e-12);
-    assert!((t.value(-4.0, 30.0, 82.0) - t.get(6, -4, 4)).abs() < 1e-12);
-    let mid = t.value(-3.5, 60.0, 25.0);
-    assert!((mid - 0.5 * (t.get(12, -4, 1) + t.get(12, -3, 1))).abs() < 1e-12);
-    let between = t.value(-4.0, 62.5, 25.0);
-    assert!((between - 0.5 * (t.get(12, -4, 1) + t.get(13, -4, 1))).abs() < 1e-12);
+    assert!((t.value(-4.0, 60.0, 25.0, 3, 3) - t.g(12, -4, 1)).abs() < 1e-12);
+    assert!((t.value(-4.0, 30.0, 82.0, 3, 3) - t.g(6, -4, 4)).abs() < 1e-12);
+    let mid = t.value(-3.5, 60.0, 25.0, 3, 3);
+    assert!((mid - 0.5 * (t.g(12, -4, 1) + t.g(12, -3, 1))).abs() < 1e-12);
+    let between = t.value(-4.0, 62.5, 25.0, 3, 3);
+    assert!((between - 0.5 * (t.g(12, -4, 1) + t.g(13, -4, 1))).abs() < 1e-12);
     // Off the grid it clamps.
-    assert_eq!(t.value(50.0, 2000.0, 150.0), t.get(NT - 1, MAX_MARGIN, NZ - 1));
+    assert_eq!(t.value(50.0, 2000.0, 150.0, 3, 3), t.g(NT - 1, MAX_MARGIN, NZ - 1));
 }
 
 #[test]
@@ -72,25 +119,27 @@ fn estimated_from_a_league() {
         assert!(c.iter().all(|o| o.steps >= 1 && o.swing.abs() <= MAX_SWING));
     }
     // Drives from deep in the opponent's half score more than from one's own 10.
-    let pts = |z: usize| p.cells[z].iter().map(|o| o.share * o.swing as f64).sum::<f64>();
+    let pts = |z: usize| p.cells[cell_of(Mode::Other, z, 0)].iter().map(|o| o.share * o.swing as f64).sum::<f64>();
     assert!(pts(4) > pts(0) + 1.0, "{} vs {}", pts(4), pts(0));
     let t0 = std::time::Instant::now();
     let t = p.solve();
     eprintln!("drive table solved in {:.1} ms", t0.elapsed().as_secs_f64() * 1e3);
     for k in 0..NT {
         for z in 0..NZ {
-            for m in -MAX_MARGIN..MAX_MARGIN {
-                let (a, b) = (t.get(k, m, z), t.get(k, m + 1, z));
-                assert!((0.0..=1.0).contains(&a) && a <= b, "k {k} m {m} z {z}");
+            for (ta, tb) in (0..NTO).flat_map(|a| (0..NTO).map(move |b| (a, b))) {
+                for m in -MAX_MARGIN..MAX_MARGIN {
+                    let (a, b) = (t.get(k, m, z, ta, tb), t.get(k, m + 1, z, ta, tb));
+                    assert!((0.0..=1.0).contains(&a) && a <= b, "k {k} m {m} z {z} timeouts {ta}/{tb}");
+                }
             }
         }
     }
     // Up 8 with the ball and a minute left nearly always wins; a tie at
     // 15:00 is near a coin flip, the ball at the opponent's 18 worth more.
-    assert!(t.value(8.0, 60.0, 40.0) > 0.95);
-    let tie = t.value(0.0, 900.0, 25.0);
+    assert!(t.value(8.0, 60.0, 40.0, 3, 3) > 0.95);
+    let tie = t.value(0.0, 900.0, 25.0, 3, 3);
     assert!((0.4..0.7).contains(&tie), "{tie}");
-    assert!(t.value(0.0, 900.0, 82.0) > tie);
+    assert!(t.value(0.0, 900.0, 82.0, 3, 3) > tie);
     // Held-out rows are never read: the drives of one season alone differ.
     let first: Vec<u32> = rows.iter().copied().filter(|&i| plays.season[i as usize] == plays.season[0]).collect();
     let q = DriveParams::estimate(&plays, &first).expect("one season");
