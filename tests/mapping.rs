@@ -118,11 +118,15 @@ fn foreign_text(p: &Plays, range: std::ops::Range<usize>) -> String {
 }
 
 /// The whole demo league in the invented layout (written once per run).
+/// Several tests ask for it at once: each writes its own temp file and
+/// renames it into place, so no test reads a file another is writing.
 fn foreign_demo(p: &Plays) -> PathBuf {
     let path = scratch("harbor-league.csv");
     let text = foreign_text(p, 0..p.len());
     if std::fs::read_to_string(&path).ok().as_deref() != Some(text.as_str()) {
-        std::fs::write(&path, text).expect("write the foreign file");
+        let tmp = scratch(&format!("harbor-league.csv.{}-{:?}", std::process::id(), std::thread::current().id()).replace(['(', ')'], ""));
+        std::fs::write(&tmp, text).expect("write the foreign file");
+        std::fs::rename(&tmp, &path).expect("move the foreign file into place");
     }
     path
 }
