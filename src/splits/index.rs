@@ -48,6 +48,33 @@ impl Layout {
     pub(super) fn width(&self) -> usize {
         1 + self.units + self.bits + 2 * self.ints + 2 * self.reals
     }
+    /// Width of a state cell's sums: the base vector without the sums of
+    /// squares (`[rows, unit counts.., bit sums.., int sums.., real
+    /// sums..]`; the state-mix baselines read counts and sums only).
+    pub(super) fn cell_width(&self) -> usize {
+        1 + self.units + self.bits + self.ints + self.reals
+    }
+    /// A base vector's cell sums (`cell_width` of them) into `out`.
+    #[inline]
+    pub(super) fn to_cell(&self, b: &[f64], out: &mut [f64]) {
+        let o = 1 + self.units + self.bits;
+        out[..o].copy_from_slice(&b[..o]);
+        for (i, x) in out[o..].iter_mut().enumerate() {
+            *x = b[o + 2 * i];
+        }
+    }
+    /// (count, sum) of metric `j` in cell sums `b` (see `cell_width`).
+    pub(super) fn cell_acc(&self, b: &[f64], j: usize) -> (f64, f64) {
+        let n = b[1 + self.unit_of[j]];
+        let o_bit = 1 + self.units;
+        let o_val = o_bit + self.bits;
+        match self.col_of[j] {
+            Col::One => (n, n),
+            Col::Bit(k) => (n, b[o_bit + k]),
+            Col::Int(k) => (n, b[o_val + k]),
+            Col::Real(k) => (n, b[o_val + self.ints + k]),
+        }
+    }
     /// (count, sum, sum of squares) of metric `j` in base vector `b`.
     pub(super) fn acc(&self, b: &[f64], j: usize) -> (f64, f64, f64) {
         let n = b[1 + self.unit_of[j]];
@@ -127,13 +154,16 @@ pub(super) struct Units<'a> {
 /// passer-season × state cell, and each passer-season's last snap.
 pub(crate) struct Memo {
     pub(super) width: usize,
+    /// `Layout::cell_width`: the width of `ps_cell_sums`' rows.
+    pub(super) cell_width: usize,
     /// n_ps × width.
     pub(super) ps: Vec<f64>,
     /// n_seasons × CELLS × width.
     pub(super) season_cells: Vec<f64>,
     /// Nonzero (passer-season × CELLS + cell) keys, ascending, and their
-    /// base sums (width each): unit counts for the state-mix weights, sums
-    /// for leaving a passer's own snaps out of the league's cell values.
+    /// cell sums (`cell_width` each, `Layout::to_cell`): unit counts for
+    /// the state-mix weights, sums for leaving a passer's own snaps out of
+    /// the league's cell values.
     pub(super) ps_cell_keys: Vec<u32>,
     pub(super) ps_cell_sums: Vec<f64>,
     /// Per passer-season: (last snap + 1, its offense); 0 when none.
@@ -668,6 +698,7 @@ mod memo_tests {
     fn pass_of(mb: usize) -> Arc<Memo> {
         Arc::new(Memo {
             width: 1,
+            cell_width: 1,
             ps: vec![0.0; mb << 17],
             season_cells: Vec::new(),
             ps_cell_keys: Vec::new(),
