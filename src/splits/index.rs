@@ -45,6 +45,12 @@ pub(super) struct Layout {
 }
 
 impl Layout {
+    /// Values per row of the index's records (`SplitIndex::rec`): the
+    /// row's unit flags and 0/1 flags, then its whole numbers and its other
+    /// numbers, as `f64`.
+    pub(super) fn stride(&self) -> usize {
+        1 + self.ints + self.reals
+    }
     pub(super) fn width(&self) -> usize {
         1 + self.units + self.bits + 2 * self.ints + 2 * self.reals
     }
@@ -125,10 +131,11 @@ pub struct SplitIndex {
     down: Vec<i32>,
     to_go: Vec<i32>,
     ball_on: Vec<i32>,
-    pub(super) units: Vec<u16>,
-    pub(super) bits: Vec<u32>,
-    pub(super) ints: Vec<i32>,
-    pub(super) reals: Vec<f64>,
+    /// Each row's metric values as one record of `Layout::stride` values
+    /// (read by `units_at`, `bits_at`, `values_at`): a pass gathers rows
+    /// that lie far apart, and one record is two or three cache lines
+    /// where four columns were four or five.
+    pub(super) rec: Vec<f64>,
     /// Pass results per situation without its season and passer filters,
     /// bounded by count and by bytes (`MemoMap`).
     pub(super) memo: Mutex<MemoMap>,
@@ -308,6 +315,11 @@ fn layout_from(seen: &Seen, unit_of: Vec<usize>) -> Layout {
     Layout { units, unit_of, col_of, bits, ints, reals }
 }
 
+/// A row's unit flags and 0/1 flags in one `f64` (exact: below 2^48).
+fn meta(units: u16, bits: u32) -> f64 {
+    ((u64::from(units) << 32) | u64::from(bits)) as f64
+}
+
 /// Rows per piece of the build handed to rayon: a power of two, so a row's
 /// piece and place in it are a shift and a mask.
 const BUILD_SHIFT: u32 = 15;
@@ -329,10 +341,7 @@ struct Piece {
     down: Vec<i32>,
     to_go: Vec<i32>,
     ball_on: Vec<i32>,
-    units: Vec<u16>,
-    bits: Vec<u32>,
-    ints: Vec<i32>,
-    reals: Vec<f64>,
+    rec: Vec<f64>,
 }
 
 /// One column of every piece (`w` values per row), put in the index's row
@@ -439,11 +448,9 @@ impl SplitIndex {
                     down: Vec::with_capacity(n),
                     to_go: Vec::with_capacity(n),
                     ball_on: Vec::with_capacity(n),
-                    units: Vec::with_capacity(n),
-                    bits: Vec::with_capacity(n),
-                    ints: vec![0; n * lay.ints],
-                    reals: vec![0.0; n * lay.reals],
+                    rec: vec![0.0; n * lay.stride()],
                 };
+                let (st, ni) = (lay.stride(), lay.ints);
                 for (r, &i) in rows.iter().enumerate() {
                     let i = i as usize;
                     let mask = row_values(p, v, i, &mut vals);
@@ -458,12 +465,11 @@ impl SplitIndex {
                         match lay.col_of[j] {
                             Col::One => {}
                             Col::Bit(k) => b |= u32::from(vals[j] == 1.0) << k,
-                            Col::Int(k) => c.ints[r * lay.ints + k] = vals[j] as i32,
-                            Col::Real(k) => c.reals[r * lay.reals + k] = vals[j],
+                            Col::Int(k) => c.rec[r * st + 1 + k] = f64::from(vals[j] as i32),
+                            Col::Real(k) => c.rec[r * st + 1 + ni + k] = vals[j],
                         }
                     }
-                    c.units.push(u);
-                    c.bits.push(b);
+                    c.rec[r * st] = meta(u, b);
                     c.team.push(p.offense[i]);
                     c.ts_off.push(ts_id(p.offense[i], y));
                     c.ts_def.push(ts_id(p.defense[i], y));
@@ -486,7 +492,7 @@ impl SplitIndex {
             };
         }
         let n = snaps.len();
-        let (n_ints, n_reals) = (layout.ints, layout.reals);
+        let stride = layout.stride();
         let mut ix = SplitIndex {
             n_snaps: p.len(),
             n_passers: p.passers.len(),
@@ -504,10 +510,7 @@ impl SplitIndex {
             down: column!(down, 1),
             to_go: column!(to_go, 1),
             ball_on: column!(ball_on, 1),
-            units: column!(units, 1),
-            bits: column!(bits, 1),
-            ints: column!(ints, n_ints),
-            reals: column!(reals, n_reals),
+            rec: column!(rec, stride),
             snap: snaps,
             memo: Mutex::new(memo_map()),
             extra: Mutex::new(HashMap::new()),
@@ -530,6 +533,23 @@ impl SplitIndex {
             start = end;
         }
         ix
+    }
+
+    /// Row `r`'s unit flags (bit `u`: the row counts in unit `u`).
+    #[inline]
+    pub(super) fn units_at(&self, r: usize) -> u16 {
+        (self.rec[r * self.layout.stride()] as u64 >> 32) as u16
+    }
+    /// Row `r`'s 0/1 flags (`Col::Bit`).
+    #[inline]
+    pub(super) fn bits_at(&self, r: usize) -> u32 {
+        self.rec[r * self.layout.stride()] as u64 as u32
+    }
+    /// Row `r`'s whole numbers then other numbers (`Col::Int`, `Col::Real`).
+    #[inline]
+    pub(super) fn values_at(&self, r: usize) -> &[f64] {
+        let st = self.layout.stride();
+        &self.rec[r * st + 1..][..st - 1]
     }
 
     /// The unit-season ids a grouping sums over.

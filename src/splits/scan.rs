@@ -259,7 +259,7 @@ fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
     // (the rows sit far apart in the index; loads that do not wait on each
     // other overlap), then added to their group in order.
     let lay = &ix.layout;
-    let (ni, nr) = (lay.ints, lay.reals);
+    let st = lay.stride();
     let full: Vec<Vec<f64>> = parts.into_par_iter().map(|(b, out, ps)| {
         let first = b * PS_BLOCK;
         // Summed in a buffer of the block's own, then its cell sums copied
@@ -268,10 +268,8 @@ fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
         let mut sums = vec![0.0f64; keys.len() * w];
         let (Some(&k0), Some(&kz)) = (keys.first(), keys.last()) else { return sums };
         let (a, z) = (start[k0 as usize] as usize, start[kz as usize + 1] as usize);
-        // Whole numbers and other numbers gathered as f64 (converted or
-        // plus 0.0, which changes no sum: a plain copy of a run of
-        // unknown length would be a call to memcpy per row).
-        let nv = ni + nr;
+        // Each row's record gathered: its flags and its values.
+        let nv = st - 1;
         let mut gv = vec![0.0f64; GATHER * nv];
         let (mut gu, mut gb) = ([0u16; GATHER], [0u32; GATHER]);
         let mut g = 0;
@@ -280,12 +278,12 @@ fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
             let chunk = &sorted[at..(at + GATHER).min(z)];
             for (q, &r) in chunk.iter().enumerate() {
                 let r = r as usize;
-                (gu[q], gb[q]) = (ix.units[r], ix.bits[r]);
-                let out = &mut gv[q * nv..][..nv];
-                for (o, &x) in out[..ni].iter_mut().zip(&ix.ints[r * ni..][..ni]) {
-                    *o = f64::from(x);
-                }
-                for (o, &x) in out[ni..].iter_mut().zip(&ix.reals[r * nr..][..nr]) {
+                let rec = &ix.rec[r * st..][..st];
+                let meta = rec[0] as u64;
+                (gu[q], gb[q]) = ((meta >> 32) as u16, meta as u32);
+                // Plus 0.0, which changes no sum: a plain copy of a run
+                // of unknown length would be a call to memcpy per row.
+                for (o, &x) in gv[q * nv..][..nv].iter_mut().zip(&rec[1..]) {
                     *o = x + 0.0;
                 }
             }
