@@ -767,4 +767,29 @@ mod memo_tests {
         assert_eq!(m.len(), MEMO_SIZE);
         assert!(m.get("0").is_some() && m.get("1").is_none() && m.get(&MEMO_SIZE.to_string()).is_some());
     }
+
+    /// A row's flags come back whole from its record's first value, at
+    /// the largest flags a row can have.
+    #[test]
+    fn a_rows_flags_survive_the_record() {
+        for (u, b) in [(0u16, 0u32), (1, 1), (u16::MAX, u32::MAX), (0x5a5a, 0xdead_beef), (1 << 15, 1 << 31)] {
+            let m = meta(u, b) as u64;
+            assert_eq!(((m >> 32) as u16, m as u32), (u, b));
+        }
+    }
+
+    /// A state cell's (count, sum) is the base vector's, for every metric.
+    #[test]
+    fn cell_sums_keep_each_metrics_count_and_sum() {
+        let lay = Layout { units: 2, unit_of: vec![0, 1, 0, 1], col_of: vec![Col::One, Col::Bit(0), Col::Int(0), Col::Real(0)], bits: 1, ints: 1, reals: 1 };
+        // [rows, unit 0, unit 1, bit 0, int sum, int sumsq, real sum, real sumsq]
+        let base = [7.0, 5.0, 3.0, 2.0, 11.0, 41.0, -1.5, 2.25];
+        let mut cell = vec![0.0; lay.cell_width()];
+        lay.to_cell(&base, &mut cell);
+        assert_eq!(cell, vec![7.0, 5.0, 3.0, 2.0, 11.0, -1.5]);
+        for j in 0..4 {
+            let (n, sum, _) = lay.acc(&base, j);
+            assert_eq!(lay.cell_acc(&cell, j), (n, sum));
+        }
+    }
 }
