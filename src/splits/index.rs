@@ -45,8 +45,41 @@ pub(super) struct Layout {
 }
 
 impl Layout {
+    /// Values per row of the index's records (`SplitIndex::rec`): the
+    /// row's unit flags and 0/1 flags, then its whole numbers and its other
+    /// numbers, as `f64`.
+    pub(super) fn stride(&self) -> usize {
+        1 + self.ints + self.reals
+    }
     pub(super) fn width(&self) -> usize {
         1 + self.units + self.bits + 2 * self.ints + 2 * self.reals
+    }
+    /// Width of a state cell's sums: the base vector without the sums of
+    /// squares (`[rows, unit counts.., bit sums.., int sums.., real
+    /// sums..]`; the state-mix baselines read counts and sums only).
+    pub(super) fn cell_width(&self) -> usize {
+        1 + self.units + self.bits + self.ints + self.reals
+    }
+    /// A base vector's cell sums (`cell_width` of them) into `out`.
+    #[inline]
+    pub(super) fn to_cell(&self, b: &[f64], out: &mut [f64]) {
+        let o = 1 + self.units + self.bits;
+        out[..o].copy_from_slice(&b[..o]);
+        for (i, x) in out[o..].iter_mut().enumerate() {
+            *x = b[o + 2 * i];
+        }
+    }
+    /// (count, sum) of metric `j` in cell sums `b` (see `cell_width`).
+    pub(super) fn cell_acc(&self, b: &[f64], j: usize) -> (f64, f64) {
+        let n = b[1 + self.unit_of[j]];
+        let o_bit = 1 + self.units;
+        let o_val = o_bit + self.bits;
+        match self.col_of[j] {
+            Col::One => (n, n),
+            Col::Bit(k) => (n, b[o_bit + k]),
+            Col::Int(k) => (n, b[o_val + k]),
+            Col::Real(k) => (n, b[o_val + self.ints + k]),
+        }
     }
     /// (count, sum, sum of squares) of metric `j` in base vector `b`.
     pub(super) fn acc(&self, b: &[f64], j: usize) -> (f64, f64, f64) {
@@ -98,10 +131,11 @@ pub struct SplitIndex {
     down: Vec<i32>,
     to_go: Vec<i32>,
     ball_on: Vec<i32>,
-    pub(super) units: Vec<u16>,
-    pub(super) bits: Vec<u32>,
-    pub(super) ints: Vec<i32>,
-    pub(super) reals: Vec<f64>,
+    /// Each row's metric values as one record of `Layout::stride` values
+    /// (read by `units_at`, `bits_at`, `values_at`): a pass gathers rows
+    /// that lie far apart, and one record is two or three cache lines
+    /// where four columns were four or five.
+    pub(super) rec: Vec<f64>,
     /// Pass results per situation without its season and passer filters,
     /// bounded by count and by bytes (`MemoMap`).
     pub(super) memo: Mutex<MemoMap>,
@@ -127,13 +161,16 @@ pub(super) struct Units<'a> {
 /// passer-season × state cell, and each passer-season's last snap.
 pub(crate) struct Memo {
     pub(super) width: usize,
+    /// `Layout::cell_width`: the width of `ps_cell_sums`' rows.
+    pub(super) cell_width: usize,
     /// n_ps × width.
     pub(super) ps: Vec<f64>,
     /// n_seasons × CELLS × width.
     pub(super) season_cells: Vec<f64>,
     /// Nonzero (passer-season × CELLS + cell) keys, ascending, and their
-    /// base sums (width each): unit counts for the state-mix weights, sums
-    /// for leaving a passer's own snaps out of the league's cell values.
+    /// cell sums (`cell_width` each, `Layout::to_cell`): unit counts for
+    /// the state-mix weights, sums for leaving a passer's own snaps out of
+    /// the league's cell values.
     pub(super) ps_cell_keys: Vec<u32>,
     pub(super) ps_cell_sums: Vec<f64>,
     /// Per passer-season: (last snap + 1, its offense); 0 when none.
@@ -278,6 +315,11 @@ fn layout_from(seen: &Seen, unit_of: Vec<usize>) -> Layout {
     Layout { units, unit_of, col_of, bits, ints, reals }
 }
 
+/// A row's unit flags and 0/1 flags in one `f64` (exact: below 2^48).
+fn meta(units: u16, bits: u32) -> f64 {
+    ((u64::from(units) << 32) | u64::from(bits)) as f64
+}
+
 /// Rows per piece of the build handed to rayon: a power of two, so a row's
 /// piece and place in it are a shift and a mask.
 const BUILD_SHIFT: u32 = 15;
@@ -299,10 +341,7 @@ struct Piece {
     down: Vec<i32>,
     to_go: Vec<i32>,
     ball_on: Vec<i32>,
-    units: Vec<u16>,
-    bits: Vec<u32>,
-    ints: Vec<i32>,
-    reals: Vec<f64>,
+    rec: Vec<f64>,
 }
 
 /// One column of every piece (`w` values per row), put in the index's row
@@ -409,11 +448,9 @@ impl SplitIndex {
                     down: Vec::with_capacity(n),
                     to_go: Vec::with_capacity(n),
                     ball_on: Vec::with_capacity(n),
-                    units: Vec::with_capacity(n),
-                    bits: Vec::with_capacity(n),
-                    ints: vec![0; n * lay.ints],
-                    reals: vec![0.0; n * lay.reals],
+                    rec: vec![0.0; n * lay.stride()],
                 };
+                let (st, ni) = (lay.stride(), lay.ints);
                 for (r, &i) in rows.iter().enumerate() {
                     let i = i as usize;
                     let mask = row_values(p, v, i, &mut vals);
@@ -428,12 +465,11 @@ impl SplitIndex {
                         match lay.col_of[j] {
                             Col::One => {}
                             Col::Bit(k) => b |= u32::from(vals[j] == 1.0) << k,
-                            Col::Int(k) => c.ints[r * lay.ints + k] = vals[j] as i32,
-                            Col::Real(k) => c.reals[r * lay.reals + k] = vals[j],
+                            Col::Int(k) => c.rec[r * st + 1 + k] = f64::from(vals[j] as i32),
+                            Col::Real(k) => c.rec[r * st + 1 + ni + k] = vals[j],
                         }
                     }
-                    c.units.push(u);
-                    c.bits.push(b);
+                    c.rec[r * st] = meta(u, b);
                     c.team.push(p.offense[i]);
                     c.ts_off.push(ts_id(p.offense[i], y));
                     c.ts_def.push(ts_id(p.defense[i], y));
@@ -456,7 +492,7 @@ impl SplitIndex {
             };
         }
         let n = snaps.len();
-        let (n_ints, n_reals) = (layout.ints, layout.reals);
+        let stride = layout.stride();
         let mut ix = SplitIndex {
             n_snaps: p.len(),
             n_passers: p.passers.len(),
@@ -474,10 +510,7 @@ impl SplitIndex {
             down: column!(down, 1),
             to_go: column!(to_go, 1),
             ball_on: column!(ball_on, 1),
-            units: column!(units, 1),
-            bits: column!(bits, 1),
-            ints: column!(ints, n_ints),
-            reals: column!(reals, n_reals),
+            rec: column!(rec, stride),
             snap: snaps,
             memo: Mutex::new(memo_map()),
             extra: Mutex::new(HashMap::new()),
@@ -500,6 +533,23 @@ impl SplitIndex {
             start = end;
         }
         ix
+    }
+
+    /// Row `r`'s unit flags (bit `u`: the row counts in unit `u`).
+    #[inline]
+    pub(super) fn units_at(&self, r: usize) -> u16 {
+        (self.rec[r * self.layout.stride()] as u64 >> 32) as u16
+    }
+    /// Row `r`'s 0/1 flags (`Col::Bit`).
+    #[inline]
+    pub(super) fn bits_at(&self, r: usize) -> u32 {
+        self.rec[r * self.layout.stride()] as u64 as u32
+    }
+    /// Row `r`'s whole numbers then other numbers (`Col::Int`, `Col::Real`).
+    #[inline]
+    pub(super) fn values_at(&self, r: usize) -> &[f64] {
+        let st = self.layout.stride();
+        &self.rec[r * st + 1..][..st - 1]
     }
 
     /// The unit-season ids a grouping sums over.
@@ -668,6 +718,7 @@ mod memo_tests {
     fn pass_of(mb: usize) -> Arc<Memo> {
         Arc::new(Memo {
             width: 1,
+            cell_width: 1,
             ps: vec![0.0; mb << 17],
             season_cells: Vec::new(),
             ps_cell_keys: Vec::new(),
@@ -715,5 +766,30 @@ mod memo_tests {
         }
         assert_eq!(m.len(), MEMO_SIZE);
         assert!(m.get("0").is_some() && m.get("1").is_none() && m.get(&MEMO_SIZE.to_string()).is_some());
+    }
+
+    /// A row's flags come back whole from its record's first value, at
+    /// the largest flags a row can have.
+    #[test]
+    fn a_rows_flags_survive_the_record() {
+        for (u, b) in [(0u16, 0u32), (1, 1), (u16::MAX, u32::MAX), (0x5a5a, 0xdead_beef), (1 << 15, 1 << 31)] {
+            let m = meta(u, b) as u64;
+            assert_eq!(((m >> 32) as u16, m as u32), (u, b));
+        }
+    }
+
+    /// A state cell's (count, sum) is the base vector's, for every metric.
+    #[test]
+    fn cell_sums_keep_each_metrics_count_and_sum() {
+        let lay = Layout { units: 2, unit_of: vec![0, 1, 0, 1], col_of: vec![Col::One, Col::Bit(0), Col::Int(0), Col::Real(0)], bits: 1, ints: 1, reals: 1 };
+        // [rows, unit 0, unit 1, bit 0, int sum, int sumsq, real sum, real sumsq]
+        let base = [7.0, 5.0, 3.0, 2.0, 11.0, 41.0, -1.5, 2.25];
+        let mut cell = vec![0.0; lay.cell_width()];
+        lay.to_cell(&base, &mut cell);
+        assert_eq!(cell, vec![7.0, 5.0, 3.0, 2.0, 11.0, -1.5]);
+        for j in 0..4 {
+            let (n, sum, _) = lay.acc(&base, j);
+            assert_eq!(lay.cell_acc(&cell, j), (n, sum));
+        }
     }
 }

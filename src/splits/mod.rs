@@ -21,11 +21,13 @@ mod reference;
 mod scan;
 mod shrink;
 mod snaps;
+mod stages;
 mod table;
 mod tags;
 mod words;
 
 pub use metrics::{headings, is_style, metric_group, metric_index, MetricDef, SnapValues, Stat, Unit, METRICS, METRIC_GROUPS};
+pub use stages::stage_times;
 pub use snaps::{coach_spot, down_distance, game_snaps, play_indices, play_list, quarter, result_text, snap_at, Snap};
 pub use index::SplitIndex;
 pub use opponent::{fit_metric as opponent_fit_metric, opponent_fit, Adjusted, OpponentFit, ADJUSTED_METRIC, OPPONENT_WORDS};

@@ -49,14 +49,14 @@ pub struct OpponentFit {
 /// The value metric `j` contributes at row `r` of the index (`None` outside its unit).
 fn value_at(ix: &SplitIndex, j: usize, r: usize) -> Option<f64> {
     let lay = &ix.layout;
-    if ix.units[r] >> lay.unit_of[j] & 1 == 0 {
+    if ix.units_at(r) >> lay.unit_of[j] & 1 == 0 {
         return None;
     }
     Some(match lay.col_of[j] {
         Col::One => 1.0,
-        Col::Bit(k) => f64::from(ix.bits[r] >> k & 1),
-        Col::Int(k) => ix.ints[r * lay.ints + k] as f64,
-        Col::Real(k) => ix.reals[r * lay.reals + k],
+        Col::Bit(k) => f64::from(ix.bits_at(r) >> k & 1),
+        Col::Int(k) => ix.values_at(r)[k],
+        Col::Real(k) => ix.values_at(r)[lay.ints + k],
     })
 }
 

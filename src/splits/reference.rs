@@ -79,7 +79,7 @@ fn dense_cells(ix: &SplitIndex, group: Group, fast: &Sums) -> DenseCells {
             assert!(fast.cells_of(ix, group, ps, &mut scratch), "the table's sums carry cells");
             for c in (0..CELLS).filter(|c| scratch.mask >> c & 1 == 1) {
                 for j in 0..nm {
-                    let (n, sum, _) = ix.layout.acc(&scratch.base[c * scratch.width..][..scratch.width], j);
+                    let (n, sum) = ix.layout.cell_acc(&scratch.base[c * scratch.width..][..scratch.width], j);
                     pc[c * nm + j] = n;
                     cs[c * nm + j] = sum;
                 }

@@ -86,8 +86,8 @@ pub(super) struct PasserSums {
     pub(super) team: u16,
 }
 
-/// A passer's base sums per state cell over the chosen seasons (CELLS ×
-/// width, see `Layout`) and which cells hold a snap (bit c: cell c); rows
+/// A passer's cell sums per state cell over the chosen seasons (CELLS ×
+/// `Layout::cell_width`) and which cells hold a snap (bit c: cell c); rows
 /// of cells without snaps hold stale numbers. Kept by the caller across
 /// passers so no passer allocates.
 #[derive(Default)]
@@ -116,7 +116,7 @@ impl Sums {
     /// when these sums carry no cells.
     pub(super) fn cells_of(&self, ix: &SplitIndex, group: Group, ps: &PasserSums, out: &mut CellSums) -> bool {
         let Some((m, chosen)) = &self.cells else { return false };
-        let (w, key) = (m.width, ix.units_of(group).key);
+        let (w, key) = (m.cell_width, ix.units_of(group).key);
         if out.base.len() != CELLS * w {
             out.base = vec![0.0; CELLS * w];
         }
@@ -180,9 +180,12 @@ const GATHER: usize = 64;
 /// The pass for `s` (its seasons and passer aside): the rows it keeps
 /// (checked in pieces on rayon's threads, kept in row order), grouped by
 /// passer-season × state cell with a stable counting sort, each group summed
-/// in row order; passer-season and season × cell sums are then summed from
-/// the groups in key order. The order of every addition is fixed by the rows
-/// alone, so the sums are the same on every machine, however many threads.
+/// in row order straight into the pass's per-cell sums (blocks of
+/// passer-seasons on rayon's threads, each writing its own part, with its
+/// passer-seasons' sums from its groups in key order); the season × cell
+/// sums are then summed from the groups in key order. The order of every
+/// addition is fixed by the rows alone, so the sums are the same on every
+/// machine, however many threads.
 fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
     let plan = Plan::new(ix, s);
     let kept: Vec<u32> = plan
@@ -203,9 +206,16 @@ fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
     let (w, n_ps) = (ix.layout.width(), u.key.len());
     let key = |r: u32| u.id[r as usize] as usize * CELLS + ix.cell[r as usize] as usize;
     // Counting sort by key: group k's rows are sorted[start[k]..start[k + 1]].
+    // Each unit-season's last snap (and its team) is read here, in row
+    // order, where the rows lie close together.
     let mut start = vec![0u32; n_ps * CELLS + 1];
+    let mut last = vec![(0u32, 0u16); n_ps];
     for &r in &kept {
         start[key(r) + 1] += 1;
+        let (end, snap) = (&mut last[u.id[r as usize] as usize], ix.snap[r as usize]);
+        if snap + 1 > end.0 {
+            *end = (snap + 1, ix.team[r as usize]);
+        }
     }
     for k in 0..n_ps * CELLS {
         start[k + 1] += start[k];
@@ -218,76 +228,85 @@ fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
         fill[k] += 1;
     }
     drop((kept, fill));
+    // The groups with rows, in key order, and where each block of
+    // passer-seasons starts among them.
+    let keys: Vec<u32> = (0..n_ps * CELLS).filter(|&k| start[k + 1] > start[k]).map(|k| k as u32).collect();
+    let n_blocks = n_ps.div_ceil(PS_BLOCK);
+    let block_at: Vec<usize> = (0..=n_blocks).map(|b| keys.partition_point(|&k| (k as usize) < (b * PS_BLOCK).min(n_ps) * CELLS)).collect();
+    let cw = ix.layout.cell_width();
+    let mut m = Memo {
+        width: w,
+        cell_width: cw,
+        ps: vec![0.0; n_ps * w],
+        season_cells: vec![0.0; ix.seasons.len() * CELLS * w],
+        ps_cell_keys: Vec::new(),
+        ps_cell_sums: vec![0.0; keys.len() * cw],
+        last,
+        derived: Default::default(),
+    };
+    // Each block's part of the per-cell sums and of the unit-season sums.
+    let mut parts: Vec<(usize, &mut [f64], &mut [f64])> = Vec::with_capacity(n_blocks);
+    let (mut cell_rest, mut ps_rest) = (m.ps_cell_sums.as_mut_slice(), m.ps.as_mut_slice());
+    for b in 0..n_blocks {
+        let n_ps_b = ((b + 1) * PS_BLOCK).min(n_ps) - b * PS_BLOCK;
+        let (c, cr) = std::mem::take(&mut cell_rest).split_at_mut((block_at[b + 1] - block_at[b]) * cw);
+        let (q, qr) = std::mem::take(&mut ps_rest).split_at_mut(n_ps_b * w);
+        parts.push((b, c, q));
+        (cell_rest, ps_rest) = (cr, qr);
+    }
     // Groups summed in fixed blocks of passer-seasons (in key order). Each
     // block's rows are gathered `GATHER` at a time before they are added
     // (the rows sit far apart in the index; loads that do not wait on each
     // other overlap), then added to their group in order.
     let lay = &ix.layout;
-    let (ni, nr) = (lay.ints, lay.reals);
-    let blocks: Vec<(Vec<u32>, Vec<f64>, Vec<(u32, u16)>)> = (0..n_ps.div_ceil(PS_BLOCK))
-        .into_par_iter()
-        .map(|b| {
-            let (first, end_ps) = (b * PS_BLOCK, ((b + 1) * PS_BLOCK).min(n_ps));
-            let keys: Vec<u32> = (first * CELLS..end_ps * CELLS).filter(|&k| start[k + 1] > start[k]).map(|k| k as u32).collect();
-            let mut sums = vec![0.0; keys.len() * w];
-            let mut last = vec![(0u32, 0u16); end_ps - first];
-            let (a, z) = (start[first * CELLS] as usize, start[end_ps * CELLS] as usize);
-            // Whole numbers and other numbers gathered as f64 (converted or
-            // plus 0.0, which changes no sum: a plain copy of a run of
-            // unknown length would be a call to memcpy per row).
-            let nv = ni + nr;
-            let mut gv = vec![0.0f64; GATHER * nv];
-            let (mut gu, mut gb, mut gs, mut gt) = ([0u16; GATHER], [0u32; GATHER], [0u32; GATHER], [0u16; GATHER]);
-            let mut g = 0;
-            let mut at = a;
-            while at < z {
-                let chunk = &sorted[at..(at + GATHER).min(z)];
-                for (q, &r) in chunk.iter().enumerate() {
-                    let r = r as usize;
-                    (gu[q], gb[q], gs[q], gt[q]) = (ix.units[r], ix.bits[r], ix.snap[r], ix.team[r]);
-                    let out = &mut gv[q * nv..][..nv];
-                    for (o, &x) in out[..ni].iter_mut().zip(&ix.ints[r * ni..][..ni]) {
-                        *o = f64::from(x);
-                    }
-                    for (o, &x) in out[ni..].iter_mut().zip(&ix.reals[r * nr..][..nr]) {
-                        *o = x + 0.0;
-                    }
+    let st = lay.stride();
+    let full: Vec<Vec<f64>> = parts.into_par_iter().map(|(b, out, ps)| {
+        let first = b * PS_BLOCK;
+        // Summed in a buffer of the block's own, then its cell sums copied
+        // to its part (the whole sums go on to the season × cell sums).
+        let keys = &keys[block_at[b]..block_at[b + 1]];
+        let mut sums = vec![0.0f64; keys.len() * w];
+        let (Some(&k0), Some(&kz)) = (keys.first(), keys.last()) else { return sums };
+        let (a, z) = (start[k0 as usize] as usize, start[kz as usize + 1] as usize);
+        // Each row's record gathered: its flags and its values.
+        let nv = st - 1;
+        let mut gv = vec![0.0f64; GATHER * nv];
+        let (mut gu, mut gb) = ([0u16; GATHER], [0u32; GATHER]);
+        let mut g = 0;
+        let mut at = a;
+        while at < z {
+            let chunk = &sorted[at..(at + GATHER).min(z)];
+            for (q, &r) in chunk.iter().enumerate() {
+                let r = r as usize;
+                let rec = &ix.rec[r * st..][..st];
+                let meta = rec[0] as u64;
+                (gu[q], gb[q]) = ((meta >> 32) as u16, meta as u32);
+                // Plus 0.0, which changes no sum: a plain copy of a run
+                // of unknown length would be a call to memcpy per row.
+                for (o, &x) in gv[q * nv..][..nv].iter_mut().zip(&rec[1..]) {
+                    *o = x + 0.0;
                 }
-                for q in 0..chunk.len() {
-                    while start[keys[g] as usize + 1] as usize <= at + q {
-                        g += 1;
-                    }
-                    add_values(lay, gu[q], gb[q], &gv[q * nv..][..nv], &mut sums[g * w..][..w]);
-                    let end = &mut last[keys[g] as usize / CELLS - first];
-                    if gs[q] + 1 > end.0 {
-                        *end = (gs[q] + 1, gt[q]);
-                    }
-                }
-                at += chunk.len();
             }
-            (keys, sums, last)
-        })
-        .collect();
-    let mut m = Memo {
-        width: w,
-        ps: vec![0.0; n_ps * w],
-        season_cells: vec![0.0; ix.seasons.len() * CELLS * w],
-        ps_cell_keys: Vec::new(),
-        ps_cell_sums: Vec::new(),
-        last: Vec::with_capacity(n_ps),
-        derived: Default::default(),
-    };
-    for (keys, sums, last) in blocks {
-        for (&k, b) in keys.iter().zip(sums.chunks(w)) {
-            let (ps, c) = (k as usize / CELLS, k as usize % CELLS);
-            let season = u.key[ps].1 as usize;
-            add_into(&mut m.ps[ps * w..][..w], b);
-            add_into(&mut m.season_cells[(season * CELLS + c) * w..][..w], b);
+            for q in 0..chunk.len() {
+                while start[keys[g] as usize + 1] as usize <= at + q {
+                    g += 1;
+                }
+                add_values(lay, gu[q], gb[q], &gv[q * nv..][..nv], &mut sums[g * w..][..w]);
+            }
+            at += chunk.len();
         }
-        m.ps_cell_keys.extend(keys);
-        m.ps_cell_sums.extend(sums);
-        m.last.extend(last);
+        for ((&k, s), o) in keys.iter().zip(sums.chunks(w)).zip(out.chunks_mut(cw)) {
+            add_into(&mut ps[(k as usize / CELLS - first) * w..][..w], s);
+            lay.to_cell(s, o);
+        }
+        sums
+    }).collect();
+    for (&k, b) in keys.iter().zip(full.iter().flat_map(|s| s.chunks(w))) {
+        let (ps, c) = (k as usize / CELLS, k as usize % CELLS);
+        let season = u.key[ps].1 as usize;
+        add_into(&mut m.season_cells[(season * CELLS + c) * w..][..w], b);
     }
+    m.ps_cell_keys = keys;
     m
 }
 

@@ -55,7 +55,7 @@ pub(super) fn adjusted(lay: &Layout, sums: &Sums, mine: &Accs, cells: &CellSums,
         while js != 0 {
             let j = js.trailing_zeros() as usize;
             js &= js - 1;
-            let (w, his_sum, _) = lay.acc(row, j);
+            let (w, his_sum) = lay.cell_acc(row, j);
             if w == 0.0 {
                 continue;
             }

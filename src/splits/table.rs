@@ -153,8 +153,8 @@ pub fn split_table_for(p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: 
 
 /// `split_table_for` on a league already indexed (`ix` built from `p`, `v`).
 pub fn split_table_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32, focus: Option<&str>) -> SplitTable {
-    let sums = accumulate(ix, p, v, s);
-    table_of(ix, p, v, s, &sums, min_dropbacks, focus, None)
+    let (sums, opp) = sums_and_opponent(ix, p, v, s);
+    table_of(ix, p, v, s, &sums, opp, min_dropbacks, focus, None)
 }
 
 /// One row of a split table and the league line beside it.
@@ -179,30 +179,32 @@ pub struct SplitRow {
 /// and minimum in the index's memo (made once, by the first row or table
 /// asked).
 pub fn split_row_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32, name: &str) -> SplitRow {
-    let sums = accumulate(ix, p, v, s);
+    let (sums, opp) = sums_and_opponent(ix, p, v, s);
     let names = |who: u32| match s.group {
         Group::Passer => p.passers.get(who as usize),
         Group::Offense | Group::Defense => p.teams.get(who as usize),
     };
     let who = sums.passers.keys().copied().find(|&w| names(w).is_some_and(|n| n == name));
     let qualified = sums.passers.values().filter(|ps| ps.accs[metric_index("dropbacks").unwrap_or(0)].n as u32 >= min_dropbacks.max(1)).count();
-    let t = table_of(ix, p, v, s, &sums, min_dropbacks, Some(name), Some(who.unwrap_or(u32::MAX)));
+    let t = table_of(ix, p, v, s, &sums, opp, min_dropbacks, Some(name), Some(who.unwrap_or(u32::MAX)));
     SplitRow { qualified, row: t.rows.into_iter().next(), metrics: t.metrics, league: t.league, league_lift: t.league_lift, league_dropbacks: t.league_dropbacks }
 }
 
-/// The table from the situation's sums: every row, or only the row of
-/// `only` (a passer or team id).
+/// The situation's sums and, beside its pass (`rayon::join`: it reads
+/// the index on its own and fills the pass's serial steps), EPA per
+/// dropback against an average defense (`splits::opponent`), for passer
+/// rows only (a team row has no single passer to adjust).
+fn sums_and_opponent(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> (Sums, Option<Arc<super::opponent::OpponentFit>>) {
+    rayon::join(|| accumulate(ix, p, v, s), || if s.group == Group::Passer { super::opponent::opponent_fit(ix, p, v, s) } else { None })
+}
+
+/// The table from the situation's sums and its opponent adjustment:
+/// every row, or only the row of `only` (a passer or team id).
 #[allow(clippy::too_many_arguments)]
-fn table_of(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, sums: &Sums, min_dropbacks: u32, focus: Option<&str>, only: Option<u32>) -> SplitTable {
+fn table_of(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, sums: &Sums, opp: Option<Arc<super::opponent::OpponentFit>>, min_dropbacks: u32, focus: Option<&str>, only: Option<u32>) -> SplitTable {
     let normal = every_snap(ix, p, v, s);
-    // EPA per dropback against an average defense (`splits::opponent`),
-    // fitted beside the table; for passer rows only (a team row has no
-    // single passer to adjust).
     let memo = memo(ix, p, v, &s.without_row_pick());
-    let ((mut table, whos), opp) = rayon::join(
-        || build_table(ix, p, sums, &normal, s, min_dropbacks, focus, only, &memo),
-        || if s.group == Group::Passer { super::opponent::opponent_fit(ix, p, v, s) } else { None },
-    );
+    let (mut table, whos) = build_table(ix, p, sums, &normal, s, min_dropbacks, focus, only, &memo);
     if let Some(fit) = opp {
         for (row, who) in table.rows.iter_mut().zip(whos) {
             if let Some(a) = fit.passers.get(&who) {
