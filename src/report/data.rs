@@ -406,6 +406,51 @@ fn seasons_label(seasons: &[i32]) -> String {
 mod tests {
     use super::*;
 
+    /// A key metric whose lift is `lift` with 90% range `lo..hi`, in words.
+    fn lifted(short: &'static str, lift: f64, lo: f64, hi: f64, words: &str) -> KeyMetric {
+        let s = String::new;
+        KeyMetric {
+            key: short,
+            label: short,
+            short,
+            higher_is_better: true,
+            decimals: 1,
+            cell: Cell { lift: Some(lift), lift_lo: Some(lo), lift_hi: Some(hi), ..Cell::default() },
+            value: s(),
+            estimate: s(),
+            interval: s(),
+            league: s(),
+            percentile: s(),
+            signal: s(),
+            n: s(),
+            basis: s(),
+            lift: format!("{lift}"),
+            lift_words: words.into(),
+        }
+    }
+
+    #[test]
+    fn against_his_normal_names_the_three_surest_and_counts_the_rest() {
+        // Ranges symmetric about the lift: the surer a lift, the further
+        // its z from zero (1.0/0.5 = 2 sds ... 0.2/0.5).
+        let ms = vec![
+            lifted("A", 0.2, -0.3, 0.7, "leaning better"),
+            lifted("B", 1.0, 0.5, 1.5, "better, fairly sure"),
+            lifted("C", 0.0, -0.5, 0.5, "about his normal"),
+            lifted("D", -0.8, -1.3, -0.3, "worse, fairly sure"),
+            lifted("E", 0.6, 0.1, 1.1, "better, fairly sure"),
+            lifted("F", -0.4, -0.9, 0.1, "leaning worse"),
+        ];
+        let note = lift_note(&ms);
+        assert_eq!(
+            note,
+            "Against his normal (his other snaps; lift, 90% range): B better, fairly sure (1); D worse, fairly sure (-0.8); \
+             E better, fairly sure (0.6); 2 more differ less surely (his page has them); about his normal on the rest."
+        );
+        assert_eq!(lift_note(&ms[..3]), "Against his normal (his other snaps; lift, 90% range): B better, fairly sure (1); A leaning better (0.2); about his normal on the rest.");
+        assert!(lift_note(&ms[2..3]).ends_with("about his normal on every key number."));
+    }
+
     #[test]
     fn labels() {
         assert_eq!(seasons_label(&[2025]), "season 2025");
@@ -418,20 +463,33 @@ mod tests {
     }
 }
 
+/// At most this many key numbers are named against his normal: the sheet
+/// has room for one short paragraph (three lines in the PDF).
+const LIFT_NAMED: usize = 3;
+
 /// Against his normal, in one sentence: the key numbers whose lift is not
-/// "about his normal" (the rule of `splits::LIFT_RULE`).
+/// "about his normal" (the rule of `splits::LIFT_RULE`), the surest first
+/// (his chance of being above his normal furthest from even), at most
+/// `LIFT_NAMED` of them and a count of the others.
 fn lift_note(metrics: &[KeyMetric]) -> String {
     if metrics.iter().all(|m| m.cell.lift.is_none()) {
         return "Against his normal: no lift here (no snaps elsewhere to compare with, or too few snaps).".into();
     }
-    let off: Vec<String> = metrics
+    let mut off: Vec<(f64, &KeyMetric)> = metrics
         .iter()
         .filter(|m| m.cell.lift.is_some() && m.lift_words != "about his normal")
-        .map(|m| format!("{} {} ({})", m.short, m.lift_words, m.lift))
+        .map(|m| (splits::lift_above_zero(&m.cell).map_or(0.0, |up| (up - 0.5).abs()), m))
         .collect();
+    // Stable: equally sure numbers keep the sheet's order.
+    off.sort_by(|a, b| b.0.total_cmp(&a.0));
     if off.is_empty() {
-        "Against his normal (his other snaps): about his normal on every key number.".into()
-    } else {
-        format!("Against his normal (his other snaps; lift, 90% range): {}; about his normal on the rest.", off.join("; "))
+        return "Against his normal (his other snaps): about his normal on every key number.".into();
     }
+    let named: Vec<String> = off.iter().take(LIFT_NAMED).map(|(_, m)| format!("{} {} ({})", m.short, m.lift_words, m.lift)).collect();
+    let more = match off.len().saturating_sub(LIFT_NAMED) {
+        0 => String::new(),
+        1 => "; 1 more differs less surely (his page has it)".into(),
+        n => format!("; {n} more differ less surely (his page has them)"),
+    };
+    format!("Against his normal (his other snaps; lift, 90% range): {}{more}; about his normal on the rest.", named.join("; "))
 }

@@ -4,7 +4,7 @@
 //! passers (kept per situation, seasons and minimum, so one passer's row
 //! is ranked without the whole table).
 
-use super::index::Memo;
+use super::memo::Memo;
 use super::lift::{self, fit, normals, posteriors, Derived, Fit, RATING_PARTS};
 use super::metrics::{metric_index, Stat, METRICS};
 use super::scan::Sums;

@@ -6,11 +6,11 @@
 //! pass over a situation (`pass`) reads it; filters it does not cover fall
 //! back to `Situation::matches` on each candidate row.
 
+use super::memo::{memo_map, MemoMap};
 use super::metrics::{cell, contributions, SnapValues, METRICS};
 use crate::plays::{Plays, NO_PASSER};
-use crate::situation::{Group, Range, Situation, OT};
+use crate::situation::{Group, OT};
 use rayon::prelude::*;
-use std::any::Any;
 use std::collections::HashMap;
 use std::sync::{Arc, Mutex};
 
@@ -112,11 +112,11 @@ pub struct SplitIndex {
     pub(super) n_teams: usize,
     /// Row ranges per period group (`period.min(OT)`), rows within a group
     /// ascending by seconds left in the half, then by snap.
-    blocks: Vec<(i32, std::ops::Range<usize>)>,
+    pub(super) blocks: Vec<(i32, std::ops::Range<usize>)>,
     /// Per block: seconds left in regulation minus in the half, when it is
     /// the same on every row of the block (then a game-clock window is a
     /// half-clock window).
-    game_offset: Vec<Option<i32>>,
+    pub(super) game_offset: Vec<Option<i32>>,
     // ---- per row ----
     pub(super) snap: Vec<u32>,
     pub(super) ps: Vec<u32>,
@@ -125,12 +125,12 @@ pub struct SplitIndex {
     pub(super) ts_off: Vec<u32>,
     pub(super) ts_def: Vec<u32>,
     pub(super) cell: Vec<u8>,
-    secs_half: Vec<i32>,
-    secs_game: Vec<i32>,
-    margin: Vec<i32>,
-    down: Vec<i32>,
-    to_go: Vec<i32>,
-    ball_on: Vec<i32>,
+    pub(super) secs_half: Vec<i32>,
+    pub(super) secs_game: Vec<i32>,
+    pub(super) margin: Vec<i32>,
+    pub(super) down: Vec<i32>,
+    pub(super) to_go: Vec<i32>,
+    pub(super) ball_on: Vec<i32>,
     /// Each row's metric values as one record of `Layout::stride` values
     /// (read by `units_at`, `bits_at`, `values_at`): a pass gathers rows
     /// that lie far apart, and one record is two or three cache lines
@@ -153,84 +153,6 @@ pub(super) struct Units<'a> {
     pub(super) id: &'a [u32],
     pub(super) key: &'a [(u32, u16)],
     pub(super) n_who: usize,
-}
-
-/// A situation's pass over the index, its season filter aside: base sums
-/// (see `Layout`) per unit-season (passer-, offense- or defense-season by
-/// the grouping; "ps" below), per season × state cell and per
-/// passer-season × state cell, and each passer-season's last snap.
-pub(crate) struct Memo {
-    pub(super) width: usize,
-    /// `Layout::cell_width`: the width of `ps_cell_sums`' rows.
-    pub(super) cell_width: usize,
-    /// n_ps × width.
-    pub(super) ps: Vec<f64>,
-    /// n_seasons × CELLS × width.
-    pub(super) season_cells: Vec<f64>,
-    /// Nonzero (passer-season × CELLS + cell) keys, ascending, and their
-    /// cell sums (`cell_width` each, `Layout::to_cell`): unit counts for
-    /// the state-mix weights, sums for leaving a passer's own snaps out of
-    /// the league's cell values.
-    pub(super) ps_cell_keys: Vec<u32>,
-    pub(super) ps_cell_sums: Vec<f64>,
-    /// Per passer-season: (last snap + 1, its offense); 0 when none.
-    pub(super) last: Vec<(u32, u16)>,
-    /// What the estimates derive from this pass and one more thing (a
-    /// season list, a minimum), under keys their modules choose.
-    pub(super) derived: Mutex<HashMap<String, Arc<dyn Any + Send + Sync>>>,
-}
-
-/// How many derived results one pass keeps before it starts over.
-const DERIVED_SIZE: usize = 16;
-
-impl Memo {
-    /// The result under `key`, made by `make` when it is not kept yet (two
-    /// callers at once may both make it; they make the same thing).
-    pub(super) fn derived<T: Any + Send + Sync>(&self, key: &str, make: impl FnOnce() -> T) -> Arc<T> {
-        if let Some(x) = self.derived.lock().ok().and_then(|d| d.get(key).cloned()).and_then(|a| a.downcast::<T>().ok()) {
-            return x;
-        }
-        let x = Arc::new(make());
-        if let Ok(mut d) = self.derived.lock() {
-            if d.len() >= DERIVED_SIZE {
-                d.clear();
-            }
-            d.insert(key.to_string(), x.clone());
-        }
-        x
-    }
-}
-
-impl Memo {
-    /// Bytes its pass results hold (what it derives later is not counted).
-    pub(super) fn bytes(&self) -> usize {
-        use std::mem::size_of;
-        size_of::<Memo>()
-            + size_of::<f64>() * (self.ps.capacity() + self.season_cells.capacity() + self.ps_cell_sums.capacity())
-            + size_of::<u32>() * self.ps_cell_keys.capacity()
-            + size_of::<(u32, u16)>() * self.last.capacity()
-    }
-}
-
-/// How many situations' passes the index keeps: past it, the pass used
-/// least recently is let go.
-pub(super) const MEMO_SIZE: usize = 16;
-
-/// How many bytes of passes the index keeps: past it, the passes used
-/// least recently are let go. (On 25 seasons the every-snap pass holds
-/// about 27 MB, a late-game window 1-13 MB: a passer's profile reads every
-/// preset's pass, 61 MB together, so the bound leaves room for them and a
-/// few more views.)
-pub(super) const MEMO_BYTES: usize = 96 << 20;
-
-/// The index's memo of passes by key, bounded by `MEMO_SIZE` and by
-/// `MEMO_BYTES` (the passes used least recently go first; the one just
-/// added always stays; each pass weighs `Memo::bytes`).
-pub(crate) type MemoMap = crate::bounded::Bounded<Arc<Memo>>;
-
-/// An empty memo with the index's bounds.
-pub(super) fn memo_map() -> MemoMap {
-    MemoMap::new(MEMO_SIZE, MEMO_BYTES)
 }
 
 /// What the classification pass learns about each metric's values.
@@ -587,186 +509,9 @@ impl SplitIndex {
     }
 }
 
-/// The rows a situation (its season and passer filters aside) keeps: row
-/// ranges from the clock windows, the filters the index holds checked on
-/// its columns, and `Situation::matches` on what is left over.
-pub(super) struct Plan {
-    pub(super) ranges: Vec<std::ops::Range<usize>>,
-    margin: Option<Range>,
-    downs: Option<Vec<i32>>,
-    to_go: Option<Range>,
-    ball_on: Option<Range>,
-    game_secs: Vec<Option<Range>>,
-    /// The filters the index does not hold; None when there are none.
-    rest: Option<Situation>,
-}
-
-/// `s` without the filters the index holds (and without seasons and
-/// passer, which the pass leaves to its caller).
-fn leftover(s: &Situation) -> Situation {
-    Situation {
-        preset: None,
-        one_score: 8,
-        periods: None,
-        half_secs: None,
-        game_secs: None,
-        margin: None,
-        downs: None,
-        to_go: None,
-        ball_on: None,
-        seasons: None,
-        passer: passer_filter(s),
-        group: Group::Passer,
-        ..s.clone()
-    }
-}
-
-/// The passer filter as a filter on snaps: none when the rows are passers
-/// (it picks the row shown, left to the caller); kept when they are teams
-/// (a defense's numbers against one passer).
-fn passer_filter(s: &Situation) -> Option<String> {
-    if s.group == Group::Passer {
-        None
-    } else {
-        s.passer.clone()
-    }
-}
-
-/// The key of a situation's pass: everything but seasons and (when the
-/// rows are passers) the passer; the grouping is part of it (its sums are
-/// per unit of the grouping).
-pub(super) fn memo_key(s: &Situation) -> String {
-    format!("{:?}", Situation { preset: None, one_score: 8, seasons: None, passer: passer_filter(s), ..s.clone() })
-}
-
-impl Plan {
-    pub(super) fn new(ix: &SplitIndex, s: &Situation) -> Plan {
-        let rest = leftover(s);
-        let rest = (rest != Situation::default()).then_some(rest);
-        let mut ranges = Vec::new();
-        let mut game_secs = Vec::new();
-        for (b, (g, rows)) in ix.blocks.iter().enumerate() {
-            if s.periods.as_ref().is_some_and(|ps| !ps.contains(g)) {
-                continue;
-            }
-            // Seconds left in the half: a range of rows.
-            let mut lo = s.half_secs.and_then(|r| r.lo).map_or(f64::NEG_INFINITY, |x| x);
-            let mut hi = s.half_secs.and_then(|r| r.hi).map_or(f64::INFINITY, |x| x);
-            let mut check_game = None;
-            if *g < OT {
-                if let Some(r) = s.game_secs {
-                    match ix.game_offset[b] {
-                        Some(off) => {
-                            lo = lo.max(r.lo.map_or(f64::NEG_INFINITY, |x| x - off as f64));
-                            hi = hi.min(r.hi.map_or(f64::INFINITY, |x| x - off as f64));
-                        }
-                        None => check_game = Some(r),
-                    }
-                }
-            }
-            let secs = &ix.secs_half[rows.clone()];
-            let a = rows.start + secs.partition_point(|&x| (x as f64) < lo);
-            let z = rows.start + secs.partition_point(|&x| (x as f64) <= hi);
-            if a < z {
-                ranges.push(a..z);
-                game_secs.push(check_game);
-            }
-        }
-        Plan { ranges, margin: s.margin, downs: s.downs.clone(), to_go: s.to_go, ball_on: s.ball_on, game_secs, rest }
-    }
-
-    /// Does row `r` of range number `k` belong?
-    #[inline]
-    pub(super) fn keeps(&self, ix: &SplitIndex, p: &Plays, v: &SnapValues, k: usize, r: usize) -> bool {
-        let within = |range: &Option<Range>, x: i32| range.as_ref().is_none_or(|q| q.contains(x as f64));
-        within(&self.game_secs[k], ix.secs_game[r])
-            && within(&self.margin, ix.margin[r])
-            && self.downs.as_ref().is_none_or(|d| d.contains(&ix.down[r]))
-            && (self.to_go.is_none() || (ix.down[r] != 0 && within(&self.to_go, ix.to_go[r])))
-            && within(&self.ball_on, ix.ball_on[r])
-            && self.rest.as_ref().is_none_or(|s| s.matches(p, v.wp, ix.snap[r] as usize))
-    }
-
-    /// The ranges cut into pieces of at most `CHUNK` rows, in row order.
-    pub(super) fn pieces(&self) -> Vec<Vec<(usize, std::ops::Range<usize>)>> {
-        let mut out = vec![Vec::new()];
-        let mut room = CHUNK;
-        for (k, r) in self.ranges.iter().enumerate() {
-            let mut a = r.start;
-            while a < r.end {
-                if room == 0 {
-                    out.push(Vec::new());
-                    room = CHUNK;
-                }
-                let z = (a + room).min(r.end);
-                if let Some(last) = out.last_mut() {
-                    last.push((k, a..z));
-                }
-                room -= z - a;
-                a = z;
-            }
-        }
-        out
-    }
-}
-
 #[cfg(test)]
-mod memo_tests {
+mod tests {
     use super::*;
-
-    /// A pass holding about `mb` MiB.
-    fn pass_of(mb: usize) -> Arc<Memo> {
-        Arc::new(Memo {
-            width: 1,
-            cell_width: 1,
-            ps: vec![0.0; mb << 17],
-            season_cells: Vec::new(),
-            ps_cell_keys: Vec::new(),
-            ps_cell_sums: Vec::new(),
-            last: Vec::new(),
-            derived: Default::default(),
-        })
-    }
-
-    #[test]
-    fn the_memo_lets_the_least_recently_used_passes_go_past_its_bytes() {
-        let mut m = memo_map();
-        // Three fit (a MiB left for each pass's own few bytes).
-        let each = MEMO_BYTES / (3 << 20) - 1;
-        for k in ["a", "b", "c"] {
-            let p = pass_of(each);
-            m.insert(k.to_string(), p.clone(), p.bytes());
-        }
-        assert_eq!(m.len(), 3);
-        assert!(m.bytes() <= MEMO_BYTES);
-        let _ = m.get("a");
-        let p = pass_of(each);
-        m.insert("d".to_string(), p.clone(), p.bytes());
-        // "b" was used least recently; "a" was just read.
-        assert!(m.get("b").is_none());
-        assert!(m.get("a").is_some() && m.get("c").is_some() && m.get("d").is_some());
-        assert!(m.bytes() <= MEMO_BYTES, "{} > {MEMO_BYTES}", m.bytes());
-        assert_eq!(m.bytes(), ["a", "c", "d"].iter().map(|k| m.get(k).map_or(0, |p| p.bytes())).sum::<usize>());
-        // A pass bigger than the whole budget stays alone; replacing a key
-        // counts its bytes once.
-        let p = pass_of(2 * MEMO_BYTES >> 20);
-        m.insert("huge".to_string(), p.clone(), p.bytes());
-        assert_eq!(m.len(), 1);
-        let p = pass_of(1);
-        m.insert("huge".to_string(), p.clone(), p.bytes());
-        assert_eq!(m.bytes(), m.get("huge").map_or(0, |p| p.bytes()));
-        m.clear();
-        assert_eq!((m.len(), m.bytes()), (0, 0));
-        // Past MEMO_SIZE passes the least recently used goes: pass 0 is
-        // read along the way (as every table reads the every-snap pass), so
-        // pass 1 goes first.
-        for k in 0..=MEMO_SIZE {
-            m.insert(k.to_string(), pass_of(0), 0);
-            let _ = m.get("0");
-        }
-        assert_eq!(m.len(), MEMO_SIZE);
-        assert!(m.get("0").is_some() && m.get("1").is_none() && m.get(&MEMO_SIZE.to_string()).is_some());
-    }
 
     /// A row's flags come back whole from its record's first value, at
     /// the largest flags a row can have.

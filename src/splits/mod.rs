@@ -8,11 +8,13 @@
 mod cell;
 mod estimates;
 mod index;
+mod memo;
 pub mod metrics;
 pub mod review;
 mod lift;
 mod normal;
 mod opponent;
+mod plan;
 mod profile;
 #[cfg(test)]
 mod profile_tests;

@@ -5,7 +5,9 @@
 //! out. The fit is kept per season list, the adjustment per situation, in
 //! the split index.
 
-use super::index::{memo_key, Col, Plan, SplitIndex, MEMO_SIZE};
+use super::index::{Col, SplitIndex};
+use super::memo::MEMO_SIZE;
+use super::plan::{memo_key, Plan};
 use super::metrics::{metric_index, SnapValues};
 use crate::plays::Plays;
 use crate::situation::Situation;

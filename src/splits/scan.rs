@@ -2,7 +2,9 @@
 //! sums per passer, per state cell, per season and for the league (`Sums`),
 //! and the raw value of a metric from sums.
 
-use super::index::{memo_key, Layout, Memo, Plan, SplitIndex};
+use super::index::{Layout, SplitIndex};
+use super::memo::Memo;
+use super::plan::{memo_key, Plan};
 use super::metrics::{metric_index, SnapValues, Stat, CELLS, METRICS};
 use crate::plays::Plays;
 use crate::situation::{Group, Situation};

@@ -6,7 +6,7 @@
 pub use super::cell::{Cell, PasserRow};
 use super::estimates::{estimates, fill, ranks_key, ranks_of, Ranks, Shown};
 use super::index::SplitIndex;
-use super::index::Memo;
+use super::memo::Memo;
 use super::metrics::{higher_is_better, is_style, metric_index, SnapValues, Stat, METRICS};
 use super::normal::every_snap;
 use super::scan::{accumulate, memo, rating_from, raw_value, seasons_of, Acc, CellSums, Sums};
