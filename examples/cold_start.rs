@@ -8,17 +8,10 @@
 use lategame::league::{League, LeagueConfig};
 use std::time::Instant;
 
-/// CPU seconds (user + system) this process has used so far.
-fn cpu_seconds() -> f64 {
-    let Ok(stat) = std::fs::read_to_string("/proc/self/stat") else { return f64::NAN };
-    // Fields after the command name (which may hold spaces) in parentheses.
-    let Some(rest) = stat.rsplit_once(')').map(|(_, r)| r) else { return f64::NAN };
-    let f: Vec<&str> = rest.split_whitespace().collect();
-    let tick = |k: usize| f.get(k).and_then(|v| v.parse::<f64>().ok()).unwrap_or(f64::NAN);
-    // utime and stime are fields 14 and 15 of the line, 12 and 13 here; in
-    // clock ticks of 1/100 s on Linux.
-    (tick(11) + tick(12)) / 100.0
-}
+#[path = "support/proc_stat.rs"]
+mod proc_stat;
+use proc_stat::cpu_seconds;
+
 
 struct Clock {
     wall: Instant,

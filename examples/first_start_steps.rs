@@ -9,13 +9,12 @@ use lategame::league::{League, LeagueConfig};
 use lategame::playfile::{self, LoadOptions};
 use std::time::Instant;
 
+#[path = "support/proc_stat.rs"]
+mod proc_stat;
+
 /// (CPU seconds, minor faults) of this process so far.
 fn cpu_faults() -> (f64, f64) {
-    let Ok(stat) = std::fs::read_to_string("/proc/self/stat") else { return (f64::NAN, f64::NAN) };
-    let Some(rest) = stat.rsplit_once(')').map(|(_, r)| r) else { return (f64::NAN, f64::NAN) };
-    let f: Vec<&str> = rest.split_whitespace().collect();
-    let num = |k: usize| f.get(k).and_then(|v| v.parse::<f64>().ok()).unwrap_or(f64::NAN);
-    ((num(11) + num(12)) / 100.0, num(7))
+    (proc_stat::cpu_seconds(), proc_stat::minor_faults())
 }
 
 fn status(key: &str) -> String {

@@ -8,14 +8,10 @@ use lategame::league::{League, LeagueConfig};
 use std::io::Write;
 use std::time::Instant;
 
-/// CPU seconds (user + system) this process has used so far.
-fn cpu_seconds() -> f64 {
-    let Ok(stat) = std::fs::read_to_string("/proc/self/stat") else { return f64::NAN };
-    let Some(rest) = stat.rsplit_once(')').map(|(_, r)| r) else { return f64::NAN };
-    let f: Vec<&str> = rest.split_whitespace().collect();
-    let tick = |k: usize| f.get(k).and_then(|v| v.parse::<f64>().ok()).unwrap_or(f64::NAN);
-    (tick(11) + tick(12)) / 100.0
-}
+#[path = "support/proc_stat.rs"]
+mod proc_stat;
+use proc_stat::cpu_seconds;
+
 
 fn main() -> anyhow::Result<()> {
     let path = std::env::args().nth(1).unwrap_or_else(|| "demo-data/league.parquet".into());

@@ -12,6 +12,9 @@ use lategame::splits;
 use std::collections::BTreeMap;
 use std::time::Instant;
 
+#[path = "support/proc_stat.rs"]
+mod proc_stat;
+
 fn ms(t: Instant) -> f64 {
     t.elapsed().as_secs_f64() * 1000.0
 }
@@ -133,16 +136,12 @@ fn cpu_ms() -> f64 {
         / 1e6
 }
 
-/// Minor page faults of this process so far (`/proc/self/stat`, field 10).
-fn faults() -> f64 {
-    std::fs::read_to_string("/proc/self/stat").ok().and_then(|s| s.rsplit(')').next().and_then(|r| r.split_whitespace().nth(7)).and_then(|x| x.parse().ok())).unwrap_or(f64::NAN)
-}
 
 /// Wall and CPU ms of `f`, and the page faults it took.
 fn timed(f: impl FnOnce()) -> (f64, f64, f64) {
-    let (t, c, pf) = (Instant::now(), cpu_ms(), faults());
+    let (t, c, pf) = (Instant::now(), cpu_ms(), proc_stat::minor_faults());
     f();
-    (ms(t), cpu_ms() - c, faults() - pf)
+    (ms(t), cpu_ms() - c, proc_stat::minor_faults() - pf)
 }
 
 /// "p50 wall, cpu, faults" of timed runs.
