@@ -234,6 +234,38 @@ fn choosing_our_passer_sets_a_cookie() {
     assert!(page.contains("<tr class=\"ours\">"), "our passer's row is highlighted");
 }
 
+/// A passer's view asked with no passer and none ours lists the league's
+/// passers, most dropbacks first, each a link to that view of him with the
+/// seasons and view kept; the link opens it.
+#[test]
+fn a_passer_view_without_a_passer_offers_the_league_passers() {
+    let base = demo_server();
+    let busiest_late = busiest_passer(base);
+    let every = get(&format!("{base}/api/splits?preset=every-snap&min=1")).json();
+    let mut counts: Vec<(i64, String)> = every["rows"]
+        .as_array()
+        .expect("rows")
+        .iter()
+        .map(|r| (r["dropbacks"].as_i64().or_else(|| r["n"].as_i64()).unwrap_or(0), r["passer"].as_str().unwrap_or("").to_string()))
+        .collect();
+    counts.sort_by(|a, b| b.0.cmp(&a.0).then_with(|| a.1.cmp(&b.1)));
+    for (path, title_word) in [("/passer", "profile"), ("/meeting", "meeting"), ("/report", "report"), ("/report.pdf", "report")] {
+        let r = get(&format!("{base}{path}?season=2024&view=projector"));
+        assert_eq!(r.status, 200, "{path}: {}", &r.body[..r.body.len().min(300)]);
+        assert!(r.body.contains("Which passer?") && r.body.contains(title_word), "{path}");
+        let picks: Vec<(String, String)> = links(&r.body).into_iter().filter(|(h, _)| h.starts_with(&format!("{path}?")) && h.contains("passer=")).collect();
+        assert_eq!(picks.len(), counts.len(), "{path}: one link per passer with a dropback");
+        // The first is the passer with the most dropbacks on every snap
+        // (the splits API's count, not the picker's own).
+        assert_eq!(picks[0].1, counts[0].1, "{path}");
+        let one = picks.iter().find(|(_, name)| *name == busiest_late).expect("the busiest late passer is listed");
+        assert_eq!(one.0, format!("{path}?season=2024&view=projector&passer={}", enc(&busiest_late).replace("%20", "+")), "{path}");
+        if path != "/report.pdf" {
+            assert_eq!(get(&format!("{base}{}", one.0)).status, 200, "{}", one.0);
+        }
+    }
+}
+
 /// A repeated view (explorer, passer profile, splits JSON) gets the same
 /// answer, with the security headers; another "our passer" cookie gets its
 /// own page, with his row marked; a refused request stays refused.
@@ -290,6 +322,11 @@ fn names_match_without_case_and_slips_get_the_nearest() {
     let r = get(&format!("{base}/api/plays?preset=end-of-game&passer={}", enc(&slip)));
     assert_eq!(r.status, 400);
     assert_eq!(r.json()["reason"], format!("no passer '{slip}' in this league; did you mean '{passer}'?"));
+    // The meeting view reads names the same way.
+    let r = get(&format!("{base}/meeting?passer={}", enc(&slip)));
+    assert_eq!(r.status, 400);
+    assert!(r.body.contains(&format!("did you mean &#39;{passer}&#39;?")) || r.body.contains(&format!("did you mean &#x27;{passer}&#x27;?")), "{}", &r.body[..r.body.len().min(2000)]);
+    assert_eq!(get(&format!("{base}/meeting?passer={}", enc(&passer.to_lowercase()))).status, 200);
     let team = exact["snaps"][0]["offense"].as_str().expect("a team").to_string();
     let a = get(&format!("{base}/api/splits?preset=end-of-game&team={}", enc(&team))).json();
     let b = get(&format!("{base}/api/splits?preset=end-of-game&team={}", enc(&team.to_lowercase()))).json();

@@ -188,22 +188,22 @@ pub fn view(passer: &str, season_pairs: &[(String, String)], seasons_text: &str,
     }
 }
 
-fn plain(status: StatusCode, text: String) -> Response {
-    (status, Html(format!("<!doctype html><meta charset=\"utf-8\"><title>lategame</title><p>{}</p><p><a href=\"/\">Home</a></p>", crate::charts::xml_escape(&text))))
-        .into_response()
+/// Why the meeting view cannot be drawn, on the site's error page.
+fn refuse(st: &Shared, headers: &HeaderMap, status: StatusCode, text: String) -> Response {
+    super::pages::error_page(st, headers, status, "The meeting view can't be drawn", text, "/")
 }
 
 pub async fn meeting(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): RawQuery) -> Response {
     let pairs = super::query::pairs(q.as_deref());
     let screen_key = pairs.iter().rev().find(|(k, _)| k == "screen").map(|(_, v)| v.clone());
     let rest: Vec<(String, String)> = pairs.iter().filter(|(k, _)| k != "screen").cloned().collect();
-    let params = match Params::parse(Some(&serde_urlencoded::to_string(&rest).unwrap_or_default())) {
+    let params = match Params::parse_in(Some(&serde_urlencoded::to_string(&rest).unwrap_or_default()), st.league().plays()) {
         Ok(p) => p,
-        Err(e) => return plain(StatusCode::BAD_REQUEST, e.to_string()),
+        Err(e) => return refuse(&st, &headers, StatusCode::BAD_REQUEST, e.to_string()),
     };
     let passer = match params.situation.passer.clone().or_else(|| super::service::ours(&st, &headers).1) {
         Some(p) => p,
-        None => return plain(StatusCode::BAD_REQUEST, "passer: choose our passer on the home page, or add ?passer=NAME".into()),
+        None => return super::pages::pick_passer(&st, &headers, Some(&params), "meeting", "/meeting", "the meeting view"),
     };
     let order = screens();
     let at = match &screen_key {
@@ -212,7 +212,7 @@ pub async fn meeting(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
             Some(i) => i,
             None => {
                 let keys: Vec<&str> = order.iter().map(|p| p.key()).collect();
-                return plain(StatusCode::BAD_REQUEST, format!("screen '{k}' is not a situation of the meeting; choose one of {}", keys.join(", ")));
+                return refuse(&st, &headers, StatusCode::BAD_REQUEST, format!("screen '{k}' is not a situation of the meeting; choose one of {}", keys.join(", ")));
             }
         },
     };
@@ -250,10 +250,10 @@ pub async fn meeting(State(st): State<Shared>, headers: HeaderMap, RawQuery(q): 
     match work {
         Ok(Ok(v)) => match v.render() {
             Ok(body) => Html(body).into_response(),
-            Err(e) => plain(StatusCode::INTERNAL_SERVER_ERROR, format!("the meeting screen could not be drawn: {e}")),
+            Err(e) => refuse(&st, &headers, StatusCode::INTERNAL_SERVER_ERROR, format!("the meeting screen could not be drawn: {e}")),
         },
-        Ok(Err(why)) => plain(StatusCode::NOT_FOUND, why),
-        Err(e) => plain(StatusCode::INTERNAL_SERVER_ERROR, format!("meeting view failed: {e}")),
+        Ok(Err(why)) => refuse(&st, &headers, StatusCode::NOT_FOUND, why),
+        Err(e) => refuse(&st, &headers, StatusCode::INTERNAL_SERVER_ERROR, format!("meeting view failed: {e}")),
     }
 }
 

@@ -24,6 +24,7 @@ mod plays;
 mod game;
 mod calibration;
 mod report;
+mod pick;
 #[cfg(test)]
 mod tests;
 
@@ -35,6 +36,7 @@ pub use plays::*;
 pub use game::*;
 pub use calibration::*;
 pub use report::*;
+pub(crate) use pick::pick_passer;
 
 /// Page frame: title, navigation, projector toggle, our team and passer.
 pub struct Chrome {

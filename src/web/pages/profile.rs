@@ -241,7 +241,7 @@ fn profile_now(st: Shared, headers: HeaderMap, q: Option<String>) -> Response {
     let p = lg.plays();
     let (_, our_passer) = ours(&st, &headers);
     let Some(name) = params.situation.passer.clone().or(our_passer) else {
-        return error_page(&st, &headers, StatusCode::BAD_REQUEST, "Which passer?", "Choose our passer on the home page, or add ?passer=NAME.".into(), "/");
+        return super::pick::pick_passer(&st, &headers, Some(&params), "passer", "/passer", "his profile");
     };
     let trend = trend_situation(&params);
     let base = Situation { passer: None, ..params.situation.clone() };

@@ -4,11 +4,11 @@ use super::*;
 
 /// The report's data for a request: the situation, our passer (or
 /// `passer=`), the paper size, and the page's screen links.
-pub(super) fn report_data(st: &Shared, headers: &HeaderMap, q: Option<&str>) -> Result<(crate::report::ReportData, crate::report::Paper, crate::report::ReportScreen), Response> {
+pub(super) fn report_data(st: &Shared, headers: &HeaderMap, q: Option<&str>, path: &str) -> Result<(crate::report::ReportData, crate::report::Paper, crate::report::ReportScreen), Response> {
     let params = Params::parse_in(q, st.league().plays()).map_err(|e| refused(st, headers, &e, "/report", q))?;
     let (_, our_passer) = ours(st, headers);
     let Some(passer) = params.situation.passer.clone().or(our_passer) else {
-        return Err(error_page(st, headers, StatusCode::BAD_REQUEST, "Which passer?", "passer=: name the report's passer, or choose our passer on the home page.".into(), "/"));
+        return Err(super::pick::pick_passer(st, headers, Some(&params), "report", path, "the report"));
     };
     let mut situation = params.situation.clone();
     if !asks_situation(&params.raw.iter().filter(|(k, _)| k != "passer").cloned().collect::<Vec<_>>()) {
@@ -60,7 +60,7 @@ pub async fn report_html(State(st): State<Shared>, headers: HeaderMap, RawQuery(
 }
 
 fn report_html_now(st: Shared, headers: HeaderMap, q: Option<String>) -> Response {
-    match report_data(&st, &headers, q.as_deref()) {
+    match report_data(&st, &headers, q.as_deref(), "/report") {
         Ok((data, paper, screen)) => Html(crate::report::html_with(&data, paper, &screen)).into_response(),
         Err(r) => r,
     }
@@ -72,7 +72,7 @@ pub async fn report_pdf(State(st): State<Shared>, headers: HeaderMap, RawQuery(q
 }
 
 fn report_pdf_now(st: Shared, headers: HeaderMap, q: Option<String>) -> Response {
-    let (data, paper, _) = match report_data(&st, &headers, q.as_deref()) {
+    let (data, paper, _) = match report_data(&st, &headers, q.as_deref(), "/report.pdf") {
         Ok(x) => x,
         Err(r) => return r,
     };

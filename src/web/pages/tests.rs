@@ -305,3 +305,71 @@ fn defense_view_lines_link_to_the_defense_snaps() {
     assert_eq!(page.teams.iter().filter(|t| t.active).count(), 1);
     assert_eq!(page.ranked, table.qualified().count());
 }
+
+/// Four games counted by hand for the passer picker: Oren Lask throws for
+/// NTH in 2000 and for STH in 2002 (his latest team), Pell Dunmar once in
+/// 2002; runs (no passer) and a spike (not a dropback) count for no one.
+fn picker_league() -> Plays {
+    use crate::playfile::{Kind, PlayRow};
+    // (game, season, offense, passer, kind)
+    let snaps: [(&str, i32, &str, Option<&str>, Kind); 7] = [
+        ("2000-01-STH-NTH", 2000, "NTH", Some("Oren Lask"), Kind::Pass),
+        ("2000-01-STH-NTH", 2000, "NTH", Some("Oren Lask"), Kind::Sack),
+        ("2000-01-STH-NTH", 2000, "STH", None, Kind::Run),
+        ("2002-03-NTH-STH", 2002, "STH", Some("Oren Lask"), Kind::Scramble),
+        ("2002-03-NTH-STH", 2002, "STH", Some("Oren Lask"), Kind::Spike),
+        ("2002-03-NTH-STH", 2002, "NTH", Some("Pell Dunmar"), Kind::Pass),
+        ("2002-03-NTH-STH", 2002, "NTH", None, Kind::Run),
+    ];
+    let rows: Vec<PlayRow> = snaps
+        .iter()
+        .enumerate()
+        .map(|(k, &(game, season, offense, passer, kind))| {
+            let (home, away) = if season == 2000 { ("NTH", "STH") } else { ("STH", "NTH") };
+            PlayRow {
+                game: game.into(),
+                season,
+                week: 1,
+                home: home.into(),
+                away: away.into(),
+                seq: k as i32 + 1,
+                period: 1,
+                clock: 800 - 20 * k as i32,
+                offense: offense.into(),
+                defense: if offense == "NTH" { "STH" } else { "NTH" }.into(),
+                off_score: 0,
+                def_score: 0,
+                off_timeouts: 3,
+                def_timeouts: 3,
+                down: Some(1),
+                to_go: Some(10),
+                ball_on: 30,
+                kind,
+                passer: passer.map(str::to_string),
+                complete: Some(false),
+                intercepted: Some(false),
+                air_yards: None,
+                gain: Some(0),
+                fumble_lost: Some(false),
+                touchback: None,
+                points: 0,
+                home_line: None,
+            }
+        })
+        .collect();
+    let sources = (0..rows.len()).map(|i| crate::plays::Source { file: 0, row: i as u32 + 1 }).collect();
+    Plays::from_rows(vec!["pick.csv".into()], &rows, sources)
+}
+
+#[test]
+fn passer_picker_lists_dropbacks_latest_team_and_keeps_the_query() {
+    let p = picker_league();
+    let keep = vec![("season".to_string(), "2002".to_string()), ("passer".to_string(), "stale".to_string()), ("view".to_string(), "projector".to_string())];
+    let rows = super::pick::pick_rows(&p, "/meeting", &keep);
+    let got: Vec<(&str, &str, &str, usize)> = rows.iter().map(|r| (r.name.as_str(), r.team.as_str(), r.seasons.as_str(), r.dropbacks)).collect();
+    // By hand: Oren Lask's pass, sack and scramble (the spike is no
+    // dropback), latest for STH; Pell Dunmar's one pass.
+    assert_eq!(got, vec![("Oren Lask", "STH", "2000–2002", 3), ("Pell Dunmar", "NTH", "2002", 1)]);
+    // The rest of the query is kept, the stale passer replaced.
+    assert_eq!(rows[1].href, "/meeting?season=2002&view=projector&passer=Pell+Dunmar");
+}
