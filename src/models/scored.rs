@@ -109,13 +109,15 @@ pub fn fit_and_score_beside<T: Send, U>(
     beside: impl FnOnce(&Plays) -> T + Send,
     then: impl FnOnce(&Scored, T) -> U,
 ) -> Result<(Scored, U)> {
-    let (ready, other) = rayon::join(|| models_and_scores(&plays, fingerprint, refit, dir), || beside(&plays));
+    // The models' cache key carries the overtime config (`cache::model_key`).
+    let key = cache::model_key(fingerprint, &plays.overtime);
+    let (ready, other) = rayon::join(|| models_and_scores(&plays, &key, refit, dir), || beside(&plays));
     let Ready { models, calibration, from_cache, scores, scores_from_cache } = ready?;
     let plays = Arc::new(plays);
     let (calibration, hold) = match calibration {
         Some(c) => (CalibrationCell::ready(c), None),
         None => {
-            let store = dir.map(|d| (d.to_path_buf(), fingerprint.to_string()));
+            let store = dir.map(|d| (d.to_path_buf(), key.clone()));
             let (cell, hold) = CalibrationCell::spawn_held(plays.clone(), models.clone(), store);
             (cell, Some(hold))
         }
