@@ -307,6 +307,35 @@ mod tests {
     }
 
     #[test]
+    fn another_overtime_config_never_reads_the_old_models_or_scores() {
+        use crate::overtime::{OvertimeConfig, Rule, Rules, SeasonRules};
+        let dir = std::env::temp_dir().join(format!("lategame-models-cache-ot-{}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&dir);
+        let first = fit_and_score_in(small(), "synthetic-ot", false, Some(&dir)).expect("default");
+        assert!(!first.from_cache);
+        first.calibration.wait().expect("calibration");
+        let other = OvertimeConfig { sets: vec![SeasonRules { from: 2001, to: 2002, rules: Rules { rule: Rule::FirstScoreWins, period_secs: 900, ties: true } }] };
+        let mut plays = small();
+        plays.overtime = other.clone();
+        let second = fit_and_score_in(plays, "synthetic-ot", false, Some(&dir)).expect("other config");
+        assert!(!second.from_cache && !second.scores_from_cache, "read what was fitted under the default");
+        assert_eq!(second.fingerprint, "synthetic-ot", "the data fingerprint is the data's");
+        second.calibration.wait().expect("calibration");
+        assert!(dir.join(cache::file_name(&cache::model_key("synthetic-ot", &other))).exists());
+        // Each config finds its own entry again; the default's key is the
+        // plain fingerprint (the caches written before stay valid).
+        assert_eq!(cache::model_key("synthetic-ot", &OvertimeConfig::default()), "synthetic-ot");
+        let again = fit_and_score_in(small(), "synthetic-ot", false, Some(&dir)).expect("default again");
+        assert!(again.from_cache && again.scores_from_cache);
+        let mut plays = small();
+        plays.overtime = other;
+        let back = fit_and_score_in(plays, "synthetic-ot", false, Some(&dir)).expect("other again");
+        assert!(back.from_cache && back.scores_from_cache);
+        drop((first, second, again, back));
+        let _ = std::fs::remove_dir_all(&dir);
+    }
+
+    #[test]
     fn scored_frame_has_inputs_and_scores() {
         let plays = small();
         let n = plays.len();

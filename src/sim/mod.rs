@@ -13,6 +13,8 @@ mod shift;
 mod truth;
 
 #[cfg(test)]
+mod overtime_tests;
+#[cfg(test)]
 mod tests;
 
 pub use game::{KICK_TRY_SPOT, TWO_POINT_SPOT};
