@@ -77,3 +77,15 @@ fn bad_input_names_the_file_line_key_value_and_what_was_expected() {
     let e = OvertimeConfig::load(Path::new("/nonexistent/ot.toml")).expect_err("missing file").to_string();
     assert!(e.contains("/nonexistent/ot.toml"), "{e}");
 }
+
+#[test]
+fn a_config_file_is_read_from_disk() {
+    let path = std::env::temp_dir().join(format!("lategame-ot-{}.toml", std::process::id()));
+    std::fs::write(&path, "[[overtime]]\nseasons = \"2000-2002\"\nrules = \"first-score-wins\"\nperiod = \"15:00\"\n").expect("write");
+    let c = OvertimeConfig::load(&path).expect("load");
+    assert_eq!(c.rules_for(2001).period_secs, 900);
+    std::fs::write(&path, "[[overtime]]\nseasons = \"2000-2002\"\nrules = \"first score\"\n").expect("write");
+    let e = OvertimeConfig::load(&path).expect_err("bad name").to_string();
+    assert!(e.contains(&path.display().to_string()) && e.contains("line 3") && e.contains("nearest: first-score-wins"), "{e}");
+    let _ = std::fs::remove_file(&path);
+}

@@ -118,3 +118,90 @@ fn period_length_and_the_default() {
     assert_eq!(short.value(Phase::First, 900.0, 40.0), short.value(Phase::First, 600.0, 40.0));
     assert!((long.value(Phase::First, 900.0, 40.0) - long.get(180, Phase::First, 2)).abs() < 1e-12);
 }
+
+/// The single rule set solved before rule sets existed (answers up to 5
+/// points), kept here to hold the default to it bit for bit: the WP fits
+/// of a league without an overtime config do not move.
+fn solve_before(params: &DriveParams) -> Vec<f64> {
+    const MAX: i32 = 5;
+    const NP: usize = 2 + MAX as usize;
+    let nt = (600 / STEP_SECS) as usize + 1;
+    let phi = |p: Phase| match p {
+        Phase::First => 0,
+        Phase::Sudden => 1,
+        Phase::Answer(d) => 1 + d.clamp(1, MAX) as usize,
+    };
+    let at = |k: usize, p: usize, z: usize| (k * NP + p) * NZ + z;
+    let phases: Vec<Phase> = [Phase::First, Phase::Sudden].into_iter().chain((1..=MAX).map(Phase::Answer)).collect();
+    let next = |p: Phase, o: &Outcome| -> Next {
+        let s = o.swing;
+        match p {
+            Phase::First if s >= 6 => Next::Decided(1.0),
+            Phase::First if s > 0 => {
+                if o.keep { Next::Decided(1.0) } else { Next::Goes(Phase::Answer(s.min(MAX)), false) }
+            }
+            Phase::Answer(d) if s > d => Next::Decided(1.0),
+            Phase::Answer(d) if s == d => Next::Goes(Phase::Sudden, o.keep),
+            Phase::Answer(_) => Next::Decided(0.0),
+            _ if s > 0 => Next::Decided(1.0),
+            _ if s < 0 => Next::Decided(0.0),
+            _ => Next::Goes(Phase::Sudden, o.keep),
+        }
+    };
+    let mut v = vec![0.0; nt * NP * NZ];
+    for &p in &phases {
+        for z in 0..NZ {
+            v[at(0, phi(p), z)] = at_end(p);
+        }
+    }
+    for k in 1..nt {
+        for &p in &phases {
+            for z in 0..NZ {
+                let mut val = 0.0;
+                for o in params.plain(z) {
+                    let steps = o.steps as usize;
+                    val += o.share
+                        * match next(p, o) {
+                            Next::Decided(r) if steps > k => {
+                                let f = k as f64 / steps as f64;
+                                f * r + (1.0 - f) * at_end(p)
+                            }
+                            Next::Goes(q, keep) if steps > k => {
+                                let f = k as f64 / steps as f64;
+                                let e = if keep { at_end(q) } else { 1.0 - at_end(q) };
+                                f * e + (1.0 - f) * at_end(p)
+                            }
+                            Next::Decided(r) => r,
+                            Next::Goes(q, keep) => {
+                                let w = v[at(k - steps, phi(q), o.zone as usize)];
+                                if keep { w } else { 1.0 - w }
+                            }
+                        };
+                }
+                v[at(k, phi(p), z)] = val.clamp(0.0, 1.0);
+            }
+        }
+    }
+    v
+}
+
+#[test]
+fn the_default_set_is_the_former_solver_bit_for_bit() {
+    let plays = crate::models::testkit::league(300, 2, 5);
+    let rows: Vec<u32> = (0..plays.len() as u32).collect();
+    let params = DriveParams::estimate(&plays, &rows).expect("drives");
+    let before = solve_before(&params);
+    let t = OvertimeTable::solve(&params);
+    let mut phases = vec![Phase::First, Phase::Sudden];
+    phases.extend((1..=5).map(Phase::Answer));
+    for k in 0..t.nt {
+        for (pi, &p) in phases.iter().enumerate() {
+            for z in 0..NZ {
+                let old = before[(k * 7 + pi) * NZ + z];
+                assert_eq!(t.get(k, p, z).to_bits(), old.to_bits(), "k {k} {p:?} z {z}");
+            }
+        }
+    }
+    // The values are not all ½: the comparison has something to compare.
+    assert!(t.get(t.nt - 1, Phase::Answer(3), 2) < 0.45 && t.get(t.nt - 1, Phase::First, 2) > 0.5);
+}
