@@ -2,8 +2,8 @@
 //! built on Stern's (1991) margin-over-root-time term, EP, timeouts, home
 //! field and the pregame line, with late-game terms (key margins against
 //! time left, possession with time and timeouts), overtime as its own
-//! regime (its rules solved with the drive model's possessions:
-//! `drive::overtime`), clock-kill states set to 1 from the clock rules,
+//! regime (each season's rule set, `crate::overtime`, solved with the
+//! drive model's possessions: `drive::overtime`), clock-kill states set to 1 from the clock rules,
 //! and the 4th period's drive-level Markov model (`drive`) as three inputs;
 //! a margin-and-time baseline; WPA per snap.
 
