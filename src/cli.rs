@@ -61,6 +61,9 @@ enum Cmd {
         /// the truth file records each passer's shifts. Off by default (the demo league).
         #[arg(long, value_name = "SD[,SD,SD]")]
         late_shifts: Option<crate::sim::LateShifts>,
+        /// Play each season's overtime under the rules this file gives it (README: "Overtime rules"); default (the demo league): touchdown-or-answer, 10:00, a level period a tie.
+        #[arg(long, value_name = "FILE")]
+        overtime: Option<PathBuf>,
     },
     /// Write every snap with its input columns plus EP, EPA, WP, WPA and completion probability.
     Score {
@@ -114,18 +117,44 @@ enum Cmd {
     },
 }
 
-/// `--map M.toml`: read the play file through a mapping (another layout).
+/// How to read a league, for every command that opens one: `--map M.toml`
+/// reads the play file through a mapping (another layout); `--overtime
+/// FILE` says which seasons played which overtime rules.
 #[derive(clap::Args, Clone, Default)]
 pub struct MapArg {
     /// A mapping for a play file in another layout (draft one with `lategame map FILE`).
     #[arg(long = "map", value_name = "M.toml")]
     pub map: Option<PathBuf>,
+    /// Which seasons played which overtime rules (README: "Overtime rules"); default: touchdown-or-answer, 10:00, a level period a tie.
+    #[arg(long = "overtime", value_name = "FILE")]
+    pub overtime: Option<PathBuf>,
 }
 
 impl MapArg {
     fn open(&self) -> Result<Option<playfile::Mapping>> {
         self.map.as_deref().map(playfile::Mapping::open).transpose().map_err(Into::into)
     }
+
+    /// The overtime config named by `--overtime` (the default without one).
+    fn overtime(&self) -> Result<crate::overtime::OvertimeConfig> {
+        overtime_config(self.overtime.as_deref())
+    }
+
+    /// The one place a league's configuration is built from the flags.
+    fn league(&self, file: Option<PathBuf>, lenient: bool, refit: bool) -> Result<LeagueConfig> {
+        Ok(LeagueConfig {
+            load: LoadOptions { lenient },
+            refit,
+            mapping: self.open()?,
+            overtime: self.overtime()?,
+            ..LeagueConfig::new(file.unwrap_or_else(demo_path))
+        })
+    }
+}
+
+/// Read an overtime config file (`None`: the default).
+fn overtime_config(path: Option<&std::path::Path>) -> Result<crate::overtime::OvertimeConfig> {
+    Ok(path.map(crate::overtime::OvertimeConfig::load).transpose()?.unwrap_or_default())
 }
 
 #[derive(clap::Args)]
@@ -160,12 +189,7 @@ impl ServeArgs {
     /// The server's own configuration from these flags (models cached in
     /// the user's cache folder).
     fn config(&self) -> Result<ServeConfig> {
-        let league = LeagueConfig {
-            load: LoadOptions { lenient: self.lenient },
-            refit: self.refit,
-            mapping: self.map.open()?,
-            ..LeagueConfig::new(self.file.clone().unwrap_or_else(demo_path))
-        };
+        let league = self.map.league(self.file.clone(), self.lenient, self.refit)?;
         Ok(ServeConfig {
             app: AppConfig {
                 team: self.team.clone(),
@@ -213,8 +237,7 @@ fn spinner(msg: &str) -> ProgressBar {
 
 /// Load, fit and score with a spinner.
 pub fn open_league(file: Option<PathBuf>, map: &MapArg, lenient: bool, refit: bool) -> Result<League> {
-    let cfg = LeagueConfig { load: LoadOptions { lenient }, refit, mapping: map.open()?, ..LeagueConfig::new(file.unwrap_or_else(demo_path)) };
-    open_configured(&cfg)
+    open_configured(&map.league(file, lenient, refit)?)
 }
 
 fn open_configured(cfg: &LeagueConfig) -> Result<League> {
@@ -256,6 +279,7 @@ fn run(cli: Cli) -> Result<ExitCode> {
         }
         Cmd::Check { file, map, lenient } => {
             let mapping = map.open()?;
+            map.overtime()?;
             let pb = spinner(&format!("checking {}", file.display()));
             let result = playfile::load_mapped(&file, &LoadOptions { lenient }, mapping.as_ref());
             pb.finish_and_clear();
@@ -284,13 +308,14 @@ fn run(cli: Cli) -> Result<ExitCode> {
             }
             Ok(ExitCode::SUCCESS)
         }
-        Cmd::Simulate { seasons, seed, first_season, out, late_shifts } => {
+        Cmd::Simulate { seasons, seed, first_season, out, late_shifts, overtime } => {
             let cfg = crate::sim::SimConfig { seasons, seed, first_season };
+            let overtime = overtime_config(overtime.as_deref())?;
             let pb = ProgressBar::new(0);
             pb.set_style(ProgressStyle::with_template("simulating {bar:40} {pos}/{len} games {elapsed}").unwrap_or_else(|_| ProgressStyle::default_bar()));
             let started = std::time::Instant::now();
             let shifts = late_shifts.unwrap_or_default();
-            let output = crate::sim::simulate_with(&cfg, &shifts, crate::sim::DefenseSpread::default(), &|done, total| {
+            let output = crate::sim::simulate_with_overtime(&cfg, &shifts, crate::sim::DefenseSpread::default(), &overtime, &|done, total| {
                 pb.set_length(total as u64);
                 pb.set_position(done as u64);
             });

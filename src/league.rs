@@ -36,13 +36,17 @@ pub struct LeagueConfig {
     pub cache_dir: Option<PathBuf>,
     /// How to read a file in another layout (`None`: ours).
     pub mapping: Option<playfile::Mapping>,
+    /// Which overtime rules each season played (`crate::overtime`; default:
+    /// every season touchdown-or-answer, 10:00, a level period a tie). It
+    /// changes WP values and is part of the model cache key.
+    pub overtime: crate::overtime::OvertimeConfig,
 }
 
 impl LeagueConfig {
     /// `path`, strict, models cached in the user's cache folder
     /// (`models::cache::cache_dir`, which `LATEGAME_CACHE_DIR` overrides).
     pub fn new(path: impl Into<PathBuf>) -> LeagueConfig {
-        LeagueConfig { path: path.into(), load: LoadOptions::default(), refit: false, cache_dir: models::cache::cache_dir(), mapping: None }
+        LeagueConfig { path: path.into(), load: LoadOptions::default(), refit: false, cache_dir: models::cache::cache_dir(), mapping: None, overtime: Default::default() }
     }
 }
 
@@ -72,7 +76,8 @@ impl League {
         let path = &cfg.path;
         let started = std::time::Instant::now();
         let secs = |t: std::time::Instant| t.elapsed().as_secs_f64();
-        let loaded = playfile::load_mapped(path, &cfg.load, cfg.mapping.as_ref())?;
+        let mut loaded = playfile::load_mapped(path, &cfg.load, cfg.mapping.as_ref())?;
+        loaded.plays.overtime = cfg.overtime.clone();
         let load_seconds = secs(started);
         tracing::info!(
             snaps = loaded.plays.len(),

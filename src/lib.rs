@@ -13,6 +13,7 @@ pub mod league;
 pub mod models;
 pub mod notes;
 pub mod numfmt;
+pub mod overtime;
 pub mod palette;
 pub mod playfile;
 pub mod plays;

@@ -296,6 +296,11 @@ pub struct Plays {
     pub next_score: Vec<NextScore>,
     /// True when the offense is the home team.
     pub off_home: Vec<bool>,
+
+    // ---- the staff's settings ----
+    /// Which overtime rules each season played (`crate::overtime`; the
+    /// file cannot say): what the WP model solves overtime under.
+    pub overtime: crate::overtime::OvertimeConfig,
 }
 
 impl Plays {

@@ -41,6 +41,15 @@ fn every_page_and_api_answers_for_every_preset() {
         let r = get(&format!("{base}{path}"));
         assert_eq!(r.status, 200, "{path}");
     }
+    // The calibration page and API say which overtime rules were solved
+    // for which seasons: the demo league has no config, so the default.
+    let cal = get(&format!("{base}/api/calibration")).json();
+    assert_eq!(cal["overtime_config"], "default");
+    assert_eq!(cal["overtime_rules"][0]["seasons"], "2020-2025");
+    assert_eq!(cal["overtime_rules"][0]["rules"]["rule"], "touchdown-or-answer");
+    assert_eq!(cal["overtime_rules"][0]["rules"]["period_secs"], 600);
+    let page = get(&format!("{base}/calibration")).body;
+    assert!(page.contains("2020-2025: touchdown-or-answer, 10:00, a level period is a tie"), "no overtime rules on the page");
     let r = get(&format!("{base}/passer?passer={passer}"));
     assert_eq!(r.status, 200);
     assert!(r.body.contains("<svg"), "profile has charts");

@@ -196,6 +196,7 @@ fn pregame_gap(d: &Demo, sigma: f64) -> f64 {
                 ball_on: 35,
                 ot_first: false,
                 ot_both: false,
+                ot_rules: Default::default(),
             };
             side[k] = m.wp.situation(&s);
         }
@@ -280,6 +281,7 @@ fn mid(margin: f64, secs_game: f64, ep: f64) -> Situation {
         ball_on: 25,
         ot_first: false,
         ot_both: false,
+        ot_rules: Default::default(),
     }
 }
 
@@ -645,7 +647,7 @@ mod monotone {
                     off_timeouts: off_to.min(if ot { 2 } else { 3 }) as f64,
                     def_timeouts: def_to.min(if ot { 2 } else { 3 }) as f64,
                     off_home: true, line: Some(0.0), kickoff: false, is_try: false,
-                    period, down, ball_on, ot_first: ot && first, ot_both: ot && !first,
+                    period, down, ball_on, ot_first: ot && first, ot_both: ot && !first, ot_rules: Default::default(),
                 };
                 let w = m.wp.situation(&s);
                 prop_assert!(w >= last - 1e-12, "margin {margin}: WP {w} < {last} at {s:?}");

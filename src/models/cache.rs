@@ -42,6 +42,20 @@ pub fn cache_dir() -> Option<PathBuf> {
     }
 }
 
+/// The key the models, their calibration and the per-snap scores are
+/// cached under: the data fingerprint, joined by the overtime config when
+/// it is not the default (it changes WP values, so a league opened with
+/// another config never reads scores fitted under the old one; the
+/// default keeps the plain fingerprint and the caches written before).
+pub fn model_key(fingerprint: &str, overtime: &crate::overtime::OvertimeConfig) -> String {
+    let k = overtime.key();
+    if k.is_empty() {
+        fingerprint.to_string()
+    } else {
+        format!("{fingerprint}+overtime[{k}]")
+    }
+}
+
 /// File name for a fingerprint under the current model version.
 pub fn file_name(fingerprint: &str) -> String {
     format!("models-{}.json", key(fingerprint))

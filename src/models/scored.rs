@@ -109,13 +109,15 @@ pub fn fit_and_score_beside<T: Send, U>(
     beside: impl FnOnce(&Plays) -> T + Send,
     then: impl FnOnce(&Scored, T) -> U,
 ) -> Result<(Scored, U)> {
-    let (ready, other) = rayon::join(|| models_and_scores(&plays, fingerprint, refit, dir), || beside(&plays));
+    // The models' cache key carries the overtime config (`cache::model_key`).
+    let key = cache::model_key(fingerprint, &plays.overtime);
+    let (ready, other) = rayon::join(|| models_and_scores(&plays, &key, refit, dir), || beside(&plays));
     let Ready { models, calibration, from_cache, scores, scores_from_cache } = ready?;
     let plays = Arc::new(plays);
     let (calibration, hold) = match calibration {
         Some(c) => (CalibrationCell::ready(c), None),
         None => {
-            let store = dir.map(|d| (d.to_path_buf(), fingerprint.to_string()));
+            let store = dir.map(|d| (d.to_path_buf(), key.clone()));
             let (cell, hold) = CalibrationCell::spawn_held(plays.clone(), models.clone(), store);
             (cell, Some(hold))
         }
@@ -301,6 +303,35 @@ mod tests {
             fit_and_score_in(small(), "synthetic-42", false, Some(&dir)).expect("corrupt cache");
         assert!(!again.from_cache);
         drop(again);
+        let _ = std::fs::remove_dir_all(&dir);
+    }
+
+    #[test]
+    fn another_overtime_config_never_reads_the_old_models_or_scores() {
+        use crate::overtime::{OvertimeConfig, Rule, Rules, SeasonRules};
+        let dir = std::env::temp_dir().join(format!("lategame-models-cache-ot-{}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&dir);
+        let first = fit_and_score_in(small(), "synthetic-ot", false, Some(&dir)).expect("default");
+        assert!(!first.from_cache);
+        first.calibration.wait().expect("calibration");
+        let other = OvertimeConfig { sets: vec![SeasonRules { from: 2001, to: 2002, rules: Rules { rule: Rule::FirstScoreWins, period_secs: 900, ties: true } }] };
+        let mut plays = small();
+        plays.overtime = other.clone();
+        let second = fit_and_score_in(plays, "synthetic-ot", false, Some(&dir)).expect("other config");
+        assert!(!second.from_cache && !second.scores_from_cache, "read what was fitted under the default");
+        assert_eq!(second.fingerprint, "synthetic-ot", "the data fingerprint is the data's");
+        second.calibration.wait().expect("calibration");
+        assert!(dir.join(cache::file_name(&cache::model_key("synthetic-ot", &other))).exists());
+        // Each config finds its own entry again; the default's key is the
+        // plain fingerprint (the caches written before stay valid).
+        assert_eq!(cache::model_key("synthetic-ot", &OvertimeConfig::default()), "synthetic-ot");
+        let again = fit_and_score_in(small(), "synthetic-ot", false, Some(&dir)).expect("default again");
+        assert!(again.from_cache && again.scores_from_cache);
+        let mut plays = small();
+        plays.overtime = other;
+        let back = fit_and_score_in(plays, "synthetic-ot", false, Some(&dir)).expect("other again");
+        assert!(back.from_cache && back.scores_from_cache);
+        drop((first, second, again, back));
         let _ = std::fs::remove_dir_all(&dir);
     }
 

@@ -2,15 +2,16 @@
 //! built on Stern's (1991) margin-over-root-time term, EP, timeouts, home
 //! field and the pregame line, with late-game terms (key margins against
 //! time left, possession with time and timeouts), overtime as its own
-//! regime (its rules solved with the drive model's possessions:
-//! `drive::overtime`), clock-kill states set to 1 from the clock rules,
+//! regime (each season's rule set, `crate::overtime`, solved with the
+//! drive model's possessions: `drive::overtime`), clock-kill states set to 1 from the clock rules,
 //! and the 4th period's drive-level Markov model (`drive`) as three inputs;
 //! a margin-and-time baseline; WPA per snap.
 
 pub mod drive;
 
 use super::clock::{ClockRules, KillState};
-use drive::overtime::Phase;
+use crate::overtime::Rules;
+use drive::overtime::{max_answer, Phase};
 use drive::{DriveModel, DriveParams};
 use super::error::{ModelError, Result};
 use super::logit::{self, FitOptions, FnDesign, Labels};
@@ -122,6 +123,8 @@ pub struct Situation {
     pub ot_first: bool,
     /// Overtime: both teams have had a possession before this one.
     pub ot_both: bool,
+    /// The overtime rules of the snap's season (`Plays::overtime`).
+    pub ot_rules: Rules,
 }
 
 /// (first possession, both had the ball) in the overtime period of snap
@@ -166,6 +169,7 @@ impl Situation {
             ball_on: plays.ball_on[i],
             ot_first,
             ot_both,
+            ot_rules: plays.overtime.rules_for(plays.season[i]),
         }
     }
 
@@ -210,19 +214,21 @@ pub fn drive_logit(s: &Situation, drive: Option<&DriveModel>) -> f64 {
 }
 
 /// The overtime model's logit of the offense winning (0 in regulation, and
-/// without a drive model). The phase comes from the margin and who has had
-/// the ball; a kickoff is valued from the receiving side.
+/// without a drive model), under the season's rules (`Situation::ot_rules`).
+/// The phase comes from the margin and who has had the ball; a kickoff is
+/// valued from the receiving side.
 pub fn overtime_logit(s: &Situation, drive: Option<&DriveModel>) -> f64 {
     let Some(d) = drive else { return 0.0 };
     if !s.overtime {
         return 0.0;
     }
-    let t = d.overtime();
+    let t = d.overtime_for(&s.ot_rules);
+    let most = max_answer(s.ot_rules.rule);
     let phase = |margin: f64, first: bool| {
         let m = margin.round() as i32;
         if m == 0 {
             Some(if first { Phase::First } else { Phase::Sudden })
-        } else if m < 0 && -m <= drive::overtime::MAX_ANSWER {
+        } else if m < 0 && -m <= most {
             Some(Phase::Answer(-m))
         } else {
             None

@@ -13,6 +13,8 @@ mod shift;
 mod truth;
 
 #[cfg(test)]
+mod overtime_tests;
+#[cfg(test)]
 mod tests;
 
 pub use game::{KICK_TRY_SPOT, TWO_POINT_SPOT};
@@ -23,6 +25,7 @@ pub use names::LEAGUE_NAME;
 pub use shift::{LateShift, LateShifts, LateShiftsError};
 pub use truth::{write_truth, TruthError, TruthRow};
 
+use crate::overtime::OvertimeConfig;
 use crate::playfile::PlayRow;
 use game::{play_game, play_game_probed, GameSetup, Snapshot};
 use league::{League, TEAMS, WEEKS};
@@ -97,10 +100,15 @@ pub struct SimOutput {
     ///   yards enforced, + for the offense; interceptions and incompletions 0);
     /// - `fumble_lost` is true or false on runs, passes, sacks and scrambles,
     ///   empty elsewhere; `touchback` only on kickoffs and punts;
-    /// - overtime is one 10-minute period, 2 timeouts each: a touchdown or a
-    ///   defensive score ends it, a field goal on the first possession gives the
-    ///   other side a possession, then any lead wins; no try after an overtime
-    ///   touchdown; still tied at 0:00 is a tie.
+    /// - overtime (by default, and in the demo league) is one 10-minute
+    ///   period, 2 timeouts each: a touchdown or a defensive score ends it, a
+    ///   field goal on the first possession gives the other side a
+    ///   possession, then any lead wins; no try after an overtime touchdown;
+    ///   still tied at 0:00 is a tie. `simulate_with_overtime` plays other
+    ///   rule sets by season (`crate::overtime`): first score wins; both
+    ///   possess (a touchdown before both had the ball is followed by its
+    ///   try); another period's length; no ties (periods 6 and up follow a
+    ///   level one, 2 timeouts each).
     pub rows: Vec<PlayRow>,
     pub truth: Vec<TruthRow>,
     pub league: LeagueInfo,
@@ -123,7 +131,7 @@ pub fn simulate(cfg: &SimConfig) -> SimOutput {
 /// Simulate with some passers throwing short when trailing late (`habits`);
 /// the truth file records each passer's tilt shift.
 pub fn simulate_throw_short(cfg: &SimConfig, short: ThrowShort) -> SimOutput {
-    run_with(cfg, &|_, _| {}, None, short, &LateShifts::default(), DefenseSpread::default(), None)
+    run_with(cfg, &|_, _| {}, None, short, &LateShifts::default(), DefenseSpread::default(), None, &OvertimeConfig::default())
 }
 
 /// As `simulate`, calling `on_game(done, total)` after every game.
@@ -140,7 +148,20 @@ pub fn simulate_with_shifts(cfg: &SimConfig, shifts: &LateShifts) -> SimOutput {
 /// The general form: late-and-close shifts, a defensive spread, and
 /// `on_game(done, total)` after every game (the CLI's `simulate` calls it).
 pub fn simulate_with(cfg: &SimConfig, shifts: &LateShifts, defense: DefenseSpread, on_game: &dyn Fn(usize, usize)) -> SimOutput {
-    run_with(cfg, on_game, None, ThrowShort::default(), shifts, defense, None)
+    simulate_with_overtime(cfg, shifts, defense, &OvertimeConfig::default(), on_game)
+}
+
+/// `simulate_with`, each season's overtime played under the rules
+/// `overtime` gives it (`crate::overtime`; the default: touchdown or
+/// answer, 10:00, a level period a tie, as the demo league).
+pub fn simulate_with_overtime(
+    cfg: &SimConfig,
+    shifts: &LateShifts,
+    defense: DefenseSpread,
+    overtime: &OvertimeConfig,
+    on_game: &dyn Fn(usize, usize),
+) -> SimOutput {
+    run_with(cfg, on_game, None, ThrowShort::default(), shifts, defense, None, overtime)
 }
 
 // ---- the home line ----
@@ -213,7 +234,7 @@ fn rating(s: &TeamStrength, q: &PasserSkills) -> f64 {
 pub(crate) type FeatureLog = Vec<[f64; FEATURES]>;
 
 pub(crate) fn run(cfg: &SimConfig, on_game: &dyn Fn(usize, usize), log: Option<&mut FeatureLog>, shifts: &LateShifts) -> SimOutput {
-    run_with(cfg, on_game, log, ThrowShort::default(), shifts, DefenseSpread::default(), None)
+    run_with(cfg, on_game, log, ThrowShort::default(), shifts, DefenseSpread::default(), None, &OvertimeConfig::default())
 }
 
 /// Told before every snap: the game's number in the league (from 0), its
@@ -228,6 +249,7 @@ fn run_with(
     shifts: &LateShifts,
     defense: DefenseSpread,
     mut probe: Option<GameProbe>,
+    overtime: &OvertimeConfig,
 ) -> SimOutput {
     let shift = |pid: usize| shifts.of(cfg.seed, pid);
     let league_rng = ChaCha8Rng::seed_from_u64(cfg.seed);
@@ -289,6 +311,7 @@ fn run_with(
                     throw_short: [qh.map(|q| short.shift(q)), qa.map(|q| short.shift(q))],
                     late_shift: [[shift(qh[0]), shift(qh[1])], [shift(qa[0]), shift(qa[1])]],
                     home_line: (line_of(&f) * 10.0).round() / 10.0,
+                    overtime: overtime.rules_for(season),
                 };
                 let mut rng = ChaCha8Rng::seed_from_u64(cfg.seed ^ 0x5EED_6A3E_0F1E_1D00);
                 rng.set_stream(done as u64 + 1);

@@ -57,6 +57,7 @@ pub fn simulate_with_oracle(cfg: &SimConfig, opts: &OracleOptions) -> (SimOutput
         &LateShifts::default(),
         DefenseSpread::default(),
         Some(&mut probe),
+        &crate::overtime::OvertimeConfig::default(),
     );
     (out, found)
 }

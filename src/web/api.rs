@@ -163,6 +163,9 @@ pub async fn calibration(State(st): State<Shared>) -> Response {
         "fingerprint": lg.scored.fingerprint,
         "calibration": lg.scored.calibration,
         "fit": lg.scored.models.report,
+        // Which overtime rules WP was solved under, by runs of seasons.
+        "overtime_rules": lg.plays().overtime.spans(&lg.plays().seasons()),
+        "overtime_config": if lg.plays().overtime.is_default() { "default" } else { "given" },
     }))
     .into_response()
 }

@@ -434,6 +434,10 @@ pub struct DriveModel {
     table: OnceLock<Arc<DriveTable>>,
     #[serde(skip)]
     ot: OnceLock<Arc<OvertimeTable>>,
+    /// Tables of the other overtime rule sets, solved on first use
+    /// (`overtime::RuleTables`).
+    #[serde(skip)]
+    ot_rules: overtime::RuleTables,
 }
 
 impl PartialEq for DriveModel {
@@ -445,7 +449,7 @@ impl PartialEq for DriveModel {
 
 impl DriveModel {
     pub fn new(params: DriveParams) -> DriveModel {
-        DriveModel { params, table: OnceLock::new(), ot: OnceLock::new() }
+        DriveModel { params, table: OnceLock::new(), ot: OnceLock::new(), ot_rules: Default::default() }
     }
 
     /// The solved table (solved now if not yet).

@@ -4,6 +4,7 @@
 
 use super::tuning::*;
 use super::*;
+use crate::overtime::Rule;
 
 impl Engine<'_, '_> {
     /// Out of bounds stops the clock (last 2:00 of the half, 5:00 of the game, overtime).
@@ -141,22 +142,53 @@ impl Engine<'_, '_> {
             }
             4 if self.score[0] == self.score[1] => {
                 self.period = 5;
-                self.clock = 600;
+                self.clock = self.g.overtime.period_secs;
                 self.timeouts = [2, 2];
                 let receiver = usize::from(chance(self.rng, 0.5));
                 self.ot_first = receiver;
                 self.ot_poss = 0;
                 self.ot_fg_hold = false;
+                self.ot_answered = false;
                 Next::Kickoff { kicker: 1 - receiver, spot: KICKOFF_SPOT }
+            }
+            // Level after an overtime period without ties: another period,
+            // play going on from where it stands.
+            p if p >= 5 && self.score[0] == self.score[1] && !self.g.overtime.ties => {
+                self.period += 1;
+                self.clock = self.g.overtime.period_secs;
+                self.timeouts = [2, 2];
+                next
             }
             _ => Next::Done,
         }
     }
 
-    /// Modified sudden death: a touchdown or a defensive score on any
-    /// possession ends it; a field goal on the first possession gives the other
-    /// side one possession; after that any lead wins.
+    /// Whether the overtime is decided (`crate::overtime::Rule`).
+    /// Touchdown or answer: a touchdown or a defensive score on any
+    /// possession ends it; a field goal on the first possession gives the
+    /// other side one possession; after that any lead wins. First score
+    /// wins: any lead. Both possess: a lead once the second side has had
+    /// its possession (scored on it, or lost the ball), or when the second
+    /// side leads.
     pub(super) fn ot_over(&self) -> bool {
-        self.score[0] != self.score[1] && !(self.ot_fg_hold && self.ot_poss <= 2)
+        let level = self.score[0] == self.score[1];
+        match self.g.overtime.rule {
+            Rule::TouchdownOrAnswer => !level && !(self.ot_fg_hold && self.ot_poss <= 2),
+            Rule::FirstScoreWins => !level,
+            Rule::BothPossess => {
+                let leader = usize::from(self.score[1] > self.score[0]);
+                !level && (self.ot_poss >= 3 || leader != self.ot_first || self.ot_answered)
+            }
+        }
+    }
+
+    /// After an overtime touchdown: the game is over, or (both possess,
+    /// not yet decided) the try follows.
+    pub(super) fn ot_after_touchdown(&mut self) -> Next {
+        if self.g.overtime.rule == Rule::BothPossess && !self.ot_over() {
+            Next::Try
+        } else {
+            Next::Done
+        }
     }
 }

@@ -78,6 +78,9 @@ impl Engine<'_, '_> {
             self.score[off] += pts;
         }
         self.running = false;
+        if self.period >= 5 && off != self.ot_first {
+            self.ot_answered = true;
+        }
         self.push(row);
         Next::Kickoff { kicker: off, spot: KICKOFF_SPOT }
     }
@@ -103,6 +106,9 @@ impl Engine<'_, '_> {
             self.score[off] += 3;
             self.running = false;
             self.note_score(self.period >= 5 && self.ot_poss == 1 && off == self.ot_first);
+            if self.period >= 5 && off != self.ot_first {
+                self.ot_answered = true;
+            }
             Next::Kickoff { kicker: off, spot: KICKOFF_SPOT }
         } else {
             let kick_spot = self.ball_on - 7;

@@ -37,6 +37,8 @@ pub(crate) struct GameSetup<'a> {
     /// Each dressed passer's true late-and-close shifts (0 when off).
     pub late_shift: [[LateShift; 2]; 2],
     pub home_line: f64,
+    /// The overtime rules of the game's season.
+    pub overtime: crate::overtime::Rules,
 }
 
 /// Play one game: rows are appended to `out`; returns the passer ids hurt.
@@ -87,6 +89,7 @@ fn play_game_with<'s>(
         ot_first: 0,
         ot_poss: 0,
         ot_fg_hold: false,
+        ot_answered: false,
         injured: Vec::new(),
     };
     let mut eng = Engine { g, rng, out, truth, probe, st };
@@ -207,6 +210,9 @@ struct State {
     /// The first overtime possession ended in a field goal and nothing else
     /// has been scored: the other side still gets its possession.
     ot_fg_hold: bool,
+    /// Both possess: the second side's possession has scored (its try
+    /// taken), so a lead now ends the game.
+    ot_answered: bool,
     injured: Vec<usize>,
 }
 
@@ -352,7 +358,7 @@ impl Engine<'_, '_> {
         self.running = false;
         self.note_score(false);
         if self.period >= 5 {
-            return Next::Done;
+            return self.ot_after_touchdown();
         }
         Next::Try
     }
@@ -365,7 +371,7 @@ impl Engine<'_, '_> {
         self.running = false;
         self.note_score(false);
         if self.period >= 5 {
-            return Next::Done;
+            return self.ot_after_touchdown();
         }
         Next::Try
     }

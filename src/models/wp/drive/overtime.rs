@@ -1,23 +1,47 @@
-//! Overtime under modified sudden death, solved backward from the drive
-//! model's possessions (`drive::DriveParams::plain`: outcome, next zone and
-//! clock of a possession by start zone): a touchdown on the first
-//! possession wins; a field goal there gives the other side one possession
-//! to answer (a touchdown wins it, a field goal ties and play goes on as
-//! sudden death, anything else loses); after a first possession without a
-//! score, or a tie answered, the next score wins; a defensive score ends
-//! it; a period of `OT_SPAN_SECS` ending level is a tie (½). The value is
-//! P(the team with the ball wins) by phase × 5 s of period left × zone.
+//! Overtime solved backward from the drive model's possessions
+//! (`drive::DriveParams::plain`: outcome, next zone and clock of a
+//! possession by start zone), under one of the rule sets of
+//! `crate::overtime` (`Rules`):
+//!
+//! - touchdown-or-answer: a touchdown on the first possession wins; a field
+//!   goal there gives the other side one possession to answer (outscoring
+//!   it wins, matching it goes on as sudden death, anything else loses);
+//! - first-score-wins: the first score of any kind wins;
+//! - both-possess: the first possession's score, a touchdown too, gets one
+//!   answer as above; a scoreless first possession hands over to sudden death.
+//!
+//! Under every set a defensive score ends it and, once both had the ball
+//! (or the first possession came up empty), the next score wins. A period
+//! ending with one side ahead ends the game; ending level it is a tie (½)
+//! or, when the set has no ties, another period follows from where play
+//! stands (solved as a fixed point). The value is P(the team with the ball
+//! wins) by phase × 5 s of period left × zone.
 
 use super::{DriveParams, Outcome, NZ, STEP_SECS, ZONE_AT};
+use crate::overtime::{Rule, Rules};
+use std::sync::Arc;
 
-/// Seconds of an overtime period on the grid (beyond: clamped).
-pub const OT_SPAN_SECS: i32 = 600;
-const NT: usize = (OT_SPAN_SECS / STEP_SECS) as usize + 1;
-/// Largest deficit a team answering a first-possession score can face
-/// (a field goal is 3; a first-possession touchdown ends the game).
-pub const MAX_ANSWER: i32 = 5;
+/// Seconds of the default overtime period.
+pub const OT_SPAN_SECS: i32 = crate::overtime::DEFAULT_PERIOD_SECS;
+/// Largest deficit an answering possession is counted with (a possession's
+/// swing is clamped to 9).
+pub const MAX_ANSWER: i32 = 9;
 /// A possession that gains this many points or more is a touchdown.
 const TOUCHDOWN: i32 = 6;
+/// Passes of the no-ties fixed point at most, and the change that ends it.
+const FIXED_POINT_PASSES: usize = 200;
+const FIXED_POINT_TOL: f64 = 1e-12;
+
+/// The largest deficit an answering possession faces under `rule` (0: no
+/// answer phase): a field goal's 3 plus slack under touchdown-or-answer,
+/// a touchdown with a two-point try under both-possess.
+pub fn max_answer(rule: Rule) -> i32 {
+    match rule {
+        Rule::TouchdownOrAnswer => 5,
+        Rule::FirstScoreWins => 0,
+        Rule::BothPossess => MAX_ANSWER,
+    }
+}
 
 /// Where an overtime stands for the team with the ball.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -42,7 +66,7 @@ fn ph(p: Phase) -> usize {
     }
 }
 
-/// The phase's value if the period ends now.
+/// The phase's value if the period ends now and that ends the game.
 fn at_end(p: Phase) -> f64 {
     match p {
         Phase::Answer(_) => 0.0,
@@ -58,32 +82,36 @@ enum Next {
     Goes(Phase, bool),
 }
 
-fn next(p: Phase, o: &Outcome) -> Next {
+fn next(rule: Rule, p: Phase, o: &Outcome) -> Next {
     let s = o.swing;
-    match p {
-        Phase::First if s >= TOUCHDOWN => Next::Decided(1.0),
-        Phase::First if s > 0 => {
+    match (rule, p) {
+        (Rule::TouchdownOrAnswer, Phase::First) if s >= TOUCHDOWN => Next::Decided(1.0),
+        (Rule::TouchdownOrAnswer | Rule::BothPossess, Phase::First) if s > 0 => {
             if o.keep {
                 // A score and the ball kept: only a return score against
                 // does that; count it as the lead held to the end.
                 Next::Decided(1.0)
             } else {
-                Next::Goes(Phase::Answer(s.min(MAX_ANSWER)), false)
+                Next::Goes(Phase::Answer(s.min(max_answer(rule))), false)
             }
         }
-        Phase::Answer(d) if s > d => Next::Decided(1.0),
-        Phase::Answer(d) if s == d => Next::Goes(Phase::Sudden, o.keep),
-        Phase::Answer(_) => Next::Decided(0.0),
+        (_, Phase::Answer(d)) if s > d => Next::Decided(1.0),
+        (_, Phase::Answer(d)) if s == d => Next::Goes(Phase::Sudden, o.keep),
+        (_, Phase::Answer(_)) => Next::Decided(0.0),
         _ if s > 0 => Next::Decided(1.0),
         _ if s < 0 => Next::Decided(0.0),
+        // Under first-score-wins a scoreless first possession changes
+        // nothing: the next score wins either way.
         _ => Next::Goes(Phase::Sudden, o.keep),
     }
 }
 
-/// P(the team with the ball wins) over phase × time × zone.
+/// P(the team with the ball wins) over phase × time × zone, for one rule set.
 #[derive(Debug, Clone, PartialEq)]
 pub struct OvertimeTable {
     v: Vec<f64>,
+    nt: usize,
+    pub rules: Rules,
 }
 
 fn idx(k: usize, p: usize, z: usize) -> usize {
@@ -101,46 +129,84 @@ const PHASES: [Phase; NPH] = {
     a
 };
 
-impl OvertimeTable {
-    pub fn solve(params: &DriveParams) -> OvertimeTable {
-        let mut v = vec![0.0; NT * NPH * NZ];
+/// One backward pass with `end[ph * NZ + z]` the value when the period
+/// runs out in that phase and zone.
+fn pass(params: &DriveParams, rule: Rule, nt: usize, end: &[f64]) -> Vec<f64> {
+    let e = |p: Phase, z: usize| end[ph(p) * NZ + z];
+    let mut v = vec![0.0; nt * NPH * NZ];
+    for p in PHASES {
+        for z in 0..NZ {
+            v[idx(0, ph(p), z)] = e(p, z);
+        }
+    }
+    for k in 1..nt {
         for p in PHASES {
             for z in 0..NZ {
-                v[idx(0, ph(p), z)] = at_end(p);
-            }
-        }
-        for k in 1..NT {
-            for p in PHASES {
-                for z in 0..NZ {
-                    let mut val = 0.0;
-                    for o in params.plain(z) {
-                        let steps = o.steps as usize;
-                        let later = |q: Phase, keep: bool, k2: usize| {
-                            let w = v[idx(k2, ph(q), o.zone as usize)];
-                            if keep { w } else { 1.0 - w }
+                let mut val = 0.0;
+                for o in params.plain(z) {
+                    let steps = o.steps as usize;
+                    let oz = o.zone as usize;
+                    val += o.share
+                        * match next(rule, p, o) {
+                            // The clock runs out first: the possession
+                            // gets the share of its outcome its time allows.
+                            Next::Decided(r) if steps > k => {
+                                let f = k as f64 / steps as f64;
+                                f * r + (1.0 - f) * e(p, z)
+                            }
+                            Next::Goes(q, keep) if steps > k => {
+                                let f = k as f64 / steps as f64;
+                                let later = if keep { e(q, oz) } else { 1.0 - e(q, oz) };
+                                f * later + (1.0 - f) * e(p, z)
+                            }
+                            Next::Decided(r) => r,
+                            Next::Goes(q, keep) => {
+                                let w = v[idx(k - steps, ph(q), oz)];
+                                if keep { w } else { 1.0 - w }
+                            }
                         };
-                        val += o.share
-                            * match next(p, o) {
-                                // The clock runs out first: the possession
-                                // gets the share of its outcome its time allows.
-                                Next::Decided(r) if steps > k => {
-                                    let f = k as f64 / steps as f64;
-                                    f * r + (1.0 - f) * at_end(p)
-                                }
-                                Next::Goes(q, keep) if steps > k => {
-                                    let f = k as f64 / steps as f64;
-                                    let e = if keep { at_end(q) } else { 1.0 - at_end(q) };
-                                    f * e + (1.0 - f) * at_end(p)
-                                }
-                                Next::Decided(r) => r,
-                                Next::Goes(q, keep) => later(q, keep, k - steps),
-                            };
-                    }
-                    v[idx(k, ph(p), z)] = val.clamp(0.0, 1.0);
                 }
+                v[idx(k, ph(p), z)] = val.clamp(0.0, 1.0);
             }
         }
-        OvertimeTable { v }
+    }
+    v
+}
+
+impl OvertimeTable {
+    /// The default rule set (`Rules::default`).
+    pub fn solve(params: &DriveParams) -> OvertimeTable {
+        OvertimeTable::solve_rules(params, &Rules::default())
+    }
+
+    pub fn solve_rules(params: &DriveParams, rules: &Rules) -> OvertimeTable {
+        let nt = (rules.period_secs.max(STEP_SECS) / STEP_SECS) as usize + 1;
+        let mut end = vec![0.0; NPH * NZ];
+        for p in PHASES {
+            for z in 0..NZ {
+                end[ph(p) * NZ + z] = at_end(p);
+            }
+        }
+        let mut v = pass(params, rules.rule, nt, &end);
+        if !rules.ties {
+            // Level at the end of a period: the next period goes on from
+            // there, so the end value is the full period's value.
+            for _ in 0..FIXED_POINT_PASSES {
+                let mut change: f64 = 0.0;
+                for p in [Phase::First, Phase::Sudden] {
+                    for z in 0..NZ {
+                        let full = v[idx(nt - 1, ph(p), z)];
+                        change = change.max((end[ph(p) * NZ + z] - full).abs());
+                        end[ph(p) * NZ + z] = full;
+                    }
+                }
+                if change < FIXED_POINT_TOL {
+                    break;
+                }
+                v = pass(params, rules.rule, nt, &end);
+            }
+        }
+        OvertimeTable { v, nt, rules: *rules }
     }
 
     fn get(&self, k: usize, p: Phase, z: usize) -> f64 {
@@ -150,9 +216,10 @@ impl OvertimeTable {
     /// P(the team with the ball at `ball_on` wins) in `phase` with `secs`
     /// left in the period, interpolated linearly in time and field.
     pub fn value(&self, phase: Phase, secs: f64, ball_on: f64) -> f64 {
-        let t = (secs / STEP_SECS as f64).clamp(0.0, (NT - 1) as f64);
+        let nt = self.nt;
+        let t = (secs / STEP_SECS as f64).clamp(0.0, (nt - 1) as f64);
         let (k0, ft) = (t.floor() as usize, t.fract());
-        let k1 = (k0 + 1).min(NT - 1);
+        let k1 = (k0 + 1).min(nt - 1);
         let b = ball_on.clamp(ZONE_AT[0], ZONE_AT[NZ - 1]);
         let z0 = ZONE_AT.iter().rposition(|&c| b >= c).unwrap_or(0).min(NZ - 2);
         let fz = ((b - ZONE_AT[z0]) / (ZONE_AT[z0 + 1] - ZONE_AT[z0])).clamp(0.0, 1.0);
@@ -163,6 +230,37 @@ impl OvertimeTable {
             }
         }
         p
+    }
+}
+
+/// Overtime tables solved for rule sets other than the default, kept
+/// beside the drive model (a handful at most: one per set a config names).
+#[derive(Debug, Default)]
+pub struct RuleTables(std::sync::Mutex<Vec<Arc<OvertimeTable>>>);
+
+impl Clone for RuleTables {
+    fn clone(&self) -> RuleTables {
+        RuleTables(std::sync::Mutex::new(self.0.lock().map(|v| v.clone()).unwrap_or_default()))
+    }
+}
+
+impl super::DriveModel {
+    /// The overtime table of `rules` from the same possessions (the default
+    /// set is `overtime()`; another is solved on first use and kept).
+    pub fn overtime_for(&self, rules: &Rules) -> Arc<OvertimeTable> {
+        if *rules == Rules::default() {
+            return self.ot.get_or_init(|| Arc::new(OvertimeTable::solve(&self.params))).clone();
+        }
+        let mut kept = match self.ot_rules.0.lock() {
+            Ok(g) => g,
+            Err(poisoned) => poisoned.into_inner(),
+        };
+        if let Some(t) = kept.iter().find(|t| t.rules == *rules) {
+            return t.clone();
+        }
+        let t = Arc::new(OvertimeTable::solve_rules(&self.params, rules));
+        kept.push(t.clone());
+        t
     }
 }
 
