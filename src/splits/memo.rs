@@ -52,7 +52,19 @@ impl Memo {
     }
 }
 
+/// The start of the keys of the every-snap totals per season list
+/// (`normal::every_snap`), which `SplitIndex::forget` keeps.
+pub(super) const TOTALS: &str = "totals ";
+
 impl Memo {
+    /// Drop what was derived from this pass but the results whose key
+    /// `keep` accepts.
+    pub(super) fn forget_derived(&self, keep: impl Fn(&str) -> bool) {
+        if let Ok(mut d) = self.derived.lock() {
+            d.retain(|k, _| keep(k));
+        }
+    }
+
     /// Bytes its pass results hold (what it derives later is not counted).
     pub(super) fn bytes(&self) -> usize {
         use std::mem::size_of;
@@ -68,11 +80,12 @@ impl Memo {
 pub(super) const MEMO_SIZE: usize = 16;
 
 /// How many bytes of passes the index keeps: past it, the passes used
-/// least recently are let go. (On 25 seasons the every-snap pass holds
-/// about 27 MB, a late-game window 1-13 MB: a passer's profile reads every
-/// preset's pass, 61 MB together, so the bound leaves room for them and a
-/// few more views.)
-pub(super) const MEMO_BYTES: usize = 96 << 20;
+/// least recently are let go. (On 25 seasons a late-game window's pass
+/// holds 1-13 MB, and a passer's profile reads the six late-game presets'
+/// passes; the every-snap passes are kept outside the memo by the index,
+/// 11.8 MiB for the passers', so the bound is 12 MiB below the 96 MiB it
+/// was when the memo held them.)
+pub(super) const MEMO_BYTES: usize = 84 << 20;
 
 /// The index's memo of passes by key, bounded by `MEMO_SIZE` and by
 /// `MEMO_BYTES` (the passes used least recently go first; the one just

@@ -313,8 +313,13 @@ fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
 }
 
 /// The pass for `s` (its seasons and passer aside), memoised in the index.
+/// A grouping's every-snap pass is kept by the index for its life
+/// (`SplitIndex::every`), made when first asked.
 pub(super) fn memo(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Arc<Memo> {
     let key = memo_key(s);
+    if key == memo_key(&Situation { group: s.group, ..Situation::default() }) {
+        return ix.every[SplitIndex::group_slot(s.group)].get_or_init(|| Arc::new(pass(ix, p, v, s))).clone();
+    }
     if let Some(m) = ix.memo.lock().ok().and_then(|mut c| c.get(&key)) {
         return m;
     }
