@@ -481,6 +481,21 @@ impl SplitIndex {
         &self.rec[r * st + 1..][..st - 1]
     }
 
+    /// The value metric `j` contributes at row `r` (`None` outside its unit).
+    #[inline]
+    pub(super) fn value_at(&self, j: usize, r: usize) -> Option<f64> {
+        let lay = &self.layout;
+        if self.units_at(r) >> lay.unit_of[j] & 1 == 0 {
+            return None;
+        }
+        Some(match lay.col_of[j] {
+            Col::One => 1.0,
+            Col::Bit(k) => f64::from(self.bits_at(r) >> k & 1),
+            Col::Int(k) => self.values_at(r)[k],
+            Col::Real(k) => self.values_at(r)[lay.ints + k],
+        })
+    }
+
     /// The unit-season ids a grouping sums over.
     pub(super) fn units_of(&self, g: Group) -> Units<'_> {
         match g {

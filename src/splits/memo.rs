@@ -26,6 +26,11 @@ pub(crate) struct Memo {
     pub(super) ps_cell_sums: Vec<f64>,
     /// Per passer-season: (last snap + 1, its offense); 0 when none.
     pub(super) last: Vec<(u32, u16)>,
+    /// Passer rows only (else empty): the nonzero (passer-season × teams +
+    /// defense) keys, ascending, and the count, sum and sum of squares of
+    /// `ADJUSTED_METRIC` over the pass's rows in each (`splits::opponent`).
+    pub(super) opp_keys: Vec<u32>,
+    pub(super) opp_sums: Vec<(f64, f64, f64)>,
     /// What the estimates derive from this pass and one more thing (a
     /// season list, a minimum), under keys their modules choose.
     pub(super) derived: Mutex<HashMap<String, Arc<dyn Any + Send + Sync>>>,
@@ -72,6 +77,8 @@ impl Memo {
             + size_of::<f64>() * (self.ps.capacity() + self.season_cells.capacity() + self.ps_cell_sums.capacity())
             + size_of::<u32>() * self.ps_cell_keys.capacity()
             + size_of::<(u32, u16)>() * self.last.capacity()
+            + size_of::<u32>() * self.opp_keys.capacity()
+            + size_of::<(f64, f64, f64)>() * self.opp_sums.capacity()
     }
 }
 
@@ -111,6 +118,8 @@ mod memo_tests {
             ps_cell_keys: Vec::new(),
             ps_cell_sums: Vec::new(),
             last: Vec::new(),
+            opp_keys: Vec::new(),
+            opp_sums: Vec::new(),
             derived: Default::default(),
         })
     }
