@@ -203,6 +203,11 @@ fn recall<T: std::any::Any + Send + Sync + Clone>(memo: &Mutex<HashMap<String, A
     hit.downcast::<T>().ok().map(|a| (*a).clone())
 }
 
+/// Does the index hold the every-snap fit for these seasons yet?
+pub(super) fn league_fit_kept(ix: &SplitIndex, seasons: &Option<Vec<i32>>) -> bool {
+    ix.league_fits.lock().is_ok_and(|m| m.contains_key(&format!("opponent {ADJUSTED_METRIC} {seasons:?}")))
+}
+
 /// The opponent adjustment of `ADJUSTED_METRIC` in `s`. The every-snap fit
 /// and the every-snap adjustment are kept per season list in the index's
 /// `league_fits` (like its columns, they survive `forget`); another
