@@ -34,8 +34,18 @@ fn main() -> anyhow::Result<()> {
     let t = Instant::now();
     let league = League::open_with(&cfg)?;
     println!("open {:.0} ms   load {}", ms(t), load());
+    // The held-out calibration runs on a thread of its own after the open:
+    // waited for, so it takes no core from what is timed here.
+    let t = Instant::now();
+    let calibrated = league.scored.calibration.wait().is_ok();
+    println!("calibration waited for {:.0} ms (ready: {calibrated})", ms(t));
     let (p, v) = (league.plays(), league.values());
+    // Built twice: the first build also pays for what the league makes
+    // lazily (its values).
     let ix = splits::SplitIndex::build(p, &v);
+    let t = Instant::now();
+    drop(splits::SplitIndex::build(p, &v));
+    println!("index build {:.0} ms   every-snap pass kept {:.1} MiB   load {}", ms(t), ix.every_bytes() as f64 / 1048576.0, load());
     let s = Preset::EndOfGame.situation(8);
     // Warm: the every-snap pass and the opponent model on every snap.
     let _ = splits::split_table_in(&ix, p, &v, &s, 20, None);
@@ -62,6 +72,10 @@ fn main() -> anyhow::Result<()> {
     let mut bytes = 0;
     let page: Vec<(f64, f64, f64)> = (0..if page_only { 150 } else { runs }).map(|k| timed(|| bytes = render(format!("/explore?preset=end-of-game&margin=-{}..8", 31 + k)).unwrap_or(0))).collect();
     println!("explorer page, new situation             {}   ({bytes} bytes)   load {}", show(&page), load());
+    // The same situations again, another address (`min=20` written out):
+    // the table is kept, the page is made again.
+    let again: Vec<(f64, f64, f64)> = (0..page.len()).map(|k| timed(|| bytes = render(format!("/explore?preset=end-of-game&margin=-{}..8&min=20", 31 + k)).unwrap_or(0))).collect();
+    println!("  the page alone, its table kept         {}   load {}", show(&again), load());
     let window = |k: usize| Situation { margin: Some(Range { lo: Some(-(30.0 + k as f64)), hi: Some(8.0) }), ..s.clone() };
     let loaded = state.loaded();
     let (lg, ix) = (&loaded.league, &loaded.index);
@@ -105,6 +119,7 @@ fn engine_parts(ix: &splits::SplitIndex, p: &lategame::plays::Plays, v: &splits:
         })
         .collect();
     println!("profile, nothing memoised                {}   load {}", show(&prof), load());
+    println!("  passes it leaves in the memo: {:.1} MiB (every-snap passes kept apart: {:.1} MiB)", ix.memo_bytes() as f64 / 1048576.0, ix.every_bytes() as f64 / 1048576.0);
     // Each preset's row alone after `forget`, the every-snap one first (as
     // the profile does it).
     let mut per: BTreeMap<usize, Vec<f64>> = BTreeMap::new();

@@ -12,16 +12,72 @@ fn digits(x: f64, decimals: usize) -> String {
 /// `v` with `decimals` places; "–" when missing or not finite; a value
 /// that rounds to zero never shows a minus sign ("0.00", not "-0.00").
 pub fn fixed(v: Option<f64>, decimals: usize) -> String {
-    match v {
-        Some(x) if x.is_finite() => {
-            let s = digits(x, decimals);
-            if s.starts_with('-') && s.trim_start_matches(['-', '0', '.']).is_empty() {
-                s[1..].to_string()
-            } else {
-                s
-            }
+    Fixed(v, decimals).to_string()
+}
+
+/// [`fixed`] written where it is displayed, with no `String` of its own (a
+/// page writes thousands of them).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Fixed(pub Option<f64>, pub usize);
+
+impl std::fmt::Display for Fixed {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let (Some(x), decimals) = (self.0, self.1) else { return f.write_str(MISSING) };
+        if !x.is_finite() {
+            return f.write_str(MISSING);
         }
-        _ => MISSING.to_string(),
+        let mut b = Stack::default();
+        if std::fmt::Write::write_fmt(&mut b, format_args!("{x:.decimals$}")).is_err() {
+            // Longer than the stack buffer: through a `String`.
+            let s = digits(x, decimals);
+            return f.write_str(if s.starts_with('-') && s.trim_start_matches(['-', '0', '.']).is_empty() { &s[1..] } else { &s });
+        }
+        let s = b.as_str();
+        f.write_str(if s.starts_with('-') && s.trim_start_matches(['-', '0', '.']).is_empty() { &s[1..] } else { s })
+    }
+}
+
+/// [`signed`] with no unit, written where it is displayed.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Signed(pub Option<f64>, pub usize);
+
+impl std::fmt::Display for Signed {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self.0 {
+            Some(x) if x.is_finite() => write!(f, "{x:+.*}", self.1),
+            _ => f.write_str(MISSING),
+        }
+    }
+}
+
+/// A few dozen bytes of text on the stack (`Fixed` looks at its digits
+/// before writing them).
+struct Stack {
+    buf: [u8; 64],
+    len: usize,
+}
+
+impl Default for Stack {
+    fn default() -> Stack {
+        Stack { buf: [0; 64], len: 0 }
+    }
+}
+
+impl Stack {
+    fn as_str(&self) -> &str {
+        std::str::from_utf8(&self.buf[..self.len]).unwrap_or_default()
+    }
+}
+
+impl std::fmt::Write for Stack {
+    fn write_str(&mut self, s: &str) -> std::fmt::Result {
+        let end = self.len + s.len();
+        if end > self.buf.len() {
+            return Err(std::fmt::Error);
+        }
+        self.buf[self.len..end].copy_from_slice(s.as_bytes());
+        self.len = end;
+        Ok(())
     }
 }
 
@@ -78,7 +134,7 @@ pub fn percent(v: Option<f64>, decimals: usize) -> String {
 /// ("%", " pts of WP"); "–" alone when missing or not finite.
 pub fn signed(v: Option<f64>, decimals: usize, unit: &str) -> String {
     match v {
-        Some(x) if x.is_finite() => format!("{x:+.decimals$}{unit}"),
+        Some(x) if x.is_finite() => format!("{}{unit}", Signed(v, decimals)),
         _ => MISSING.to_string(),
     }
 }
@@ -86,6 +142,31 @@ pub fn signed(v: Option<f64>, decimals: usize, unit: &str) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// `Fixed` and `Signed` write what `fixed` and `signed` give by way of
+    /// `format!`, for values around rounding edges, tiny negatives, huge
+    /// values (past the stack buffer) and the missing ones.
+    #[test]
+    fn the_displayed_forms_write_the_same_text() {
+        let xs = [0.0, -0.0, 0.125, -0.125, 0.0049, -0.0049, -0.0051, 2.5, -2.5, 1e-12, -1e-12, 83.81769857834946, -3.7, 1e300, -1e300, f64::NAN, f64::INFINITY];
+        for d in 0..5 {
+            for &x in &xs {
+                let old = if !x.is_finite() {
+                    MISSING.to_string()
+                } else {
+                    let s = format!("{x:.d$}");
+                    if s.starts_with('-') && s.trim_start_matches(['-', '0', '.']).is_empty() { s[1..].to_string() } else { s }
+                };
+                assert_eq!(Fixed(Some(x), d).to_string(), old, "{x} {d}");
+                let old_signed = if x.is_finite() { format!("{x:+.d$}") } else { MISSING.to_string() };
+                assert_eq!(Signed(Some(x), d).to_string(), old_signed, "{x} {d}");
+            }
+            assert_eq!(Fixed(None, d).to_string(), MISSING);
+            assert_eq!(Signed(None, d).to_string(), MISSING);
+        }
+        assert_eq!(fixed(Some(-0.0001), 2), "0.00");
+        assert_eq!(signed(Some(0.3712), 2, "%"), "+0.37%");
+    }
 
     #[test]
     fn thousands_are_grouped() {

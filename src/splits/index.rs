@@ -6,13 +6,13 @@
 //! pass over a situation (`pass`) reads it; filters it does not cover fall
 //! back to `Situation::matches` on each candidate row.
 
-use super::memo::{memo_map, MemoMap};
+use super::memo::{memo_map, Memo, MemoMap};
 use super::metrics::{cell, contributions, SnapValues, METRICS};
 use crate::plays::{Plays, NO_PASSER};
 use crate::situation::{Group, OT};
 use rayon::prelude::*;
 use std::collections::HashMap;
-use std::sync::{Arc, Mutex};
+use std::sync::{Arc, Mutex, OnceLock};
 
 /// Rows per piece of work handed to rayon (fixed, so the pieces and hence
 /// the sums are the same on every machine).
@@ -136,6 +136,11 @@ pub struct SplitIndex {
     /// that lie far apart, and one record is two or three cache lines
     /// where four columns were four or five.
     pub(super) rec: Vec<f64>,
+    /// The every-snap pass per grouping (passer, offense, defense: see
+    /// `group_slot`), which depends on no situation: the passers' made with
+    /// the index (`SplitIndex::build`), the teams' when first asked; kept
+    /// for the index's life, outside the memo and `forget`.
+    pub(super) every: [OnceLock<Arc<Memo>>; 3],
     /// Pass results per situation without its season and passer filters,
     /// bounded by count and by bytes (`MemoMap`).
     pub(super) memo: Mutex<MemoMap>,
@@ -285,11 +290,12 @@ fn gather<T: Copy + Default + Send + Sync>(pieces: Vec<Vec<T>>, w: usize, order:
 }
 
 impl SplitIndex {
-    /// Index the league `p` with its model values `v` (once per load). The
-    /// league's columns are read in snap order (as they lie in memory), in
-    /// pieces on rayon's threads; the rows are then put in the index's
-    /// order one column at a time.
-    pub fn build(p: &Plays, v: &SnapValues) -> SplitIndex {
+    /// The index's columns of the league `p` with its model values `v`
+    /// (`SplitIndex::build` adds the every-snap pass). The league's columns
+    /// are read in snap order (as they lie in memory), in pieces on rayon's
+    /// threads; the rows are then put in the index's order one column at a
+    /// time.
+    pub(super) fn columns(p: &Plays, v: &SnapValues) -> SplitIndex {
         let nm = METRICS.len();
         assert!(nm <= 64, "the per-snap metric mask holds 64 metrics");
         let unit_of: Vec<usize> = METRICS.iter().map(|m| m.unit as usize).collect();
@@ -434,6 +440,7 @@ impl SplitIndex {
             ball_on: column!(ball_on, 1),
             rec: column!(rec, stride),
             snap: snaps,
+            every: Default::default(),
             memo: Mutex::new(memo_map()),
             extra: Mutex::new(HashMap::new()),
             league_fits: Mutex::new(HashMap::new()),
@@ -474,6 +481,21 @@ impl SplitIndex {
         &self.rec[r * st + 1..][..st - 1]
     }
 
+    /// The value metric `j` contributes at row `r` (`None` outside its unit).
+    #[inline]
+    pub(super) fn value_at(&self, j: usize, r: usize) -> Option<f64> {
+        let lay = &self.layout;
+        if self.units_at(r) >> lay.unit_of[j] & 1 == 0 {
+            return None;
+        }
+        Some(match lay.col_of[j] {
+            Col::One => 1.0,
+            Col::Bit(k) => f64::from(self.bits_at(r) >> k & 1),
+            Col::Int(k) => self.values_at(r)[k],
+            Col::Real(k) => self.values_at(r)[lay.ints + k],
+        })
+    }
+
     /// The unit-season ids a grouping sums over.
     pub(super) fn units_of(&self, g: Group) -> Units<'_> {
         match g {
@@ -497,11 +519,36 @@ impl SplitIndex {
         self.n_snaps == p.len()
     }
 
+    /// Which of `every` holds a grouping's every-snap pass.
+    pub(super) fn group_slot(g: Group) -> usize {
+        match g {
+            Group::Passer => 0,
+            Group::Offense => 1,
+            Group::Defense => 2,
+        }
+    }
+
+    /// Bytes the every-snap passes made so far hold (what is derived from
+    /// them aside).
+    pub fn every_bytes(&self) -> usize {
+        self.every.iter().filter_map(|m| m.get()).map(|m| m.bytes()).sum()
+    }
+
+    /// Bytes the memo's passes hold now (`Memo::bytes`).
+    pub fn memo_bytes(&self) -> usize {
+        self.memo.lock().map_or(0, |m| m.bytes())
+    }
+
     /// Forget every memoised pass and per-situation result (tests time the
-    /// pass itself with it); the league-level fits stay.
+    /// pass itself with it); the league-level fits, the every-snap passes
+    /// and their totals per season list stay (they depend on no situation),
+    /// what else was derived from them goes.
     pub fn forget(&self) {
         if let Ok(mut m) = self.memo.lock() {
             m.clear();
+        }
+        for m in self.every.iter().filter_map(|m| m.get()) {
+            m.forget_derived(|k| k.starts_with(super::memo::TOTALS));
         }
         if let Ok(mut m) = self.extra.lock() {
             m.clear();

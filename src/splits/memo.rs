@@ -26,6 +26,11 @@ pub(crate) struct Memo {
     pub(super) ps_cell_sums: Vec<f64>,
     /// Per passer-season: (last snap + 1, its offense); 0 when none.
     pub(super) last: Vec<(u32, u16)>,
+    /// Passer rows only (else empty): the nonzero (passer-season × teams +
+    /// defense) keys, ascending, and the count, sum and sum of squares of
+    /// `ADJUSTED_METRIC` over the pass's rows in each (`splits::opponent`).
+    pub(super) opp_keys: Vec<u32>,
+    pub(super) opp_sums: Vec<(f64, f64, f64)>,
     /// What the estimates derive from this pass and one more thing (a
     /// season list, a minimum), under keys their modules choose.
     pub(super) derived: Mutex<HashMap<String, Arc<dyn Any + Send + Sync>>>,
@@ -52,7 +57,19 @@ impl Memo {
     }
 }
 
+/// The start of the keys of the every-snap totals per season list
+/// (`normal::every_snap`), which `SplitIndex::forget` keeps.
+pub(super) const TOTALS: &str = "totals ";
+
 impl Memo {
+    /// Drop what was derived from this pass but the results whose key
+    /// `keep` accepts.
+    pub(super) fn forget_derived(&self, keep: impl Fn(&str) -> bool) {
+        if let Ok(mut d) = self.derived.lock() {
+            d.retain(|k, _| keep(k));
+        }
+    }
+
     /// Bytes its pass results hold (what it derives later is not counted).
     pub(super) fn bytes(&self) -> usize {
         use std::mem::size_of;
@@ -60,6 +77,8 @@ impl Memo {
             + size_of::<f64>() * (self.ps.capacity() + self.season_cells.capacity() + self.ps_cell_sums.capacity())
             + size_of::<u32>() * self.ps_cell_keys.capacity()
             + size_of::<(u32, u16)>() * self.last.capacity()
+            + size_of::<u32>() * self.opp_keys.capacity()
+            + size_of::<(f64, f64, f64)>() * self.opp_sums.capacity()
     }
 }
 
@@ -68,11 +87,12 @@ impl Memo {
 pub(super) const MEMO_SIZE: usize = 16;
 
 /// How many bytes of passes the index keeps: past it, the passes used
-/// least recently are let go. (On 25 seasons the every-snap pass holds
-/// about 27 MB, a late-game window 1-13 MB: a passer's profile reads every
-/// preset's pass, 61 MB together, so the bound leaves room for them and a
-/// few more views.)
-pub(super) const MEMO_BYTES: usize = 96 << 20;
+/// least recently are let go. (On 25 seasons a late-game window's pass
+/// holds 1-13 MB, and a passer's profile reads the six late-game presets'
+/// passes; the every-snap passes are kept outside the memo by the index,
+/// 11.8 MiB for the passers', so the bound is 12 MiB below the 96 MiB it
+/// was when the memo held them.)
+pub(super) const MEMO_BYTES: usize = 84 << 20;
 
 /// The index's memo of passes by key, bounded by `MEMO_SIZE` and by
 /// `MEMO_BYTES` (the passes used least recently go first; the one just
@@ -98,6 +118,8 @@ mod memo_tests {
             ps_cell_keys: Vec::new(),
             ps_cell_sums: Vec::new(),
             last: Vec::new(),
+            opp_keys: Vec::new(),
+            opp_sums: Vec::new(),
             derived: Default::default(),
         })
     }

@@ -227,6 +227,11 @@ pub fn headings(m: &MetricDef, group: crate::situation::Group) -> (&'static str,
     }
 }
 
+/// The metric the opponent adjustment is made on (one, on purpose: the
+/// page explains one number; `splits::opponent`). Its per (passer-season,
+/// defense) sums are summed in each situation's pass (`Memo::opp_keys`).
+pub const ADJUSTED_METRIC: &str = "epa";
+
 pub fn metric_index(key: &str) -> Option<usize> {
     METRICS.iter().position(|m| m.key == key)
 }

@@ -5,20 +5,20 @@
 //! out. The fit is kept per season list, the adjustment per situation, in
 //! the split index.
 
-use super::index::{Col, SplitIndex};
+use super::index::SplitIndex;
 use super::memo::MEMO_SIZE;
 use super::plan::{memo_key, Plan};
+use super::scan::memo;
 use super::metrics::{metric_index, SnapValues};
 use crate::plays::Plays;
-use crate::situation::Situation;
+use crate::situation::{Group, Situation};
 use crate::stats::crossed::{CrossedCell, CrossedFit};
 use crate::stats::multilevel::normal_interval;
 use crate::stats::INTERVAL_LEVEL;
 use std::collections::HashMap;
 use std::sync::{Arc, Mutex};
 
-/// The metric adjusted (one, on purpose: the page explains one number).
-pub const ADJUSTED_METRIC: &str = "epa";
+pub use super::metrics::ADJUSTED_METRIC;
 
 /// What the adjusted number is, in a coach's words (pages print it).
 pub const OPPONENT_WORDS: &str = "Against an average defense: his EPA per dropback here with the defenses he faced here taken out. \
@@ -48,20 +48,6 @@ pub struct OpponentFit {
     pub sd_snap: f64,
 }
 
-/// The value metric `j` contributes at row `r` of the index (`None` outside its unit).
-fn value_at(ix: &SplitIndex, j: usize, r: usize) -> Option<f64> {
-    let lay = &ix.layout;
-    if ix.units_at(r) >> lay.unit_of[j] & 1 == 0 {
-        return None;
-    }
-    Some(match lay.col_of[j] {
-        Col::One => 1.0,
-        Col::Bit(k) => f64::from(ix.bits_at(r) >> k & 1),
-        Col::Int(k) => ix.values_at(r)[k],
-        Col::Real(k) => ix.values_at(r)[lay.ints + k],
-    })
-}
-
 /// Rank of each id by its name, so a fit does not depend on the order in
 /// which a load met the names (the same file through a mapping gives the
 /// same numbers, bit for bit).
@@ -78,7 +64,7 @@ fn ranks(names: &[String]) -> Vec<u32> {
 /// Per (passer-season, defense) sums of metric `j` over the rows `s` keeps
 /// (its passer filter aside: the model is the league's, not his). Units are
 /// `passer rank × seasons + season`, groups `season × teams + team rank`.
-fn cells(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize) -> Vec<CrossedCell> {
+pub(super) fn cells(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize) -> Vec<CrossedCell> {
     let plan = Plan::new(ix, s);
     let chosen: Vec<bool> = ix.seasons.iter().map(|y| s.seasons.as_ref().is_none_or(|ss| ss.contains(y))).collect();
     let n_teams = p.teams.len();
@@ -91,7 +77,7 @@ fn cells(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize) ->
             if !chosen[season as usize] || !plan.keeps(ix, p, v, k, r) {
                 continue;
             }
-            let Some(x) = value_at(ix, j, r) else { continue };
+            let Some(x) = ix.value_at(j, r) else { continue };
             // The defense from the row's own column (the league's rows lie far apart).
             let defense = ix.ts_key[ix.ts_def[r] as usize].0 as usize;
             let e = &mut sums[ps as usize * n_teams + defense];
@@ -100,12 +86,17 @@ fn cells(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize) ->
             e.2 += x * x;
         }
     }
+    crossed_cells(ix, p, sums.into_iter().enumerate().filter(|(_, c)| c.0 > 0.0))
+}
+
+/// The model's cells from nonzero (passer-season × teams + defense, (n,
+/// sum, sum of squares)) in ascending key order. Units are `passer rank ×
+/// seasons + season`, groups `season × teams + team rank`.
+fn crossed_cells(ix: &SplitIndex, p: &Plays, sums: impl Iterator<Item = (usize, (f64, f64, f64))>) -> Vec<CrossedCell> {
+    let n_teams = p.teams.len();
     let (passer_rank, team_rank) = (ranks(&p.passers), ranks(&p.teams));
     let n_seasons = ix.seasons.len() as u32;
     let mut out: Vec<CrossedCell> = sums
-        .into_iter()
-        .enumerate()
-        .filter(|(_, c)| c.0 > 0.0)
         .map(|(k, (n, sum, sumsq))| {
             let (ps, defense) = (k / n_teams, k % n_teams);
             let (who, season) = ix.ps_key[ps];
@@ -116,6 +107,21 @@ fn cells(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, j: usize) ->
         .collect();
     out.sort_by_key(|c| (c.block, c.unit, c.group));
     out
+}
+
+/// `cells` of `ADJUSTED_METRIC` from the situation's pass (its per
+/// passer-season × defense sums, `Memo::opp_keys`), over the seasons of
+/// `s`: the same cells, bit for bit, without going over the rows again.
+pub(super) fn memo_cells(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Vec<CrossedCell> {
+    // A pass of team rows sums no passer's cells.
+    if s.group != Group::Passer {
+        return metric_index(ADJUSTED_METRIC).map_or_else(Vec::new, |j| cells(ix, p, v, s, j));
+    }
+    let m = memo(ix, p, v, &s.without_row_pick());
+    let chosen: Vec<bool> = ix.seasons.iter().map(|y| s.seasons.as_ref().is_none_or(|ss| ss.contains(y))).collect();
+    let n_teams = p.teams.len().max(1);
+    let kept = m.opp_keys.iter().zip(&m.opp_sums).filter(|(&k, _)| chosen[ix.ps_key[k as usize / n_teams].1 as usize]);
+    crossed_cells(ix, p, kept.map(|(&k, &c)| (k as usize, c)))
 }
 
 /// The league's fit of metric `j` on every snap of the seasons of `s`:
@@ -197,12 +203,17 @@ fn recall<T: std::any::Any + Send + Sync + Clone>(memo: &Mutex<HashMap<String, A
     hit.downcast::<T>().ok().map(|a| (*a).clone())
 }
 
+/// Does the index hold the every-snap fit for these seasons yet?
+pub(super) fn league_fit_kept(ix: &SplitIndex, seasons: &Option<Vec<i32>>) -> bool {
+    ix.league_fits.lock().is_ok_and(|m| m.contains_key(&format!("opponent {ADJUSTED_METRIC} {seasons:?}")))
+}
+
 /// The opponent adjustment of `ADJUSTED_METRIC` in `s`. The every-snap fit
 /// and the every-snap adjustment are kept per season list in the index's
 /// `league_fits` (like its columns, they survive `forget`); another
 /// situation's adjustment in its `extra` memo.
 pub fn opponent_fit(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Option<Arc<OpponentFit>> {
-    let j = metric_index(ADJUSTED_METRIC)?;
+    metric_index(ADJUSTED_METRIC)?;
     let key = format!("opponent {ADJUSTED_METRIC} {:?} {}", s.seasons, memo_key(s));
     if let Some(hit) = recall::<Option<Arc<OpponentFit>>>(&ix.extra, &key) {
         return hit;
@@ -222,7 +233,7 @@ pub fn opponent_fit(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -
     let (fit, every_fit) = match recall::<Option<Arc<CrossedFit>>>(&ix.league_fits, &fit_key) {
         Some(f) => (f, None),
         None => {
-            let cells = cells(ix, p, v, &every, j);
+            let cells = memo_cells(ix, p, v, &every);
             let f = CrossedFit::fit(&cells, true).ok().map(Arc::new);
             let e = f.as_ref().map(|f| Arc::new(adjust_cells(ix, p, &cells, f)));
             remember(&ix.league_fits, fit_key, f.clone());
@@ -234,14 +245,14 @@ pub fn opponent_fit(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -
         let out = match every_fit {
             Some(e) => e,
             None => {
-                let e = fit.map(|f| Arc::new(adjust(ix, p, v, s, j, &f)));
+                let e = fit.map(|f| Arc::new(adjust_cells(ix, p, &memo_cells(ix, p, v, s), &f)));
                 remember(&ix.league_fits, every_key, e.clone());
                 e
             }
         };
         return out;
     }
-    let out = fit.map(|f| Arc::new(adjust(ix, p, v, s, j, &f)));
+    let out = fit.map(|f| Arc::new(adjust_cells(ix, p, &memo_cells(ix, p, v, s), &f)));
     remember(&ix.extra, key, out.clone());
     out
 }

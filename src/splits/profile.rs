@@ -56,10 +56,10 @@ pub fn profile(p: &Plays, v: &SnapValues, passer: &str, base: &Situation, trend:
 /// `profile` on a league already indexed (`ix` built from `p`, `v`): his
 /// row of each preset's table (`split_row_in`: his estimates alone, ranked
 /// among the qualified passers' estimates the index keeps per preset, so
-/// no whole table is built). The every-snap row comes first (its pass is
-/// every row's "his normal", and the opponent model's fit is on every
-/// snap: made once), then the other presets side by side, then the season
-/// trend.
+/// no whole table is built), the presets side by side, then the season
+/// trend. The every-snap pass, every row's "his normal", was made with
+/// the index; the opponent model's every-snap fit is made once per season
+/// list (first, when the index holds none yet: every row reads it).
 pub fn profile_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, passer: &str, base: &Situation, trend: &Situation, min_dropbacks: u32) -> Option<Profile> {
     let who = p.passer_index(passer)?;
     let mut metrics = Vec::new();
@@ -67,12 +67,14 @@ pub fn profile_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, passer: &str, base
     let mut team = None;
     let situation = |preset: Preset| Situation { seasons: base.seasons.clone(), ..preset.situation(base.one_score) };
     let row = |s: &Situation| split_row_in(ix, p, v, s, min_dropbacks, passer);
-    let every = row(&situation(Preset::EverySnap));
+    if !super::opponent::league_fit_kept(ix, &base.seasons) {
+        drop(super::opponent::opponent_fit(ix, p, v, &situation(Preset::EverySnap)));
+    }
     let rows: Vec<(Situation, SplitRow)> = Preset::ALL
         .par_iter()
         .map(|&preset| {
             let s = situation(preset);
-            let r = if preset == Preset::EverySnap { every.clone() } else { row(&s) };
+            let r = row(&s);
             (s, r)
         })
         .collect();

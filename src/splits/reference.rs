@@ -349,3 +349,31 @@ fn the_epa_distribution_agrees_with_the_row_by_row_count() {
         assert_eq!((fast.passer_n, fast.league_n), (mine, all), "{s:?}");
     }
 }
+
+/// The opponent model's cells from a situation's pass (`memo_cells`) are
+/// those of its own pass over the rows (`cells`), bit for bit, on random
+/// situations of passer rows, with and without a memo.
+#[test]
+fn the_passes_opponent_sums_are_the_opponent_models_own() {
+    let (p, epa, wp, wpa, cp, throw) = league();
+    let v = values(&epa, &wp, &wpa, &cp, &throw);
+    let ix = SplitIndex::build(&p, &v);
+    let j = super::metrics::metric_index(super::metrics::ADJUSTED_METRIC).expect("the adjusted metric");
+    let mut r = Rng(4417);
+    let mut nonempty = 0;
+    for case in 0..120 {
+        let s = Situation { group: Group::Passer, ..random_situation(&mut r, &p) };
+        if case % 2 == 0 {
+            ix.forget();
+        }
+        let own = super::opponent::cells(&ix, &p, &v, &s, j);
+        assert_eq!(super::opponent::memo_cells(&ix, &p, &v, &s), own, "case {case}: {s:?}");
+        nonempty += usize::from(!own.is_empty());
+    }
+    // Every snap, every season list.
+    for seasons in std::iter::once(None).chain(p.seasons().into_iter().map(|y| Some(vec![y]))) {
+        let s = Situation { seasons, ..Situation::default() };
+        assert_eq!(super::opponent::memo_cells(&ix, &p, &v, &s), super::opponent::cells(&ix, &p, &v, &s, j), "{s:?}");
+    }
+    assert!(nonempty > 60, "only {nonempty} of 120 situations had a cell");
+}

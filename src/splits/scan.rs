@@ -5,7 +5,7 @@
 use super::index::{Layout, SplitIndex};
 use super::memo::Memo;
 use super::plan::{memo_key, Plan};
-use super::metrics::{metric_index, SnapValues, Stat, CELLS, METRICS};
+use super::metrics::{metric_index, SnapValues, Stat, ADJUSTED_METRIC, CELLS, METRICS};
 use crate::plays::Plays;
 use crate::situation::{Group, Situation};
 use crate::stats;
@@ -206,30 +206,11 @@ fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
     // defense-season).
     let u = ix.units_of(s.group);
     let (w, n_ps) = (ix.layout.width(), u.key.len());
-    let key = |r: u32| u.id[r as usize] as usize * CELLS + ix.cell[r as usize] as usize;
-    // Counting sort by key: group k's rows are sorted[start[k]..start[k + 1]].
-    // Each unit-season's last snap (and its team) is read here, in row
-    // order, where the rows lie close together.
-    let mut start = vec![0u32; n_ps * CELLS + 1];
-    let mut last = vec![(0u32, 0u16); n_ps];
-    for &r in &kept {
-        start[key(r) + 1] += 1;
-        let (end, snap) = (&mut last[u.id[r as usize] as usize], ix.snap[r as usize]);
-        if snap + 1 > end.0 {
-            *end = (snap + 1, ix.team[r as usize]);
-        }
-    }
-    for k in 0..n_ps * CELLS {
-        start[k + 1] += start[k];
-    }
-    let mut sorted = vec![0u32; kept.len()];
-    let mut fill = start.clone();
-    for &r in &kept {
-        let k = key(r);
-        sorted[fill[k] as usize] = r;
-        fill[k] += 1;
-    }
-    drop((kept, fill));
+    // Passer rows: the opponent model's sums, from the same rows, beside
+    // the counting sort below.
+    let opp = || if s.group == Group::Passer { opponent_sums(ix, p.teams.len(), &kept) } else { (Vec::new(), Vec::new()) };
+    let ((opp_keys, opp_sums), (start, sorted, last)) = rayon::join(opp, || counting_sort(ix, &u, &kept));
+    drop(kept);
     // The groups with rows, in key order, and where each block of
     // passer-seasons starts among them.
     let keys: Vec<u32> = (0..n_ps * CELLS).filter(|&k| start[k + 1] > start[k]).map(|k| k as u32).collect();
@@ -244,6 +225,8 @@ fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
         ps_cell_keys: Vec::new(),
         ps_cell_sums: vec![0.0; keys.len() * cw],
         last,
+        opp_keys,
+        opp_sums,
         derived: Default::default(),
     };
     // Each block's part of the per-cell sums and of the unit-season sums.
@@ -312,9 +295,63 @@ fn pass(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Memo {
     m
 }
 
+/// The kept rows grouped by unit-season × state cell (a stable counting
+/// sort): group k's rows are `sorted[start[k]..start[k + 1]]`; and each
+/// unit-season's (last snap + 1, its team), read here in row order, where
+/// the rows lie close together.
+#[allow(clippy::type_complexity)]
+fn counting_sort(ix: &SplitIndex, u: &super::index::Units<'_>, kept: &[u32]) -> (Vec<u32>, Vec<u32>, Vec<(u32, u16)>) {
+    let n_ps = u.key.len();
+    let key = |r: u32| u.id[r as usize] as usize * CELLS + ix.cell[r as usize] as usize;
+    let mut start = vec![0u32; n_ps * CELLS + 1];
+    let mut last = vec![(0u32, 0u16); n_ps];
+    for &r in kept {
+        start[key(r) + 1] += 1;
+        let (end, snap) = (&mut last[u.id[r as usize] as usize], ix.snap[r as usize]);
+        if snap + 1 > end.0 {
+            *end = (snap + 1, ix.team[r as usize]);
+        }
+    }
+    for k in 0..n_ps * CELLS {
+        start[k + 1] += start[k];
+    }
+    let mut sorted = vec![0u32; kept.len()];
+    let mut fill = start.clone();
+    for &r in kept {
+        let k = key(r);
+        sorted[fill[k] as usize] = r;
+        fill[k] += 1;
+    }
+    (start, sorted, last)
+}
+
+/// Per (passer-season × teams + defense), the count, sum and sum of
+/// squares of `ADJUSTED_METRIC` over the rows `kept` (in row order, as the
+/// opponent model's own pass adds them): the nonzero keys ascending and
+/// their sums.
+fn opponent_sums(ix: &SplitIndex, n_teams: usize, kept: &[u32]) -> (Vec<u32>, Vec<(f64, f64, f64)>) {
+    let Some(j) = metric_index(ADJUSTED_METRIC) else { return (Vec::new(), Vec::new()) };
+    let mut sums = vec![(0.0f64, 0.0f64, 0.0f64); ix.ps_key.len() * n_teams];
+    for &r in kept {
+        let r = r as usize;
+        let Some(x) = ix.value_at(j, r) else { continue };
+        let defense = ix.ts_key[ix.ts_def[r] as usize].0 as usize;
+        let e = &mut sums[ix.ps[r] as usize * n_teams + defense];
+        e.0 += 1.0;
+        e.1 += x;
+        e.2 += x * x;
+    }
+    sums.into_iter().enumerate().filter(|(_, c)| c.0 > 0.0).map(|(k, c)| (k as u32, c)).unzip()
+}
+
 /// The pass for `s` (its seasons and passer aside), memoised in the index.
+/// A grouping's every-snap pass is kept by the index for its life
+/// (`SplitIndex::every`), made when first asked.
 pub(super) fn memo(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> Arc<Memo> {
     let key = memo_key(s);
+    if key == memo_key(&Situation { group: s.group, ..Situation::default() }) {
+        return ix.every[SplitIndex::group_slot(s.group)].get_or_init(|| Arc::new(pass(ix, p, v, s))).clone();
+    }
     if let Some(m) = ix.memo.lock().ok().and_then(|mut c| c.get(&key)) {
         return m;
     }

@@ -195,6 +195,8 @@ pub fn split_row_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, m
 /// dropback against an average defense (`splits::opponent`), for passer
 /// rows only (a team row has no single passer to adjust).
 fn sums_and_opponent(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) -> (Sums, Option<Arc<super::opponent::OpponentFit>>) {
+    // The pass first: the opponent model reads its sums too.
+    drop(memo(ix, p, v, &s.without_row_pick()));
     rayon::join(|| accumulate(ix, p, v, s), || if s.group == Group::Passer { super::opponent::opponent_fit(ix, p, v, s) } else { None })
 }
 

@@ -3,6 +3,7 @@
 //! number links to its snaps.
 
 use super::*;
+use crate::numfmt::{Fixed, Signed};
 use crate::situation::Group;
 
 pub struct PresetLink {
@@ -62,15 +63,94 @@ pub struct Column {
     pub stability: String,
 }
 
+/// One number of the table and what is written beside it. Written where
+/// the page is drawn: the numbers are no `String`s of their own (a
+/// 25-season table has a couple of thousand cells).
 pub struct CellView {
-    pub main: String,
-    pub sub: String,
-    pub signal: String,
-    /// His lift with its 90% interval ("lift +2.1 [−1.0, +5.3]"), empty for counts.
-    pub lift: String,
-    pub sort: String,
+    pub main: Fixed,
+    /// Under a rate or a mean (none under a count).
+    pub beneath: Option<Beneath>,
+    pub sort: SortValue,
     pub href: String,
-    pub title: String,
+    pub title: CellTitle,
+}
+
+/// The lines under a rate's or a mean's number, in one block: the estimate
+/// [90% interval], the share of the spread that is signal, and his lift
+/// with its 90% interval ("lift +2.1 [−1.0, +5.3]").
+pub struct Beneath {
+    pub estimate: Interval,
+    pub signal: SignalShare,
+    pub lift: Lift,
+}
+
+/// "83.8 [80.1, 87.5]": a value and its interval.
+pub struct Interval(pub Fixed, pub Fixed, pub Fixed);
+
+impl std::fmt::Display for Interval {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "{} [{}, {}]", self.0, self.1, self.2)
+    }
+}
+
+/// "signal 81%", or "signal –".
+pub struct SignalShare(pub Option<f64>);
+
+impl std::fmt::Display for SignalShare {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self.0 {
+            Some(s) => write!(f, "signal {:.0}%", s * 100.0),
+            None => f.write_str("signal –"),
+        }
+    }
+}
+
+/// "lift +2.1 [−1.0, +5.3]": his value here minus his normal, with its 90%
+/// interval; "lift –" when there is none (no other snaps, or no estimate).
+pub struct Lift(pub Option<(f64, f64, f64)>, pub usize);
+
+impl Lift {
+    pub fn of(c: &crate::splits::Cell, decimals: usize) -> Lift {
+        Lift(c.lift.zip(c.lift_lo).zip(c.lift_hi).map(|((l, lo), hi)| (l, lo, hi)), decimals)
+    }
+}
+
+impl std::fmt::Display for Lift {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self.0 {
+            Some((l, lo, hi)) => {
+                let s = |x: f64| Signed(Some(x), self.1);
+                write!(f, "lift {} [{}, {}]", s(l), s(lo), s(hi))
+            }
+            None => f.write_str("lift –"),
+        }
+    }
+}
+
+/// What a cell sorts on in the browser (`data-sort`): the value as an
+/// `f64` prints it, empty when missing or not finite.
+pub struct SortValue(pub Option<f64>);
+
+impl std::fmt::Display for SortValue {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self.0 {
+            Some(x) if x.is_finite() => write!(f, "{x}"),
+            _ => Ok(()),
+        }
+    }
+}
+
+/// "1260 attempts; pct 79": the cell's count and percentile.
+pub struct CellTitle {
+    pub n: f64,
+    pub unit: &'static str,
+    pub percentile: Fixed,
+}
+
+impl std::fmt::Display for CellTitle {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "{} {}; pct {}", self.n, self.unit, self.percentile)
+    }
 }
 
 pub struct RowView {
@@ -347,28 +427,23 @@ pub(super) fn explore_view(ch: Chrome, params: &Params, table: &splits::SplitTab
                 .map(|&j| {
                     let m = &METRICS[j];
                     let c = &r.cells[j];
-                    let (sub, signal, lift) = if m.stat == Stat::Count {
-                        (String::new(), String::new(), String::new())
-                    } else {
-                        (
-                            format!("{} [{}, {}]", fixed(c.estimate, m.decimals), fixed(c.lo, m.decimals), fixed(c.hi, m.decimals)),
-                            c.signal.map(|s| format!("signal {:.0}%", s * 100.0)).unwrap_or_else(|| "signal –".into()),
-                            lift_text(c, m.decimals),
-                        )
-                    };
+                    let d = m.decimals;
+                    let beneath = (m.stat != Stat::Count).then(|| Beneath {
+                        estimate: Interval(Fixed(c.estimate, d), Fixed(c.lo, d), Fixed(c.hi, d)),
+                        signal: SignalShare(c.signal),
+                        lift: Lift::of(c, d),
+                    });
                     let sortv = match params.sort_by {
                         SortBy::Estimate if m.stat != Stat::Count => c.estimate.or(c.value),
                         SortBy::Lift => c.lift,
                         _ => c.value,
                     };
                     CellView {
-                        main: fixed(c.value, m.decimals),
-                        sub,
-                        signal,
-                        lift,
-                        sort: sort_value(sortv),
+                        main: Fixed(c.value, d),
+                        beneath,
+                        sort: SortValue(sortv),
                         href: number_href(&prefix, &params.situation, &r.passer, m.key, params.projector),
-                        title: format!("{} {}; pct {}", c.n, m.unit.label(), fixed(c.percentile, 0)),
+                        title: CellTitle { n: c.n, unit: m.unit.label(), percentile: Fixed(c.percentile, 0) },
                     }
                 })
                 .collect(),
@@ -496,16 +571,9 @@ pub(super) fn seasons_text(s: &[i32]) -> String {
     }
 }
 
-/// "lift +2.1 [−1.0, +5.3]": his value here minus his normal, with its 90%
-/// interval; "lift –" when there is none (no other snaps, or no estimate).
+/// "lift +2.1 [−1.0, +5.3]" as text (`Lift`).
 pub(super) fn lift_text(c: &crate::splits::Cell, decimals: usize) -> String {
-    match (c.lift, c.lift_lo, c.lift_hi) {
-        (Some(l), Some(lo), Some(hi)) => {
-            let f = |x: f64| crate::numfmt::signed(Some(x), decimals, "");
-            format!("lift {} [{}, {}]", f(l), f(lo), f(hi))
-        }
-        _ => "lift –".into(),
-    }
+    Lift::of(c, decimals).to_string()
 }
 
 #[cfg(test)]
