@@ -88,10 +88,11 @@ pub fn summary(cell: &CalibrationCell) -> String {
 
 fn model_line(name: &str, r: &ModelReport) -> String {
     format!(
-        "{name}: {} rows × {} features, {} Newton steps, {}, gradient norm {:.2e}, {:.1} s",
-        r.rows,
+        "{name}: {} rows × {} features, {} Newton step{}, {}, gradient norm {:.2e}, {:.1} s",
+        group(r.rows),
         r.features,
         r.iterations,
+        if r.iterations == 1 { "" } else { "s" },
         if r.converged { "converged" } else { "NOT converged" },
         r.grad_norm,
         r.seconds
@@ -225,5 +226,13 @@ mod tests {
         let v = view(&one);
         assert!(v.holdout.contains("the last 12 of the 60 games") && v.holdout.contains("no season can be held out"), "{}", v.holdout);
         assert!(!v.holdout.contains("in-sample") && !summary(&CalibrationCell::ready(one)).contains("in-sample"));
+    }
+
+    #[test]
+    fn a_fit_line_groups_its_rows_and_counts_its_steps() {
+        let mut r = crate::models::ModelReport { rows: 274_847, features: 4, iterations: 1, warm_iterations: 0, converged: true, grad_norm: 0.0923, log_lik: -1.0, seconds: 0.21 };
+        assert_eq!(model_line("Baseline", &r), "Baseline: 274,847 rows × 4 features, 1 Newton step, converged, gradient norm 9.23e-2, 0.2 s");
+        (r.iterations, r.converged) = (5, false);
+        assert_eq!(model_line("Baseline", &r), "Baseline: 274,847 rows × 4 features, 5 Newton steps, NOT converged, gradient norm 9.23e-2, 0.2 s");
     }
 }
