@@ -6,7 +6,7 @@ use super::index::SplitIndex;
 use super::scan::{accumulate_seasons, matching_snaps, memo, raw_value};
 use super::snaps::play_indices;
 use std::sync::Arc;
-use super::table::{split_row_in, MetricInfo, PasserRow, SplitRow};
+use super::table::{row_in, MetricInfo, PasserRow, SplitRow};
 use crate::plays::Plays;
 use crate::situation::{Preset, Situation};
 use rayon::prelude::*;
@@ -66,7 +66,10 @@ pub fn profile_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, passer: &str, base
     let mut presets = Vec::new();
     let mut team = None;
     let situation = |preset: Preset| Situation { seasons: base.seasons.clone(), ..preset.situation(base.one_score) };
-    let row = |s: &Situation| split_row_in(ix, p, v, s, min_dropbacks, passer);
+    // The profile's metric headings come from the first preset: only its
+    // row carries the stability (each preset's own costs season pairs'
+    // correlations no one reads).
+    let row = |s: &Situation, first: bool| row_in(ix, p, v, s, min_dropbacks, passer, first);
     if !super::opponent::league_fit_kept(ix, &base.seasons) {
         drop(super::opponent::opponent_fit(ix, p, v, &situation(Preset::EverySnap)));
     }
@@ -74,7 +77,7 @@ pub fn profile_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, passer: &str, base
         .par_iter()
         .map(|&preset| {
             let s = situation(preset);
-            let r = row(&s);
+            let r = row(&s, preset == Preset::ALL[0]);
             (s, r)
         })
         .collect();
@@ -85,7 +88,7 @@ pub fn profile_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, passer: &str, base
         if team.is_none() {
             team = t.row.as_ref().map(|r| r.team.clone());
         }
-        if metrics.is_empty() {
+        if preset == Preset::ALL[0] {
             metrics = t.metrics;
         }
         presets.push(ProfileLine {

@@ -122,6 +122,18 @@ fn one_passers_row_alone_is_his_row_of_the_whole_table() {
         same_row(line.row.as_ref().expect("his row"), t.row(&names[0]).expect("in the table")).unwrap_or_else(|e| panic!("{}: {e}", line.preset));
         assert_eq!(line.qualified_passers, t.qualified().count());
     }
+    // Its headings are the first preset's, stability and all; a row made
+    // without stability is the same row, on a fresh index (nothing kept).
+    let first = split_table_in(&ix, p, &v, &Preset::ALL[0].situation(8), 20, Some(&names[0]));
+    assert!(first.metrics.iter().any(|m| m.stability.is_some()));
+    assert!(prof.metrics.iter().zip(&first.metrics).all(|(x, y)| x.key == y.key && close(x.stability, y.stability) && close(x.stability_lo, y.stability_lo)));
+    let fresh = SplitIndex::build(p, &v);
+    let s = Preset::TwoMinuteDrill.situation(8);
+    let lean = super::table::row_in(&fresh, p, &v, &s, 20, &names[0], false);
+    assert!(lean.metrics.iter().all(|m| m.stability.is_none() && m.stability_pairs == 0));
+    let full = split_row_in(&ix, p, &v, &s, 20, &names[0]);
+    assert!(full.metrics.iter().any(|m| m.stability.is_some()));
+    same_row(lean.row.as_ref().expect("his row"), full.row.as_ref().expect("his row")).unwrap_or_else(|e| panic!("without stability: {e}"));
 }
 
 #[test]

@@ -154,7 +154,7 @@ pub fn split_table_for(p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: 
 /// `split_table_for` on a league already indexed (`ix` built from `p`, `v`).
 pub fn split_table_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32, focus: Option<&str>) -> SplitTable {
     let (sums, opp) = sums_and_opponent(ix, p, v, s);
-    table_of(ix, p, v, s, &sums, opp, min_dropbacks, focus, None)
+    table_of(ix, p, v, s, &sums, opp, min_dropbacks, focus, None, true)
 }
 
 /// One row of a split table and the league line beside it.
@@ -179,6 +179,13 @@ pub struct SplitRow {
 /// and minimum in the index's memo (made once, by the first row or table
 /// asked).
 pub fn split_row_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32, name: &str) -> SplitRow {
+    row_in(ix, p, v, s, min_dropbacks, name, true)
+}
+
+/// `split_row_in`, with the metrics' stability left out (`None`) when
+/// `stability` is false: a caller that shows no stability (the profile's
+/// other presets) does not pay for it (each season pair's correlations).
+pub(super) fn row_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, min_dropbacks: u32, name: &str, stability: bool) -> SplitRow {
     let (sums, opp) = sums_and_opponent(ix, p, v, s);
     let names = |who: u32| match s.group {
         Group::Passer => p.passers.get(who as usize),
@@ -186,7 +193,7 @@ pub fn split_row_in(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, m
     };
     let who = sums.passers.keys().copied().find(|&w| names(w).is_some_and(|n| n == name));
     let qualified = sums.passers.values().filter(|ps| ps.accs[metric_index("dropbacks").unwrap_or(0)].n as u32 >= min_dropbacks.max(1)).count();
-    let t = table_of(ix, p, v, s, &sums, opp, min_dropbacks, Some(name), Some(who.unwrap_or(u32::MAX)));
+    let t = table_of(ix, p, v, s, &sums, opp, min_dropbacks, Some(name), Some(who.unwrap_or(u32::MAX)), stability);
     SplitRow { qualified, row: t.rows.into_iter().next(), metrics: t.metrics, league: t.league, league_lift: t.league_lift, league_dropbacks: t.league_dropbacks }
 }
 
@@ -203,10 +210,10 @@ fn sums_and_opponent(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation) 
 /// The table from the situation's sums and its opponent adjustment:
 /// every row, or only the row of `only` (a passer or team id).
 #[allow(clippy::too_many_arguments)]
-fn table_of(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, sums: &Sums, opp: Option<Arc<super::opponent::OpponentFit>>, min_dropbacks: u32, focus: Option<&str>, only: Option<u32>) -> SplitTable {
+fn table_of(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, sums: &Sums, opp: Option<Arc<super::opponent::OpponentFit>>, min_dropbacks: u32, focus: Option<&str>, only: Option<u32>, stability: bool) -> SplitTable {
     let normal = every_snap(ix, p, v, s);
     let memo = memo(ix, p, v, &s.without_row_pick());
-    let (mut table, whos) = build_table(ix, p, sums, &normal, s, min_dropbacks, focus, only, &memo);
+    let (mut table, whos) = build_table(ix, p, sums, &normal, s, min_dropbacks, focus, only, &memo, stability);
     if let Some(fit) = opp {
         for (row, who) in table.rows.iter_mut().zip(whos) {
             if let Some(a) = fit.passers.get(&who) {
@@ -224,7 +231,7 @@ fn table_of(ix: &SplitIndex, p: &Plays, v: &SnapValues, s: &Situation, sums: &Su
 /// and the stability (per minimum) are kept beside the situation's pass in
 /// `memo`: they depend on nothing else.
 #[allow(clippy::too_many_arguments)]
-pub(super) fn build_table(ix: &SplitIndex, p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, min_dropbacks: u32, focus: Option<&str>, only: Option<u32>, memo: &Arc<Memo>) -> (SplitTable, Vec<u32>) {
+pub(super) fn build_table(ix: &SplitIndex, p: &Plays, sums: &Sums, normal: &Sums, s: &Situation, min_dropbacks: u32, focus: Option<&str>, only: Option<u32>, memo: &Arc<Memo>, with_stability: bool) -> (SplitTable, Vec<u32>) {
     let nm = METRICS.len();
     let db = metric_index("dropbacks").unwrap_or(0);
     let group = s.group;
@@ -366,10 +373,14 @@ pub(super) fn build_table(ix: &SplitIndex, p: &Plays, sums: &Sums, normal: &Sums
     }
     rows.sort_by(|(a, _), (b, _)| b.dropbacks.cmp(&a.dropbacks).then(a.passer.cmp(&b.passer)));
     let (rows, whos): (Vec<PasserRow>, Vec<u32>) = rows.into_iter().unzip();
-    let stab = memo.derived(&format!("stability {min_dropbacks}"), || {
-        let by_season = seasons_of(ix, memo, &s.without_row_pick());
-        (0..nm).into_par_iter().map(|j| (METRICS[j].stat != Stat::Count).then(|| stability(&by_season, j, min_dropbacks))).collect::<Vec<_>>()
-    });
+    let stab = if with_stability {
+        memo.derived(&format!("stability {min_dropbacks}"), || {
+            let by_season = seasons_of(ix, memo, &s.without_row_pick());
+            (0..nm).into_par_iter().map(|j| (METRICS[j].stat != Stat::Count).then(|| stability(&by_season, j, min_dropbacks))).collect::<Vec<_>>()
+        })
+    } else {
+        Arc::new((0..nm).map(|_| None).collect())
+    };
     let metrics = (0..nm)
         .map(|j| {
             let m = &METRICS[j];
