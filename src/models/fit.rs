@@ -74,7 +74,9 @@ pub fn fit_rows_from(plays: &Plays, rows: &[u32], init: Option<&Models>) -> Resu
     let (ep_wp, cp) = rayon::join(
         || -> Result<_> {
             let ep = ep::fit(plays, rows, &opts, init.map(|m| &m.ep))?;
+            tracing::debug!("ep fitted");
             let ep_all = ep.score_all_blind(plays);
+            tracing::debug!("ep scored blind");
             let (wp, baseline) = rayon::join(
                 || wp::fit(plays, &ep_all, rows, wp::WpKind::Full, &opts, init.map(|m| &m.wp)),
                 || wp::fit(plays, &ep_all, rows, wp::WpKind::Baseline, &opts, init.map(|m| &m.baseline)),
@@ -85,6 +87,9 @@ pub fn fit_rows_from(plays: &Plays, rows: &[u32], init: Option<&Models>) -> Resu
     );
     let (ep, wp, baseline) = ep_wp?;
     let cp = cp?;
+    for (name, s) in [("ep", &ep.fit.stats), ("wp", &wp.fit.stats), ("baseline", &baseline.fit.stats)].into_iter().chain(cp.as_ref().map(|c| ("cp", &c.fit.stats))) {
+        tracing::debug!(rows = s.rows, warm = s.warm_iterations, full = s.iterations, converged = s.converged, "{name} fitted in {:.2} s", s.seconds);
+    }
     let report = FitReport {
         snaps: rows.len(),
         ep: ep.fit.stats.clone(),
