@@ -370,7 +370,9 @@ pub fn fit(
     };
     let dm = drive.as_ref();
     if let Some(d) = dm {
+        let t = std::time::Instant::now();
         d.table();
+        tracing::debug!("drive table solved in {:.0} ms", t.elapsed().as_secs_f64() * 1000.0);
     }
     let design = FnDesign {
         rows,
