@@ -71,14 +71,15 @@ pub fn fit_rows_from(plays: &Plays, rows: &[u32], init: Option<&Models>) -> Resu
     // CP reads no EP; the two WP fits read EP and not each other: each
     // fit runs beside the others it does not need (the same fits as one
     // after another; errors in the same order).
+    // The drive model reads no EP either: it is estimated and solved (on
+    // one thread) beside the EP fit, off the way to the WP fit.
     let (ep_wp, cp) = rayon::join(
         || -> Result<_> {
-            let ep = ep::fit(plays, rows, &opts, init.map(|m| &m.ep))?;
-            tracing::debug!("ep fitted");
+            let (ep, drive) = rayon::join(|| ep::fit(plays, rows, &opts, init.map(|m| &m.ep)), || wp::drive_model(plays, rows));
+            let ep = ep?;
             let ep_all = ep.score_all_blind(plays);
-            tracing::debug!("ep scored blind");
             let (wp, baseline) = rayon::join(
-                || wp::fit(plays, &ep_all, rows, wp::WpKind::Full, &opts, init.map(|m| &m.wp)),
+                || wp::fit_with(plays, &ep_all, rows, wp::WpKind::Full, &opts, init.map(|m| &m.wp), drive),
                 || wp::fit(plays, &ep_all, rows, wp::WpKind::Baseline, &opts, init.map(|m| &m.baseline)),
             );
             Ok((ep, wp?, baseline?))

@@ -307,8 +307,19 @@ impl DriveParams {
         Some(DriveParams { cells, drives: all.len() })
     }
 
-    /// Backward induction over the grid.
+    /// Backward induction over the grid, each step's margins on rayon's threads.
     pub fn solve(&self) -> DriveTable {
+        self.solve_on(true)
+    }
+
+    /// `solve` on the calling thread alone (the same table): for a solve
+    /// run beside other work, which 180 steps of fork and join would
+    /// otherwise keep waiting on.
+    pub fn solve_serial(&self) -> DriveTable {
+        self.solve_on(false)
+    }
+
+    fn solve_on(&self, parallel: bool) -> DriveTable {
         let per_k = NM * NZ * NTO * NTO;
         let mut v = vec![0.0; NT * per_k];
         let end = |m: i32| match m.signum() {
@@ -328,7 +339,12 @@ impl DriveParams {
             let now = &mut now[..per_k];
             // Each margin's row of the step depends only on earlier steps.
             let done: &[f64] = done;
-            now.par_chunks_mut(NZ * NTO * NTO).enumerate().for_each(|(mi, row)| self.step_row(k, mi as i32 - MAX_MARGIN, done, row));
+            let row = |(mi, row): (usize, &mut [f64])| self.step_row(k, mi as i32 - MAX_MARGIN, done, row);
+            if parallel {
+                now.par_chunks_mut(NZ * NTO * NTO).enumerate().for_each(row);
+            } else {
+                now.chunks_mut(NZ * NTO * NTO).enumerate().for_each(row);
+            }
             // A bigger lead is never worse: the late modes switch at a tie,
             // which could otherwise break the order by a hair.
             for z in 0..NZ {
@@ -477,6 +493,13 @@ impl PartialEq for DriveModel {
 impl DriveModel {
     pub fn new(params: DriveParams) -> DriveModel {
         DriveModel { params, table: OnceLock::new(), ot: OnceLock::new() }
+    }
+
+    /// With its table solved now, on the calling thread (`solve_serial`).
+    pub fn solved_serially(params: DriveParams) -> DriveModel {
+        let m = DriveModel::new(params);
+        let _ = m.table.set(Arc::new(m.params.solve_serial()));
+        m
     }
 
     /// The solved table (solved now if not yet).
