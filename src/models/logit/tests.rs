@@ -478,34 +478,3 @@ fn interleaved_rows_give_the_same_bits_as_one_dot_per_row() {
     assert_eq!(eta[0].to_bits(), pass::dot(&[1.0, 2.0], &[-0.0, -0.0]).to_bits());
 }
 
-/// The default stopping rule (decrement below 1e-10 per unit of weight)
-/// against one a thousand times tighter, on the EP fit of a synthetic
-/// league with warm levels and a subsampled Hessian as on a big league:
-/// no class probability of any snap moves by 1e-4.
-#[test]
-fn default_stopping_rule_moves_no_probability_by_1e_4() {
-    use crate::models::ep;
-    let plays = crate::models::testkit::league(300, 2, 17);
-    let rows: Vec<u32> = (0..plays.len() as u32).collect();
-    let base = FitOptions { warm_rows: 8_000, hess_rows: 16_000, ..Default::default() };
-    assert_eq!(base.tol, 1e-10);
-    let loose = ep::fit(&plays, &rows, &base, None).expect("fit");
-    let tight = ep::fit(&plays, &rows, &FitOptions { tol: 1e-13, ..base }, None).expect("fit");
-    assert!(loose.fit.stats.converged && tight.fit.stats.converged);
-    assert!(loose.fit.stats.warm_iterations > 0, "the warm levels must run");
-    assert!(tight.fit.stats.iterations > loose.fit.stats.iterations, "the tighter rule must take more steps");
-    let mut worst = 0.0f64;
-    let mut x = vec![0.0; ep::FEATURES.len()];
-    let (mut a, mut b) = ([0.0; 7], [0.0; 7]);
-    for i in 0..plays.len() {
-        if plays.down[i] == 0 {
-            continue;
-        }
-        ep::features(plays.down[i], plays.to_go[i], plays.ball_on[i], plays.secs_half[i], ep::ScoreClock::of_snap(&plays, i), &mut x);
-        loose.fit.probs(&x, &mut a);
-        tight.fit.probs(&x, &mut b);
-        worst = a.iter().zip(&b).map(|(p, q)| (p - q).abs()).fold(worst, f64::max);
-    }
-    eprintln!("largest |dp| {worst:e} over {} snaps", plays.len());
-    assert!(worst < 1e-4, "largest |dp| {worst:e}");
-}
