@@ -380,6 +380,21 @@ impl EpModel {
     /// score-aware EP, its WP fell as the lead grew in the four-minute
     /// offense and its held-out late-and-close Brier gain went from 10.5% to
     /// 10.1% on the demo league.
+    /// `(score_all, score_all_blind)` in one go: the score and period
+    /// change a snap's features only in the 4th period's final 4:00 (before
+    /// that every late-game feature is +0 either way), so elsewhere the
+    /// blind value is the snap's EP, the same bits.
+    pub fn score_all_and_blind(&self, plays: &Plays) -> (Vec<f64>, Vec<f64>) {
+        use rayon::prelude::*;
+        let blind = self.score_all_blind(plays);
+        let ep = (0..plays.len())
+            .into_par_iter()
+            .with_min_len(SCORE_CHUNK)
+            .map(|i| if plays.period[i] == 4 && (plays.secs_half[i] as f64) < FOUR_MINUTE_SECS { self.snap(plays, i) } else { blind[i] })
+            .collect();
+        (ep, blind)
+    }
+
     pub fn score_all_blind(&self, plays: &Plays) -> Vec<f64> {
         use rayon::prelude::*;
         (0..plays.len()).into_par_iter().with_min_len(SCORE_CHUNK).map(|i| self.snap_as(plays, i, ScoreClock::NEUTRAL)).collect()

@@ -115,7 +115,10 @@ impl Models {
     /// threads (each value is computed as alone, so the scores are the same).
     pub fn score(&self, plays: &Plays) -> Scores {
         let ((ep, wp), cp) = rayon::join(
-            || rayon::join(|| self.ep.score_all(plays), || self.wp.score_all(plays, &self.ep.score_all_blind(plays))),
+            || {
+                let (ep, blind) = self.ep.score_all_and_blind(plays);
+                (ep, self.wp.score_all(plays, &blind))
+            },
             || match &self.cp {
                 Some(m) => m.score_all(plays),
                 None => vec![f64::NAN; plays.len()],
@@ -315,6 +318,19 @@ mod tests {
         assert!(warm.from_cache);
         assert_eq!(scores.ep.len(), warm.scores.ep.len());
         let _ = std::fs::remove_dir_all(&dir);
+    }
+
+    /// EP and the blind EP worked out together are each the same bits as alone.
+    #[test]
+    fn ep_and_blind_ep_together_match_each_alone() {
+        let plays = small();
+        let models = fit(&plays).expect("fit");
+        let (ep, blind) = models.ep.score_all_and_blind(&plays);
+        let bits = |v: &[f64]| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();
+        assert_eq!(bits(&ep), bits(&models.ep.score_all(&plays)));
+        assert_eq!(bits(&blind), bits(&models.ep.score_all_blind(&plays)));
+        // The late-game terms do change some snaps.
+        assert!(ep.iter().zip(&blind).filter(|(a, b)| a != b).count() > 100);
     }
 
     /// The default stopping rule (decrement below 1e-10 per unit of weight)
