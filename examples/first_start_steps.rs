@@ -3,7 +3,9 @@
 //! MODE `sim` simulates 25 seasons (seed 7) in this process, writes them to
 //! FILE, loads and drops them, then times the first start; `file` only
 //! times the first start of FILE (as `serve` makes it, in a fresh process).
-//! Prints wall and CPU seconds, minor page faults and peak RSS.
+//! Prints wall and CPU seconds, minor page faults and peak RSS;
+//! `RUST_LOG=lategame=debug` logs each step (Newton iterations included),
+//! `NO_CALIBRATION=1` ends without waiting for the background calibration.
 
 use lategame::league::{League, LeagueConfig};
 use lategame::playfile::{self, LoadOptions};
@@ -25,6 +27,9 @@ fn status(key: &str) -> String {
 }
 
 fn main() -> anyhow::Result<()> {
+    if std::env::var_os("RUST_LOG").is_some() {
+        tracing_subscriber::fmt().with_env_filter(tracing_subscriber::EnvFilter::from_default_env()).init();
+    }
     let mode = std::env::args().nth(1).unwrap_or_else(|| "file".into());
     let path = std::path::PathBuf::from(std::env::args().nth(2).unwrap_or_else(|| "/tmp/league.parquet".into()));
     let seasons: u32 = std::env::var("SEASONS").ok().and_then(|s| s.parse().ok()).unwrap_or(25);
@@ -55,7 +60,11 @@ fn main() -> anyhow::Result<()> {
         status("VmRSS:"),
         status("VmHWM:")
     );
-    let _ = league.scored.calibration.wait();
+    // NO_CALIBRATION: stop with the first start (the background
+    // calibration is cancelled when the league is dropped).
+    if std::env::var_os("NO_CALIBRATION").is_none() {
+        let _ = league.scored.calibration.wait();
+    }
     drop(league);
     let _ = std::fs::remove_dir_all(&dir);
     Ok(())

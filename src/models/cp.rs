@@ -109,11 +109,16 @@ pub fn fit(
 
 impl CpModel {
     /// Completion probability of every snap; NaN where the model does not apply.
+    /// (On rayon's threads: each value is worked out alone, the same bits.)
     pub fn score_all(&self, plays: &Plays) -> Vec<f64> {
-        let mut x = [0.0; FEATURES.len()];
+        use rayon::prelude::*;
         (0..plays.len())
+            .into_par_iter()
+            .with_min_len(super::ep::SCORE_CHUNK)
             .map(|i| {
                 if applies(plays, i) {
+                    // Every feature is written.
+                    let mut x = [0.0; FEATURES.len()];
                     snap_features(plays, i, &mut x);
                     self.fit.prob(&x)
                 } else {

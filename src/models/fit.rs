@@ -71,12 +71,15 @@ pub fn fit_rows_from(plays: &Plays, rows: &[u32], init: Option<&Models>) -> Resu
     // CP reads no EP; the two WP fits read EP and not each other: each
     // fit runs beside the others it does not need (the same fits as one
     // after another; errors in the same order).
+    // The drive model reads no EP either: it is estimated and solved (on
+    // one thread) beside the EP fit, off the way to the WP fit.
     let (ep_wp, cp) = rayon::join(
         || -> Result<_> {
-            let ep = ep::fit(plays, rows, &opts, init.map(|m| &m.ep))?;
+            let (ep, drive) = rayon::join(|| ep::fit(plays, rows, &opts, init.map(|m| &m.ep)), || wp::drive_model(plays, rows));
+            let ep = ep?;
             let ep_all = ep.score_all_blind(plays);
             let (wp, baseline) = rayon::join(
-                || wp::fit(plays, &ep_all, rows, wp::WpKind::Full, &opts, init.map(|m| &m.wp)),
+                || wp::fit_with(plays, &ep_all, rows, wp::WpKind::Full, &opts, init.map(|m| &m.wp), drive),
                 || wp::fit(plays, &ep_all, rows, wp::WpKind::Baseline, &opts, init.map(|m| &m.baseline)),
             );
             Ok((ep, wp?, baseline?))
@@ -85,6 +88,9 @@ pub fn fit_rows_from(plays: &Plays, rows: &[u32], init: Option<&Models>) -> Resu
     );
     let (ep, wp, baseline) = ep_wp?;
     let cp = cp?;
+    for (name, s) in [("ep", &ep.fit.stats), ("wp", &wp.fit.stats), ("baseline", &baseline.fit.stats)].into_iter().chain(cp.as_ref().map(|c| ("cp", &c.fit.stats))) {
+        tracing::debug!(rows = s.rows, warm = s.warm_iterations, full = s.iterations, converged = s.converged, "{name} fitted in {:.2} s", s.seconds);
+    }
     let report = FitReport {
         snaps: rows.len(),
         ep: ep.fit.stats.clone(),
@@ -109,7 +115,10 @@ impl Models {
     /// threads (each value is computed as alone, so the scores are the same).
     pub fn score(&self, plays: &Plays) -> Scores {
         let ((ep, wp), cp) = rayon::join(
-            || rayon::join(|| self.ep.score_all(plays), || self.wp.score_all(plays, &self.ep.score_all_blind(plays))),
+            || {
+                let (ep, blind) = self.ep.score_all_and_blind(plays);
+                (ep, self.wp.score_all(plays, &blind))
+            },
             || match &self.cp {
                 Some(m) => m.score_all(plays),
                 None => vec![f64::NAN; plays.len()],
@@ -309,6 +318,51 @@ mod tests {
         assert!(warm.from_cache);
         assert_eq!(scores.ep.len(), warm.scores.ep.len());
         let _ = std::fs::remove_dir_all(&dir);
+    }
+
+    /// EP and the blind EP worked out together are each the same bits as alone.
+    #[test]
+    fn ep_and_blind_ep_together_match_each_alone() {
+        let plays = small();
+        let models = fit(&plays).expect("fit");
+        let (ep, blind) = models.ep.score_all_and_blind(&plays);
+        let bits = |v: &[f64]| v.iter().map(|x| x.to_bits()).collect::<Vec<_>>();
+        assert_eq!(bits(&ep), bits(&models.ep.score_all(&plays)));
+        assert_eq!(bits(&blind), bits(&models.ep.score_all_blind(&plays)));
+        // The late-game terms do change some snaps.
+        assert!(ep.iter().zip(&blind).filter(|(a, b)| a != b).count() > 100);
+    }
+
+    /// The default stopping rule (decrement below 1e-10 per unit of weight)
+    /// against one a thousand times tighter, on the EP fit of a synthetic
+    /// league with warm levels and a subsampled Hessian as on a big league:
+    /// no class probability of any snap moves by 1e-4.
+    #[test]
+    fn default_stopping_rule_moves_no_probability_by_1e_4() {
+        use crate::models::logit::FitOptions;
+        let plays = crate::models::testkit::league(300, 2, 17);
+        let rows: Vec<u32> = (0..plays.len() as u32).collect();
+        let base = FitOptions { warm_rows: 8_000, hess_rows: 16_000, ..Default::default() };
+        assert_eq!(base.tol, 1e-10);
+        let loose = ep::fit(&plays, &rows, &base, None).expect("fit");
+        let tight = ep::fit(&plays, &rows, &FitOptions { tol: 1e-13, ..base }, None).expect("fit");
+        assert!(loose.fit.stats.converged && tight.fit.stats.converged);
+        assert!(loose.fit.stats.warm_iterations > 0, "the warm levels must run");
+        assert!(tight.fit.stats.iterations > loose.fit.stats.iterations, "the tighter rule must take more steps");
+        let mut worst = 0.0f64;
+        let mut x = vec![0.0; ep::FEATURES.len()];
+        let (mut a, mut b) = ([0.0; 7], [0.0; 7]);
+        for i in 0..plays.len() {
+            if plays.down[i] == 0 {
+                continue;
+            }
+            ep::features(plays.down[i], plays.to_go[i], plays.ball_on[i], plays.secs_half[i], ep::ScoreClock::of_snap(&plays, i), &mut x);
+            loose.fit.probs(&x, &mut a);
+            tight.fit.probs(&x, &mut b);
+            worst = a.iter().zip(&b).map(|(p, q)| (p - q).abs()).fold(worst, f64::max);
+        }
+        eprintln!("largest |dp| {worst:e} over {} snaps", plays.len());
+        assert!(worst < 1e-4, "largest |dp| {worst:e}");
     }
 
     /// A league restored from the cache must score exactly as the fit it

@@ -189,6 +189,7 @@ fn models_and_scores(plays: &Plays, fingerprint: &str, refit: bool, dir: Option<
         Some(s) => s,
         None => {
             let s = models.score(plays);
+            tracing::debug!("every snap scored in {:.0} ms", t.elapsed().as_secs_f64() * 1000.0);
             if let (Some(d), Some(m)) = (dir, &digest) {
                 store_scores(d, fingerprint, m, &s);
             }

@@ -364,16 +364,41 @@ pub fn fit(
     opts: &FitOptions,
     init: Option<&WpModel>,
 ) -> Result<WpModel> {
+    let drive = match kind {
+        WpKind::Full => drive_model(plays, rows),
+        WpKind::Baseline => None,
+    };
+    fit_with(plays, ep, rows, kind, opts, init, drive)
+}
+
+/// The full model's drive model from `rows`, its table solved on the
+/// calling thread: it reads no EP, so it can be built beside the EP fit.
+/// `None` when a zone has no drive to learn from.
+pub fn drive_model(plays: &Plays, rows: &[u32]) -> Option<DriveModel> {
+    let t = std::time::Instant::now();
+    let m = DriveParams::estimate(plays, rows).map(DriveModel::solved_serially);
+    tracing::debug!("drive model estimated and solved in {:.0} ms", t.elapsed().as_secs_f64() * 1000.0);
+    m
+}
+
+/// `fit` with the drive model given (`drive_model` of the same rows; the
+/// baseline takes none).
+pub fn fit_with(
+    plays: &Plays,
+    ep: &[f64],
+    rows: &[u32],
+    kind: WpKind,
+    opts: &FitOptions,
+    init: Option<&WpModel>,
+    drive: Option<DriveModel>,
+) -> Result<WpModel> {
     let names = kind.features();
     let y: Vec<f64> = rows
         .iter()
         .map(|&i| plays.offense_result(i as usize))
         .collect();
     let rules = ClockRules::from_plays(plays, rows);
-    let drive = match kind {
-        WpKind::Full => DriveParams::estimate(plays, rows).map(DriveModel::new),
-        WpKind::Baseline => None,
-    };
+    let drive = drive.filter(|_| kind == WpKind::Full);
     let dm = drive.as_ref();
     if let Some(d) = dm {
         d.table();
@@ -430,8 +455,12 @@ impl WpModel {
     }
 
     /// WP before every snap, from its offense's side.
+    /// (On rayon's threads: each value is worked out alone, the same bits.)
     pub fn score_all(&self, plays: &Plays, ep: &[f64]) -> Vec<f64> {
+        use rayon::prelude::*;
         (0..plays.len())
+            .into_par_iter()
+            .with_min_len(super::ep::SCORE_CHUNK)
             .map(|i| self.situation(&Situation::of_snap(plays, ep, i)))
             .collect()
     }

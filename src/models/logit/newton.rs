@@ -54,6 +54,10 @@ pub(super) fn newton(
         g
     };
     let mut chol: Option<Cholesky<f64, Dyn>> = None;
+    // The factor given up for a fresh one, and whether the last step was a
+    // full one from a decrement within NEAR_END of the stopping rule.
+    let mut kept: Option<Cholesky<f64, Dyn>> = None;
+    let mut near_end = false;
     // 0: the first step's Hessian is not reused for the second.
     let mut last_decrement = 0.0;
     loop {
@@ -63,6 +67,18 @@ pub(super) fn newton(
         }
         let fresh = chol.is_none();
         if fresh {
+            // Near the end, the Hessian kept from the last full step
+            // measures the decrement well enough to stop on (it cut the
+            // decrement to a small fraction last step): a fresh one is
+            // summed only to step again.
+            if let Some(old) = kept.as_ref().filter(|_| near_end) {
+                let d = g.dot(&old.solve(&g));
+                if d.abs() < tol {
+                    tracing::debug!(rows = rows.len(), iterations, decrement = d, "newton stops on the kept Hessian");
+                    converged = true;
+                    break;
+                }
+            }
             let h_acc = accumulate_par(pr, &coef, hess_rows, true, threads);
             let scale = if h_acc.weight > 0.0 { acc.weight / h_acc.weight } else { 1.0 };
             chol = Some(factor_spd(assemble(&h_acc.hess, scale, p, m, l2))?);
@@ -72,6 +88,7 @@ pub(super) fn newton(
             None => return Err(LogitError::Singular(0.0)),
         };
         let decrement = g.dot(&step);
+        tracing::debug!(rows = rows.len(), iterations, decrement, fresh, "newton step");
         if decrement.abs() < tol {
             converged = true;
             break;
@@ -96,10 +113,12 @@ pub(super) fn newton(
             t *= 0.5;
         }
         iterations += 1;
+        tracing::debug!(rows = rows.len(), iterations, t, "newton step taken");
         let Some(next) = accepted else {
             if !fresh {
                 // Try again with the Hessian at this point.
                 chol = None;
+                near_end = false;
                 continue;
             }
             // No step improves the objective: at the optimum to rounding error.
@@ -108,8 +127,9 @@ pub(super) fn newton(
         };
         // The trial pass already summed the gradient and likelihood here.
         acc = next;
+        near_end = t == 1.0 && decrement < NEAR_END * tol;
         if t < 1.0 || decrement > REUSE_RATE * last_decrement {
-            chol = None;
+            kept = chol.take();
         }
         last_decrement = decrement;
     }
@@ -122,6 +142,10 @@ pub(super) fn newton(
         log_lik: acc.ll,
     })
 }
+
+/// A Hessian given up after a full step from a decrement below this many
+/// times the stopping rule may still end the iterations (`newton`).
+const NEAR_END: f64 = 1e3;
 
 /// A reused Hessian must have cut the Newton decrement at least this much
 /// per step; otherwise it is summed again.

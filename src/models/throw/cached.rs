@@ -86,7 +86,9 @@ pub fn scores_cached(model: &ThrowModel, models: &Models, p: &Plays, ep: &[f64],
             Err(e) => tracing::warn!("scoring every pass again: the cached throw values were not used ({e})"),
         }
     }
+    let t = std::time::Instant::now();
     let s = score_all(model, models, p, ep, wp, wpa);
+    tracing::debug!("every pass priced in {:.0} ms", t.elapsed().as_secs_f64() * 1000.0);
     if let (Some(d), Some(m)) = (cache.dir, &digest) {
         let cols: [&[f64]; 5] = [&s.chosen, &s.league, &s.choice, &s.execution, &s.league_sticks];
         match cache::store_columns(d, &columns_key(cache.fingerprint, m), &cols) {

@@ -307,8 +307,19 @@ impl DriveParams {
         Some(DriveParams { cells, drives: all.len() })
     }
 
-    /// Backward induction over the grid.
+    /// Backward induction over the grid, each step's margins on rayon's threads.
     pub fn solve(&self) -> DriveTable {
+        self.solve_on(true)
+    }
+
+    /// `solve` on the calling thread alone (the same table): for a solve
+    /// run beside other work, which 180 steps of fork and join would
+    /// otherwise keep waiting on.
+    pub fn solve_serial(&self) -> DriveTable {
+        self.solve_on(false)
+    }
+
+    fn solve_on(&self, parallel: bool) -> DriveTable {
         let per_k = NM * NZ * NTO * NTO;
         let mut v = vec![0.0; NT * per_k];
         let end = |m: i32| match m.signum() {
@@ -324,42 +335,16 @@ impl DriveParams {
             }
         }
         for k in 1..NT {
-            let secs = k as i32 * STEP_SECS;
             let (done, now) = v.split_at_mut(k * per_k);
             let now = &mut now[..per_k];
             // Each margin's row of the step depends only on earlier steps.
             let done: &[f64] = done;
-            now.par_chunks_mut(NZ * NTO * NTO).enumerate().for_each(|(mi, row)| {
-                let m = mi as i32 - MAX_MARGIN;
-                let md = mode(secs, m);
-                for z in 0..NZ {
-                    for a in 0..NTO {
-                        for b in 0..NTO {
-                            let mut p = 0.0;
-                            for o in &self.cells[cell_of(md, z, to_class(md, a, b))] {
-                                let after = (m + o.swing).clamp(-MAX_MARGIN, MAX_MARGIN);
-                                let steps = o.steps as usize;
-                                let a2 = a.saturating_sub(o.off_used as usize);
-                                let b2 = b.saturating_sub(o.def_used as usize);
-                                p += o.share
-                                    * if steps > k {
-                                        // The clock runs out first: the drive gets the
-                                        // share of its outcome its time allows (none
-                                        // of it: 0.1 point worse on seed 202, the
-                                        // oracle distance up 0.3-0.7% on all three).
-                                        let f = k as f64 / steps as f64;
-                                        f * end(after) + (1.0 - f) * end(m)
-                                    } else if o.keep {
-                                        done[at(k - steps, after, o.zone as usize, a2, b2)]
-                                    } else {
-                                        1.0 - done[at(k - steps, -after, o.zone as usize, b2, a2)]
-                                    };
-                            }
-                            row[(z * NTO + a) * NTO + b] = p.clamp(0.0, 1.0);
-                        }
-                    }
-                }
-            });
+            let row = |(mi, row): (usize, &mut [f64])| self.step_row(k, mi as i32 - MAX_MARGIN, done, row);
+            if parallel {
+                now.par_chunks_mut(NZ * NTO * NTO).enumerate().for_each(row);
+            } else {
+                now.chunks_mut(NZ * NTO * NTO).enumerate().for_each(row);
+            }
             // A bigger lead is never worse: the late modes switch at a tie,
             // which could otherwise break the order by a hair.
             for z in 0..NZ {
@@ -375,6 +360,68 @@ impl DriveParams {
             }
         }
         DriveTable { v }
+    }
+
+    /// Margin `m`'s row of time step `k` (zone × both sides' timeouts)
+    /// from the earlier steps `done`. Each outcome's landing cell is worked
+    /// out once for all the timeouts pairs its list serves, whose sums are
+    /// kept side by side: each cell still adds its outcomes in list order,
+    /// the same values bit for bit as one cell at a time.
+    fn step_row(&self, k: usize, m: i32, done: &[f64], row: &mut [f64]) {
+        let end = |m: i32| match m.signum() {
+            1 => 1.0,
+            -1 => 0.0,
+            _ => 0.5,
+        };
+        let md = mode(k as i32 * STEP_SECS, m);
+        for z in 0..NZ {
+            let mut p = [0.0f64; NTO * NTO];
+            for class in 0..NTO {
+                let mut pairs = [0usize; NTO * NTO];
+                let mut np = 0;
+                for ab in 0..NTO * NTO {
+                    if to_class(md, ab / NTO, ab % NTO) == class {
+                        pairs[np] = ab;
+                        np += 1;
+                    }
+                }
+                let pairs = &pairs[..np];
+                if pairs.is_empty() {
+                    continue;
+                }
+                for o in &self.cells[cell_of(md, z, class)] {
+                    let after = (m + o.swing).clamp(-MAX_MARGIN, MAX_MARGIN);
+                    let steps = o.steps as usize;
+                    let (ou, du) = (o.off_used as usize, o.def_used as usize);
+                    if steps > k {
+                        // The clock runs out first: the drive gets the
+                        // share of its outcome its time allows (none of
+                        // it: 0.1 point worse on seed 202, the oracle
+                        // distance up 0.3-0.7% on all three).
+                        let f = k as f64 / steps as f64;
+                        let v = f * end(after) + (1.0 - f) * end(m);
+                        for &ab in pairs {
+                            p[ab] += o.share * v;
+                        }
+                    } else if o.keep {
+                        let base = at(k - steps, after, o.zone as usize, 0, 0);
+                        for &ab in pairs {
+                            let (a2, b2) = ((ab / NTO).saturating_sub(ou), (ab % NTO).saturating_sub(du));
+                            p[ab] += o.share * done[base + a2 * NTO + b2];
+                        }
+                    } else {
+                        let base = at(k - steps, -after, o.zone as usize, 0, 0);
+                        for &ab in pairs {
+                            let (a2, b2) = ((ab / NTO).saturating_sub(ou), (ab % NTO).saturating_sub(du));
+                            p[ab] += o.share * (1.0 - done[base + b2 * NTO + a2]);
+                        }
+                    }
+                }
+            }
+            for (ab, v) in p.iter().enumerate() {
+                row[z * NTO * NTO + ab] = v.clamp(0.0, 1.0);
+            }
+        }
     }
 }
 
@@ -450,6 +497,13 @@ impl PartialEq for DriveModel {
 impl DriveModel {
     pub fn new(params: DriveParams) -> DriveModel {
         DriveModel { params, table: OnceLock::new(), ot: OnceLock::new(), ot_rules: Default::default() }
+    }
+
+    /// With its table solved now, on the calling thread (`solve_serial`).
+    pub fn solved_serially(params: DriveParams) -> DriveModel {
+        let m = DriveModel::new(params);
+        let _ = m.table.set(Arc::new(m.params.solve_serial()));
+        m
     }
 
     /// The solved table (solved now if not yet).

@@ -150,3 +150,90 @@ fn estimated_from_a_league() {
     assert_eq!(back, m);
     assert_eq!(back.table(), m.table());
 }
+
+/// The backward induction one grid cell at a time, as `solve` did before
+/// it summed a row's timeouts pairs side by side.
+fn solve_one_cell_at_a_time(params: &DriveParams) -> DriveTable {
+    let per_k = NM * NZ * NTO * NTO;
+    let mut v = vec![0.0; NT * per_k];
+    let end = |m: i32| match m.signum() {
+        1 => 1.0,
+        -1 => 0.0,
+        _ => 0.5,
+    };
+    for m in -MAX_MARGIN..=MAX_MARGIN {
+        for z in 0..NZ {
+            for ab in 0..NTO * NTO {
+                v[at(0, m, z, ab / NTO, ab % NTO)] = end(m);
+            }
+        }
+    }
+    for k in 1..NT {
+        let secs = k as i32 * STEP_SECS;
+        let (done, now) = v.split_at_mut(k * per_k);
+        let now = &mut now[..per_k];
+        for (mi, row) in now.chunks_mut(NZ * NTO * NTO).enumerate() {
+            let m = mi as i32 - MAX_MARGIN;
+            let md = mode(secs, m);
+            for z in 0..NZ {
+                for a in 0..NTO {
+                    for b in 0..NTO {
+                        let mut p = 0.0;
+                        for o in &params.cells[cell_of(md, z, to_class(md, a, b))] {
+                            let after = (m + o.swing).clamp(-MAX_MARGIN, MAX_MARGIN);
+                            let steps = o.steps as usize;
+                            let a2 = a.saturating_sub(o.off_used as usize);
+                            let b2 = b.saturating_sub(o.def_used as usize);
+                            p += o.share
+                                * if steps > k {
+                                    let f = k as f64 / steps as f64;
+                                    f * end(after) + (1.0 - f) * end(m)
+                                } else if o.keep {
+                                    done[at(k - steps, after, o.zone as usize, a2, b2)]
+                                } else {
+                                    1.0 - done[at(k - steps, -after, o.zone as usize, b2, a2)]
+                                };
+                        }
+                        row[(z * NTO + a) * NTO + b] = p.clamp(0.0, 1.0);
+                    }
+                }
+            }
+        }
+        for z in 0..NZ {
+            for ab in 0..NTO * NTO {
+                let (a, b) = (ab / NTO, ab % NTO);
+                for m in -MAX_MARGIN + 1..=MAX_MARGIN {
+                    let (lo, hi) = (at(0, m - 1, z, a, b), at(0, m, z, a, b));
+                    if now[hi] < now[lo] {
+                        now[hi] = now[lo];
+                    }
+                }
+            }
+        }
+    }
+    DriveTable { v }
+}
+
+/// The solve sums each cell's outcomes in the same order as one cell at a
+/// time: the same table bit for bit, on a league's shares (every late
+/// mode) and on hand-made ones with timeouts used and drives longer than
+/// the time left.
+#[test]
+fn solve_matches_one_cell_at_a_time_bit_for_bit() {
+    let plays = testkit::league(300, 2, 23);
+    let rows: Vec<u32> = (0..plays.len() as u32).collect();
+    let league = DriveParams::estimate(&plays, &rows).expect("drives in every zone");
+    let mut odd = uniform(&[o(3, false, 12, 0.3), o(-7, true, 70, 0.2), o(0, false, 2, 0.5)]);
+    for (c, cell) in odd.cells.iter_mut().enumerate() {
+        cell[0].off_used = (c % 3) as u8;
+        cell[1].def_used = (c % 4) as u8;
+        cell[2].zone = (c % NZ) as u8;
+    }
+    for p in [league, odd] {
+        let (fast, slow) = (p.solve(), solve_one_cell_at_a_time(&p));
+        assert_eq!(fast.v.len(), slow.v.len());
+        let differ = fast.v.iter().zip(&slow.v).filter(|(a, b)| a.to_bits() != b.to_bits()).count();
+        assert_eq!(differ, 0, "{differ} cells differ");
+        assert!(fast.v.iter().any(|&x| x > 0.0 && x < 1.0));
+    }
+}
