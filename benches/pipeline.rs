@@ -71,21 +71,14 @@ fn main() -> anyhow::Result<()> {
     let loaded = playfile::load(&path, &LoadOptions::default())?;
     println!("load + validate          {:>9.2} s   (peak RSS {:.0} MiB, {:.0} MiB before)", t.elapsed().as_secs_f64(), rss_mib(), before);
     drop(loaded);
-    // This league (seed 7) is not the one `examples/cold_start.rs` is
-    // usually timed on, and it is harder to fit: its EP fit takes 6 Newton
-    // iterations on all snaps where a 25-season league of another seed took
-    // 3 (and its throw-outcome fit 3 where that one took 2): about 3 CPU
-    // seconds more for its first start, in two pairs of runs. The
-    // simulation run in this process first did not measurably slow the
-    // first start: on the same file, after simulating in-process it took
-    // 17.4 and 17.7 CPU s, in a fresh process as `serve` makes it 18.9 and
-    // 16.1 (`examples/first_start_steps.rs`, under a load of about 6; the
-    // in-process run had half the page faults). Idle (load 1.7), the same
-    // league's first start read 8.33 and 8.49 s in a fresh process and 8.44
-    // and 9.31 s after simulating in-process, against 9.70 s in this bench
-    // the same hour: the bench's figure is at the slow end, by up to a
-    // second, and the cause is not pinned down. It is timed here as it
-    // was. The iterations are printed below.
+    // This league (seed 7) is harder to fit than some: with a plain tenth
+    // of the snaps as the warm level its EP fit took 6 Newton iterations on
+    // all snaps (the subsample held too few safeties to place those
+    // classes); with every row of a rare class kept in the warm level it
+    // takes 4 (2026-12-03). The first start is timed here as `serve` makes
+    // it, after this process simulated and loaded the league (a fresh
+    // process read up to a second less on the same file earlier the same
+    // day). The iterations are printed below.
     // The first start as `serve` makes it: load, EP/WP/CP fitted with the
     // throw-value model beside them, every snap scored, every pass priced;
     // the held-out calibration then runs in the background (pages serve
