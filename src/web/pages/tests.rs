@@ -159,6 +159,41 @@ fn profile_charts_have_titles_and_rows_link_with_the_view() {
     assert_eq!(page.seasons_note, "All seasons (2000–2001)");
 }
 
+/// Snap `k` of `game` (key, season) between `sides` (home, away), `offense`
+/// with the ball: 1st and 10 at its own 30 in the 1st period, no score, full
+/// timeouts, an incomplete throw's fields; callers change what they need.
+fn snap_row(k: usize, game: (&str, i32), sides: (&str, &str), offense: &str, passer: Option<&str>, kind: crate::playfile::Kind) -> crate::playfile::PlayRow {
+    crate::playfile::PlayRow {
+        game: game.0.into(),
+        season: game.1,
+        week: 1,
+        home: sides.0.into(),
+        away: sides.1.into(),
+        seq: k as i32 + 1,
+        period: 1,
+        clock: 800 - 20 * k as i32,
+        offense: offense.into(),
+        defense: if offense == sides.0 { sides.1 } else { sides.0 }.into(),
+        off_score: 0,
+        def_score: 0,
+        off_timeouts: 3,
+        def_timeouts: 3,
+        down: Some(1),
+        to_go: Some(10),
+        ball_on: 30,
+        kind,
+        passer: passer.map(str::to_string),
+        complete: Some(false),
+        intercepted: Some(false),
+        air_yards: None,
+        gain: Some(0),
+        fumble_lost: Some(false),
+        touchback: None,
+        points: 0,
+        home_line: None,
+    }
+}
+
 /// A game of late-down snaps small enough to count by hand.
 fn late_down_game() -> Plays {
     use crate::playfile::{Kind, PlayRow};
@@ -178,34 +213,22 @@ fn late_down_game() -> Plays {
     let rows: Vec<PlayRow> = snaps
         .iter()
         .enumerate()
-        .map(|(k, &(home, down, to_go, kind, air))| PlayRow {
-            game: "2001-01-STH-NTH".into(),
-            season: 2001,
-            week: 1,
-            home: "NTH".into(),
-            away: "STH".into(),
-            seq: k as i32 + 1,
-            period: 4,
-            clock: 600 - 30 * k as i32,
-            offense: if home { "NTH" } else { "STH" }.into(),
-            defense: if home { "STH" } else { "NTH" }.into(),
-            off_score: 10,
-            def_score: 7,
-            off_timeouts: 2,
-            def_timeouts: 2,
-            down: Some(down),
-            to_go: Some(to_go),
-            ball_on: 40,
-            kind,
-            passer: Some(if home { "Tobin Vale" } else { "Ira Quell" }.into()),
-            complete: Some(false),
-            intercepted: Some(false),
-            air_yards: air,
-            gain: Some(if kind == Kind::Sack { -6 } else { 0 }),
-            fumble_lost: Some(false),
-            touchback: None,
-            points: 0,
-            home_line: None,
+        .map(|(k, &(home, down, to_go, kind, air))| {
+            let (offense, passer) = if home { ("NTH", "Tobin Vale") } else { ("STH", "Ira Quell") };
+            PlayRow {
+                period: 4,
+                clock: 600 - 30 * k as i32,
+                off_score: 10,
+                def_score: 7,
+                off_timeouts: 2,
+                def_timeouts: 2,
+                down: Some(down),
+                to_go: Some(to_go),
+                ball_on: 40,
+                air_yards: air,
+                gain: Some(if kind == Kind::Sack { -6 } else { 0 }),
+                ..snap_row(k, ("2001-01-STH-NTH", 2001), ("NTH", "STH"), offense, Some(passer), kind)
+            }
         })
         .collect();
     let sources = (0..rows.len()).map(|i| crate::plays::Source { file: 0, row: i as u32 + 1 }).collect();
@@ -325,36 +348,8 @@ fn picker_league() -> Plays {
         .iter()
         .enumerate()
         .map(|(k, &(game, season, offense, passer, kind))| {
-            let (home, away) = if season == 2000 { ("NTH", "STH") } else { ("STH", "NTH") };
-            PlayRow {
-                game: game.into(),
-                season,
-                week: 1,
-                home: home.into(),
-                away: away.into(),
-                seq: k as i32 + 1,
-                period: 1,
-                clock: 800 - 20 * k as i32,
-                offense: offense.into(),
-                defense: if offense == "NTH" { "STH" } else { "NTH" }.into(),
-                off_score: 0,
-                def_score: 0,
-                off_timeouts: 3,
-                def_timeouts: 3,
-                down: Some(1),
-                to_go: Some(10),
-                ball_on: 30,
-                kind,
-                passer: passer.map(str::to_string),
-                complete: Some(false),
-                intercepted: Some(false),
-                air_yards: None,
-                gain: Some(0),
-                fumble_lost: Some(false),
-                touchback: None,
-                points: 0,
-                home_line: None,
-            }
+            let sides = if season == 2000 { ("NTH", "STH") } else { ("STH", "NTH") };
+            snap_row(k, (game, season), sides, offense, passer, kind)
         })
         .collect();
     let sources = (0..rows.len()).map(|i| crate::plays::Source { file: 0, row: i as u32 + 1 }).collect();
