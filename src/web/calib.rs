@@ -166,7 +166,7 @@ pub fn view(c: &Calibration) -> CalibrationView {
     let wp_rows = c
         .reliability
         .iter()
-        .map(|b| vec![format!("{:.1}–{:.1}", b.lo, b.hi), b.n.to_string(), format!("{:.3}", b.mean_predicted), format!("{:.3}", b.observed)])
+        .map(|b| vec![format!("{:.1}–{:.1}", b.lo, b.hi), group(b.n), format!("{:.3}", b.mean_predicted), format!("{:.3}", b.observed)])
         .collect();
     let ep_rows = c
         .ep_bins
@@ -178,7 +178,7 @@ pub fn view(c: &Calibration) -> CalibrationView {
                 (Some(lo), None) => format!("{lo:.1} and up"),
                 (None, None) => "all".into(),
             };
-            vec![range, b.n.to_string(), format!("{:.2}", b.mean_predicted), format!("{:.2}", b.mean_actual)]
+            vec![range, group(b.n), format!("{:.2}", b.mean_predicted), format!("{:.2}", b.mean_actual)]
         })
         .collect();
     let scores = vec![
@@ -222,6 +222,15 @@ mod tests {
             assert!(s.rows.iter().all(|r| !r[4].contains(' ') && r[4].contains("\u{2060}–\u{2060}")), "{:?}", s.rows);
         }
         assert!(v.ep_groups.iter().flat_map(|g| &g.rows).all(|r| !r[4].contains(' ')));
+        // Snap counts grouped by thousands, as everywhere else on the page.
+        for (rows, bins) in [(&v.wp_rows, c.reliability.iter().map(|b| b.n).collect::<Vec<_>>()), (&v.ep_rows, c.ep_bins.iter().map(|b| b.n).collect())] {
+            assert_eq!(rows.len(), bins.len());
+            for (r, n) in rows.iter().zip(bins) {
+                assert_eq!(r[1].replace(',', "").parse::<usize>().ok(), Some(n));
+                assert_eq!(r[1].contains(','), n >= 1000, "{}", r[1]);
+            }
+        }
+        assert!(v.wp_rows.iter().any(|r| r[1].contains(',')), "{:?}", v.wp_rows);
         let one = calibrate(&testkit::league(60, 1, 5)).expect("one season");
         let v = view(&one);
         assert!(v.holdout.contains("the last 12 of the 60 games") && v.holdout.contains("no season can be held out"), "{}", v.holdout);
