@@ -18,6 +18,28 @@ pub(super) fn synth(n: usize, p: usize, seed: u64) -> DenseDesign {
     DenseDesign { n, p, data }
 }
 
+/// A class for each row of `d`, drawn from the softmax of `truth` (one
+/// coefficient row per class 1, 2, ...; class 0 the reference).
+pub(super) fn draw_classes(d: &DenseDesign, truth: &[Vec<f64>], seed: u64) -> Vec<u8> {
+    let k = truth.len();
+    let free: Vec<usize> = (1..=k).collect();
+    let mut rng = ChaCha8Rng::seed_from_u64(seed);
+    let (mut x, mut q) = (vec![0.0; d.p], vec![0.0; k + 1]);
+    (0..d.n)
+        .map(|i| {
+            d.fill(i, &mut x);
+            softmax_row(truth, &free, 0, &x, &mut q);
+            let mut u: f64 = rng.random();
+            let mut c = 0;
+            while c < k && u >= q[c] {
+                u -= q[c];
+                c += 1;
+            }
+            c as u8
+        })
+        .collect()
+}
+
 #[test]
 fn binary_recovers_known_coefficients() {
     let truth = [-0.5, 1.0, -2.0, 0.25];
@@ -294,22 +316,7 @@ fn multinomial_matches_statsmodels() {
         vec![-0.3, -0.2, 0.6, 0.0, 0.4, -0.5],
         vec![0.4, 0.0, 0.1, -0.7, 0.2, 0.2],
     ];
-    let mut rng = ChaCha8Rng::seed_from_u64(32);
-    let mut x = vec![0.0; 6];
-    let mut q = vec![0.0; 4];
-    let y: Vec<u8> = (0..d.n)
-        .map(|i| {
-            d.fill(i, &mut x);
-            softmax_row(&truth, &[1, 2, 3], 0, &x, &mut q);
-            let mut u: f64 = rng.random();
-            let mut c = 0;
-            while c < 3 && u >= q[c] {
-                u -= q[c];
-                c += 1;
-            }
-            c as u8
-        })
-        .collect();
+    let y = draw_classes(&d, &truth, 32);
     let yf: Vec<f64> = y.iter().map(|&c| c as f64).collect();
     let path = temp_csv("multinomial.csv");
     write_csv(&path, &d, &yf, &vec![1.0; d.n]);

@@ -75,31 +75,15 @@ fn plain(rows: Vec<usize>, n: usize, l2: f64) -> WarmLevel {
 
 #[cfg(test)]
 mod tests {
-    use super::super::tests::synth;
+    use super::super::tests::{draw_classes, synth};
     use super::super::*;
     use super::*;
-    use rand::{Rng, SeedableRng};
-    use rand_chacha::ChaCha8Rng;
 
     /// Four classes, the last about 0.4% of the rows.
     fn rare_problem(n: usize) -> (DenseDesign, Vec<u8>) {
         let d = synth(n, 5, 61);
         let truth = [vec![0.3, 0.5, -0.4, 0.2, 0.0], vec![-0.2, -0.3, 0.6, 0.0, 0.4], vec![-5.5, 0.0, 0.8, -0.7, 0.5]];
-        let mut rng = ChaCha8Rng::seed_from_u64(62);
-        let (mut x, mut q) = (vec![0.0; 5], vec![0.0; 4]);
-        let y = (0..n)
-            .map(|i| {
-                d.fill(i, &mut x);
-                softmax_row(&truth, &[1, 2, 3], 0, &x, &mut q);
-                let mut u: f64 = rng.random();
-                let mut c = 0;
-                while c < 3 && u >= q[c] {
-                    u -= q[c];
-                    c += 1;
-                }
-                c as u8
-            })
-            .collect();
+        let y = draw_classes(&d, &truth, 62);
         (d, y)
     }
 
