@@ -193,6 +193,7 @@ fn pregame_gap(d: &Demo, sigma: f64) -> f64 {
                 is_try: false,
                 period: 1,
                 down: 0,
+                to_go: 0,
                 ball_on: 35,
                 ot_first: false,
                 ot_both: false,
@@ -278,6 +279,7 @@ fn mid(margin: f64, secs_game: f64, ep: f64) -> Situation {
         is_try: false,
         period: (4 - (secs_game as i32 - 1).max(0) / 900).clamp(1, 4),
         down: 1,
+        to_go: 10,
         ball_on: 25,
         ot_first: false,
         ot_both: false,
@@ -313,6 +315,28 @@ fn wp_has_the_right_shape() {
         );
     }
     assert!(d.scored.scores.wp.iter().all(|p| (0.0..=1.0).contains(p)));
+}
+
+/// Down 4 with a minute or two left at the opponent's 30, a touchdown is
+/// needed: first and ten is worth more than third and ten, third more than
+/// fourth (a property, no source). The drive model values a snap by the
+/// rest of its drive from its down and distance (`drive::snap`).
+#[test]
+fn down_and_distance_matter_when_a_touchdown_is_needed() {
+    let Some(d) = demo() else { return };
+    let m = &d.scored.models;
+    for secs in [60.0, 120.0] {
+        let by_down: Vec<f64> = [1, 2, 3, 4]
+            .iter()
+            .map(|&down| {
+                let ep = m.ep.situation(down, 10, 70, secs as i32);
+                let s = Situation { down, to_go: 10, ball_on: 70, off_timeouts: 2.0, ..mid(-4.0, secs, ep) };
+                m.wp.situation(&s)
+            })
+            .collect();
+        eprintln!("down 4 at the opponent's 30 with {secs} s, 1st-4th and 10: {by_down:.3?}");
+        assert!(by_down.windows(2).all(|w| w[0] > w[1]), "{secs} s: {by_down:?}");
+    }
 }
 
 /// A touchback kickoff changes little: mean |WPA| under 0.01 (common
@@ -628,10 +652,16 @@ mod monotone {
         #![proptest_config(ProptestConfig { cases: 400, ..ProptestConfig::default() })]
         /// At a fixed time, down, distance, field position and timeouts,
         /// WP never falls as the margin grows (regulation and overtime).
+        /// In overtime the other side has had the ball (with or without
+        /// this offense before it): a side on the period's first
+        /// possession can only be level, and level there is another phase
+        /// than one point down answering — a field goal wins the answer
+        /// outright but only leads on the first possession, so near the
+        /// goal line the answer is worth more (and is, in the model).
         #[test]
         fn wp_is_monotone_in_margin(
             secs in 1i32..3600, ot in any::<bool>(), down in 1i32..=4, to_go in 1i32..=15,
-            ball_on in 1i32..=99, off_to in 0i32..=3, def_to in 0i32..=3, first in any::<bool>(),
+            ball_on in 1i32..=99, off_to in 0i32..=3, def_to in 0i32..=3, both in any::<bool>(),
         ) {
             let Some(d) = demo() else { return Ok(()) };
             let m = &d.scored.models;
@@ -647,7 +677,7 @@ mod monotone {
                     off_timeouts: off_to.min(if ot { 2 } else { 3 }) as f64,
                     def_timeouts: def_to.min(if ot { 2 } else { 3 }) as f64,
                     off_home: true, line: Some(0.0), kickoff: false, is_try: false,
-                    period, down, ball_on, ot_first: ot && first, ot_both: ot && !first, ot_rules: Default::default(),
+                    period, down, to_go, ball_on, ot_first: false, ot_both: ot && both, ot_rules: Default::default(),
                 };
                 let w = m.wp.situation(&s);
                 prop_assert!(w >= last - 1e-12, "margin {margin}: WP {w} < {last} at {s:?}");

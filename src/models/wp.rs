@@ -117,6 +117,8 @@ pub struct Situation {
     pub period: i32,
     /// 0 on kickoffs and tries.
     pub down: i32,
+    /// Yards to go (0 without a down).
+    pub to_go: i32,
     pub ball_on: i32,
     /// Overtime, first possession: the defense has not had the ball yet in
     /// this period.
@@ -166,6 +168,7 @@ impl Situation {
             is_try: plays.kind[i].is_try(),
             period: plays.period[i],
             down: plays.down[i],
+            to_go: plays.to_go[i],
             ball_on: plays.ball_on[i],
             ot_first,
             ot_both,
@@ -207,10 +210,29 @@ pub fn drive_logit(s: &Situation, drive: Option<&DriveModel>) -> f64 {
     } else if s.is_try {
         1.0 - t.value(-(s.margin + s.ep), s.secs_game, RECEIVE_AT, def_to, off_to)
     } else {
-        t.value(s.margin, s.secs_game, f64::from(s.ball_on), off_to, def_to)
+        // The rest of this drive from its down and distance, one
+        // possession on (`drive::snap`); the value at a possession's start
+        // where no snap was seen like it.
+        d.params
+            .snaps
+            .value(t, &snap_of(s))
+            .unwrap_or_else(|| t.value(s.margin, s.secs_game, f64::from(s.ball_on), off_to, def_to))
     };
     let p = p.clamp(P_EPS, 1.0 - P_EPS);
     (p / (1.0 - p)).ln().clamp(-DRIVE_LOGIT_MAX, DRIVE_LOGIT_MAX)
+}
+
+/// `s` as the rest-of-drive model reads it.
+fn snap_of(s: &Situation) -> drive::snap::Snap {
+    drive::snap::Snap {
+        margin: s.margin,
+        secs: s.secs_game,
+        ball_on: s.ball_on,
+        down: s.down,
+        to_go: s.to_go,
+        off_to: s.off_timeouts.round() as i32,
+        def_to: s.def_timeouts.round() as i32,
+    }
 }
 
 /// The overtime model's logit of the offense winning (0 in regulation, and
@@ -245,7 +267,13 @@ pub fn overtime_logit(s: &Situation, drive: Option<&DriveModel>) -> f64 {
         }
     } else {
         match phase(s.margin, s.ot_first) {
-            Some(ph) => t.value(ph, s.secs_game, f64::from(s.ball_on)),
+            // The rest of this drive from its down and distance, as in
+            // regulation (`drive_logit`).
+            Some(ph) => d
+                .params
+                .snaps
+                .overtime_value(&t, ph, s.secs_game, &snap_of(s))
+                .unwrap_or_else(|| t.value(ph, s.secs_game, f64::from(s.ball_on))),
             None => (s.margin > 0.0) as i32 as f64,
         }
     };
@@ -257,6 +285,16 @@ pub fn overtime_logit(s: &Situation, drive: Option<&DriveModel>) -> f64 {
 /// situation against the clock-kill line (`kill_near`); `drive` gives the
 /// 4th period's drive-model terms.
 pub fn features(kind: WpKind, s: &Situation, rules: &ClockRules, drive: Option<&DriveModel>, out: &mut [f64]) {
+    let dl = match kind {
+        WpKind::Full => drive_logit(s, drive),
+        WpKind::Baseline => 0.0,
+    };
+    features_given(kind, s, rules, drive, dl, out)
+}
+
+/// `features` with the drive logit (`drive_logit` of `s` and `drive`)
+/// worked out already: the fit reads every row once per pass.
+fn features_given(kind: WpKind, s: &Situation, rules: &ClockRules, drive: Option<&DriveModel>, dl: f64, out: &mut [f64]) {
     let frac = (s.secs_game / GAME_SECS).clamp(0.0, 1.0);
     let root = (frac + ROOT_TIME_OFFSET).sqrt();
     let m = s.margin / MARGIN_SCALE;
@@ -321,7 +359,6 @@ pub fn features(kind: WpKind, s: &Situation, rules: &ClockRules, drive: Option<&
             // held out by season, on seeds 101 / 202, ramps took the gain
             // over the baseline from 11.3% / 8.9% with window flags to
             // 11.6% / 9.1%, the distance to the oracle 0.0070 to 0.0068).
-            let dl = drive_logit(s, drive);
             out[30] = dl;
             out[31] = dl * late10;
             out[32] = dl * late3;
@@ -403,10 +440,27 @@ pub fn fit_with(
     if let Some(d) = dm {
         d.table();
     }
+    // Each row's drive logit once, not once per pass of the fit (it sums
+    // a few hundred outcomes of the row's cell: `drive::snap`).
+    let mut dl = vec![0.0; plays.len()];
+    if dm.is_some() {
+        use rayon::prelude::*;
+        let worked: Vec<(u32, f64)> = rows
+            .par_iter()
+            .with_min_len(super::ep::SCORE_CHUNK)
+            .filter(|&&i| plays.period[i as usize] == 4)
+            .map(|&i| (i, drive_logit(&Situation::of_snap(plays, ep, i as usize), dm)))
+            .collect();
+        for (i, v) in worked {
+            dl[i as usize] = v;
+        }
+    }
     let design = FnDesign {
         rows,
         p: names.len(),
-        f: |i: usize, out: &mut [f64]| features(kind, &Situation::of_snap(plays, ep, i), &rules, dm, out),
+        f: |i: usize, out: &mut [f64]| {
+            features_given(kind, &Situation::of_snap(plays, ep, i), &rules, dm, dl[i], out)
+        },
     };
     // The late game is shaped by interactions and the drive and overtime
     // models, not weights: on the demo league, weighing the final 10:00 and

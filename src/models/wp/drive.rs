@@ -18,6 +18,7 @@
 //! possession axis.
 
 pub mod overtime;
+pub mod snap;
 
 use crate::plays::Plays;
 use overtime::OvertimeTable;
@@ -133,6 +134,34 @@ struct Drive {
     def_used: u8,
 }
 
+impl Drive {
+    /// What followed snap `i` up to the next possession's first snap `j`
+    /// (of the same half): `i` a possession's first snap for the drive
+    /// model, any snap for the rest of a drive (`snap`).
+    fn between(plays: &Plays, i: usize, j: usize) -> Drive {
+        let keep = plays.offense[j] == plays.offense[i];
+        let after = if keep { plays.margin[j] } else { -plays.margin[j] };
+        let (off_next, def_next) = if keep {
+            (plays.off_timeouts[j], plays.def_timeouts[j])
+        } else {
+            (plays.def_timeouts[j], plays.off_timeouts[j])
+        };
+        let (off_to, def_to) = (plays.off_timeouts[i].clamp(0, 3), plays.def_timeouts[i].clamp(0, 3));
+        Drive {
+            off_to: off_to as usize,
+            def_to: def_to as usize,
+            off_used: (off_to - off_next).clamp(0, 3) as u8,
+            def_used: (def_to - def_next).clamp(0, 3) as u8,
+            mode: mode(plays.secs_game[i], plays.margin[i]),
+            zone: zone(plays.ball_on[i]),
+            swing: (after - plays.margin[i]).clamp(-MAX_SWING, MAX_SWING),
+            keep,
+            next_zone: zone(plays.ball_on[j]),
+            secs: (plays.secs_game[i] - plays.secs_game[j]).max(0),
+        }
+    }
+}
+
 /// The trailing side's timeouts a late drive is split by (the offense's
 /// when it trails, the defense's when it leads; none otherwise).
 fn to_class(mode: Mode, off_to: usize, def_to: usize) -> usize {
@@ -172,26 +201,7 @@ fn drives(plays: &Plays, rows: &[u32]) -> Vec<Drive> {
             if !in_rows[i] || !in_rows[j] || plays.period[j] > 4 || plays.half(i) != plays.half(j) {
                 continue;
             }
-            let keep = plays.offense[j] == plays.offense[i];
-            let after = if keep { plays.margin[j] } else { -plays.margin[j] };
-            let (off_next, def_next) = if keep {
-                (plays.off_timeouts[j], plays.def_timeouts[j])
-            } else {
-                (plays.def_timeouts[j], plays.off_timeouts[j])
-            };
-            let (off_to, def_to) = (plays.off_timeouts[i].clamp(0, 3), plays.def_timeouts[i].clamp(0, 3));
-            out.push(Drive {
-                off_to: off_to as usize,
-                def_to: def_to as usize,
-                off_used: (off_to - off_next).clamp(0, 3) as u8,
-                def_used: (def_to - def_next).clamp(0, 3) as u8,
-                mode: mode(plays.secs_game[i], plays.margin[i]),
-                zone: zone(plays.ball_on[i]),
-                swing: (after - plays.margin[i]).clamp(-MAX_SWING, MAX_SWING),
-                keep,
-                next_zone: zone(plays.ball_on[j]),
-                secs: (plays.secs_game[i] - plays.secs_game[j]).max(0),
-            });
+            out.push(Drive::between(plays, i, j));
         }
     }
     out
@@ -206,6 +216,9 @@ pub struct DriveParams {
     pub cells: Vec<Vec<Outcome>>,
     /// Drives counted.
     pub drives: usize,
+    /// The rest of a drive from each kind of snap (`snap`).
+    #[serde(default)]
+    pub snaps: snap::SnapParams,
 }
 
 /// (swing, keep, next zone, duration bucket, timeouts used by the offense,
@@ -304,7 +317,7 @@ impl DriveParams {
                 }
             }
         }
-        Some(DriveParams { cells, drives: all.len() })
+        Some(DriveParams { cells, drives: all.len(), snaps: snap::SnapParams::estimate(plays, rows) })
     }
 
     /// Backward induction over the grid, each step's margins on rayon's threads.

@@ -233,6 +233,44 @@ impl OvertimeTable {
     }
 }
 
+impl OvertimeTable {
+    /// P(the team with the ball at `ball_on` wins) in `phase` with `secs`
+    /// left in the period when its possession ends by one of `list`'s
+    /// outcomes (the rest of a drive from a snap: `super::snap`), each
+    /// played on as the backward pass does.
+    pub fn after(&self, phase: Phase, secs: f64, ball_on: f64, list: &[Outcome]) -> f64 {
+        // The table's first step holds the value when the period ends.
+        let ends = |p: Phase, b: f64| self.value(p, 0.0, b);
+        let mut v = 0.0;
+        for o in list {
+            let took = f64::from(o.steps) * f64::from(STEP_SECS);
+            let at = ZONE_AT[o.zone as usize];
+            v += o.share
+                * match next(self.rules.rule, phase, o) {
+                    Next::Decided(r) if took > secs => {
+                        let f = secs / took;
+                        f * r + (1.0 - f) * ends(phase, ball_on)
+                    }
+                    Next::Goes(q, keep) if took > secs => {
+                        let f = secs / took;
+                        let later = if keep { ends(q, at) } else { 1.0 - ends(q, at) };
+                        f * later + (1.0 - f) * ends(phase, ball_on)
+                    }
+                    Next::Decided(r) => r,
+                    Next::Goes(q, keep) => {
+                        let w = self.value(q, secs - took, at);
+                        if keep {
+                            w
+                        } else {
+                            1.0 - w
+                        }
+                    }
+                };
+        }
+        v.clamp(0.0, 1.0)
+    }
+}
+
 /// Overtime tables solved for rule sets other than the default, kept
 /// beside the drive model (a handful at most: one per set a config names).
 #[derive(Debug, Default)]

@@ -3,7 +3,7 @@ use crate::models::testkit;
 
 /// Every (mode, zone, timeouts class) cell ends the same way.
 fn uniform(outcomes: &[Outcome]) -> DriveParams {
-    DriveParams { cells: vec![outcomes.to_vec(); NMODE * NZ * NTO], drives: 0 }
+    DriveParams { cells: vec![outcomes.to_vec(); NMODE * NZ * NTO], drives: 0, snaps: Default::default() }
 }
 
 fn o(swing: i32, keep: bool, steps: u16, share: f64) -> Outcome {

@@ -7,7 +7,7 @@ fn o(swing: i32, keep: bool, steps: u16, share: f64) -> Outcome {
 
 /// Every possession, whatever its zone, ends the same way.
 fn uniform(outcomes: &[Outcome]) -> DriveParams {
-    let n = DriveParams { cells: Vec::new(), drives: 0 };
+    let n = DriveParams { cells: Vec::new(), drives: 0, snaps: Default::default() };
     let cells = vec![outcomes.to_vec(); super::super::NMODE * NZ * super::super::NTO];
     DriveParams { cells, ..n }
 }
