@@ -211,12 +211,15 @@ pub fn drive_logit(s: &Situation, drive: Option<&DriveModel>) -> f64 {
         1.0 - t.value(-(s.margin + s.ep), s.secs_game, RECEIVE_AT, def_to, off_to)
     } else {
         // The rest of this drive from its down and distance, one
-        // possession on (`drive::snap`); the value at a possession's start
-        // where no snap was seen like it.
-        d.params
-            .snaps
-            .value(t, &snap_of(s))
-            .unwrap_or_else(|| t.value(s.margin, s.secs_game, f64::from(s.ball_on), off_to, def_to))
+        // possession on (`drive::snap`), in the final 10:00; the value at
+        // a possession's start before, on first downs and where no snap
+        // was seen like it.
+        let start = t.value(s.margin, s.secs_game, f64::from(s.ball_on), off_to, def_to);
+        let w = drive::snap::weight(s.secs_game);
+        match (w > 0.0).then(|| d.params.snaps.value(t, &snap_of(s))).flatten() {
+            Some(rest) => w * rest + (1.0 - w) * start,
+            None => start,
+        }
     };
     let p = p.clamp(P_EPS, 1.0 - P_EPS);
     (p / (1.0 - p)).ln().clamp(-DRIVE_LOGIT_MAX, DRIVE_LOGIT_MAX)

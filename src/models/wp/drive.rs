@@ -372,7 +372,7 @@ impl DriveParams {
                 }
             }
         }
-        DriveTable { v }
+        DriveTable::from_grid(v)
     }
 
     /// Margin `m`'s row of time step `k` (zone × both sides' timeouts)
@@ -448,9 +448,36 @@ fn at(k: usize, m: i32, z: usize, a: usize, b: usize) -> usize {
 #[derive(Debug, Clone, PartialEq)]
 pub struct DriveTable {
     v: Vec<f64>,
+    /// The same values by timeouts pair, zone, time step, margin
+    /// (`at_by_timeouts`): the outcome sums (`after_outcomes`) read one
+    /// timeouts pair's 441 KB at a time, which stays in a core's cache,
+    /// where the grid's order spreads it over all 7 MB.
+    by_timeouts: Vec<f64>,
+}
+
+/// Index of a cell in `DriveTable::by_timeouts`.
+fn at_by_timeouts(k: usize, m: i32, z: usize, a: usize, b: usize) -> usize {
+    ((((a * NTO + b) * NZ + z) * NT + k) * NM) + (m.clamp(-MAX_MARGIN, MAX_MARGIN) + MAX_MARGIN) as usize
 }
 
 impl DriveTable {
+    /// From the solved grid (`at` order).
+    fn from_grid(v: Vec<f64>) -> DriveTable {
+        let mut by_timeouts = vec![0.0; v.len()];
+        for k in 0..NT {
+            for m in -MAX_MARGIN..=MAX_MARGIN {
+                for z in 0..NZ {
+                    for a in 0..NTO {
+                        for b in 0..NTO {
+                            by_timeouts[at_by_timeouts(k, m, z, a, b)] = v[at(k, m, z, a, b)];
+                        }
+                    }
+                }
+            }
+        }
+        DriveTable { v, by_timeouts }
+    }
+
     fn get(&self, k: usize, m: i32, z: usize, a: usize, b: usize) -> f64 {
         self.v[at(k, m, z, a, b)]
     }
@@ -479,6 +506,76 @@ impl DriveTable {
                     }
                 }
             }
+        }
+        p
+    }
+}
+
+impl DriveTable {
+    /// Σ share × P(the team with the ball wins) after each of `list`'s
+    /// outcomes, from `margin` with `secs` left and timeouts `a` and `b`
+    /// (the team with the ball's and the other's): each outcome as `value`
+    /// would price it at the next possession's zone (the other side's
+    /// table when the ball changes hands; a possession longer than the time
+    /// left gets that share of its outcome), without `value`'s search for
+    /// the zone: an outcome's zone is a grid zone.
+    pub fn after_outcomes(&self, list: &[Outcome], margin: f64, secs: f64, a: i32, b: i32) -> f64 {
+        let end = |m: f64| {
+            if m > 0.0 {
+                1.0
+            } else if m < 0.0 {
+                0.0
+            } else {
+                0.5
+            }
+        };
+        // An outcome's clock is whole grid steps, so every outcome shares
+        // the time weights: worked out once, as the margin's.
+        let t = (secs / f64::from(STEP_SECS)).max(0.0);
+        let (ks, ft) = (t.floor(), t - t.floor());
+        let top = (NT - 1) as f64;
+        let (mf, fm) = (margin.floor(), margin - margin.floor());
+        let mut p = 0.0;
+        for o in list {
+            let steps = f64::from(o.steps);
+            if steps > t {
+                let after = margin + f64::from(o.swing);
+                let f = secs / (steps * f64::from(STEP_SECS));
+                p += o.share * (f * end(after) + (1.0 - f) * end(margin));
+                continue;
+            }
+            let (k0, wt) = if ks - steps >= top { (NT - 1, 0.0) } else { ((ks - steps) as usize, ft) };
+            let (a2, b2) = ((a - i32::from(o.off_used)).max(0) as usize, (b - i32::from(o.def_used)).max(0) as usize);
+            // The next possession's team: its margin (whole part and
+            // fraction, on the grid) and timeouts.
+            let whole = mf as i32 + o.swing;
+            let (m0, w1, ta, tb) = match (o.keep, fm > 0.0) {
+                (true, _) => (whole, fm, a2, b2),
+                (false, false) => (-whole, 0.0, b2, a2),
+                (false, true) => (-whole - 1, 1.0 - fm, b2, a2),
+            };
+            let (m0, w1) = if m0 < -MAX_MARGIN {
+                (-MAX_MARGIN, 0.0)
+            } else if m0 >= MAX_MARGIN {
+                (MAX_MARGIN, 0.0)
+            } else {
+                (m0, w1)
+            };
+            let z = o.zone as usize;
+            let g = &self.by_timeouts;
+            let at_k = |k: usize| {
+                let i = at_by_timeouts(k, m0, z, ta, tb);
+                if w1 > 0.0 {
+                    (1.0 - w1) * g[i] + w1 * g[i + 1]
+                } else {
+                    g[i]
+                }
+            };
+            let mut v = at_k(k0);
+            if wt > 0.0 {
+                v = (1.0 - wt) * v + wt * at_k((k0 + 1).min(NT - 1));
+            }
+            p += o.share * if o.keep { v } else { 1.0 - v };
         }
         p
     }
@@ -532,3 +629,4 @@ impl DriveModel {
 
 #[cfg(test)]
 mod tests;
+

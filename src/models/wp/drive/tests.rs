@@ -211,7 +211,7 @@ fn solve_one_cell_at_a_time(params: &DriveParams) -> DriveTable {
             }
         }
     }
-    DriveTable { v }
+    DriveTable::from_grid(v)
 }
 
 /// The solve sums each cell's outcomes in the same order as one cell at a
