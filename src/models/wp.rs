@@ -443,8 +443,8 @@ pub fn fit_with(
     if let Some(d) = dm {
         d.table();
     }
-    // Each row's drive logit once, not once per pass of the fit (it sums
-    // a few hundred outcomes of the row's cell: `drive::snap`).
+    // Each row's drive logit once, not once per pass of the fit (late in
+    // the 4th it sums the outcomes of two cells: `drive::snap`).
     let mut dl = vec![0.0; plays.len()];
     if dm.is_some() {
         use rayon::prelude::*;

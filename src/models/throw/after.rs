@@ -9,7 +9,7 @@ use crate::models::Models;
 use crate::plays::Plays;
 
 /// Where the ball is after an outcome.
-enum Next {
+pub(super) enum Next {
     /// The offense keeps it: down, to go, spot.
     Keep(i32, i32, i32),
     /// The other side has it, first and ten at this spot (its own side).
@@ -21,7 +21,7 @@ enum Next {
 }
 
 /// The offense's WP after an outcome that took `secs` seconds.
-fn wp_after(models: &Models, s0: &Situation, st: &State, secs: f64, next: Next) -> f64 {
+pub(super) fn wp_after(models: &Models, s0: &Situation, st: &State, secs: f64, next: Next) -> f64 {
     let secs = secs.round() as i32;
     let secs_half = st.secs_half - secs;
     let end_of_game = secs_half <= 0 && (st.period == 4 || st.period >= 5);
@@ -63,6 +63,7 @@ fn wp_after(models: &Models, s0: &Situation, st: &State, secs: f64, next: Next) 
         is_try,
         kickoff: false,
         down,
+        to_go: if down > 0 { 10.min(100 - spot) } else { 0 },
         ball_on: spot,
         ot_first: false,
         ot_both: ot && !s0.ot_first,
@@ -71,7 +72,7 @@ fn wp_after(models: &Models, s0: &Situation, st: &State, secs: f64, next: Next) 
     match next {
         Next::Keep(down, to_go, spot) => {
             let ep_new = if secs_half == 0 { 0.0 } else { ep.situation(down, to_go, spot, secs_half) };
-            wp.situation(&Situation { secs_game, ep: ep_new, down, ball_on: spot, kickoff: false, is_try: false, ..*s0 })
+            wp.situation(&Situation { secs_game, ep: ep_new, down, to_go, ball_on: spot, kickoff: false, is_try: false, ..*s0 })
         }
         Next::Over(spot) => {
             let ep_new = if secs_half == 0 { 0.0 } else { ep.situation(1, 10.min(100 - spot), spot, secs_half) };
@@ -82,6 +83,7 @@ fn wp_after(models: &Models, s0: &Situation, st: &State, secs: f64, next: Next) 
             margin: m + 6.0,
             ep: ep.try_mean,
             down: 0,
+            to_go: 0,
             ball_on: 85,
             kickoff: false,
             is_try: true,

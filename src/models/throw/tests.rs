@@ -192,3 +192,44 @@ fn pricing_equals_the_straightforward_reference_on_the_demo_league() {
         assert!(n > 10_000, "{n} passes");
     }
 }
+
+/// A catch short of the line to gain leaves the next down with the yards
+/// still to go, and the state is priced with them: 2nd & 10 late in the
+/// 4th, a 4-yard catch is 3rd & 6 four yards on (the rest of a drive reads
+/// the distance from 2nd down on, so 3rd & 10 would be worth less).
+#[test]
+fn a_short_catch_is_priced_with_the_yards_still_to_go() {
+    let path = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("demo-data/league.parquet");
+    let plays = crate::playfile::load(&path, &Default::default()).expect("demo league").plays;
+    let models = fit(&plays).expect("fit");
+    let s = models.score(&plays);
+    let i = (0..plays.len())
+        .find(|&i| {
+            plays.period[i] == 4
+                && (60..=500).contains(&plays.secs_game[i])
+                && plays.down[i] == 2
+                && plays.to_go[i] == 10
+                && (30..=60).contains(&plays.ball_on[i])
+                && plays.margin[i] < 0
+        })
+        .expect("a late 2nd & 10");
+    let s0 = crate::models::wp::Situation::of_snap(&plays, &s.ep, i);
+    let st = State::of_snap(&plays, i);
+    let spot = plays.ball_on[i] + 4;
+    let got = after::wp_after(&models, &s0, &st, 5.0, after::Next::Keep(3, 6, spot));
+    let at = |to_go: i32| {
+        let ep = models.ep.situation(3, to_go, spot, st.secs_half - 5);
+        models.wp.situation(&crate::models::wp::Situation {
+            secs_game: s0.secs_game - 5.0,
+            ep,
+            down: 3,
+            to_go,
+            ball_on: spot,
+            kickoff: false,
+            is_try: false,
+            ..s0
+        })
+    };
+    assert_eq!(got.to_bits(), at(6).to_bits(), "{got} vs {}", at(6));
+    assert!(at(6) > at(10), "3rd & 6 {} vs 3rd & 10 {}", at(6), at(10));
+}
