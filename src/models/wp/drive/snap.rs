@@ -1,11 +1,12 @@
 //! The rest of a drive from one snap: the drive table values a possession
-//! at its start, which cannot tell 1st & 10 from 4th & 12 at the same yard
+//! at its start, which cannot tell 2nd & 2 from 4th & 12 at the same yard
 //! line. From the fit's own snaps this reads, per (how the offense plays,
 //! 10-yard field zone, down and distance class, trailing side's timeouts
-//! class), how the possession the snap belongs to ended — the same
-//! outcomes the drive model counts (margin change up to the next
-//! possession, who has the ball next and where, clock taken, timeouts
-//! used) — and values a snap as the drive table one possession on.
+//! class), how the possession the snap belongs to ended — the margin
+//! change up to the next possession, who has the ball next and in which
+//! zone, with the mean clock taken and timeouts used — and values a snap
+//! as the drive table (or in overtime the season's overtime table) one
+//! possession on.
 
 use super::{mode, to_class, Drive, DriveTable, Mode, Outcome, MAX_SWING, NMODE, NTO, NZ, STEP_SECS};
 use super::overtime::{OvertimeTable, Phase};
@@ -238,8 +239,9 @@ impl SnapParams {
         let md = mode(secs.round() as i32, margin.round() as i32);
         let c = to_class(md, a as usize, b as usize);
         // Between the centres of the two nearest zones (5, 15, .. 95):
-        // held out by season (seeds 101 / 202), the distance to the oracle
-        // 0.00639 / 0.00645 with one zone's value, 0.00636 / 0.00641.
+        // held out by season (seeds 101 / 202, with the drive model's
+        // outcome keys), the distance to the oracle 0.00639 / 0.00645 with
+        // one zone's value, 0.00636 / 0.00641.
         let (z0, f) = zones(ball_on);
         let v0 = list_value(table, &self.cells[cell(md, z0, dc, c)], margin, secs, a, b)?;
         let v1 = list_value(table, &self.cells[cell(md, z0 + 1, dc, c)], margin, secs, a, b).unwrap_or(v0);
