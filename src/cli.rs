@@ -279,13 +279,17 @@ fn run(cli: Cli) -> Result<ExitCode> {
         }
         Cmd::Check { file, map, lenient } => {
             let mapping = map.open()?;
-            map.overtime()?;
+            let overtime = map.overtime()?;
             let pb = spinner(&format!("checking {}", file.display()));
             let result = playfile::load_mapped(&file, &LoadOptions { lenient }, mapping.as_ref());
             pb.finish_and_clear();
             match result {
                 Ok(loaded) => {
                     out(&format!("{}fingerprint {}\n", loaded.report.summary(lenient), loaded.fingerprint));
+                    if let Some(path) = &map.overtime {
+                        let lines = overtime.report(&loaded.plays.seasons());
+                        out(&format!("overtime rules by season, from {}:\n{}\n", path.display(), lines.join("\n")));
+                    }
                     Ok(ExitCode::SUCCESS)
                 }
                 Err(e) => {

@@ -302,6 +302,29 @@ fn check_command_reports_and_exits_nonzero() {
 }
 
 
+/// `check --overtime FILE` says which rules each run of the file's seasons
+/// plays, and names a block that covers none of them (likely a slip).
+#[test]
+fn check_says_which_overtime_rules_each_season_plays() {
+    let dir = TempDir::new();
+    let good = write(dir.path(), "ok.csv", &csv_with(|_, r| r.to_string()));
+    let cfg = dir.path().join("overtime.toml");
+    std::fs::write(
+        &cfg,
+        "[[overtime]]\nseasons = \"2024\"\nrules = \"first-score-wins\"\nperiod = \"15:00\"\n\n[[overtime]]\nseasons = \"1990-1992\"\nrules = \"both-possess\"\n",
+    )
+    .unwrap();
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_lategame")).arg("check").arg(&good).arg("--overtime").arg(&cfg).output().unwrap();
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(out.status.success(), "{text}");
+    assert!(text.contains("overtime rules by season, from "), "{text}");
+    assert!(text.contains("  2024: first-score-wins, 15:00, a level period is a tie"), "{text}");
+    assert!(text.contains("the block for 1990-1992 (both-possess) names no season of the file, which covers 2024"), "{text}");
+    // Without a config nothing is said of overtime.
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_lategame")).arg("check").arg(&good).output().unwrap();
+    assert!(!String::from_utf8_lossy(&out.stdout).contains("overtime rules"));
+}
+
 #[test]
 fn check_lenient_skips_bad_rows_and_prints_no_colour_codes() {
     let dir = TempDir::new();

@@ -92,6 +92,23 @@ impl OvertimeConfig {
             .collect()
     }
 
+    /// What `lategame check --overtime FILE` says of the config against a
+    /// file's `seasons` (sorted): the rules of each run of seasons, then
+    /// each block that names no season of the file (a likely slip).
+    pub fn report(&self, seasons: &[i32]) -> Vec<String> {
+        let mut lines: Vec<String> = self.spans(seasons).iter().map(|s| format!("  {}: {}", s.seasons, s.label)).collect();
+        let covers = match (seasons.first(), seasons.last()) {
+            (Some(a), Some(b)) if a == b => a.to_string(),
+            (Some(a), Some(b)) => format!("{a}-{b}"),
+            _ => "no season".to_string(),
+        };
+        for b in self.sets.iter().filter(|b| !seasons.iter().any(|s| (b.from..=b.to).contains(s))) {
+            let named = if b.from == b.to { b.from.to_string() } else { format!("{}-{}", b.from, b.to) };
+            lines.push(format!("  the block for {named} ({}) names no season of the file, which covers {covers}", b.rules.rule.name()));
+        }
+        lines
+    }
+
     /// Read and check a config file.
     pub fn load(path: &Path) -> Result<OvertimeConfig, OvertimeConfigError> {
         let text = std::fs::read_to_string(path).map_err(|source| OvertimeConfigError::Io { path: path.to_path_buf(), source })?;
