@@ -158,16 +158,26 @@ fn cached_throw_values_read_back_bit_for_bit() {
     let _ = std::fs::remove_dir_all(&dir);
 }
 
+/// The demo league with its models fitted and every snap scored, once for
+/// the tests that read it.
+fn demo() -> &'static (crate::plays::Plays, crate::models::Models, crate::models::Scores) {
+    static DEMO: std::sync::OnceLock<(crate::plays::Plays, crate::models::Models, crate::models::Scores)> = std::sync::OnceLock::new();
+    DEMO.get_or_init(|| {
+        let path = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("demo-data/league.parquet");
+        let plays = crate::playfile::load(&path, &Default::default()).expect("demo league").plays;
+        let models = fit(&plays).expect("fit");
+        let s = models.score(&plays);
+        (plays, models, s)
+    })
+}
+
 /// Every pass of the demo league priced by `score_all` as by the
 /// straightforward reference (each outcome of each band priced on its own),
 /// bit for bit; and runoffs that differ by band (the reference's case the
 /// shortcut must not take) still agree.
 #[test]
 fn pricing_equals_the_straightforward_reference_on_the_demo_league() {
-    let path = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("demo-data/league.parquet");
-    let plays = crate::playfile::load(&path, &Default::default()).expect("demo league").plays;
-    let models = fit(&plays).expect("fit");
-    let s = models.score(&plays);
+    let (plays, models, s) = demo();
     let rows: Vec<u32> = (0..plays.len() as u32).collect();
     let mut m = super::fit(&plays, &rows, &Default::default()).expect("fit").expect("air yards");
     for pass in 0..2 {
@@ -199,10 +209,7 @@ fn pricing_equals_the_straightforward_reference_on_the_demo_league() {
 /// the distance from 2nd down on, so 3rd & 10 would be worth less).
 #[test]
 fn a_short_catch_is_priced_with_the_yards_still_to_go() {
-    let path = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("demo-data/league.parquet");
-    let plays = crate::playfile::load(&path, &Default::default()).expect("demo league").plays;
-    let models = fit(&plays).expect("fit");
-    let s = models.score(&plays);
+    let (plays, models, s) = demo();
     let i = (0..plays.len())
         .find(|&i| {
             plays.period[i] == 4

@@ -335,15 +335,10 @@ impl DriveParams {
     fn solve_on(&self, parallel: bool) -> DriveTable {
         let per_k = NM * NZ * NTO * NTO;
         let mut v = vec![0.0; NT * per_k];
-        let end = |m: i32| match m.signum() {
-            1 => 1.0,
-            -1 => 0.0,
-            _ => 0.5,
-        };
         for m in -MAX_MARGIN..=MAX_MARGIN {
             for z in 0..NZ {
                 for ab in 0..NTO * NTO {
-                    v[at(0, m, z, ab / NTO, ab % NTO)] = end(m);
+                    v[at(0, m, z, ab / NTO, ab % NTO)] = end(f64::from(m));
                 }
             }
         }
@@ -381,11 +376,6 @@ impl DriveParams {
     /// kept side by side: each cell still adds its outcomes in list order,
     /// the same values bit for bit as one cell at a time.
     fn step_row(&self, k: usize, m: i32, done: &[f64], row: &mut [f64]) {
-        let end = |m: i32| match m.signum() {
-            1 => 1.0,
-            -1 => 0.0,
-            _ => 0.5,
-        };
         let md = mode(k as i32 * STEP_SECS, m);
         for z in 0..NZ {
             let mut p = [0.0f64; NTO * NTO];
@@ -412,7 +402,7 @@ impl DriveParams {
                         // it: 0.1 point worse on seed 202, the oracle
                         // distance up 0.3-0.7% on all three).
                         let f = k as f64 / steps as f64;
-                        let v = f * end(after) + (1.0 - f) * end(m);
+                        let v = f * end(f64::from(after)) + (1.0 - f) * end(f64::from(m));
                         for &ab in pairs {
                             p[ab] += o.share * v;
                         }
@@ -435,6 +425,18 @@ impl DriveParams {
                 row[z * NTO * NTO + ab] = v.clamp(0.0, 1.0);
             }
         }
+    }
+}
+
+/// The team with the ball's result when the game ends at `margin`: a win,
+/// a loss, ½ level.
+fn end(margin: f64) -> f64 {
+    if margin > 0.0 {
+        1.0
+    } else if margin < 0.0 {
+        0.0
+    } else {
+        0.5
     }
 }
 
@@ -520,15 +522,6 @@ impl DriveTable {
     /// left gets that share of its outcome), without `value`'s search for
     /// the zone: an outcome's zone is a grid zone.
     pub fn after_outcomes(&self, list: &[Outcome], margin: f64, secs: f64, a: i32, b: i32) -> f64 {
-        let end = |m: f64| {
-            if m > 0.0 {
-                1.0
-            } else if m < 0.0 {
-                0.0
-            } else {
-                0.5
-            }
-        };
         // An outcome's clock is whole grid steps, so every outcome shares
         // the time weights: worked out once, as the margin's.
         let t = (secs / f64::from(STEP_SECS)).max(0.0);
