@@ -14,7 +14,9 @@
 //! second half and overtime (WP, baseline, result); `--rollouts 0` skips
 //! the oracle (the held-out fits only); `--oracle-from FILE` reads the
 //! oracle back from an earlier run's `--csv` of the same seed and seasons
-//! instead of playing on again (the rows' `oracle` column, offense's side).
+//! instead of playing on again (the rows' `oracle` column, offense's side);
+//! `--fresh-form` draws the day's form again in each rollout, an oracle
+//! that knows the clubs' strengths but not how they play today.
 
 use anyhow::{bail, Context};
 use lategame::models::calib::held_out_predictions;
@@ -34,10 +36,11 @@ struct Args {
     csv: Option<String>,
     all_csv: Option<String>,
     oracle_from: Option<String>,
+    fresh_form: bool,
 }
 
 fn args() -> anyhow::Result<Args> {
-    let mut a = Args { seed: 101, seasons: 5, rollouts: 300, csv: None, all_csv: None, oracle_from: None };
+    let mut a = Args { seed: 101, seasons: 5, rollouts: 300, csv: None, all_csv: None, oracle_from: None, fresh_form: false };
     let mut it = std::env::args().skip(1);
     while let Some(flag) = it.next() {
         let mut value = || it.next().with_context(|| format!("{flag} needs a value"));
@@ -48,6 +51,7 @@ fn args() -> anyhow::Result<Args> {
             "--csv" => a.csv = Some(value()?),
             "--all-csv" => a.all_csv = Some(value()?),
             "--oracle-from" => a.oracle_from = Some(value()?),
+            "--fresh-form" => a.fresh_form = true,
             other => bail!("unknown argument {other}"),
         }
     }
@@ -145,7 +149,7 @@ fn main() -> anyhow::Result<()> {
     let t = Instant::now();
     let none = |_: i32, _: i32, _: i32| false;
     let replay = a.rollouts == 0 || a.oracle_from.is_some();
-    let opts = OracleOptions { rollouts: a.rollouts, pick: if replay { &none } else { &late_close } };
+    let opts = OracleOptions { rollouts: a.rollouts, pick: if replay { &none } else { &late_close }, fresh_form: a.fresh_form };
     let (out, mut oracle) = simulate_with_oracle(&cfg, &opts);
     if let Some(path) = &a.oracle_from {
         oracle = read_oracle(path)?;

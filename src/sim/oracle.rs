@@ -25,6 +25,10 @@ pub struct OracleOptions<'p> {
     pub rollouts: usize,
     /// (period, clock, home margin) of the snap → play it on?
     pub pick: &'p (dyn Fn(i32, i32, i32) -> bool + Sync),
+    /// Draw the day's form again in each rollout: an oracle that knows the
+    /// clubs' strengths (which the pregame line sums up) but not how they
+    /// are playing today, nearer what a model of the file can know.
+    pub fresh_form: bool,
 }
 
 /// The oracle at one snap.
@@ -46,7 +50,7 @@ pub fn simulate_with_oracle(cfg: &SimConfig, opts: &OracleOptions) -> (SimOutput
             return;
         }
         let stream = |r: usize| ((game as u64) << 24) | ((snap.seq() as u64 & 0xFFF) << 12) | r as u64;
-        let home_win = win_share(cfg.seed, g, snap, rollouts, &stream);
+        let home_win = win_share(cfg.seed, g, snap, rollouts, opts.fresh_form, &stream);
         found.push(OracleSnap { game: g.key.clone(), seq: snap.seq(), home_win });
     };
     let out = run_with(
@@ -64,7 +68,14 @@ pub fn simulate_with_oracle(cfg: &SimConfig, opts: &OracleOptions) -> (SimOutput
 
 /// Home win share (ties ½) over `rollouts` games played on from `snap`,
 /// rollout r on stream `stream(r)` (the same on any number of threads).
-fn win_share(seed: u64, g: &GameSetup, snap: &Snapshot, rollouts: usize, stream: &(dyn Fn(usize) -> u64 + Sync)) -> f64 {
+fn win_share(
+    seed: u64,
+    g: &GameSetup,
+    snap: &Snapshot,
+    rollouts: usize,
+    fresh_form: bool,
+    stream: &(dyn Fn(usize) -> u64 + Sync),
+) -> f64 {
     let results: Vec<f64> = (0..rollouts)
         .into_par_iter()
         .map_init(
@@ -73,7 +84,7 @@ fn win_share(seed: u64, g: &GameSetup, snap: &Snapshot, rollouts: usize, stream:
                 out.clear();
                 let mut rng = SimRng::seed_from_u64(seed ^ ORACLE_SALT);
                 rng.set_stream(stream(r));
-                let [home, away] = play_on(g, snap, &mut rng, out, book);
+                let [home, away] = play_on(g, snap, fresh_form, &mut rng, out, book);
                 match home.cmp(&away) {
                     std::cmp::Ordering::Greater => 1.0,
                     std::cmp::Ordering::Less => 0.0,
@@ -98,7 +109,7 @@ mod tests {
     fn oracle_leaves_the_league_alone_and_knows_the_ending() {
         let cfg = SimConfig { seasons: 1, seed: 5, first_season: 2020 };
         let pick = |period: i32, clock: i32, _: i32| period == 4 && clock <= 120;
-        let opts = OracleOptions { rollouts: 40, pick: &pick };
+        let opts = OracleOptions { rollouts: 40, pick: &pick, fresh_form: false };
         let (out, found) = simulate_with_oracle(&cfg, &opts);
         assert_eq!(out.rows, simulate(&cfg).rows);
         let (_, again) = simulate_with_oracle(&SimConfig { seasons: 1, ..cfg.clone() }, &opts);

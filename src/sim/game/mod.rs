@@ -53,25 +53,8 @@ fn play_game_with<'s>(
     truth: &'s mut TruthBook,
     probe: Option<Probe<'s>>,
 ) -> Vec<usize> {
-    let mut strength = g.strength;
-    let e = g.home_edge;
-    let h = &mut strength[0];
-    h.run_off += e * HOME_BOOST.run_off;
-    h.run_def += e * HOME_BOOST.run_def;
-    h.pass_off += e * HOME_BOOST.pass_off;
-    h.pass_def += e * HOME_BOOST.pass_def;
-    h.protection += e * HOME_BOOST.protection;
-    h.pass_rush += e * HOME_BOOST.pass_rush;
-    // game-day form: what no pregame line can see
-    for s in &mut strength {
-        let (off, def) = (normal(rng), normal(rng));
-        s.run_off += FORM_RUN * off;
-        s.pass_off += FORM_PASS * off;
-        s.run_def += FORM_RUN * def;
-        s.pass_def += FORM_PASS * def;
-    }
     let st = State {
-        strength,
+        strength: day_strength(g, rng),
         seq: 0,
         period: 1,
         clock: 900,
@@ -95,6 +78,28 @@ fn play_game_with<'s>(
     let mut eng = Engine { g, rng, out, truth, probe, st };
     eng.run();
     eng.st.injured
+}
+
+/// Both clubs' strengths on the day: the home boost and a fresh draw of
+/// game-day form, what no pregame line can see.
+fn day_strength(g: &GameSetup, rng: &mut SimRng) -> [TeamStrength; 2] {
+    let mut strength = g.strength;
+    let e = g.home_edge;
+    let h = &mut strength[0];
+    h.run_off += e * HOME_BOOST.run_off;
+    h.run_def += e * HOME_BOOST.run_def;
+    h.pass_off += e * HOME_BOOST.pass_off;
+    h.pass_def += e * HOME_BOOST.pass_def;
+    h.protection += e * HOME_BOOST.protection;
+    h.pass_rush += e * HOME_BOOST.pass_rush;
+    for s in &mut strength {
+        let (off, def) = (normal(rng), normal(rng));
+        s.run_off += FORM_RUN * off;
+        s.pass_off += FORM_PASS * off;
+        s.run_def += FORM_RUN * def;
+        s.pass_def += FORM_PASS * def;
+    }
+    strength
 }
 
 /// The engine at a snap: its state and what comes next. Playing on from it
@@ -143,8 +148,21 @@ pub(crate) fn play_game_probed<'s>(
 /// Play the rest of the game from `snap` with `rng` (its rows go to `out`
 /// and its dropbacks to `truth`; pass scratch ones); returns the final
 /// score, home first.
-pub(crate) fn play_on(g: &GameSetup, snap: &Snapshot, rng: &mut SimRng, out: &mut Vec<PlayRow>, truth: &mut TruthBook) -> [i32; 2] {
-    let mut eng = Engine { g, rng, out, truth, probe: None, st: snap.st.clone() };
+/// With `fresh_form` the day's form is drawn again from `rng` first, as if
+/// only the clubs' strengths were known, not how they are playing today.
+pub(crate) fn play_on(
+    g: &GameSetup,
+    snap: &Snapshot,
+    fresh_form: bool,
+    rng: &mut SimRng,
+    out: &mut Vec<PlayRow>,
+    truth: &mut TruthBook,
+) -> [i32; 2] {
+    let mut st = snap.st.clone();
+    if fresh_form {
+        st.strength = day_strength(g, rng);
+    }
+    let mut eng = Engine { g, rng, out, truth, probe: None, st };
     eng.play_from(snap.next, true);
     eng.st.score
 }
