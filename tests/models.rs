@@ -425,7 +425,12 @@ fn held_out_seasons_are_calibrated() {
 /// the distance from 0.00659 / 0.00613 / 0.00603 to 0.00669 / 0.00621 /
 /// 0.00606 (per run: 0.00665 / 0.00600 / 0.00605); a leading offense's flag,
 /// a key margin at 6 or at 1 against the final 10:00 moved it by at most
-/// 0.00013 either way. None kept. It was 10.8% before
+/// 0.00013 either way; whether the offense's or the defense's passer is no
+/// longer the game's first (a starter hurt) 0.00664 / 0.00617 / 0.00604.
+/// None kept. How much is left to find in public state: corrections by
+/// margin x 2:00 (or 1:00) x 20-yard cells, with down or the defense's
+/// timeouts, fit to the oracle on two of the leagues and applied to the
+/// third, moved the distance by -2.3% to +2.6%. It was 10.8% before
 /// the drive model counted late drives by the trailing side's timeouts
 /// (0-1 or 2-3, and the timeouts each side used), a level offense in the
 /// final 2:00 apart, and overtime was solved by its rules from the drive
