@@ -47,6 +47,11 @@ const FINAL_SECS: f64 = 180.0;
 pub const KEY_MARGINS: [f64; 3] = [3.0, 8.0, 16.0];
 /// Seconds over the burnable time over which `kill_near` fades to 0.
 const KILL_FADE: f64 = 120.0;
+/// Seconds over which the drive model's logit comes in from the start of
+/// the 4th period, and over which the line's own term comes in before it
+/// (the final 5:00 of the 3rd): no seam in WP at the period break.
+const DRIVE_IN_SECS: f64 = 180.0;
+const LINE_IN_SECS: f64 = 300.0;
 
 pub const FULL_FEATURES: [&str; 35] = [
     "intercept",
@@ -83,7 +88,7 @@ pub const FULL_FEATURES: [&str; 35] = [
     "drive_logit_10",
     "drive_logit_3",
     "ot_drive_logit",
-    "line_fourth",
+    "line_final_period",
 ];
 
 pub const BASELINE_FEATURES: [&str; 4] = ["intercept", "margin", "stern_margin", "time_left"];
@@ -363,7 +368,11 @@ fn features_given(kind: WpKind, s: &Situation, rules: &ClockRules, drive: Option
             // held out by season, on seeds 101 / 202, ramps took the gain
             // over the baseline from 11.3% / 8.9% with window flags to
             // 11.6% / 9.1%, the distance to the oracle 0.0070 to 0.0068).
-            out[30] = dl;
+            // It comes in over the period's first 3:00: switched on at the
+            // break, it moved WP there by up to 0.01; coming in, the late &
+            // close figures moved by at most 0.00002 in distance.
+            let span = f64::from(drive::SPAN_SECS);
+            out[30] = dl * ((span - s.secs_game) / DRIVE_IN_SECS).clamp(0.0, 1.0);
             out[31] = dl * late10;
             out[32] = dl * late3;
             // Overtime as its own regime: its rules (`drive::overtime`)
@@ -377,16 +386,19 @@ fn features_given(kind: WpKind, s: &Situation, rules: &ClockRules, drive: Option
             // nothing (0.00727 / 0.00674 / 0.00674).
             out[33] = overtime_logit(s, drive);
             // The line where the drive model speaks (4th period of
-            // regulation): that model counts every club's possessions
-            // alike, and the Stern term's line fades with the clock, so a
-            // favourite's edge went missing late. Held out by season, it
-            // took the mean squared distance to the oracle from 0.00637 /
-            // 0.00643 / 0.00683 to 0.00613 / 0.00603 / 0.00659 (seeds
-            // 101 / 202 / 7) and the gain over the baseline from 12.0% /
-            // 9.4% / 11.2% to 12.6% / 9.8% / 11.1%; the line against the
-            // final 10:00 as a ramp or in overtime did no better.
-            let fourth = reg * (s.secs_game <= f64::from(drive::SPAN_SECS)) as i32 as f64;
-            out[34] = line / MARGIN_SCALE * fourth;
+            // regulation, coming in over the final 5:00 of the 3rd): that
+            // model counts every club's possessions alike, and the Stern
+            // term's line fades with the clock, so a favourite's edge went
+            // missing late. Held out by season, it took the mean squared
+            // distance to the oracle from 0.00637 / 0.00643 / 0.00683 to
+            // 0.00614 / 0.00605 / 0.00659 (seeds 101 / 202 / 7) and the
+            // gain over the baseline from 12.0% / 9.4% / 11.2% to 12.6% /
+            // 9.8% / 11.2%. As a step at the period break (0.00613 /
+            // 0.00603 / 0.00659) WP jumped there by up to 0.03 for a
+            // 10-point favourite; coming in over the whole 3rd period, as
+            // a ramp over the final 10:00 or in overtime it did no better.
+            let line_in = reg * ((span + LINE_IN_SECS - s.secs_game) / LINE_IN_SECS).clamp(0.0, 1.0);
+            out[34] = line / MARGIN_SCALE * line_in;
         }
     }
 }
