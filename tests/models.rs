@@ -792,3 +792,36 @@ fn wp_has_no_seam_in_time() {
         }
     }
 }
+
+/// WP moves little from one yard to the next between the final 15:00 and
+/// 5:00 with nothing else changed: no seam where the rest of a drive
+/// changes zone or falls back to the possession's start (a property, no
+/// source; before a zone with no snaps gave way to its neighbour, WP
+/// stepped by 0.044 at 4th & 2 from the own 14 to the 15, level at 5:00).
+/// Later the steps are real and steep: a field goal's range in the final
+/// 30 s (2.8 points a yard), a kneel-out's room near the own goal line.
+#[test]
+fn wp_has_no_seam_in_field_position() {
+    let Some(d) = demo() else { return };
+    let wp = &d.scored.models.wp;
+    for (down, to_go) in [(1, 10), (2, 7), (3, 3), (3, 9), (4, 2), (4, 8)] {
+        for timeouts in [0.0, 1.0, 3.0] {
+            for margin in [-8.0, -4.0, -1.0, 0.0, 2.0, 6.0] {
+                for secs in [900.0, 600.0, 450.0, 300.0] {
+                    let at = |ball_on: i32| {
+                        let s = Situation { down, to_go, ball_on, off_timeouts: timeouts, def_timeouts: timeouts, ..mid(margin, secs, 0.5) };
+                        wp.situation(&s)
+                    };
+                    for ball_on in 3..97 {
+                        let step = at(ball_on + 1) - at(ball_on);
+                        assert!(
+                            step.abs() <= 0.02,
+                            "{down} & {to_go}, margin {margin:+}, {secs} s, timeouts {timeouts}: WP {:.4} at {ball_on}, {:.4} at {}",
+                            at(ball_on), at(ball_on + 1), ball_on + 1
+                        );
+                    }
+                }
+            }
+        }
+    }
+}

@@ -242,10 +242,12 @@ impl SnapParams {
         // held out by season (seeds 101 / 202, with the drive model's
         // outcome keys), the distance to the oracle 0.00639 / 0.00645 with
         // one zone's value, 0.00636 / 0.00641.
+        // A zone with no snaps gives way to the other one: falling back
+        // to the possession-start value there made WP step by up to 0.044
+        // across one yard (4th & 2, own 14 to own 15, level at 5:00).
         let (z0, f) = zones(ball_on);
-        let v0 = list_value(table, &self.cells[cell(md, z0, dc, c)], margin, secs, a, b)?;
-        let v1 = list_value(table, &self.cells[cell(md, z0 + 1, dc, c)], margin, secs, a, b).unwrap_or(v0);
-        Some((1.0 - f) * v0 + f * v1)
+        let at = |z: usize| list_value(table, &self.cells[cell(md, z, dc, c)], margin, secs, a, b);
+        between(at(z0), at(z0 + 1), f)
     }
 
     /// P(the offense wins) in overtime from a snap with `secs` left in the
@@ -260,9 +262,16 @@ impl SnapParams {
             let l = &self.cells[cell(Mode::Other, z, dc, 0)];
             (!l.is_empty()).then(|| table.after(phase, secs, on, l))
         };
-        let v0 = list(z0)?;
-        let v1 = list(z0 + 1).unwrap_or(v0);
-        Some((1.0 - f) * v0 + f * v1)
+        between(list(z0), list(z0 + 1), f)
+    }
+}
+
+/// `f` of the way from `v0` to `v1`; either alone when the other zone has
+/// no snaps.
+fn between(v0: Option<f64>, v1: Option<f64>, f: f64) -> Option<f64> {
+    match (v0, v1) {
+        (Some(v0), Some(v1)) => Some((1.0 - f) * v0 + f * v1),
+        (v0, v1) => v0.or(v1),
     }
 }
 

@@ -63,8 +63,9 @@ fn rest_of_the_drive_by_hand() {
 
 /// Between two zones' centres the value is interpolated: at the 30 (the
 /// middle of the 25 and the 35), half the 20s' cell and half the 30s'.
-/// A cell nobody was seen in gives `None` (the caller falls back to the
-/// possession's start).
+/// A zone nobody was seen in gives way to the other zone of its pair;
+/// `None` (the caller falls back to the possession's start) only when both
+/// are empty.
 #[test]
 fn zones_are_interpolated() {
     let t = field_goal_table();
@@ -80,8 +81,25 @@ fn zones_are_interpolated() {
     assert!((at(25) - 0.5).abs() < 1e-12);
     assert!((at(35) - 5.0 / 6.0).abs() < 1e-12);
     assert!((at(30) - 0.5 * (0.5 + 5.0 / 6.0)).abs() < 1e-12);
-    p.cells[cell(Mode::Other, 6, 1, 0)].clear();
-    assert_eq!(p.value(&t, &snap(0.0, 600.0, 65, 2, 10)), None);
+    // The 60s empty, the 70s a touchdown: at the 64 the 50s' value alone
+    // (nothing, ½), from the 65 on the 70s' (5/6).
+    for md in [Mode::Other, Mode::Trail, Mode::Lead, Mode::Tie] {
+        for c in 0..NTO {
+            p.cells[cell(md, 6, 1, c)].clear();
+            p.cells[cell(md, 7, 1, c)] = vec![o(7, false, 6, 1.0)];
+        }
+    }
+    let at = |p: &SnapParams, ball_on| p.value(&t, &snap(0.0, 20.0, ball_on, 2, 10));
+    assert!((at(&p, 64).expect("the 50s") - 0.5).abs() < 1e-12);
+    for ball_on in [65, 66, 70, 75] {
+        assert!((at(&p, ball_on).expect("the 70s") - 5.0 / 6.0).abs() < 1e-12, "{ball_on}");
+    }
+    for md in [Mode::Other, Mode::Trail, Mode::Lead, Mode::Tie] {
+        for c in 0..NTO {
+            p.cells[cell(md, 7, 1, c)].clear();
+        }
+    }
+    assert_eq!(at(&p, 66), None);
 }
 
 /// In overtime (touchdown-or-answer, ties at the period's end) a first
