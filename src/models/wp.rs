@@ -1,10 +1,11 @@
 //! Win probability: a logistic model of the offense winning (ties count ½)
-//! built on Stern's (1991) margin-over-root-time term, EP, timeouts, home
-//! field and the pregame line, with late-game terms (key margins against
-//! time left, possession with time and timeouts), overtime as its own
+//! built on Stern's (1991) margin-over-root-time term, EP, home field and
+//! the pregame line, with late-game terms (key margins against time left,
+//! possession with time left, the line in the 4th period), overtime as its own
 //! regime (each season's rule set, `crate::overtime`, solved with the
 //! drive model's possessions: `drive::overtime`), clock-kill states set to 1 from the clock rules,
-//! and the 4th period's drive-level Markov model (`drive`) as three inputs;
+//! and the 4th period's drive-level Markov model (`drive`, which alone
+//! sees the timeouts) as three inputs;
 //! a margin-and-time baseline; WPA per snap.
 
 pub mod drive;
@@ -53,7 +54,7 @@ const KILL_FADE: f64 = 120.0;
 const DRIVE_IN_SECS: f64 = 180.0;
 const LINE_IN_SECS: f64 = 300.0;
 
-pub const FULL_FEATURES: [&str; 35] = [
+pub const FULL_FEATURES: [&str; 29] = [
     "intercept",
     "margin",
     "ep",
@@ -64,10 +65,6 @@ pub const FULL_FEATURES: [&str; 35] = [
     "time_left",
     "off_home",
     "overtime",
-    "off_timeouts",
-    "def_timeouts",
-    "off_timeouts_late",
-    "def_timeouts_late",
     "margin_late",
     "kickoff",
     "kickoff_time_left",
@@ -81,8 +78,6 @@ pub const FULL_FEATURES: [&str; 35] = [
     "final_margin16",
     "late_ep",
     "final_ep",
-    "late_def_timeouts_lead",
-    "late_off_timeouts_trail",
     "kill_near",
     "drive_logit_15",
     "drive_logit_10",
@@ -331,17 +326,21 @@ fn features_given(kind: WpKind, s: &Situation, rules: &ClockRules, drive: Option
             out[7] = frac;
             out[8] = s.off_home as i32 as f64;
             out[9] = s.overtime as i32 as f64;
-            out[10] = s.off_timeouts / 3.0;
-            out[11] = s.def_timeouts / 3.0;
-            out[12] = s.off_timeouts / 3.0 * late;
-            out[13] = s.def_timeouts / 3.0 * late;
-            out[14] = m * late;
-            out[15] = s.kickoff as i32 as f64;
-            out[16] = s.kickoff as i32 as f64 * frac;
-            out[17] = s.is_try as i32 as f64;
+            // Timeouts enter through the drive model alone, which counts
+            // possessions by them. Fitted on outcomes, terms of their own
+            // (each side's, against the final 5:00, by who leads in the
+            // final 10:00) took the wrong sign: level with 60 s left at the
+            // own 20, the defense's 0 to 3 timeouts took the offense's WP
+            // from 0.44 to 0.56. Without them, held out by season, the
+            // distance to the oracle went from 0.00659 / 0.00614 / 0.00605
+            // to 0.00601 / 0.00615 / 0.00577 (seeds 7 / 101 / 202).
+            out[10] = m * late;
+            out[11] = s.kickoff as i32 as f64;
+            out[12] = s.kickoff as i32 as f64 * frac;
+            out[13] = s.is_try as i32 as f64;
             // Lets the weight of the Stern term change with time left: early
             // in the game a margin or a line says less than late.
-            out[18] = out[4] * frac;
+            out[14] = out[4] * frac;
             // The late game: each key margin (a clamp at ±k, so monotone in
             // the margin) against the final 10:00 and the final 3:00.
             let reg = !s.overtime as i32 as f64;
@@ -349,17 +348,14 @@ fn features_given(kind: WpKind, s: &Situation, rules: &ClockRules, drive: Option
             let late3 = reg * (1.0 - s.secs_game / FINAL_SECS).max(0.0);
             for (k, key) in KEY_MARGINS.iter().enumerate() {
                 let c = s.margin.clamp(-key, *key) / key;
-                out[19 + k] = c * late10;
-                out[22 + k] = c * late3;
+                out[15 + k] = c * late10;
+                out[18 + k] = c * late3;
             }
-            // Possession: the ball's worth and the timeouts that matter to
-            // each side as time runs out.
-            out[25] = s.ep / 7.0 * late10;
-            out[26] = s.ep / 7.0 * late3;
-            let lead = (s.margin > 0.0) as i32 as f64;
-            out[27] = s.def_timeouts / 3.0 * late10 * lead;
-            out[28] = s.off_timeouts / 3.0 * late10 * (1.0 - lead);
-            out[29] = match rules.excess(&s.kill_state()) {
+            // Possession: the ball's worth as time runs out, and how near
+            // the offense is to kneeling the game out.
+            out[21] = s.ep / 7.0 * late10;
+            out[22] = s.ep / 7.0 * late3;
+            out[23] = match rules.excess(&s.kill_state()) {
                 Some(e) => (1.0 - e.max(0.0) / KILL_FADE).max(0.0),
                 None => 0.0,
             };
@@ -372,9 +368,9 @@ fn features_given(kind: WpKind, s: &Situation, rules: &ClockRules, drive: Option
             // break, it moved WP there by up to 0.01; coming in, the late &
             // close figures moved by at most 0.00002 in distance.
             let span = f64::from(drive::SPAN_SECS);
-            out[30] = dl * ((span - s.secs_game) / DRIVE_IN_SECS).clamp(0.0, 1.0);
-            out[31] = dl * late10;
-            out[32] = dl * late3;
+            out[24] = dl * ((span - s.secs_game) / DRIVE_IN_SECS).clamp(0.0, 1.0);
+            out[25] = dl * late10;
+            out[26] = dl * late3;
             // Overtime as its own regime: its rules (`drive::overtime`)
             // played with the drive model's possessions, beside the
             // overtime flag. In place of six terms (margin, EP, first
@@ -384,7 +380,7 @@ fn features_given(kind: WpKind, s: &Situation, rules: &ClockRules, drive: Option
             // the distance to the oracle 0.00718 / 0.00674 / 0.00672 to
             // 0.00716 / 0.00662 / 0.00675; added beside the six, it did
             // nothing (0.00727 / 0.00674 / 0.00674).
-            out[33] = overtime_logit(s, drive);
+            out[27] = overtime_logit(s, drive);
             // The line where the drive model speaks (4th period of
             // regulation, coming in over the final 5:00 of the 3rd): that
             // model counts every club's possessions alike, and the Stern
@@ -398,7 +394,7 @@ fn features_given(kind: WpKind, s: &Situation, rules: &ClockRules, drive: Option
             // 10-point favourite; coming in over the whole 3rd period, as
             // a ramp over the final 10:00 or in overtime it did no better.
             let line_in = reg * ((span + LINE_IN_SECS - s.secs_game) / LINE_IN_SECS).clamp(0.0, 1.0);
-            out[34] = line / MARGIN_SCALE * line_in;
+            out[28] = line / MARGIN_SCALE * line_in;
         }
     }
 }
