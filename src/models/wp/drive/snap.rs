@@ -53,6 +53,75 @@ fn down_class(down: i32, to_go: i32) -> Option<usize> {
     })
 }
 
+/// The yards to go each class stands for (its snaps' usual distance):
+/// between two classes of a down the value is interpolated by the yards to
+/// go, so a yard more to go never steps the value at a class's edge.
+const CLASS_TO_GO: [f64; NDOWN] = [3.0, 10.0, 1.5, 4.5, 10.0, 1.5, 6.0];
+
+/// The classes of `down`: the first and how many.
+fn classes_of(down: i32) -> Option<(usize, usize)> {
+    match down {
+        2 => Some((0, 2)),
+        3 => Some((2, 3)),
+        4 => Some((5, 2)),
+        _ => None,
+    }
+}
+
+/// The value at `to_go` from the values of `down`'s classes (`None`: no
+/// snaps): first made to fall as the distance grows (adjacent classes out
+/// of order are pooled to their mean, pool-adjacent-violators with equal
+/// weights: a class counted from other snaps can come out ahead of a
+/// shorter one by chance or by who faces it, but a yard more to go is
+/// never worth more), then interpolated between the classes' distances.
+/// Before, WP stepped by up to 0.08 from one yard to the next at a class's
+/// edge, and in 88 of 6,048 states rose with a yard more to go (by up to
+/// 0.055).
+fn by_distance(down: i32, to_go: i32, value: impl Fn(usize) -> Option<f64>) -> Option<f64> {
+    let (first, n) = classes_of(down)?;
+    // Present classes in order of distance: yards, value (no allocation:
+    // this runs for every state a throw leaves late).
+    let (mut at, mut v, mut np) = ([0.0f64; 3], [0.0f64; 3], 0);
+    for k in first..first + n {
+        if let Some(x) = value(k) {
+            (at[np], v[np]) = (CLASS_TO_GO[k], x);
+            np += 1;
+        }
+    }
+    if np == 0 {
+        return None;
+    }
+    // Pool adjacent violators (equal weights): blocks of (mean, count).
+    let (mut mean, mut count, mut nb) = ([0.0f64; 3], [0usize; 3], 0);
+    for &x in &v[..np] {
+        (mean[nb], count[nb]) = (x, 1);
+        nb += 1;
+        while nb > 1 && mean[nb - 2] < mean[nb - 1] {
+            let (m1, c1) = (mean[nb - 1], count[nb - 1]);
+            let (m0, c0) = (mean[nb - 2], count[nb - 2]);
+            mean[nb - 2] = (m0 * c0 as f64 + m1 * c1 as f64) / (c0 + c1) as f64;
+            count[nb - 2] = c0 + c1;
+            nb -= 1;
+        }
+    }
+    let mut i = 0;
+    for b in 0..nb {
+        for _ in 0..count[b] {
+            v[i] = mean[b];
+            i += 1;
+        }
+    }
+    let t = f64::from(to_go);
+    if t <= at[0] {
+        return Some(v[0]);
+    }
+    if t >= at[np - 1] {
+        return Some(v[np - 1]);
+    }
+    let k = (1..np).find(|&k| at[k] > t).expect("t below the last class");
+    Some(v[k - 1] + (v[k] - v[k - 1]) * (t - at[k - 1]) / (at[k] - at[k - 1]))
+}
+
 fn snap_zone(ball_on: i32) -> usize {
     (ball_on.max(0) / 10).min(SNAP_ZONES as i32 - 1) as usize
 }
@@ -234,7 +303,6 @@ impl SnapParams {
     /// `table` at the next possession; `None` when its cell has no snaps.
     pub fn value(&self, table: &DriveTable, snap: &Snap) -> Option<f64> {
         let Snap { margin, secs, ball_on, down, to_go, off_to, def_to } = *snap;
-        let dc = down_class(down, to_go)?;
         let (a, b) = (off_to.clamp(0, 3), def_to.clamp(0, 3));
         let md = mode(secs.round() as i32, margin.round() as i32);
         let c = to_class(md, a as usize, b as usize);
@@ -246,8 +314,8 @@ impl SnapParams {
         // to the possession-start value there made WP step by up to 0.044
         // across one yard (4th & 2, own 14 to own 15, level at 5:00).
         let (z0, f) = zones(ball_on);
-        let at = |z: usize| list_value(table, &self.cells[cell(md, z, dc, c)], margin, secs, a, b);
-        between(at(z0), at(z0 + 1), f)
+        let at = |z: usize, dc: usize| list_value(table, &self.cells[cell(md, z, dc, c)], margin, secs, a, b);
+        by_distance(down, to_go, |dc| between(at(z0, dc), at(z0 + 1, dc), f))
     }
 
     /// P(the offense wins) in overtime from a snap with `secs` left in the
@@ -255,14 +323,13 @@ impl SnapParams {
     /// the game (the overtime table plays possessions as those), each
     /// outcome played on by the table; `None` when the cell has no snaps.
     pub fn overtime_value(&self, table: &OvertimeTable, phase: Phase, secs: f64, snap: &Snap) -> Option<f64> {
-        let dc = down_class(snap.down, snap.to_go)?;
         let (z0, f) = zones(snap.ball_on);
         let on = f64::from(snap.ball_on);
-        let list = |z: usize| {
+        let list = |z: usize, dc: usize| {
             let l = &self.cells[cell(Mode::Other, z, dc, 0)];
             (!l.is_empty()).then(|| table.after(phase, secs, on, l))
         };
-        between(list(z0), list(z0 + 1), f)
+        by_distance(snap.down, snap.to_go, |dc| between(list(z0, dc), list(z0 + 1, dc), f))
     }
 }
 

@@ -71,8 +71,8 @@ fn zones_are_interpolated() {
     let t = field_goal_table();
     let mut p = every_cell(&[o(0, false, 6, 1.0)]);
     for md in [Mode::Other, Mode::Trail, Mode::Lead, Mode::Tie] {
-        for c in 0..NTO {
-            p.cells[cell(md, 3, 1, c)] = vec![o(7, false, 6, 1.0)];
+        for (c, dc) in (0..NTO).flat_map(|c| [(c, 0), (c, 1)]) {
+            p.cells[cell(md, 3, dc, c)] = vec![o(7, false, 6, 1.0)];
         }
     }
     // Level with 20 s: a touchdown in 30 s gets 2/3 of its win (5/6 in
@@ -84,9 +84,9 @@ fn zones_are_interpolated() {
     // The 60s empty, the 70s a touchdown: at the 64 the 50s' value alone
     // (nothing, ½), from the 65 on the 70s' (5/6).
     for md in [Mode::Other, Mode::Trail, Mode::Lead, Mode::Tie] {
-        for c in 0..NTO {
-            p.cells[cell(md, 6, 1, c)].clear();
-            p.cells[cell(md, 7, 1, c)] = vec![o(7, false, 6, 1.0)];
+        for (c, dc) in (0..NTO).flat_map(|c| [(c, 0), (c, 1)]) {
+            p.cells[cell(md, 6, dc, c)].clear();
+            p.cells[cell(md, 7, dc, c)] = vec![o(7, false, 6, 1.0)];
         }
     }
     let at = |p: &SnapParams, ball_on| p.value(&t, &snap(0.0, 20.0, ball_on, 2, 10));
@@ -95,11 +95,56 @@ fn zones_are_interpolated() {
         assert!((at(&p, ball_on).expect("the 70s") - 5.0 / 6.0).abs() < 1e-12, "{ball_on}");
     }
     for md in [Mode::Other, Mode::Trail, Mode::Lead, Mode::Tie] {
-        for c in 0..NTO {
-            p.cells[cell(md, 7, 1, c)].clear();
+        for (c, dc) in (0..NTO).flat_map(|c| [(c, 0), (c, 1)]) {
+            p.cells[cell(md, 7, dc, c)].clear();
         }
     }
     assert_eq!(at(&p, 66), None);
+}
+
+/// Between two classes of a down the value follows the yards to go:
+/// level with 20 s, a touchdown in 30 s is worth 5/6, nothing ½ (as
+/// above). 2nd & 1-5 scoring, 2nd & 6+ not: 5/6 to the 3 (the short
+/// class's distance), ½ from the 10, at the 6 three sevenths of the way
+/// from 5/6 to ½. The other way
+/// round (the long class ahead) the two are pooled: 2/3 at every distance.
+/// On 3rd down (1-2 nothing, 3-6 a touchdown, 7+ nothing) the first two
+/// pool to 2/3, the last stays ½: 2/3 to the 4½, then down to ½ at the 10.
+#[test]
+fn distance_is_interpolated_and_never_pays() {
+    let t = field_goal_table();
+    let td = vec![o(7, false, 6, 1.0)];
+    let none = vec![o(0, false, 6, 1.0)];
+    let with = |lists: &[(usize, &Vec<Outcome>)]| {
+        let mut p = every_cell(&none);
+        for &(dc, l) in lists {
+            for md in [Mode::Other, Mode::Trail, Mode::Lead, Mode::Tie] {
+                for z in 0..SNAP_ZONES {
+                    for c in 0..NTO {
+                        p.cells[cell(md, z, dc, c)] = l.clone();
+                    }
+                }
+            }
+        }
+        p
+    };
+    let at = |p: &SnapParams, down: i32, to_go: i32| p.value(&t, &snap(0.0, 20.0, 45, down, to_go)).expect("a cell");
+    let close = |x: f64, y: f64| (x - y).abs() < 1e-12;
+    let p = with(&[(0, &td), (1, &none)]);
+    for (to_go, want) in [(1, 5.0 / 6.0), (3, 5.0 / 6.0), (10, 0.5), (15, 0.5)] {
+        assert!(close(at(&p, 2, to_go), want), "2nd & {to_go}: {}", at(&p, 2, to_go));
+    }
+    let six = p.value(&t, &snap(0.0, 20.0, 45, 2, 6)).expect("a cell");
+    assert!(close(six, 5.0 / 6.0 + (0.5 - 5.0 / 6.0) * 3.0 / 7.0), "2nd & 6: {six}");
+    let p = with(&[(0, &none), (1, &td)]);
+    for to_go in [1, 3, 6, 10, 15] {
+        assert!(close(at(&p, 2, to_go), 2.0 / 3.0), "pooled 2nd & {to_go}: {}", at(&p, 2, to_go));
+    }
+    let p = with(&[(2, &none), (3, &td), (4, &none)]);
+    for (to_go, want) in [(1, 2.0 / 3.0), (4, 2.0 / 3.0), (10, 0.5), (12, 0.5)] {
+        assert!(close(at(&p, 3, to_go), want), "3rd & {to_go}: {}", at(&p, 3, to_go));
+    }
+    assert!(close(at(&p, 3, 7), 2.0 / 3.0 + (0.5 - 2.0 / 3.0) * 2.5 / 5.5), "3rd & 7: {}", at(&p, 3, 7));
 }
 
 /// In overtime (touchdown-or-answer, ties at the period's end) a first
