@@ -218,13 +218,16 @@ pub fn main() -> ExitCode {
         // colour only for a person at a terminal, never into a file or pipe
         .with_ansi(std::io::IsTerminal::is_terminal(&std::io::stderr()))
         .init();
-    match run(cli) {
+    let code = match run(cli) {
         Ok(code) => code,
         Err(e) => {
             eprintln!("error: {e:#}");
             ExitCode::FAILURE
         }
-    }
+    };
+    // Score columns written behind the first open reach the disk.
+    crate::models::cache::finish_writes();
+    code
 }
 
 fn spinner(msg: &str) -> ProgressBar {

@@ -10,7 +10,7 @@
 
 pub mod columns;
 pub mod prune;
-pub use columns::{columns_file_name, digest, load_columns, store_columns, ColumnsKey, Miss};
+pub use columns::{columns_file_name, digest, finish_writes, load_columns, store_columns, store_columns_behind, ColumnsKey, Miss};
 
 use super::{Calibration, Models, MODEL_VERSION};
 use super::error::{ModelError, Result};

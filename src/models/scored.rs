@@ -53,10 +53,7 @@ fn restore_scores(dir: &std::path::Path, fingerprint: &str, models_digest: &str,
 
 fn store_scores(dir: &std::path::Path, fingerprint: &str, models_digest: &str, s: &Scores) {
     let cols: [&[f64]; 5] = [&s.ep, &s.epa, &s.wp, &s.wpa, &s.cp];
-    match cache::store_columns(dir, &scores_key(fingerprint, models_digest), &cols) {
-        Ok(p) => tracing::info!("scores cached in {}", p.display()),
-        Err(e) => tracing::warn!("could not cache the scores: {e:#}"),
-    }
+    cache::store_columns_behind(dir, &scores_key(fingerprint, models_digest), &cols, "scores");
 }
 
 impl Drop for Scored {
@@ -277,6 +274,8 @@ mod tests {
         other.calibration.wait().expect("calibration");
         // Damaged or cut-short score columns are a miss: scored again (the
         // same numbers), and written again for the next opening.
+        // (Columns are written behind: wait for them before touching the file.)
+        cache::finish_writes();
         let cols = dir.join(cache::columns_file_name(SCORES_PART, "synthetic-42"));
         let bytes = std::fs::read(&cols).expect("the scores were cached");
         for broken in [bytes[..bytes.len() / 2].to_vec(), bytes[..40].to_vec(), Vec::new(), {
@@ -285,6 +284,7 @@ mod tests {
             b[k] ^= 1;
             b
         }] {
+            cache::finish_writes();
             std::fs::write(&cols, &broken).expect("write");
             let again = fit_and_score_in(small(), "synthetic-42", false, Some(&dir)).expect("damaged scores");
             assert!(again.from_cache && !again.scores_from_cache);

@@ -13,6 +13,8 @@ use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
 use std::io::Read;
 use std::path::{Path, PathBuf};
+use std::sync::Mutex;
+use std::thread::JoinHandle;
 
 /// The first bytes of every columns file.
 const MAGIC: &[u8; 8] = b"LGCOLS01";
@@ -78,6 +80,62 @@ impl ColumnsKey<'_> {
 /// Write `columns` (each `rows` long, in the order of `k.names`) into `dir`
 /// (created if needed), through a temporary file and a rename.
 pub fn store_columns(dir: &Path, k: &ColumnsKey, columns: &[&[f64]]) -> Result<PathBuf> {
+    let bytes = encode(k, columns)?;
+    write_bytes(dir, &columns_file_name(k.part, k.fingerprint), k.fingerprint, &bytes)
+}
+
+/// Column files being written on threads of their own, by path: a read of
+/// the same file waits for its write (`load_columns`), `finish_writes` for
+/// every one.
+static WRITING: Mutex<Vec<(PathBuf, JoinHandle<()>)>> = Mutex::new(Vec::new());
+
+fn writing() -> std::sync::MutexGuard<'static, Vec<(PathBuf, JoinHandle<()>)>> {
+    WRITING.lock().unwrap_or_else(|e| e.into_inner())
+}
+
+/// `store_columns` with the file written on a thread of its own: the
+/// columns are encoded here, the league is ready while the bytes go to
+/// disk (on the bench league, writing the scores and the throw values took
+/// 0.9 s of a first start). `what` names them in the log.
+pub fn store_columns_behind(dir: &Path, k: &ColumnsKey, columns: &[&[f64]], what: &'static str) {
+    let bytes = match encode(k, columns) {
+        Ok(b) => b,
+        Err(e) => return tracing::warn!("could not cache the {what}: {e:#}"),
+    };
+    let (dir, name, fingerprint) = (dir.to_path_buf(), columns_file_name(k.part, k.fingerprint), k.fingerprint.to_string());
+    let path = dir.join(&name);
+    let write = move || match write_bytes(&dir, &name, &fingerprint, &bytes) {
+        Ok(p) => tracing::info!("{what} cached in {}", p.display()),
+        Err(e) => tracing::warn!("could not cache the {what}: {e:#}"),
+    };
+    let mut w = writing();
+    match std::thread::Builder::new().name("cache-write".into()).spawn(write) {
+        Ok(h) => w.push((path, h)),
+        Err(e) => tracing::warn!("could not cache the {what}: {e}"),
+    }
+}
+
+/// Wait for the writes of `path` under way (`None`: every write).
+fn wait_for(path: Option<&Path>) {
+    let mine: Vec<JoinHandle<()>> = {
+        let mut w = writing();
+        let (mine, rest): (Vec<_>, Vec<_>) = w.drain(..).partition(|(p, _)| path.is_none_or(|q| p == q));
+        *w = rest;
+        mine.into_iter().map(|(_, h)| h).collect()
+    };
+    for h in mine {
+        let _ = h.join();
+    }
+}
+
+/// Wait until every column file written behind is on disk (before the
+/// process ends).
+pub fn finish_writes() {
+    wait_for(None);
+}
+
+/// A columns file's bytes: magic, header, the columns, their checksum.
+fn encode(k: &ColumnsKey, columns: &[&[f64]]) -> Result<Vec<u8>> {
     let rows = columns.first().map_or(0, |c| c.len());
     assert!(columns.len() == k.names.len() && columns.iter().all(|c| c.len() == rows), "one column per name, all of one length");
     let header = serde_json::to_vec(&k.header(rows)).map_err(ModelError::Serialize)?;
@@ -93,7 +151,7 @@ pub fn store_columns(dir: &Path, k: &ColumnsKey, columns: &[&[f64]]) -> Result<P
         }
     }
     out.extend_from_slice(&sum.to_le_bytes());
-    write_bytes(dir, &columns_file_name(k.part, k.fingerprint), k.fingerprint, &out)
+    Ok(out)
 }
 
 /// The fingerprint in a columns file's header, if it has a readable one.
@@ -136,6 +194,7 @@ pub enum Miss {
 /// or why not.
 pub fn load_columns(dir: &Path, k: &ColumnsKey, rows: usize) -> std::result::Result<Vec<Vec<f64>>, Miss> {
     let path = dir.join(columns_file_name(k.part, k.fingerprint));
+    wait_for(Some(&path));
     let mut f = match std::fs::File::open(&path) {
         Ok(f) => f,
         Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Err(Miss::Missing),

@@ -91,10 +91,7 @@ pub fn scores_cached(model: &ThrowModel, models: &Models, p: &Plays, ep: &[f64],
     tracing::debug!("every pass priced in {:.0} ms", t.elapsed().as_secs_f64() * 1000.0);
     if let (Some(d), Some(m)) = (cache.dir, &digest) {
         let cols: [&[f64]; 5] = [&s.chosen, &s.league, &s.choice, &s.execution, &s.league_sticks];
-        match cache::store_columns(d, &columns_key(cache.fingerprint, m), &cols) {
-            Ok(path) => tracing::info!("throw values cached in {}", path.display()),
-            Err(e) => tracing::warn!("could not cache the throw values: {e:#}"),
-        }
+        cache::store_columns_behind(d, &columns_key(cache.fingerprint, m), &cols, "throw values");
     }
     (s, false)
 }

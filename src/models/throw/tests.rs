@@ -147,9 +147,12 @@ fn cached_throw_values_read_back_bit_for_bit() {
     // Damaged, cut short or empty: scored again, never a panic.
     let (_, hit) = values(&at("fp-values", true), &model);
     assert!(!hit, "the file now holds the other coefficients' values");
+    // (Columns are written behind: wait for them before touching the file.)
+    crate::models::cache::finish_writes();
     let path = dir.join(crate::models::cache::columns_file_name(cached::SCORES_PART, "fp-values"));
     let bytes = std::fs::read(&path).expect("kept");
     for cut in [0, 7, 60, bytes.len() / 2, bytes.len() - 1] {
+        crate::models::cache::finish_writes();
         std::fs::write(&path, &bytes[..cut]).expect("write");
         let (again, hit) = values(&at("fp-values", true), &model);
         assert!(!hit, "cut at {cut}");

@@ -8,7 +8,7 @@
 //! as the drive table (or in overtime the season's overtime table) one
 //! possession on.
 
-use super::{mode, to_class, Drive, DriveTable, Mode, Outcome, MAX_SWING, NMODE, NTO, NZ, STEP_SECS};
+use super::{mode, to_class, Drive, DriveTable, Mode, Outcome, LATE_MODE_SECS, MAX_SWING, NMODE, NTO, NZ, STEP_SECS, TIE_MODE_SECS};
 use super::overtime::{OvertimeTable, Phase};
 use crate::plays::Plays;
 use serde::{Deserialize, Serialize};
@@ -16,11 +16,16 @@ use serde::{Deserialize, Serialize};
 /// Lower bounds of the 10-yard zones a snap is counted in.
 const SNAP_ZONES: usize = 10;
 /// Down and distance classes: 2nd and 1-5, 6+; 3rd and 1-2, 3-6, 7+;
-/// 4th and 1-2, 3+. A first down keeps the value of a possession starting
-/// there: held out by season (seeds 101 / 202), its own class gave the
-/// same distance to the oracle (0.00636 / 0.00644 against 0.00636 /
-/// 0.00643), and the states a throw leaves are mostly first downs.
-const NDOWN: usize = 7;
+/// 4th and 1-2, 3+; any 1st down. A first down once kept the value of a
+/// possession starting there (a first down is mostly what a throw leaves,
+/// so it cost pricing time, and held out by season the distance to the
+/// oracle was the same), but that value, read from possessions starting
+/// in the zone, came out below the 2nd down's at the same spot: 1st & goal
+/// at the 8, level with 60 s left, 0.70 against 0.81 for 2nd & goal, and
+/// in 235 of 2,480 states by more than 0.01. With a class of its own, 92
+/// (the worst 0.039), the distance 0.00600 / 0.00613 / 0.00575 (seeds 7 /
+/// 101 / 202) from 0.00601 / 0.00614 / 0.00577.
+const NDOWN: usize = 8;
 /// Seconds left in regulation from which the rest of a drive takes over
 /// from a possession's start (`weight`): none of it before 10:00, all of
 /// it from 9:00. Held out by season (seeds 101 / 202), the rest of a drive
@@ -36,6 +41,9 @@ pub fn weight(secs: f64) -> f64 {
     ((FROM_SECS - secs) / (FROM_SECS - FULL_SECS)).clamp(0.0, 1.0)
 }
 
+/// Seconds over which a late mode's cells take over from the mode before.
+const MODE_IN_SECS: f64 = 30.0;
+
 /// Snaps a late mode's own counts weigh as much as (shrinkage toward all
 /// the cell's snaps).
 const SHRINK_SNAPS: f64 = 100.0;
@@ -49,6 +57,7 @@ fn down_class(down: i32, to_go: i32) -> Option<usize> {
         (3, _) => 4,
         (4, ..=2) => 5,
         (4, _) => 6,
+        (1, _) => 7,
         _ => return None,
     })
 }
@@ -56,11 +65,12 @@ fn down_class(down: i32, to_go: i32) -> Option<usize> {
 /// The yards to go each class stands for (its snaps' usual distance):
 /// between two classes of a down the value is interpolated by the yards to
 /// go, so a yard more to go never steps the value at a class's edge.
-const CLASS_TO_GO: [f64; NDOWN] = [3.0, 10.0, 1.5, 4.5, 10.0, 1.5, 6.0];
+const CLASS_TO_GO: [f64; NDOWN] = [3.0, 10.0, 1.5, 4.5, 10.0, 1.5, 6.0, 10.0];
 
 /// The classes of `down`: the first and how many.
 fn classes_of(down: i32) -> Option<(usize, usize)> {
     match down {
+        1 => Some((7, 1)),
         2 => Some((0, 2)),
         3 => Some((2, 3)),
         4 => Some((5, 2)),
@@ -302,10 +312,8 @@ impl SnapParams {
     /// P(the offense wins) from `snap`: its cell's outcomes, each valued by
     /// `table` at the next possession; `None` when its cell has no snaps.
     pub fn value(&self, table: &DriveTable, snap: &Snap) -> Option<f64> {
-        let Snap { margin, secs, ball_on, down, to_go, off_to, def_to } = *snap;
+        let Snap { margin, secs, ball_on, off_to, def_to, .. } = *snap;
         let (a, b) = (off_to.clamp(0, 3), def_to.clamp(0, 3));
-        let md = mode(secs.round() as i32, margin.round() as i32);
-        let c = to_class(md, a as usize, b as usize);
         // Between the centres of the two nearest zones (5, 15, .. 95):
         // held out by season (seeds 101 / 202, with the drive model's
         // outcome keys), the distance to the oracle 0.00639 / 0.00645 with
@@ -314,8 +322,37 @@ impl SnapParams {
         // to the possession-start value there made WP step by up to 0.044
         // across one yard (4th & 2, own 14 to own 15, level at 5:00).
         let (z0, f) = zones(ball_on);
-        let at = |z: usize, dc: usize| list_value(table, &self.cells[cell(md, z, dc, c)], margin, secs, a, b);
-        by_distance(down, to_go, |dc| between(at(z0, dc), at(z0 + 1, dc), f))
+        let in_mode = |md: Mode| self.value_in(table, md, z0, f, snap, a, b);
+        let m = margin.round() as i32;
+        let md = mode(secs.round() as i32, m);
+        let v = in_mode(md);
+        // A late mode takes over from the mode before it over
+        // `MODE_IN_SECS`: switched at once, a first down stepped WP by
+        // 0.006 in the second the 5:00 mark passed.
+        let start = match md {
+            Mode::Trail | Mode::Lead => LATE_MODE_SECS,
+            Mode::Tie => TIE_MODE_SECS,
+            Mode::Other => return v,
+        };
+        let w = (f64::from(start) - secs) / MODE_IN_SECS;
+        if w >= 1.0 {
+            return v;
+        }
+        let before = in_mode(mode(start + 1, m));
+        match (v, before) {
+            (Some(v), Some(u)) => Some(w.max(0.0) * v + (1.0 - w.max(0.0)) * u),
+            (v, u) => v.or(u),
+        }
+    }
+
+    /// `value` with the cells of mode `md`, between zones `z0` and `z0 + 1`
+    /// (`f` of the way), timeouts `a` and `b` clamped.
+    #[allow(clippy::too_many_arguments)]
+    #[inline]
+    fn value_in(&self, table: &DriveTable, md: Mode, z0: usize, f: f64, snap: &Snap, a: i32, b: i32) -> Option<f64> {
+        let c = to_class(md, a as usize, b as usize);
+        let at = |z: usize, dc: usize| list_value(table, &self.cells[cell(md, z, dc, c)], snap.margin, snap.secs, a, b);
+        by_distance(snap.down, snap.to_go, |dc| between(at(z0, dc), at(z0 + 1, dc), f))
     }
 
     /// P(the offense wins) in overtime from a snap with `secs` left in the

@@ -25,7 +25,8 @@ fn snap(margin: f64, secs: f64, ball_on: i32, down: i32, to_go: i32) -> Snap {
 
 #[test]
 fn down_and_distance_classes() {
-    assert_eq!(down_class(1, 10), None);
+    assert_eq!(down_class(1, 10), Some(7));
+    assert_eq!(down_class(1, 3), Some(7));
     assert_eq!(down_class(2, 5), Some(0));
     assert_eq!(down_class(2, 6), Some(1));
     assert_eq!(down_class(3, 2), Some(2));
@@ -56,9 +57,9 @@ fn rest_of_the_drive_by_hand() {
     assert!((v - 0.625).abs() < 1e-12, "{v}");
     let v = p.value(&t, &snap(0.0, 20.0, 45, 3, 8)).expect("a cell");
     assert!((v - 2.0 / 3.0).abs() < 1e-12, "{v}");
-    // No down (a kickoff or a try), or a first down: no cell.
+    // No down (a kickoff or a try): no cell. A first down has its own.
     assert_eq!(p.value(&t, &snap(0.0, 60.0, 45, 0, 0)), None);
-    assert_eq!(p.value(&t, &snap(0.0, 60.0, 45, 1, 10)), None);
+    assert!((p.value(&t, &snap(0.0, 60.0, 45, 1, 10)).expect("a cell") - 0.625).abs() < 1e-12);
 }
 
 /// Between two zones' centres the value is interpolated: at the 30 (the
