@@ -213,8 +213,7 @@ pub fn drive_logit(s: &Situation, drive: Option<&DriveModel>) -> f64 {
     } else {
         // The rest of this drive from its down and distance, one
         // possession on (`drive::snap`), in the final 10:00; the value at
-        // a possession's start before, on first downs and where no snap
-        // was seen like it.
+        // a possession's start before, and where no snap was seen like it.
         let start = t.value(s.margin, s.secs_game, f64::from(s.ball_on), off_to, def_to);
         let w = drive::snap::weight(s.secs_game);
         match (w > 0.0).then(|| d.params.snaps.value(t, &snap_of(s))).flatten() {

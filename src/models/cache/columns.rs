@@ -109,6 +109,8 @@ pub fn store_columns_behind(dir: &Path, k: &ColumnsKey, columns: &[&[f64]], what
         Err(e) => tracing::warn!("could not cache the {what}: {e:#}"),
     };
     let mut w = writing();
+    // A server writes again after each reload: forget the writes done.
+    w.retain(|(_, h)| !h.is_finished());
     match std::thread::Builder::new().name("cache-write".into()).spawn(write) {
         Ok(h) => w.push((path, h)),
         Err(e) => tracing::warn!("could not cache the {what}: {e}"),
