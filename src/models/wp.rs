@@ -214,11 +214,13 @@ pub fn drive_logit(s: &Situation, drive: Option<&DriveModel>) -> f64 {
         // The rest of this drive from its down and distance, one
         // possession on (`drive::snap`), in the final 10:00; the value at
         // a possession's start before, and where no snap was seen like it.
-        let start = t.value(s.margin, s.secs_game, f64::from(s.ball_on), off_to, def_to);
+        // (The start's value only where it has a say.)
+        let start = || t.value(s.margin, s.secs_game, f64::from(s.ball_on), off_to, def_to);
         let w = drive::snap::weight(s.secs_game);
         match (w > 0.0).then(|| d.params.snaps.value(t, &snap_of(s))).flatten() {
-            Some(rest) => w * rest + (1.0 - w) * start,
-            None => start,
+            Some(rest) if w >= 1.0 => rest,
+            Some(rest) => w * rest + (1.0 - w) * start(),
+            None => start(),
         }
     };
     let p = p.clamp(P_EPS, 1.0 - P_EPS);

@@ -511,9 +511,7 @@ impl DriveTable {
         }
         p
     }
-}
 
-impl DriveTable {
     /// Σ share × P(the team with the ball wins) after each of `list`'s
     /// outcomes, from `margin` with `secs` left and timeouts `a` and `b`
     /// (the team with the ball's and the other's): each outcome as `value`
@@ -622,4 +620,3 @@ impl DriveModel {
 
 #[cfg(test)]
 mod tests;
-

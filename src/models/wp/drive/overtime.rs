@@ -231,9 +231,7 @@ impl OvertimeTable {
         }
         p
     }
-}
 
-impl OvertimeTable {
     /// P(the team with the ball at `ball_on` wins) in `phase` with `secs`
     /// left in the period when its possession ends by one of `list`'s
     /// outcomes (the rest of a drive from a snap: `super::snap`), each

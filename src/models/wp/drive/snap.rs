@@ -8,7 +8,7 @@
 //! as the drive table (or in overtime the season's overtime table) one
 //! possession on.
 
-use super::{mode, to_class, Drive, DriveTable, Mode, Outcome, LATE_MODE_SECS, MAX_SWING, NMODE, NTO, NZ, STEP_SECS, TIE_MODE_SECS};
+use super::{mode, to_class, Drive, DriveTable, Mode, Outcome, LATE_MODE_SECS, MAX_SWING, NMODE, NTO, NZ, STEP_SECS, TIE_MODE_SECS, TO_CLASS};
 use super::overtime::{OvertimeTable, Phase};
 use crate::plays::Plays;
 use serde::{Deserialize, Serialize};
@@ -292,15 +292,15 @@ impl SnapParams {
                     continue;
                 }
                 let base = all[c].shares();
+                // The rest of the game has no timeouts classes (`to_class`
+                // reads its cells at class 0 alone).
                 let rest = if other[c].n > 0.0 { outcomes(&other[c].shares()) } else { outcomes(&base) };
-                for class in 0..NTO {
-                    cells[cell(Mode::Other, z, dc, class)] = rest.clone();
-                }
+                cells[cell(Mode::Other, z, dc, 0)] = rest;
                 // A late mode's own snaps shrunk toward all of the cell's,
                 // then each timeouts class's toward that.
                 for (k, md) in [Mode::Trail, Mode::Lead, Mode::Tie].into_iter().enumerate() {
                     let pooled = late[c * 3 + k].shrunk(&base);
-                    for class in 0..NTO {
+                    for class in 0..=TO_CLASS[NTO - 1] {
                         cells[cell(md, z, dc, class)] = outcomes(&late_class[(c * 3 + k) * NTO + class].shrunk(&pooled));
                     }
                 }

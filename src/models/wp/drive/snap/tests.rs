@@ -186,7 +186,6 @@ fn estimated_from_a_league() {
     assert!(td(5, 4) < td(5, 0), "{} vs {}", td(5, 4), td(5, 0));
 }
 
-
 /// Each outcome priced on its own by `DriveTable::value`, as the sum was
 /// first written: `after_outcomes` must give the same values.
 fn one_at_a_time(table: &DriveTable, list: &[Outcome], margin: f64, secs: f64, a: i32, b: i32) -> f64 {
