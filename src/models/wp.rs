@@ -5,15 +5,19 @@
 //! regime (each season's rule set, `crate::overtime`, solved with the
 //! drive model's possessions: `drive::overtime`), clock-kill states set to 1 from the clock rules,
 //! and the 4th period's drive-level Markov model (`drive`, which alone
-//! sees the timeouts) as three inputs;
+//! sees the timeouts) as three inputs; the final seconds of regulation
+//! from the kicking game and the clock (`finish`: a kick now as a floor,
+//! the last snap's and a try's values);
 //! a margin-and-time baseline; WPA per snap.
 
 pub mod drive;
+pub mod finish;
 
 use super::clock::{ClockRules, KillState};
 use crate::overtime::Rules;
 use drive::overtime::{max_answer, Phase};
 use drive::{DriveModel, DriveParams};
+use finish::{Finish, Late};
 use super::error::{ModelError, Result};
 use super::logit::{self, FitOptions, FnDesign, Labels};
 use crate::playfile::Kind;
@@ -414,6 +418,10 @@ pub struct WpModel {
     /// from the kept shares on first use, after a cache load too).
     #[serde(default)]
     pub drive: Option<DriveModel>,
+    /// The final seconds' rules (full model only): a kick now as a floor,
+    /// the last snap's value (`finish`).
+    #[serde(default)]
+    pub finish: Option<Finish>,
 }
 
 /// Fit on `rows` (indices into `plays`) with `ep` the EP before every snap.
@@ -511,17 +519,23 @@ pub fn fit_with(
         what: "snaps",
         source,
     })?;
+    let finish = match kind {
+        WpKind::Full => Finish::estimate(plays, rows),
+        WpKind::Baseline => None,
+    };
     Ok(WpModel {
         kind,
         features: names.iter().map(|s| s.to_string()).collect(),
         fit,
         clock: rules,
         drive,
+        finish,
     })
 }
 
 impl WpModel {
-    /// The offense's WP: 1 in a clock-kill state (full model), else the fit.
+    /// The offense's WP: 1 in a clock-kill state (full model), else the
+    /// fit, in the 4th period's final seconds with the rules of `finish`.
     pub fn situation(&self, s: &Situation) -> f64 {
         if self.kind == WpKind::Full && self.clock.kneel_out(&s.kill_state()) {
             return 1.0;
@@ -529,7 +543,16 @@ impl WpModel {
         let mut x = [0.0; FULL_FEATURES.len()];
         let p = self.features.len();
         features(self.kind, s, &self.clock, self.drive.as_ref(), &mut x[..p]);
-        self.fit.prob(&x[..p])
+        let wp = self.fit.prob(&x[..p]);
+        match (&self.finish, &self.drive) {
+            (Some(f), Some(d)) if s.period == 4 && !s.overtime && (s.down > 0 || s.is_try) && s.secs_game <= f64::from(drive::SPAN_SECS) => {
+                let late = Late { margin: s.margin, secs: s.secs_game, ball_on: s.ball_on, is_try: s.is_try };
+                let (off_to, def_to) = (s.off_timeouts.round() as i32, s.def_timeouts.round() as i32);
+                let t = d.table();
+                f.apply(&late, RECEIVE_AT, |m, secs, at| t.value(m, secs, at, def_to, off_to), wp)
+            }
+            _ => wp,
+        }
     }
 
     /// WP before every snap, from its offense's side.
@@ -564,3 +587,4 @@ pub fn wpa(plays: &Plays, wp: &[f64]) -> Vec<f64> {
         })
         .collect()
 }
+

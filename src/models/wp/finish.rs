@@ -1,0 +1,282 @@
+//! The final seconds of regulation, from the clock and the kicking game
+//! rather than from the fit. Two facts a staff knows:
+//!
+//! - **A kick now is always there.** The offense can kick on any down,
+//!   so its WP is at least what a kick now is worth: the make's share of the game after a kickoff to the other side,
+//!   the miss's share of the other side's ball at the spot of the kick
+//!   (both valued as possessions by the drive table, `drive::DriveTable`).
+//! - **The last snap.** When less time is left than a snap takes even
+//!   when the clock stops after it, no snap follows this one: WP is the
+//!   better of a kick and a shot at the end zone, each worth its chance of
+//!   success times the result it leaves (a level game goes on at ½), and
+//!   a try's is the better try's.
+//!
+//! Held out by season, the fitted WP alone valued a field goal try with a
+//! second left, behind by 2 at the opponent's 18, at 0.18 (the oracle
+//! 0.96), and behind by 3 at the 1 with 2 s left at 0.87 (oracle 0.48).
+//!
+//! The chances come from the file: a field goal's make by yards to the
+//! goal line, a touchdown on a dropback in a half's final seconds by yards
+//! to go, the tries' success. The seconds a snap and a kick take are read
+//! from its clock.
+
+use crate::playfile::Kind;
+use crate::plays::Plays;
+use serde::{Deserialize, Serialize};
+
+/// Seconds left in regulation from which a kick now is a floor. It holds
+/// at any time, but valued by the drive table alone it is no better than
+/// the fit before the final minutes: held out by season (seeds 7 / 101 /
+/// 202), the mean squared distance to the oracle was 0.00591 / 0.00598 /
+/// 0.00548 from the final 2:00, 0.00592 / 0.00600 / 0.00548 over the whole
+/// 4th period (without the rules, 0.00599 / 0.00613 / 0.00576).
+const FLOOR_SECS: f64 = 120.0;
+/// Seconds over which the last-snap value takes over from the fitted WP
+/// (with its kick-now floor) above `Finish::one_snap_secs`: no step in WP
+/// at that second.
+const LAST_IN_SECS: f64 = 5.0;
+/// A dropback counts as a shot at the end zone in this many final seconds
+/// of the 2nd or 4th period.
+const SHOT_SECS: i32 = 10;
+/// Yards to the goal line a shot is counted from at most.
+const SHOT_YARDS: i32 = 50;
+/// Fewer shots than this: every dropback's touchdowns are read instead.
+const MIN_SHOTS: usize = 100;
+/// Fewer field goal tries than this: no final-seconds rules (`estimate`).
+const MIN_KICKS: usize = 30;
+/// Where a missed field goal leaves the ball: the spot of the kick, seven
+/// yards behind the line (common practice, no source), but no nearer the
+/// kicking side's goal than the other side's 20.
+const HOLD_YARDS: i32 = 7;
+const MISS_AT_LEAST: i32 = 20;
+/// The clock defaults when the file has no clean pairs: seconds a snap
+/// takes when an incomplete pass stops the clock, and a field goal.
+const DEFAULT_SNAP_SECS: f64 = 4.0;
+const DEFAULT_KICK_SECS: f64 = 5.0;
+/// League try values when the file has none of a kind (from memory).
+const DEFAULT_EXTRA_POINT: f64 = 0.94;
+const DEFAULT_TWO_POINT: f64 = 0.48;
+
+/// The chances and clock the final seconds are valued with.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Finish {
+    /// Logit of a field goal's make on `[1, y / 10, (y / 10)²]`, `y` the
+    /// yards from the line of scrimmage to the goal line.
+    pub kick: [f64; 3],
+    /// Logit of a touchdown on a dropback on `[1, y]` (read from dropbacks
+    /// within `SHOT_YARDS`). On the demo league's 224 shots, `[1, ln y]`
+    /// put a shot from the 1 at 0.63, where those from the 5 or nearer
+    /// scored 6 times in 18; `[1, y]`, 0.41.
+    pub shot: [f64; 2],
+    /// Seconds a snap takes when the clock stops after it (the 10th
+    /// percentile of incomplete passes followed by a snap of the same
+    /// offense): with no more left, no snap follows.
+    pub one_snap_secs: f64,
+    /// Seconds a field goal try takes (the median).
+    pub kick_secs: f64,
+    /// Success of an extra point and of a two-point try.
+    pub extra_point: f64,
+    pub two_point: f64,
+}
+
+/// A snap as the final-seconds rules read it, from the offense's side.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Late {
+    /// Before the try, for a try.
+    pub margin: f64,
+    /// Seconds left in regulation.
+    pub secs: f64,
+    pub ball_on: i32,
+    pub is_try: bool,
+}
+
+fn sigmoid(x: f64) -> f64 {
+    1.0 / (1.0 + (-x).exp())
+}
+
+/// The offense's result when the game ends at `margin`: 1, ½ or 0.
+fn end(margin: i32) -> f64 {
+    match margin {
+        m if m > 0 => 1.0,
+        0 => 0.5,
+        _ => 0.0,
+    }
+}
+
+impl Finish {
+    /// P(a field goal try from `y` yards to the goal line is good).
+    pub fn kick_prob(&self, y: f64) -> f64 {
+        let x = y / 10.0;
+        sigmoid(self.kick[0] + self.kick[1] * x + self.kick[2] * x * x)
+    }
+
+    /// P(one dropback from `y` yards to the goal line scores a touchdown).
+    pub fn shot_prob(&self, y: f64) -> f64 {
+        sigmoid(self.shot[0] + self.shot[1] * y)
+    }
+
+    /// The offense's result when a touchdown on the last snap leaves it
+    /// `margin` before the try, with no time left: the better try.
+    fn after_touchdown(&self, margin: i32) -> f64 {
+        let (one, two) = (end(margin + 1), end(margin + 2));
+        let miss = end(margin);
+        (self.extra_point * one + (1.0 - self.extra_point) * miss).max(self.two_point * two + (1.0 - self.two_point) * miss)
+    }
+
+    /// WP when no snap follows this one: the better of a kick and a shot.
+    /// A staff behind by 3 at the 1 may kick to level where a shot would
+    /// be worth more; the better value keeps WP from rising as the margin
+    /// falls (with a shot likelier than ½ of a kick, behind by 4 would
+    /// otherwise be worth more than behind by 3).
+    pub fn last_snap(&self, margin: i32, ball_on: i32) -> f64 {
+        let y = f64::from((100 - ball_on).max(1));
+        let (p, q) = (self.kick_prob(y), self.shot_prob(y));
+        let kick = p * end(margin + 3) + (1.0 - p) * end(margin);
+        let shot = q * self.after_touchdown(margin + 6) + (1.0 - q) * end(margin);
+        kick.max(shot)
+    }
+
+    /// What a field goal try now is worth: the other side's possession after it valued by `other` (its WP from
+    /// its margin, the seconds left and where it starts: the `receive_at`
+    /// line after a make's kickoff, the spot of the kick after a miss).
+    pub fn kick_now(&self, s: &Late, receive_at: f64, other: impl Fn(f64, f64, f64) -> f64) -> f64 {
+        let m = s.margin.round() as i32;
+        let p = self.kick_prob(f64::from((100 - s.ball_on).max(1)));
+        let after = s.secs - self.kick_secs;
+        let (make, miss) = if after <= 0.0 {
+            (end(m + 3), end(m))
+        } else {
+            let spot = (100 - s.ball_on + HOLD_YARDS).clamp(MISS_AT_LEAST, 99);
+            (
+                1.0 - other(-f64::from(m + 3), after, receive_at),
+                1.0 - other(-f64::from(m), after, f64::from(spot)),
+            )
+        };
+        p * make + (1.0 - p) * miss
+    }
+
+    /// What the better try is worth (a try takes no time): its chance
+    /// times the game after it, the other side receiving the kickoff
+    /// (valued by `other`, as in `kick_now`), or its result with no time
+    /// left. `margin` is the offense's before the try.
+    pub fn try_now(&self, s: &Late, receive_at: f64, other: impl Fn(f64, f64, f64) -> f64) -> f64 {
+        let m = s.margin.round() as i32;
+        let after = |x: i32| if s.secs <= 0.0 { end(x) } else { 1.0 - other(-f64::from(x), s.secs, receive_at) };
+        let miss = after(m);
+        let one = self.extra_point * after(m + 1) + (1.0 - self.extra_point) * miss;
+        let two = self.two_point * after(m + 2) + (1.0 - self.two_point) * miss;
+        one.max(two)
+    }
+
+    /// `wp` (the fitted WP of a snap in the 4th period of regulation)
+    /// with the final seconds' rules: no lower than a kick now in the
+    /// final `FLOOR_SECS`; in the final `one_snap_secs` the last snap's
+    /// value, or a try's (each coming in over `LAST_IN_SECS` before them).
+    /// Every piece rises with the margin, so WP still does.
+    pub fn apply(&self, s: &Late, receive_at: f64, other: impl Fn(f64, f64, f64) -> f64, wp: f64) -> f64 {
+        let w = ((self.one_snap_secs + LAST_IN_SECS - s.secs) / LAST_IN_SECS).clamp(0.0, 1.0);
+        if s.is_try {
+            return if w == 0.0 { wp } else { w * self.try_now(s, receive_at, other) + (1.0 - w) * wp };
+        }
+        if s.secs > FLOOR_SECS {
+            return wp;
+        }
+        let held = wp.max(self.kick_now(s, receive_at, other));
+        if w == 0.0 {
+            return held;
+        }
+        w * self.last_snap(s.margin.round() as i32, s.ball_on) + (1.0 - w) * held
+    }
+
+    /// Read from the snaps among `rows`; `None` with fewer than
+    /// `MIN_KICKS` field goal tries.
+    pub fn estimate(plays: &Plays, rows: &[u32]) -> Option<Finish> {
+        let yards = |i: usize| f64::from((100 - plays.ball_on[i]).max(1));
+        let kicks: Vec<u32> = rows.iter().copied().filter(|&i| plays.kind[i as usize] == Kind::FieldGoal).collect();
+        if kicks.len() < MIN_KICKS {
+            return None;
+        }
+        let made: Vec<f64> = kicks.iter().map(|&i| f64::from(u8::from(plays.points[i as usize] == 3))).collect();
+        let kick = fit_small(&kicks, &made, 3, |i, out| {
+            let x = yards(i) / 10.0;
+            out.copy_from_slice(&[1.0, x, x * x]);
+        })?;
+        let dropback = |i: usize| plays.dropback[i] && plays.down[i] > 0 && (100 - SHOT_YARDS..100).contains(&plays.ball_on[i]);
+        let late = |i: usize| matches!(plays.period[i], 2 | 4) && plays.clock[i] <= SHOT_SECS;
+        let mut shots: Vec<u32> = rows.iter().copied().filter(|&i| dropback(i as usize) && late(i as usize)).collect();
+        if shots.len() < MIN_SHOTS {
+            shots = rows.iter().copied().filter(|&i| dropback(i as usize)).collect();
+        }
+        let scored: Vec<f64> = shots.iter().map(|&i| f64::from(u8::from(plays.points[i as usize] == 6))).collect();
+        let shot = fit_small(&shots, &scored, 2, |i, out| out.copy_from_slice(&[1.0, yards(i)]))?;
+        let share = |kind: Kind, points: i32, default: f64| {
+            let (mut n, mut good) = (0usize, 0usize);
+            for &i in rows {
+                if plays.kind[i as usize] == kind {
+                    n += 1;
+                    good += usize::from(plays.points[i as usize] == points);
+                }
+            }
+            if n == 0 {
+                default
+            } else {
+                good as f64 / n as f64
+            }
+        };
+        let (one_snap_secs, kick_secs) = clock_of(plays, rows);
+        Some(Finish {
+            kick: [kick[0], kick[1], kick[2]],
+            shot: [shot[0], shot[1]],
+            one_snap_secs,
+            kick_secs,
+            extra_point: share(Kind::ExtraPoint, 1, DEFAULT_EXTRA_POINT),
+            two_point: share(Kind::TwoPoint, 2, DEFAULT_TWO_POINT),
+        })
+    }
+}
+
+/// A small logistic fit (next to no penalty) of `y` on the `p` columns
+/// `fill` writes for each of `rows`; `None` if it fails.
+fn fit_small(rows: &[u32], y: &[f64], p: usize, fill: impl Fn(usize, &mut [f64]) + Sync) -> Option<Vec<f64>> {
+    use super::super::logit::{fit_from, FitOptions, FnDesign, Labels};
+    let design = FnDesign { rows, p, f: fill };
+    let opts = FitOptions { l2: 1e-6, threads: 1, ..FitOptions::default() };
+    fit_from(&design, Labels::Binary(y), None, &opts, None).ok().and_then(|f| f.coef.first().cloned())
+}
+
+/// The clock of `rows`: seconds from an incomplete pass to the next snap
+/// of the same offense in the same period (10th percentile), and from a
+/// field goal try to the next snap in the same period (median).
+fn clock_of(plays: &Plays, rows: &[u32]) -> (f64, f64) {
+    let mut snap = Vec::new();
+    let mut kick = Vec::new();
+    for &r in rows {
+        let i = r as usize;
+        let j = i + 1;
+        if j >= plays.len() || plays.game[j] != plays.game[i] || plays.period[j] != plays.period[i] {
+            continue;
+        }
+        let took = f64::from(plays.clock[i] - plays.clock[j]);
+        if took < 0.0 {
+            continue;
+        }
+        match plays.kind[i] {
+            Kind::Pass if !plays.complete[i] && !plays.intercepted[i] && plays.offense[j] == plays.offense[i] && plays.down[j] > 0 => snap.push(took),
+            Kind::FieldGoal => kick.push(took),
+            _ => {}
+        }
+    }
+    (quantile(&mut snap, 0.1).unwrap_or(DEFAULT_SNAP_SECS), quantile(&mut kick, 0.5).unwrap_or(DEFAULT_KICK_SECS))
+}
+
+/// The `q` quantile of `v` (the order statistic at `q` of the way), `None` if empty.
+fn quantile(v: &mut [f64], q: f64) -> Option<f64> {
+    if v.is_empty() {
+        return None;
+    }
+    v.sort_by(f64::total_cmp);
+    Some(v[((v.len() - 1) as f64 * q).round() as usize])
+}
+
+#[cfg(test)]
+mod tests;

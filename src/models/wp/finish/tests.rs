@@ -1,0 +1,145 @@
+//! Hand-worked values of the final seconds' rules.
+
+use super::*;
+
+/// Every kick good 9 times in 10 (logit ln 9), every shot 1 in 5 (logit
+/// ln ¼), extra points 0.94, two-point tries 0.48, a 4 s snap, a 5 s kick.
+fn flat() -> Finish {
+    Finish {
+        kick: [9f64.ln(), 0.0, 0.0],
+        shot: [0.25f64.ln(), 0.0],
+        one_snap_secs: 4.0,
+        kick_secs: 5.0,
+        extra_point: 0.94,
+        two_point: 0.48,
+    }
+}
+
+fn close(a: f64, b: f64) -> bool {
+    (a - b).abs() < 1e-12
+}
+
+#[test]
+fn the_last_snap_takes_the_better_of_a_kick_and_a_shot() {
+    let f = flat();
+    // Level: kick 0.9 × 1 + 0.1 × ½ = 0.95; shot 0.2 × 1 + 0.8 × ½ = 0.6.
+    assert!(close(f.last_snap(0, 80), 0.95));
+    // Behind by 2: kick 0.9; shot 0.2.
+    assert!(close(f.last_snap(-2, 80), 0.9));
+    // Behind by 3: a make only levels, 0.9 × ½ = 0.45; shot 0.2.
+    assert!(close(f.last_snap(-3, 80), 0.45));
+    // Behind by 4: no kick helps; the shot 0.2 wins outright.
+    assert!(close(f.last_snap(-4, 80), 0.2));
+    // Behind by 6: a touchdown levels; the extra point 0.94 × 1 + 0.06 × ½
+    // = 0.97 beats two, 0.48 + 0.52 × ½ = 0.74; 0.2 × 0.97 = 0.194.
+    assert!(close(f.last_snap(-6, 80), 0.194));
+    // Behind by 7: one point only levels (0.94 × ½ = 0.47), two win (0.48);
+    // 0.2 × 0.48 = 0.096.
+    assert!(close(f.last_snap(-7, 80), 0.096));
+    // Behind by 8: two points level, 0.2 × 0.48 × ½ = 0.048.
+    assert!(close(f.last_snap(-8, 80), 0.048));
+    // Behind by 9: nothing left.
+    assert!(close(f.last_snap(-9, 80), 0.0));
+    // Behind by 3 with a shot worth 0.6 and the kick 0.45: the shot.
+    let g = Finish { shot: [1.5f64.ln(), 0.0], ..flat() };
+    assert!(close(g.last_snap(-3, 99), 0.6));
+    // Ahead, the game is won.
+    assert!(close(f.last_snap(1, 20), 1.0));
+    // A kick likely 1 in 10, a shot 1 in 5: behind by 2, the shot, 0.2.
+    let h = Finish { kick: [(1.0f64 / 9.0).ln(), 0.0, 0.0], ..flat() };
+    assert!(close(h.last_snap(-2, 50), 0.2));
+}
+
+#[test]
+fn the_better_try_with_no_time_left() {
+    let f = flat();
+    let never = |_: f64, _: f64, _: f64| -> f64 { unreachable!("no time after the try") };
+    let at = |margin: f64| Late { margin, secs: 0.0, ball_on: 98, is_try: true };
+    // Behind by 2 before the try: one point loses; two (0.48) level, 0.24.
+    assert!(close(f.try_now(&at(-2.0), 25.0, never), 0.24));
+    // Behind by 1: one point levels, 0.94 × ½ = 0.47; two win, 0.48.
+    assert!(close(f.try_now(&at(-1.0), 25.0, never), 0.48));
+    // Level: one point wins, 0.94 + 0.06 × ½ = 0.97 over two's 0.74.
+    assert!(close(f.try_now(&at(0.0), 25.0, never), 0.97));
+    // With 30 s left the other side receives: it wins 0.3 when behind by
+    // 1, 0.1 behind by 2, 0.6 level; one point 0.94 × 0.7 + 0.06 × 0.4 =
+    // 0.682, two 0.48 × 0.9 + 0.52 × 0.4 = 0.64.
+    let other = |m: f64, secs: f64, at: f64| {
+        assert_eq!((secs, at), (30.0, 25.0));
+        match m as i32 {
+            -1 => 0.3,
+            -2 => 0.1,
+            0 => 0.6,
+            _ => panic!("unexpected margin {m}"),
+        }
+    };
+    assert!(close(f.try_now(&Late { margin: 0.0, secs: 30.0, ball_on: 98, is_try: true }, 25.0, other), 0.682));
+    // In the final seconds a try's value replaces the fit's (0.03 here).
+    assert!(close(f.apply(&at(-2.0), 25.0, never, 0.03), 0.24));
+}
+
+#[test]
+fn no_floor_before_the_final_two_minutes() {
+    let f = flat();
+    let never = |_: f64, _: f64, _: f64| -> f64 { unreachable!("no floor at 2:01") };
+    assert!(close(f.apply(&Late { margin: -1.0, secs: 121.0, ball_on: 80, is_try: false }, 25.0, never, 0.3), 0.3));
+}
+
+#[test]
+fn chances_follow_their_curves() {
+    let f = Finish { kick: [4.0, -0.1, -0.05], shot: [1.0, -0.05], ..flat() };
+    // From 30 yards: logit 4 - 0.3 - 0.45 = 3.25.
+    assert!(close(f.kick_prob(30.0), 1.0 / (1.0 + (-3.25f64).exp())));
+    // From 16 yards: logit 1 - 0.8 = 0.2.
+    assert!(close(f.shot_prob(16.0), 1.0 / (1.0 + (-0.2f64).exp())));
+}
+
+#[test]
+fn a_kick_with_no_time_after_it_ends_the_game() {
+    let f = flat();
+    let never = |_: f64, _: f64, _: f64| -> f64 { unreachable!("no time after the kick") };
+    let late = |margin: f64, secs: f64| Late { margin, secs, ball_on: 80, is_try: false };
+    // 5 s kick, 3 s left: nothing after it; behind by 1, 0.9.
+    assert!(close(f.kick_now(&late(-1.0, 3.0), 25.0, never), 0.9));
+    // Behind by 4 a kick cannot help; ahead, the game is won either way.
+    assert!(close(f.kick_now(&late(-4.0, 3.0), 25.0, never), 0.0));
+    assert!(close(f.kick_now(&late(1.0, 3.0), 25.0, never), 1.0));
+}
+
+#[test]
+fn the_last_snap_comes_in_over_five_seconds() {
+    let f = flat();
+    let never = |_: f64, _: f64, _: f64| -> f64 { unreachable!("no time after the kick") };
+    let late = |secs: f64| Late { margin: -2.0, secs, ball_on: 80, is_try: false };
+    // At 4 s and below, the last snap's 0.9 whatever the fit said.
+    assert!(close(f.apply(&late(4.0), 25.0, never, 0.3), 0.9));
+    assert!(close(f.apply(&late(1.0), 25.0, never, 0.99), 0.9));
+    // Ahead on the last snap: won, whatever the fit said.
+    assert!(close(f.apply(&Late { margin: 1.0, ..late(1.0) }, 25.0, never, 0.7), 1.0));
+    // Halfway in, at 6.5 s: a kick leaves 1.5 s; the other side wins 0.2
+    // behind, always ahead, so a kick now is 0.9 × 0.8 = 0.72 over the
+    // fit's 0.3; half of that and half of the last snap's 0.9 is 0.81.
+    let other = |m: f64, _: f64, _: f64| if m < 0.0 { 0.2 } else { 1.0 };
+    assert!(close(f.apply(&late(6.5), 25.0, other, 0.3), 0.81));
+}
+
+#[test]
+fn a_kick_with_time_after_it_hands_the_other_side_the_ball() {
+    let f = flat();
+    // 20 s left, behind by 1 at the opponent's 20 (ball on 80): a make
+    // leaves the other side 15 s, behind by 2, from the 25; a miss, 15 s,
+    // ahead by 1, from its own 27 (the spot of the kick).
+    let other = |m: f64, secs: f64, at: f64| {
+        assert_eq!(secs, 15.0);
+        match (m, at) {
+            (m, at) if m == -2.0 && at == 25.0 => 0.1,
+            (m, at) if m == 1.0 && at == 27.0 => 0.97,
+            _ => panic!("unexpected possession {m} {at}"),
+        }
+    };
+    // 0.9 × (1 - 0.1) + 0.1 × (1 - 0.97) = 0.81 + 0.003.
+    assert!(close(f.kick_now(&Late { margin: -1.0, secs: 20.0, ball_on: 80, is_try: false }, 25.0, other), 0.813));
+    // The fit's 0.6 is below the kick's 0.813: the floor holds; its 0.85 stands.
+    assert!(close(f.apply(&Late { margin: -1.0, secs: 20.0, ball_on: 80, is_try: false }, 25.0, other, 0.6), 0.813));
+    assert!(close(f.apply(&Late { margin: -1.0, secs: 20.0, ball_on: 80, is_try: false }, 25.0, other, 0.85), 0.85));
+}
