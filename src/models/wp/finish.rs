@@ -31,6 +31,9 @@ use serde::{Deserialize, Serialize};
 /// 0.00548 from the final 2:00, 0.00592 / 0.00600 / 0.00548 over the whole
 /// 4th period (without the rules, 0.00599 / 0.00613 / 0.00576).
 const FLOOR_SECS: f64 = 120.0;
+/// Seconds before `FLOOR_SECS` over which the floor comes in (a share of
+/// what it adds), so WP takes no step where it starts.
+const FLOOR_IN_SECS: f64 = 30.0;
 /// Seconds over which the last-snap value takes over from the fitted WP
 /// (with its kick-now floor) above `Finish::one_snap_secs`: no step in WP
 /// at that second.
@@ -170,7 +173,7 @@ impl Finish {
 
     /// `wp` (the fitted WP of a snap in the 4th period of regulation)
     /// with the final seconds' rules: no lower than a kick now in the
-    /// final `FLOOR_SECS`; in the final `one_snap_secs` the last snap's
+    /// final `FLOOR_SECS` (coming in over `FLOOR_IN_SECS` before them); in the final `one_snap_secs` the last snap's
     /// value, or a try's (each coming in over `LAST_IN_SECS` before them).
     /// Every piece rises with the margin, so WP still does.
     pub fn apply(&self, s: &Late, receive_at: f64, other: impl Fn(f64, f64, f64) -> f64, wp: f64) -> f64 {
@@ -178,10 +181,11 @@ impl Finish {
         if s.is_try {
             return if w == 0.0 { wp } else { w * self.try_now(s, receive_at, other) + (1.0 - w) * wp };
         }
-        if s.secs > FLOOR_SECS {
+        let f = ((FLOOR_SECS + FLOOR_IN_SECS - s.secs) / FLOOR_IN_SECS).clamp(0.0, 1.0);
+        if f == 0.0 {
             return wp;
         }
-        let held = wp.max(self.kick_now(s, receive_at, other));
+        let held = wp + f * (self.kick_now(s, receive_at, other) - wp).max(0.0);
         if w == 0.0 {
             return held;
         }

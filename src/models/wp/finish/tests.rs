@@ -79,10 +79,14 @@ fn the_better_try_with_no_time_left() {
 }
 
 #[test]
-fn no_floor_before_the_final_two_minutes() {
+fn the_floor_comes_in_before_the_final_two_minutes() {
     let f = flat();
-    let never = |_: f64, _: f64, _: f64| -> f64 { unreachable!("no floor at 2:01") };
-    assert!(close(f.apply(&Late { margin: -1.0, secs: 121.0, ball_on: 80, is_try: false }, 25.0, never, 0.3), 0.3));
+    let never = |_: f64, _: f64, _: f64| -> f64 { unreachable!("no floor at 2:30") };
+    assert!(close(f.apply(&Late { margin: -1.0, secs: 150.0, ball_on: 80, is_try: false }, 25.0, never, 0.3), 0.3));
+    // At 2:15, half of what the kick adds: it is 0.9 × (1 - 0.2) + 0.1 ×
+    // (1 - 1) = 0.72 against the fit's 0.3, so 0.3 + ½ × 0.42 = 0.51.
+    let other = |m: f64, _: f64, _: f64| if m < 0.0 { 0.2 } else { 1.0 };
+    assert!(close(f.apply(&Late { margin: -1.0, secs: 135.0, ball_on: 80, is_try: false }, 25.0, other, 0.3), 0.51));
 }
 
 #[test]
