@@ -295,6 +295,7 @@ fn main() -> anyhow::Result<()> {
     });
     println!("PDF report                 p50 {r50:>7.2} ms   p99 {r99:>7.2} ms");
     println!("peak RSS of the bench process {:>9.0} MiB   (the server's goal, <= 600 MiB, is measured on `lategame serve`: examples/loadtest.rs)", rss_mib());
+    lategame::models::cache::finish_writes();
     let _ = std::fs::remove_dir_all(&dir);
     Ok(())
 }

@@ -53,6 +53,7 @@ fn main() -> anyhow::Result<()> {
     assert!(league.scored.from_cache && league.scored.scores_from_cache);
     c.lap("warm start: open");
     drop(league);
+    lategame::models::cache::finish_writes();
     // KEEP=DIR: keep the cache files (coefficients, scores) there, to
     // compare two builds byte for byte.
     if let Some(keep) = std::env::var_os("KEEP") {

@@ -66,6 +66,9 @@ fn main() -> anyhow::Result<()> {
         let _ = league.scored.calibration.wait();
     }
     drop(league);
+    // The cache's columns are written behind the start: let them land
+    // before the folder goes.
+    lategame::models::cache::finish_writes();
     let _ = std::fs::remove_dir_all(&dir);
     Ok(())
 }
