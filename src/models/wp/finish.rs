@@ -2,9 +2,10 @@
 //! rather than from the fit. Two facts a staff knows:
 //!
 //! - **A kick now is always there.** The offense can kick on any down,
-//!   so its WP is at least what a kick now is worth: the make's share of the game after a kickoff to the other side,
-//!   the miss's share of the other side's ball at the spot of the kick
-//!   (both valued as possessions by the drive table, `drive::DriveTable`).
+//!   so its WP is at least what a kick now is worth: the make's share of
+//!   the game after a kickoff to the other side, the miss's share of the
+//!   other side's ball at the spot of the kick (both valued as
+//!   possessions by the drive table, `drive::DriveTable`).
 //! - **The last snap.** When less time is left than a snap takes even
 //!   when the clock stops after it, no snap follows this one: WP is the
 //!   better of a kick and a shot at the end zone, each worth its chance of
@@ -47,9 +48,9 @@ const SHOT_YARDS: i32 = 50;
 const MIN_SHOTS: usize = 100;
 /// Fewer field goal tries than this: no final-seconds rules (`estimate`).
 const MIN_KICKS: usize = 30;
-/// Where a missed field goal leaves the ball: the spot of the kick, seven
-/// yards behind the line (common practice, no source), but no nearer the
-/// kicking side's goal than the other side's 20.
+/// Where a missed field goal leaves the ball: the other side's at the spot
+/// of the kick, seven yards behind the line (common practice, no source),
+/// but at its own 20 at least.
 const HOLD_YARDS: i32 = 7;
 const MISS_AT_LEAST: i32 = 20;
 /// The clock defaults when the file has no clean pairs: seconds a snap
