@@ -147,3 +147,27 @@ fn a_kick_with_time_after_it_hands_the_other_side_the_ball() {
     assert!(close(f.apply(&Late { margin: -1.0, secs: 20.0, ball_on: 80, is_try: false }, 25.0, other, 0.6), 0.813));
     assert!(close(f.apply(&Late { margin: -1.0, secs: 20.0, ball_on: 80, is_try: false }, 25.0, other, 0.85), 0.85));
 }
+
+/// The models' test league kicks field goals good with probability
+/// σ(6 − 0.11 × (yards to the goal line + 17)) and tries extra points good
+/// 94 times in 100, two-point tries 48 (`models::testkit`): the estimate
+/// finds them within sampling error (a known truth, no source).
+#[test]
+fn estimated_from_a_league_with_known_kicking() {
+    let plays = crate::models::testkit::league(3000, 2, 11);
+    let rows: Vec<u32> = (0..plays.len() as u32).collect();
+    let f = Finish::estimate(&plays, &rows).expect("enough field goal tries");
+    let kicks = (0..plays.len()).filter(|&i| plays.kind[i] == Kind::FieldGoal).count();
+    let truth = |y: f64| 1.0 / (1.0 + (-(6.0 - 0.11 * (y + 17.0))).exp());
+    for y in [20.0, 30.0, 37.0] {
+        let (got, want) = (f.kick_prob(y), truth(y));
+        eprintln!("{kicks} tries; from {y} yards good {got:.3}, truth {want:.3}");
+        assert!((got - want).abs() < 0.03, "from {y} yards: {got:.3} against {want:.3}");
+    }
+    let tries = |k: Kind| (0..plays.len()).filter(|&i| plays.kind[i] == k).count() as f64;
+    let (n1, n2) = (tries(Kind::ExtraPoint), tries(Kind::TwoPoint));
+    // Within three standard errors of the binomial share.
+    assert!((f.extra_point - 0.94).abs() < 3.0 * (0.94f64 * 0.06 / n1).sqrt(), "extra points {:.3} of {n1}", f.extra_point);
+    assert!((f.two_point - 0.48).abs() < 3.0 * (0.48f64 * 0.52 / n2).sqrt(), "two-point tries {:.3} of {n2}", f.two_point);
+    assert!(f.one_snap_secs > 0.0 && f.kick_secs > 0.0);
+}
