@@ -28,12 +28,17 @@ pub(super) fn wp_after(models: &Models, s0: &Situation, st: &State, secs: f64, n
     let margin = |m: f64| if m > 0.0 { 1.0 } else if m < 0.0 { 0.0 } else { 0.5 };
     let m = s0.margin;
     let ot = s0.overtime;
+    // A touchdown as regulation ends leaves the try to decide: the WP
+    // model values it (`wp::finish`: the better try, ties ½) where it has
+    // the final seconds' rules; without them, the mean try decides (a
+    // touchdown behind by 7 then counted as a loss).
+    let try_decides = models.wp.finish.is_some();
     match next {
         Next::Touchdown => {
             if ot {
                 return 1.0;
             }
-            if end_of_game {
+            if end_of_game && !try_decides {
                 return margin(m + 6.0 + models.ep.try_mean);
             }
         }
@@ -41,7 +46,7 @@ pub(super) fn wp_after(models: &Models, s0: &Situation, st: &State, secs: f64, n
             if ot {
                 return 0.0;
             }
-            if end_of_game {
+            if end_of_game && !try_decides {
                 return margin(m - 6.0 - models.ep.try_mean);
             }
         }

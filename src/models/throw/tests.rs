@@ -243,3 +243,24 @@ fn a_short_catch_is_priced_with_the_yards_still_to_go() {
     assert_eq!(got.to_bits(), at(6).to_bits(), "{got} vs {}", at(6));
     assert!(at(6) > at(10), "3rd & 6 {} vs 3rd & 10 {}", at(6), at(10));
 }
+
+/// A touchdown as regulation ends leaves the try to decide (hand-worked
+/// from the model's own try shares): behind by 7, one point levels (½
+/// after) and two win, so WP after is the better of ½ × the extra point's
+/// share and the two-point share; behind by 6, one point wins and a miss
+/// levels. Before, the mean try decided: behind by 7 the touchdown counted
+/// as a loss (0), behind by 6 as a win (1).
+#[test]
+fn a_touchdown_as_time_runs_out_leaves_the_try() {
+    let (plays, models, s) = demo();
+    let f = models.wp.finish.as_ref().expect("the demo league has the final seconds' rules");
+    let i = (0..plays.len())
+        .find(|&i| plays.period[i] == 4 && plays.dropback[i] && plays.secs_game[i] <= 10 && plays.down[i] > 0)
+        .expect("a dropback in the final seconds");
+    let st = State { secs_half: 3, secs_game: 3, ..State::of_snap(&plays, i) };
+    for (margin, want) in [(-7.0, (0.5 * f.extra_point).max(f.two_point)), (-6.0, f.extra_point + 0.5 * (1.0 - f.extra_point))] {
+        let s0 = crate::models::wp::Situation { margin, secs_game: 3.0, ..crate::models::wp::Situation::of_snap(&plays, &s.ep, i) };
+        let got = after::wp_after(models, &s0, &st, 5.0, after::Next::Touchdown);
+        assert!((got - want).abs() < 1e-12, "behind by {}: WP after {got}, the better try {want}", -margin);
+    }
+}
