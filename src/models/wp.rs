@@ -419,7 +419,7 @@ pub struct WpModel {
     #[serde(default)]
     pub drive: Option<DriveModel>,
     /// The final seconds' rules (full model only): a kick now as a floor,
-    /// the last snap's value (`finish`).
+    /// the last snap's and a try's values (`finish`).
     #[serde(default)]
     pub finish: Option<Finish>,
 }
@@ -587,4 +587,3 @@ pub fn wpa(plays: &Plays, wp: &[f64]) -> Vec<f64> {
         })
         .collect()
 }
-

@@ -140,9 +140,10 @@ impl Finish {
         kick.max(shot)
     }
 
-    /// What a field goal try now is worth: the other side's possession after it valued by `other` (its WP from
-    /// its margin, the seconds left and where it starts: the `receive_at`
-    /// line after a make's kickoff, the spot of the kick after a miss).
+    /// What a field goal try now is worth: the other side's possession
+    /// after it valued by `other` (its WP from its margin, the seconds left
+    /// and where it starts: the `receive_at` line after a make's kickoff,
+    /// the spot of the kick after a miss), or the result with no time left.
     pub fn kick_now(&self, s: &Late, receive_at: f64, other: impl Fn(f64, f64, f64) -> f64) -> f64 {
         let m = s.margin.round() as i32;
         let p = self.kick_prob(f64::from((100 - s.ball_on).max(1)));
@@ -174,9 +175,10 @@ impl Finish {
 
     /// `wp` (the fitted WP of a snap in the 4th period of regulation)
     /// with the final seconds' rules: no lower than a kick now in the
-    /// final `FLOOR_SECS` (coming in over `FLOOR_IN_SECS` before them); in the final `one_snap_secs` the last snap's
-    /// value, or a try's (each coming in over `LAST_IN_SECS` before them).
-    /// Every piece rises with the margin, so WP still does.
+    /// final `FLOOR_SECS` (coming in over `FLOOR_IN_SECS` before them); in
+    /// the final `one_snap_secs` the last snap's value, or a try's (each
+    /// coming in over `LAST_IN_SECS` before them). Every piece rises with
+    /// the margin, so WP still does.
     pub fn apply(&self, s: &Late, receive_at: f64, other: impl Fn(f64, f64, f64) -> f64, wp: f64) -> f64 {
         let w = ((self.one_snap_secs + LAST_IN_SECS - s.secs) / LAST_IN_SECS).clamp(0.0, 1.0);
         if s.is_try {
@@ -266,7 +268,9 @@ fn clock_of(plays: &Plays, rows: &[u32]) -> (f64, f64) {
             continue;
         }
         match plays.kind[i] {
-            Kind::Pass if !plays.complete[i] && !plays.intercepted[i] && plays.offense[j] == plays.offense[i] && plays.down[j] > 0 => snap.push(took),
+            Kind::Pass if !plays.complete[i] && !plays.intercepted[i] && plays.offense[j] == plays.offense[i] && plays.down[j] > 0 => {
+                snap.push(took)
+            }
             Kind::FieldGoal => kick.push(took),
             _ => {}
         }
