@@ -4,6 +4,7 @@
 //! touchdowns, tries and safeties credited in full.
 
 use super::error::{ModelError, Result};
+use super::finish::Finish;
 use super::logit::{self, FitOptions, FnDesign, Labels};
 use crate::playfile::Kind;
 use crate::plays::{NextScore, Plays};
@@ -111,6 +112,11 @@ pub struct EpModel {
     /// there were none).
     #[serde(default)]
     pub free_kick_shift: f64,
+    /// The final seconds of a half (`super::finish`): there a snap's EP is
+    /// the points of the last play a staff runs. The fit alone put 1st &
+    /// 10 at the opponent's 5 with 1 s left in the half at 4.6.
+    #[serde(default)]
+    pub finish: Option<Finish>,
 }
 
 /// A safety: a snap other than a try that scored two points for either side.
@@ -270,6 +276,7 @@ pub fn fit(
         kickoff_a: 0.0,
         kickoff_b: 0.0,
         free_kick_shift: 0.0,
+        finish: Finish::estimate(plays, rows),
     };
     // Kickoffs: least squares of the next-score value on the reference EP.
     let (mut xs, mut ys) = (Vec::new(), Vec::new());
@@ -320,13 +327,25 @@ impl EpModel {
         q
     }
 
-    /// EP of a down-and-distance situation from the offense's side.
+    /// EP of a down-and-distance situation from the offense's side; in a
+    /// half's final seconds, the points of its last play (`finish`).
     pub fn situation_in(&self, down: i32, to_go: i32, ball_on: i32, secs_half: i32, sc: ScoreClock) -> f64 {
         let q = self.next_probs(down, to_go, ball_on, secs_half, sc);
-        NextScore::ALL
+        let ep = NextScore::ALL
             .iter()
             .map(|c| q[c.index()] * c.points(self.td_value))
-            .sum()
+            .sum();
+        match &self.finish {
+            Some(f) if down > 0 => {
+                let w = f.last_weight(f64::from(secs_half));
+                if w > 0.0 {
+                    w * f.last_points(sc.period, sc.margin, ball_on, self.td_value) + (1.0 - w) * ep
+                } else {
+                    ep
+                }
+            }
+            _ => ep,
+        }
     }
 
     /// `situation_in` tied in the 1st period (no late-game term).

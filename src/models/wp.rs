@@ -6,18 +6,17 @@
 //! drive model's possessions: `drive::overtime`), clock-kill states set to 1 from the clock rules,
 //! and the 4th period's drive-level Markov model (`drive`, which alone
 //! sees the timeouts) as three inputs; the final seconds of regulation
-//! from the kicking game and the clock (`finish`: a kick now as a floor,
-//! the last snap's and a try's values);
+//! from the kicking game and the clock (`super::finish`: a kick now as a
+//! floor, the last snap's and a try's values);
 //! a margin-and-time baseline; WPA per snap.
 
 pub mod drive;
-pub mod finish;
 
 use super::clock::{ClockRules, KillState};
 use crate::overtime::Rules;
 use drive::overtime::{max_answer, Phase};
 use drive::{DriveModel, DriveParams};
-use finish::{Finish, Late};
+use super::finish::{Finish, Late};
 use super::error::{ModelError, Result};
 use super::logit::{self, FitOptions, FnDesign, Labels};
 use crate::playfile::Kind;
@@ -419,7 +418,7 @@ pub struct WpModel {
     #[serde(default)]
     pub drive: Option<DriveModel>,
     /// The final seconds' rules (full model only): a kick now as a floor,
-    /// the last snap's and a try's values (`finish`).
+    /// the last snap's and a try's values (`super::finish`).
     #[serde(default)]
     pub finish: Option<Finish>,
 }
@@ -535,7 +534,8 @@ pub fn fit_with(
 
 impl WpModel {
     /// The offense's WP: 1 in a clock-kill state (full model), else the
-    /// fit, in the 4th period's final seconds with the rules of `finish`.
+    /// fit, in the 4th period's final seconds with the rules of
+    /// `super::finish`.
     pub fn situation(&self, s: &Situation) -> f64 {
         if self.kind == WpKind::Full && self.clock.kneel_out(&s.kill_state()) {
             return 1.0;

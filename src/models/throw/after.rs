@@ -29,7 +29,7 @@ pub(super) fn wp_after(models: &Models, s0: &Situation, st: &State, secs: f64, n
     let m = s0.margin;
     let ot = s0.overtime;
     // A touchdown as regulation ends leaves the try to decide: the WP
-    // model values it (`wp::finish`: the better try, ties ½) where it has
+    // model values it (`models::finish`: the better try, ties ½) where it has
     // the final seconds' rules; without them, the mean try decides (a
     // touchdown behind by 7 then counted as a loss).
     let try_decides = models.wp.finish.is_some();

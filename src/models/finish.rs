@@ -1,16 +1,18 @@
-//! The final seconds of regulation, from the clock and the kicking game
-//! rather than from the fit. Two facts a staff knows:
+//! The final seconds of a half and of regulation, from the clock and the
+//! kicking game rather than from the fits. Two facts a staff knows:
 //!
 //! - **A kick now is always there.** The offense can kick on any down,
 //!   so its WP is at least what a kick now is worth: the make's share of
 //!   the game after a kickoff to the other side, the miss's share of the
 //!   other side's ball at the spot of the kick (both valued as
-//!   possessions by the drive table, `drive::DriveTable`).
+//!   possessions by the drive table, `wp::drive::DriveTable`).
 //! - **The last snap.** When less time is left than a snap takes even
 //!   when the clock stops after it, no snap follows this one: WP is the
 //!   better of a kick and a shot at the end zone, each worth its chance of
 //!   success times the result it leaves (a level game goes on at ½), and
-//!   a try's is the better try's.
+//!   a try's is the better try's. EP there is the points of the play a
+//!   staff runs: at the end of the 4th period the one WP prefers (a
+//!   leader kneels), elsewhere the one worth more points.
 //!
 //! Held out by season, the fitted WP alone valued a field goal try with a
 //! second left, behind by 2 at the opponent's 18, at 0.18 (the oracle
@@ -133,11 +135,52 @@ impl Finish {
     /// falls (with a shot likelier than ½ of a kick, behind by 4 would
     /// otherwise be worth more than behind by 3).
     pub fn last_snap(&self, margin: i32, ball_on: i32) -> f64 {
-        let y = f64::from((100 - ball_on).max(1));
+        let (kick, shot) = self.last_options(margin, f64::from((100 - ball_on).max(1)));
+        kick.max(shot)
+    }
+
+    /// WP after a kick and after a shot on the last snap, `margin` as it
+    /// stands, `y` yards out.
+    fn last_options(&self, margin: i32, y: f64) -> (f64, f64) {
         let (p, q) = (self.kick_prob(y), self.shot_prob(y));
         let kick = p * end(margin + 3) + (1.0 - p) * end(margin);
         let shot = q * self.after_touchdown(margin + 6) + (1.0 - q) * end(margin);
-        kick.max(shot)
+        (kick, shot)
+    }
+
+    /// How far the last snap's value has taken over at `secs` left (0 to
+    /// 1): all of it in the final `one_snap_secs`, none `LAST_IN_SECS`
+    /// before them.
+    pub fn last_weight(&self, secs: f64) -> f64 {
+        ((self.one_snap_secs + LAST_IN_SECS - secs) / LAST_IN_SECS).clamp(0.0, 1.0)
+    }
+
+    /// The points a last snap at `ball_on` is expected to score, for a
+    /// touchdown worth `td_value` with its try, the offense `margin` ahead
+    /// in `period`. At the end of regulation (the 4th period) the play WP
+    /// prefers (`last_snap`'s; a leader kneels: 0; behind by more than 3, a
+    /// shot); at the end of the 1st
+    /// half, in overtime and where the score is not told (EP's neutral
+    /// score and period, the 1st), the play worth more points: a kick, a
+    /// shot or a kneel.
+    pub fn last_points(&self, period: i32, margin: i32, ball_on: i32, td_value: f64) -> f64 {
+        let y = f64::from((100 - ball_on).max(1));
+        let (kick, shot) = (3.0 * self.kick_prob(y), td_value * self.shot_prob(y));
+        if period != 4 {
+            return kick.max(shot).max(0.0);
+        }
+        if margin > 0 {
+            return 0.0;
+        }
+        // Behind by more than a kick makes up, a shot, even when nothing
+        // helps (the demo league's offenses behind by 9 or more threw on
+        // their last snap in every case in the opponent's 40-21).
+        let (kick_wp, shot_wp) = self.last_options(margin, y);
+        if margin >= -3 && kick_wp >= shot_wp {
+            kick
+        } else {
+            shot
+        }
     }
 
     /// What a field goal try now is worth: the other side's possession
@@ -180,7 +223,7 @@ impl Finish {
     /// coming in over `LAST_IN_SECS` before them). Every piece rises with
     /// the margin, so WP still does.
     pub fn apply(&self, s: &Late, receive_at: f64, other: impl Fn(f64, f64, f64) -> f64, wp: f64) -> f64 {
-        let w = ((self.one_snap_secs + LAST_IN_SECS - s.secs) / LAST_IN_SECS).clamp(0.0, 1.0);
+        let w = self.last_weight(s.secs);
         if s.is_try {
             return if w == 0.0 { wp } else { w * self.try_now(s, receive_at, other) + (1.0 - w) * wp };
         }
@@ -245,7 +288,7 @@ impl Finish {
 /// A small logistic fit (next to no penalty) of `y` on the `p` columns
 /// `fill` writes for each of `rows`; `None` if it fails.
 fn fit_small(rows: &[u32], y: &[f64], p: usize, fill: impl Fn(usize, &mut [f64]) + Sync) -> Option<Vec<f64>> {
-    use super::super::logit::{fit_from, FitOptions, FnDesign, Labels};
+    use super::logit::{fit_from, FitOptions, FnDesign, Labels};
     let design = FnDesign { rows, p, f: fill };
     let opts = FitOptions { l2: 1e-6, threads: 1, ..FitOptions::default() };
     fit_from(&design, Labels::Binary(y), None, &opts, None).ok().and_then(|f| f.coef.first().cloned())

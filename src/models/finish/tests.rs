@@ -171,3 +171,26 @@ fn estimated_from_a_league_with_known_kicking() {
     assert!((f.two_point - 0.48).abs() < 3.0 * (0.48f64 * 0.52 / n2).sqrt(), "two-point tries {:.3} of {n2}", f.two_point);
     assert!(f.one_snap_secs > 0.0 && f.kick_secs > 0.0);
 }
+
+#[test]
+fn last_points_are_the_play_a_staff_runs() {
+    let f = flat();
+    // A touchdown with its try worth 6.94: a shot 0.2 × 6.94 = 1.388, a
+    // kick 0.9 × 3 = 2.7.
+    let td = 6.94;
+    // End of the 1st half (or EP's neutral 1st period): the more points.
+    assert!(close(f.last_points(2, -10, 80, td), 2.7));
+    assert!(close(f.last_points(1, 0, 80, td), 2.7));
+    let far = Finish { kick: [(1.0f64 / 9.0).ln(), 0.0, 0.0], ..flat() };
+    // A kick 0.1 × 3 = 0.3 against the shot's 1.388.
+    assert!(close(far.last_points(2, 0, 40, td), 1.388));
+    // End of regulation: a leader kneels; behind by 2 the kick wins the
+    // game (WP 0.9 against 0.2), so 2.7; behind by 4 or by 20, a shot.
+    assert!(close(f.last_points(4, 1, 80, td), 0.0));
+    assert!(close(f.last_points(4, -2, 80, td), 2.7));
+    assert!(close(f.last_points(4, -4, 80, td), 1.388));
+    assert!(close(f.last_points(4, -20, 80, td), 1.388));
+    // Behind by 3 with a shot worth more to WP (0.6 against 0.45): the shot.
+    let g = Finish { shot: [1.5f64.ln(), 0.0], ..flat() };
+    assert!(close(g.last_points(4, -3, 99, td), 0.6 * td));
+}
