@@ -148,6 +148,11 @@ impl Finish {
         (kick, shot)
     }
 
+    /// Seconds left from which the last snap's value starts to take over.
+    pub fn last_from_secs(&self) -> f64 {
+        self.one_snap_secs + LAST_IN_SECS
+    }
+
     /// How far the last snap's value has taken over at `secs` left (0 to
     /// 1): all of it in the final `one_snap_secs`, none `LAST_IN_SECS`
     /// before them.
