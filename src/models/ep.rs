@@ -1,7 +1,8 @@
 //! Expected points: a multinomial logistic model of the next score in the
 //! half (Yurko, Ventura & Horowitz 2019), EP = sum of class probability times
 //! class points; kickoff, free-kick and try values; EPA per snap, with
-//! touchdowns, tries and safeties credited in full.
+//! touchdowns, tries and safeties credited in full. In a half's final
+//! seconds EP is the points of the last play (`super::finish`).
 
 use super::error::{ModelError, Result};
 use super::finish::Finish;
