@@ -79,7 +79,9 @@ pub fn fit_rows_from(plays: &Plays, rows: &[u32], init: Option<&Models>) -> Resu
             let ep = ep?;
             let ep_all = ep.score_all_blind(plays);
             let (wp, baseline) = rayon::join(
-                || wp::fit_with(plays, &ep_all, rows, wp::WpKind::Full, &opts, init.map(|m| &m.wp), drive),
+                // The final seconds' chances are the EP model's, read from
+                // the same rows.
+                || wp::fit_with(plays, &ep_all, rows, wp::WpKind::Full, &opts, init.map(|m| &m.wp), drive, ep.finish.clone()),
                 || wp::fit(plays, &ep_all, rows, wp::WpKind::Baseline, &opts, init.map(|m| &m.baseline)),
             );
             Ok((ep, wp?, baseline?))

@@ -432,11 +432,11 @@ pub fn fit(
     opts: &FitOptions,
     init: Option<&WpModel>,
 ) -> Result<WpModel> {
-    let drive = match kind {
-        WpKind::Full => drive_model(plays, rows),
-        WpKind::Baseline => None,
+    let (drive, finish) = match kind {
+        WpKind::Full => (drive_model(plays, rows), Finish::estimate(plays, rows)),
+        WpKind::Baseline => (None, None),
     };
-    fit_with(plays, ep, rows, kind, opts, init, drive)
+    fit_with(plays, ep, rows, kind, opts, init, drive, finish)
 }
 
 /// The full model's drive model from `rows`, its table solved on the
@@ -449,8 +449,10 @@ pub fn drive_model(plays: &Plays, rows: &[u32]) -> Option<DriveModel> {
     m
 }
 
-/// `fit` with the drive model given (`drive_model` of the same rows; the
-/// baseline takes none).
+/// `fit` with the drive model and the final seconds' chances given
+/// (`drive_model` and `Finish::estimate` of the same rows, the EP model's
+/// own; the baseline keeps neither).
+#[allow(clippy::too_many_arguments)]
 pub fn fit_with(
     plays: &Plays,
     ep: &[f64],
@@ -459,6 +461,7 @@ pub fn fit_with(
     opts: &FitOptions,
     init: Option<&WpModel>,
     drive: Option<DriveModel>,
+    finish: Option<Finish>,
 ) -> Result<WpModel> {
     let names = kind.features();
     let y: Vec<f64> = rows
@@ -518,10 +521,7 @@ pub fn fit_with(
         what: "snaps",
         source,
     })?;
-    let finish = match kind {
-        WpKind::Full => Finish::estimate(plays, rows),
-        WpKind::Baseline => None,
-    };
+    let finish = finish.filter(|_| kind == WpKind::Full);
     Ok(WpModel {
         kind,
         features: names.iter().map(|s| s.to_string()).collect(),
