@@ -839,9 +839,12 @@ fn wp_has_no_seam_in_field_position() {
 /// timeouts entered through the drive model alone, 1,499 of these 8,640
 /// pairs broke it by more than 0.01, up to 0.13 (the defense's 0 to 3
 /// timeouts, level at the own 20 with 60 s left: the offense's WP 0.44 to
-/// 0.56). Within 0.015: the drive model counts a trailing side's drives with
-/// 0-1 and 2-3 timeouts apart, and where the two classes meet the counts can
-/// still disagree by that much (9 pairs over 0.01, none over 0.015).
+/// 0.56). Within 0.01: the drive model counts a trailing side's drives with
+/// 0-1 and 2-3 timeouts apart; in the final 2:00 the rest of a drive takes
+/// the class with fewer as a bound (`drive::snap`). Without that bound, 16
+/// of the 16,128 pairs from 2:00 down broke it by more than 0.01, up to 0.0195 (behind
+/// by 4, 2nd & 5 at the opponent's 15 with 30 s left: 0.267 with one
+/// timeout, 0.248 with two); with it, none (the worst 0.008).
 #[test]
 fn timeouts_in_hand_do_not_cost() {
     let Some(d) = demo() else { return };
@@ -849,7 +852,7 @@ fn timeouts_in_hand_do_not_cost() {
     for down in 1..=4 {
         for ball_on in [20, 45, 65, 85] {
             for margin in [-8.0, -4.0, -1.0, 0.0, 2.0, 6.0] {
-                for secs in [1500.0, 900.0, 600.0, 300.0, 120.0, 60.0] {
+                for secs in [1500.0, 900.0, 600.0, 300.0, 120.0, 90.0, 60.0, 45.0, 30.0, 20.0, 10.0] {
                     let at = |a: f64, b: f64| {
                         let s = Situation { down, to_go: 5, ball_on, off_timeouts: a, def_timeouts: b, ..mid(margin, secs, 0.5) };
                         wp.situation(&s)
@@ -860,10 +863,10 @@ fn timeouts_in_hand_do_not_cost() {
                             let here = at(a, b);
                             let what = format!("down {down} at {ball_on}, margin {margin:+}, {secs} s, timeouts {a} / {b}: WP {here:.4}");
                             if a < 3.0 {
-                                assert!(at(a + 1.0, b) >= here - 0.015, "{what}, {:.4} with one more of its own", at(a + 1.0, b));
+                                assert!(at(a + 1.0, b) >= here - 0.01, "{what}, {:.4} with one more of its own", at(a + 1.0, b));
                             }
                             if b < 3.0 {
-                                assert!(at(a, b + 1.0) <= here + 0.015, "{what}, {:.4} with one more for the defense", at(a, b + 1.0));
+                                assert!(at(a, b + 1.0) <= here + 0.01, "{what}, {:.4} with one more for the defense", at(a, b + 1.0));
                             }
                         }
                     }
@@ -1016,3 +1019,4 @@ fn ep_in_the_final_seconds_is_the_last_play() {
     eprintln!("{n} snaps: mean EP {ep:.2}, mean next score {y:.2} (SE {se:.2})");
     assert!(n >= 200.0 && (ep - y).abs() <= 2.5 * se, "{n} snaps: mean EP {ep:.2} against {y:.2} (SE {se:.2})");
 }
+

@@ -232,3 +232,44 @@ fn outcome_sum_matches_one_outcome_at_a_time() {
     }
     assert!(n > 10_000, "{n} cases");
 }
+
+/// Worked by hand: in the final 2:00 the timeouts class below bounds a
+/// snap's value, since a side may leave its timeouts unused. Every drive
+/// takes 30 s, so with 20 s left it gets 2/3 of its outcome.
+/// - Behind by 3 with three timeouts (class 2-3), whose drives come to
+///   nothing (0), where drives with 0-1 timeouts score a touchdown
+///   (2/3 · 1 + 1/3 · 0): 2/3, the class below.
+/// - Ahead by 3, the defense holding three timeouts, whose drives score
+///   (1), where against 0-1 they are returned for 7 (2/3 · 0 + 1/3 · 1):
+///   1/3, the class below.
+/// - With 2:30 left the classes stand as counted: the value is the one of
+///   the class alone (its cells in both classes), bit for bit.
+#[test]
+fn fewer_timeouts_bound_the_final_two_minutes() {
+    let t = field_goal_table();
+    let none = vec![o(0, false, 6, 1.0)];
+    let mut p = every_cell(&none);
+    for z in 0..SNAP_ZONES {
+        for dc in 0..NDOWN {
+            p.cells[cell(Mode::Trail, z, dc, 0)] = vec![o(7, false, 6, 1.0)];
+            p.cells[cell(Mode::Lead, z, dc, 0)] = vec![o(-7, false, 6, 1.0)];
+            p.cells[cell(Mode::Lead, z, dc, 1)] = vec![o(7, false, 6, 1.0)];
+        }
+    }
+    let trailing = p.value(&t, &snap(-3.0, 20.0, 45, 2, 10)).expect("a cell");
+    assert!((trailing - 2.0 / 3.0).abs() < 1e-12, "{trailing}");
+    let leading = p.value(&t, &snap(3.0, 20.0, 45, 2, 10)).expect("a cell");
+    assert!((leading - 1.0 / 3.0).abs() < 1e-12, "{leading}");
+    // Outside the final 2:00: class 2-3's own cells.
+    let mut q = p.clone();
+    for z in 0..SNAP_ZONES {
+        for dc in 0..NDOWN {
+            q.cells[cell(Mode::Trail, z, dc, 0)] = none.clone();
+            q.cells[cell(Mode::Lead, z, dc, 0)] = vec![o(7, false, 6, 1.0)];
+        }
+    }
+    for margin in [-3.0, 3.0] {
+        let s = snap(margin, 150.0, 45, 2, 10);
+        assert_eq!(p.value(&t, &s), q.value(&t, &s), "{margin}");
+    }
+}
