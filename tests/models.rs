@@ -836,15 +836,16 @@ fn wp_has_no_seam_in_field_position() {
 /// fall with its own timeouts nor rise with the defense's, in the final
 /// 25:00 and the late minutes, by down, field position and margin (a
 /// property, no source: a side may always leave a timeout unused). Before
-/// timeouts entered through the drive model alone, 1,499 of these 8,640
-/// pairs broke it by more than 0.01, up to 0.13 (the defense's 0 to 3
-/// timeouts, level at the own 20 with 60 s left: the offense's WP 0.44 to
-/// 0.56). Within 0.01: the drive model counts a trailing side's drives with
-/// 0-1 and 2-3 timeouts apart; in the final 2:00 the rest of a drive takes
-/// the class with fewer as a bound (`drive::snap`). Without that bound, 16
-/// of the 16,128 pairs from 2:00 down broke it by more than 0.01, up to 0.0195 (behind
-/// by 4, 2nd & 5 at the opponent's 15 with 30 s left: 0.267 with one
-/// timeout, 0.248 with two); with it, none (the worst 0.008).
+/// timeouts entered through the drive model alone, 1,499 of 8,640 pairs
+/// on the grid then (25:00 to 60 s) broke it by more than 0.01, up to 0.13 (the
+/// defense's 0 to 3 timeouts, level at the own 20 with 60 s left: the
+/// offense's WP 0.44 to 0.56). Within 0.01: the drive model counts a
+/// trailing side's drives with 0-1 and 2-3 timeouts apart; in the final
+/// 2:00 the rest of a drive takes the class with fewer as a bound
+/// (`drive::snap`). Without that bound, 16 of the 16,128 pairs from 2:00
+/// down broke it by more than 0.01, up to 0.0195 (behind by 4, 2nd & 5 at
+/// the opponent's 15 with 30 s left: 0.267 with one timeout, 0.248 with
+/// two); with it, none (the worst 0.008).
 #[test]
 fn timeouts_in_hand_do_not_cost() {
     let Some(d) = demo() else { return };
@@ -1019,4 +1020,3 @@ fn ep_in_the_final_seconds_is_the_last_play() {
     eprintln!("{n} snaps: mean EP {ep:.2}, mean next score {y:.2} (SE {se:.2})");
     assert!(n >= 200.0 && (ep - y).abs() <= 2.5 * se, "{n} snaps: mean EP {ep:.2} against {y:.2} (SE {se:.2})");
 }
-
