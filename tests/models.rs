@@ -1020,3 +1020,26 @@ fn ep_in_the_final_seconds_is_the_last_play() {
     eprintln!("{n} snaps: mean EP {ep:.2}, mean next score {y:.2} (SE {se:.2})");
     assert!(n >= 200.0 && (ep - y).abs() <= 2.5 * se, "{n} snaps: mean EP {ep:.2} against {y:.2} (SE {se:.2})");
 }
+
+/// Behind by 3, 2nd & goal at the 3 with 14 s left and no timeouts (the
+/// demo league's 2020w05g14, seq 155): the offense has a shot or two
+/// before a kick to level, and a play short of the goal line runs the
+/// clock out. The simulator's oracle, playing the game on 300 times from
+/// that snap, won 0.53 of them (`examples/wp_ceiling.rs`, seed 7: a known
+/// truth of the simulated league); the fitted WP with the last snap's rule
+/// read 0.92 held out (0.80 fitted on every season), so the tying field
+/// goal that followed cost −0.435 WPA on the game page. The
+/// final snaps at the goal line (`models::finish`) are the value here.
+#[test]
+fn the_goal_line_with_seconds_left_is_a_shot_or_two() {
+    let Some(d) = demo() else { return };
+    let wp = &d.scored.models.wp;
+    let s = Situation { down: 2, to_go: 3, ball_on: 97, off_timeouts: 0.0, def_timeouts: 2.0, ..mid(-3.0, 14.0, 4.0) };
+    let v = wp.situation(&s);
+    assert!((v - 0.53).abs() <= 0.1, "WP {v:.3} against the oracle's 0.53");
+    // A timeout in hand turns a play short of the goal line into another
+    // snap: worth more, not less.
+    let with = wp.situation(&Situation { off_timeouts: 2.0, ..s });
+    eprintln!("behind by 3 at the 3, 14 s: WP {v:.3} without a timeout, {with:.3} with two");
+    assert!(with > v + 0.02, "{with:.3} with two timeouts, {v:.3} without");
+}

@@ -13,6 +13,11 @@
 //!   a try's is the better try's. EP there is the points of the play a
 //!   staff runs: at the end of the 4th period the one WP prefers (a
 //!   leader kneels), elsewhere the one worth more points.
+//! - **The final snaps at the goal line.** Inside the final 0:40 near the
+//!   goal line the snaps left are few and counted: on each down a kick
+//!   now or a shot at the end zone, a miss stopping the clock or not
+//!   (`Finish::final_snaps`). The fitted WP read 0.92 behind by 3 at the
+//!   3 with 14 s and no timeouts (the oracle 0.53).
 //!
 //! Held out by season, the fitted WP alone valued a field goal try with a
 //! second left, behind by 2 at the opponent's 18, at 0.18 (the oracle
@@ -62,6 +67,28 @@ const DEFAULT_KICK_SECS: f64 = 5.0;
 /// League try values when the file has none of a kind (from memory).
 const DEFAULT_EXTRA_POINT: f64 = 0.94;
 const DEFAULT_TWO_POINT: f64 = 0.48;
+/// The final snaps at the goal line (`Finish::final_snaps`): from 0:40 left
+/// they come in, all of them from 0:30; and from the opponent's 25 in, all
+/// of them from the 15.
+const SNAPS_FROM_SECS: f64 = 40.0;
+const SNAPS_FULL_SECS: f64 = 30.0;
+const SNAPS_FROM_BALL_ON: f64 = 75.0;
+const SNAPS_FULL_BALL_ON: f64 = 85.0;
+/// The dropbacks the final snaps' outcomes are read from: in a half's
+/// final 2:00 from the opponent's 30 in (of an offense behind or level in
+/// the 4th period).
+const SNAPS_READ_SECS: i32 = 120;
+const SNAPS_READ_BALL_ON: i32 = 70;
+/// Fewer such dropbacks, or clock gaps, than this: the defaults below.
+const MIN_SNAP_READS: usize = 30;
+/// Defaults for a file without enough of them (from memory): of the
+/// dropbacks that do not score, the share incomplete and intercepted; the
+/// seconds to the next snap after one that keeps the clock running,
+/// without a timeout and with one.
+const DEFAULT_INCOMPLETE: f64 = 0.4;
+const DEFAULT_INTERCEPTED: f64 = 0.03;
+const DEFAULT_RUN_SECS: f64 = 16.0;
+const DEFAULT_STOP_SECS: f64 = 9.0;
 
 /// The chances and clock the final seconds are valued with.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -83,6 +110,33 @@ pub struct Finish {
     /// Success of an extra point and of a two-point try.
     pub extra_point: f64,
     pub two_point: f64,
+    /// Of the dropbacks at the goal line late that do not score
+    /// (`SNAPS_READ_*`), the share incomplete (the clock stops) and
+    /// intercepted; the rest keep the clock running.
+    #[serde(default = "default_incomplete")]
+    pub incomplete: f64,
+    #[serde(default = "default_intercepted")]
+    pub intercepted: f64,
+    /// Seconds from such a dropback that keeps the clock running to the
+    /// next snap (the median), when the offense has no timeout left and
+    /// when it has one (it is taken).
+    #[serde(default = "default_run_secs")]
+    pub run_secs: f64,
+    #[serde(default = "default_stop_secs")]
+    pub stop_secs: f64,
+}
+
+fn default_incomplete() -> f64 {
+    DEFAULT_INCOMPLETE
+}
+fn default_intercepted() -> f64 {
+    DEFAULT_INTERCEPTED
+}
+fn default_run_secs() -> f64 {
+    DEFAULT_RUN_SECS
+}
+fn default_stop_secs() -> f64 {
+    DEFAULT_STOP_SECS
 }
 
 /// A snap as the final-seconds rules read it, from the offense's side.
@@ -221,6 +275,67 @@ impl Finish {
         one.max(two)
     }
 
+    /// How far the final snaps' value has taken over at `secs` left and
+    /// `ball_on` (0 to 1): none before 0:40 or outside the opponent's 25.
+    pub fn snaps_weight(&self, secs: f64, ball_on: i32) -> f64 {
+        let t = ((SNAPS_FROM_SECS - secs) / (SNAPS_FROM_SECS - SNAPS_FULL_SECS)).clamp(0.0, 1.0);
+        let z = ((f64::from(ball_on) - SNAPS_FROM_BALL_ON) / (SNAPS_FULL_BALL_ON - SNAPS_FROM_BALL_ON)).clamp(0.0, 1.0);
+        t * z
+    }
+
+    /// WP from the final snaps at the goal line, by backward induction:
+    /// on each down a kick now or a shot at the end zone, whichever is
+    /// worth more. A shot scores with `shot_prob` (then the better try
+    /// with the time left); else it is incomplete (the clock stops, a snap
+    /// later the next down), intercepted (the other side's ball at the
+    /// spot), or it keeps the clock running (a timeout taken if one is
+    /// left, `stop_secs`; else `run_secs`). A 4th down that fails hands
+    /// the other side the ball at the spot. The ball stays where it is (a
+    /// short gain is no touchdown). `other` values the other side's
+    /// possessions, as in `kick_now`; `timeouts` are the offense's.
+    pub fn final_snaps(&self, s: &Late, down: i32, timeouts: i32, receive_at: f64, other: &impl Fn(f64, f64, f64) -> f64) -> f64 {
+        let m = s.margin.round() as i32;
+        let y = f64::from((100 - s.ball_on).max(1));
+        let p = self.shot_prob(y);
+        let spot = f64::from((100 - s.ball_on).max(1));
+        let over = |secs: f64| if secs <= 0.0 { end(m) } else { 1.0 - other(-f64::from(m), secs, spot) };
+        self.snaps_from(s, m, p, down, timeouts, s.secs, receive_at, other, &over)
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    fn snaps_from(
+        &self,
+        s: &Late,
+        m: i32,
+        p: f64,
+        down: i32,
+        timeouts: i32,
+        secs: f64,
+        receive_at: f64,
+        other: &impl Fn(f64, f64, f64) -> f64,
+        over: &impl Fn(f64) -> f64,
+    ) -> f64 {
+        if secs <= 0.0 {
+            return end(m);
+        }
+        let kick = self.kick_now(&Late { secs, ..*s }, receive_at, other);
+        let after = secs - self.one_snap_secs;
+        let next = |t: f64, to: i32| {
+            if down >= 4 {
+                over(t)
+            } else if t <= 0.0 {
+                end(m)
+            } else {
+                self.snaps_from(s, m, p, down + 1, to, t, receive_at, other, over)
+            }
+        };
+        let scored = self.try_now(&Late { margin: f64::from(m + 6), secs: after.max(0.0), ball_on: s.ball_on, is_try: true }, receive_at, other);
+        let running = if timeouts > 0 { next(secs - self.stop_secs, timeouts - 1) } else { next(secs - self.run_secs, 0) };
+        let missed = self.incomplete * next(after, timeouts) + self.intercepted * over(after) + (1.0 - self.incomplete - self.intercepted) * running;
+        let shot = p * scored + (1.0 - p) * missed;
+        kick.max(shot)
+    }
+
     /// `wp` (the fitted WP of a snap in the 4th period of regulation)
     /// with the final seconds' rules: no lower than a kick now in the
     /// final `FLOOR_SECS` (coming in over `FLOOR_IN_SECS` before them); in
@@ -279,6 +394,7 @@ impl Finish {
             }
         };
         let (one_snap_secs, kick_secs) = clock_of(plays, rows);
+        let (incomplete, intercepted, run_secs, stop_secs) = goal_line_of(plays, rows);
         Some(Finish {
             kick: [kick[0], kick[1], kick[2]],
             shot: [shot[0], shot[1]],
@@ -286,8 +402,59 @@ impl Finish {
             kick_secs,
             extra_point: share(Kind::ExtraPoint, 1, DEFAULT_EXTRA_POINT),
             two_point: share(Kind::TwoPoint, 2, DEFAULT_TWO_POINT),
+            incomplete,
+            intercepted,
+            run_secs,
+            stop_secs,
         })
     }
+}
+
+/// The final snaps' outcomes (`Finish::final_snaps`) from the dropbacks
+/// among `rows` in a half's final 2:00 from the opponent's 30 in that did
+/// not score, of an offense behind or level in the 4th period: the shares
+/// incomplete and intercepted, and the seconds from one that kept the
+/// clock running to the offense's next snap, without a timeout and with
+/// one (medians). Defaults where fewer than `MIN_SNAP_READS`.
+fn goal_line_of(plays: &Plays, rows: &[u32]) -> (f64, f64, f64, f64) {
+    let (mut n, mut inc, mut int) = (0usize, 0usize, 0usize);
+    let (mut run, mut stop) = (Vec::new(), Vec::new());
+    for &r in rows {
+        let i = r as usize;
+        let read = plays.dropback[i]
+            && plays.down[i] > 0
+            && matches!(plays.period[i], 2 | 4)
+            && plays.clock[i] <= SNAPS_READ_SECS
+            && plays.ball_on[i] >= SNAPS_READ_BALL_ON
+            && plays.points[i] != 6
+            && (plays.period[i] == 2 || plays.margin[i] <= 0);
+        if !read {
+            continue;
+        }
+        n += 1;
+        if plays.intercepted[i] {
+            int += 1;
+            continue;
+        }
+        if plays.kind[i] == Kind::Pass && !plays.complete[i] {
+            inc += 1;
+            continue;
+        }
+        let j = i + 1;
+        if j < plays.len() && plays.game[j] == plays.game[i] && plays.period[j] == plays.period[i] && plays.offense[j] == plays.offense[i] && plays.down[j] > 0 {
+            let took = f64::from(plays.clock[i] - plays.clock[j]);
+            if took >= 0.0 {
+                if plays.off_timeouts[i] > 0 { stop.push(took) } else { run.push(took) }
+            }
+        }
+    }
+    let (incomplete, intercepted) = if n >= MIN_SNAP_READS {
+        (inc as f64 / n as f64, int as f64 / n as f64)
+    } else {
+        (DEFAULT_INCOMPLETE, DEFAULT_INTERCEPTED)
+    };
+    let median = |v: &mut Vec<f64>, default: f64| if v.len() >= MIN_SNAP_READS { quantile(v, 0.5).unwrap_or(default) } else { default };
+    (incomplete, intercepted, median(&mut run, DEFAULT_RUN_SECS), median(&mut stop, DEFAULT_STOP_SECS))
 }
 
 /// A small logistic fit (next to no penalty) of `y` on the `p` columns

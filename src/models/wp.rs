@@ -549,7 +549,21 @@ impl WpModel {
                 let late = Late { margin: s.margin, secs: s.secs_game, ball_on: s.ball_on, is_try: s.is_try };
                 let (off_to, def_to) = (s.off_timeouts.round() as i32, s.def_timeouts.round() as i32);
                 let t = d.table();
-                f.apply(&late, RECEIVE_AT, |m, secs, at| t.value(m, secs, at, def_to, off_to), wp)
+                let other = |m: f64, secs: f64, at: f64| t.value(m, secs, at, def_to, off_to);
+                let v = f.apply(&late, RECEIVE_AT, other, wp);
+                // The final snaps at the goal line: the value for a side
+                // behind or level, a floor for one ahead (it may play so
+                // too), so WP still rises with the margin.
+                let w = f.snaps_weight(s.secs_game, s.ball_on);
+                if w == 0.0 || s.is_try || s.down <= 0 {
+                    return v;
+                }
+                let snaps = f.final_snaps(&late, s.down, off_to, RECEIVE_AT, &other);
+                if s.margin <= 0.0 {
+                    w * snaps + (1.0 - w) * v
+                } else {
+                    v + w * (snaps - v).max(0.0)
+                }
             }
             _ => wp,
         }

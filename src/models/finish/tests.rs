@@ -3,7 +3,9 @@
 use super::*;
 
 /// Every kick good 9 times in 10 (logit ln 9), every shot 1 in 5 (logit
-/// ln ¼), extra points 0.94, two-point tries 0.48, a 4 s snap, a 5 s kick.
+/// ln ¼), extra points 0.94, two-point tries 0.48, a 4 s snap, a 5 s kick;
+/// at the goal line half the misses incomplete, none intercepted, 16 s to
+/// the next snap when the clock runs, 8 s with a timeout.
 fn flat() -> Finish {
     Finish {
         kick: [9f64.ln(), 0.0, 0.0],
@@ -12,6 +14,10 @@ fn flat() -> Finish {
         kick_secs: 5.0,
         extra_point: 0.94,
         two_point: 0.48,
+        incomplete: 0.5,
+        intercepted: 0.0,
+        run_secs: 16.0,
+        stop_secs: 8.0,
     }
 }
 
@@ -193,4 +199,39 @@ fn last_points_are_the_play_a_staff_runs() {
     // Behind by 3 with a shot worth more to WP (0.6 against 0.45): the shot.
     let g = Finish { shot: [1.5f64.ln(), 0.0], ..flat() };
     assert!(close(g.last_points(4, -3, 99, td), 0.6 * td));
+}
+
+/// Worked by hand: the final snaps at the goal line. Behind by 3 at the 3,
+/// a shot scoring half the time, the other side's possessions worth what
+/// the score says (nothing changes after the ball turns over).
+/// - 4th down, 1 s left: a kick levels (0.9 × ½ = 0.45); a shot wins half
+///   the time (0.5): 0.5.
+/// - 3rd down, 5 s, no timeout: a shot, 0.5 + 0.5 × (½ incomplete × the
+///   4th down above + ½ clock running out × 0) = 0.625 (a kick: 0.45).
+/// - 2nd down, 9 s: 0.5 + 0.5 × (½ × 0.625 + ½ × 0) = 0.65625.
+/// - The same with one timeout: a play that keeps the clock running takes
+///   it and 8 s, leaving a 3rd down with 1 s (0.5): 0.5 + 0.5 × (½ × 0.625
+///   + ½ × 0.5) = 0.78125, and a timeout is never worth less.
+/// - 4th down with 9 s: a miss hands the ball over: 0.5, below the 2nd
+///   down's.
+#[test]
+fn the_final_snaps_by_hand() {
+    let f = Finish { shot: [0.0, 0.0], ..flat() };
+    let other = |m: f64, _: f64, _: f64| if m > 0.0 { 1.0 } else if m == 0.0 { 0.5 } else { 0.0 };
+    let at = |secs: f64| Late { margin: -3.0, secs, ball_on: 97, is_try: false };
+    assert!(close(f.final_snaps(&at(1.0), 4, 0, 25.0, &other), 0.5));
+    assert!(close(f.final_snaps(&at(5.0), 3, 0, 25.0, &other), 0.625));
+    assert!(close(f.final_snaps(&at(9.0), 2, 0, 25.0, &other), 0.65625));
+    assert!(close(f.final_snaps(&at(9.0), 2, 1, 25.0, &other), 0.78125));
+    assert!(close(f.final_snaps(&at(9.0), 4, 0, 25.0, &other), 0.5));
+    // Level at the 3 with 9 s on 2nd down: the kick wins 0.9 + 0.1 × ½.
+    let level = Late { margin: 0.0, ..at(9.0) };
+    assert!(close(f.final_snaps(&level, 2, 0, 25.0, &other), 0.95));
+    // It comes in from 0:40 and the opponent's 25: all of it from 0:30 and
+    // the 15, half at 0:35 on the 15 or at 0:30 on the 20.
+    assert!(close(f.snaps_weight(30.0, 85), 1.0));
+    assert!(close(f.snaps_weight(35.0, 90), 0.5));
+    assert!(close(f.snaps_weight(30.0, 80), 0.5));
+    assert!(close(f.snaps_weight(41.0, 99), 0.0));
+    assert!(close(f.snaps_weight(10.0, 75), 0.0));
 }
