@@ -295,10 +295,11 @@ impl Finish {
     /// possessions, as in `kick_now`; `timeouts` are the offense's.
     pub fn final_snaps(&self, s: &Late, down: i32, timeouts: i32, receive_at: f64, other: &impl Fn(f64, f64, f64) -> f64) -> f64 {
         let m = s.margin.round() as i32;
+        // Yards to the goal line, and the other side's own yard line when
+        // it takes the ball here.
         let y = f64::from((100 - s.ball_on).max(1));
         let p = self.shot_prob(y);
-        let spot = f64::from((100 - s.ball_on).max(1));
-        let over = |secs: f64| if secs <= 0.0 { end(m) } else { 1.0 - other(-f64::from(m), secs, spot) };
+        let over = |secs: f64| if secs <= 0.0 { end(m) } else { 1.0 - other(-f64::from(m), secs, y) };
         self.snaps_from(s, m, p, down, timeouts, s.secs, receive_at, other, &over)
     }
 
@@ -440,12 +441,21 @@ fn goal_line_of(plays: &Plays, rows: &[u32]) -> (f64, f64, f64, f64) {
             inc += 1;
             continue;
         }
+        // The offense's next snap in the same period: the clock it took.
         let j = i + 1;
-        if j < plays.len() && plays.game[j] == plays.game[i] && plays.period[j] == plays.period[i] && plays.offense[j] == plays.offense[i] && plays.down[j] > 0 {
-            let took = f64::from(plays.clock[i] - plays.clock[j]);
-            if took >= 0.0 {
-                if plays.off_timeouts[i] > 0 { stop.push(took) } else { run.push(took) }
-            }
+        let same = j < plays.len()
+            && plays.game[j] == plays.game[i]
+            && plays.period[j] == plays.period[i]
+            && plays.offense[j] == plays.offense[i]
+            && plays.down[j] > 0;
+        let took = if same { f64::from(plays.clock[i] - plays.clock[j]) } else { -1.0 };
+        if took < 0.0 {
+            continue;
+        }
+        if plays.off_timeouts[i] > 0 {
+            stop.push(took);
+        } else {
+            run.push(took);
         }
     }
     let (incomplete, intercepted) = if n >= MIN_SNAP_READS {
