@@ -355,7 +355,7 @@ impl SnapParams {
     /// chance too: behind by 4 at the opponent's 15 with 30 s left, a 2nd
     /// down was worth 0.019 less with two timeouts than with one. Bounded
     /// in the final 2:00, where a timeout is worth most (over the whole of
-    /// the late modes, pricing every pass took 0.3 s more on 25 seasons).
+    /// the late modes, a first start on 25 seasons took 0.3 s more).
     #[allow(clippy::too_many_arguments)]
     #[inline]
     fn value_in(&self, table: &DriveTable, md: Mode, z0: usize, f: f64, snap: &Snap, a: i32, b: i32) -> Option<f64> {
