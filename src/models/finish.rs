@@ -17,7 +17,8 @@
 //!   goal line the snaps left are few and counted: on each down a kick
 //!   now or a shot at the end zone, a miss stopping the clock or not
 //!   (`Finish::final_snaps`). The fitted WP read 0.92 behind by 3 at the
-//!   3 with 14 s and no timeouts (the oracle 0.53).
+//!   3 with 14 s and no timeouts (the oracle 0.53). EP there is the
+//!   points those snaps score (`Finish::final_points`).
 //!
 //! Held out by season, the fitted WP alone valued a field goal try with a
 //! second left, behind by 2 at the opponent's 18, at 0.18 (the oracle
@@ -89,6 +90,9 @@ const DEFAULT_INCOMPLETE: f64 = 0.4;
 const DEFAULT_INTERCEPTED: f64 = 0.03;
 const DEFAULT_RUN_SECS: f64 = 16.0;
 const DEFAULT_STOP_SECS: f64 = 9.0;
+/// The timeouts EP's final snaps assume without such snaps to read them
+/// from (EP reads no timeouts; from memory).
+const DEFAULT_EP_TIMEOUTS: i32 = 1;
 
 /// The chances and clock the final seconds are valued with.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -124,6 +128,15 @@ pub struct Finish {
     pub run_secs: f64,
     #[serde(default = "default_stop_secs")]
     pub stop_secs: f64,
+    /// The timeouts EP's final snaps assume (`final_points`; EP reads
+    /// none): the median an offense held at the snaps the final snaps
+    /// value, in the file.
+    #[serde(default = "default_ep_timeouts")]
+    pub ep_timeouts: i32,
+}
+
+fn default_ep_timeouts() -> i32 {
+    DEFAULT_EP_TIMEOUTS
 }
 
 fn default_incomplete() -> f64 {
@@ -337,6 +350,31 @@ impl Finish {
         kick.max(shot)
     }
 
+    /// The points the final snaps at the goal line are expected to score
+    /// (as `final_snaps`, each down the kick or the shot worth more points,
+    /// a touchdown worth `td_value`; an interception or a failed 4th down
+    /// scores nothing), for an offense holding `ep_timeouts`. EP's value
+    /// there at the end of the 1st half, and at the end of regulation for
+    /// an offense behind or level.
+    pub fn final_points(&self, ball_on: i32, secs: f64, down: i32, td_value: f64) -> f64 {
+        let y = f64::from((100 - ball_on).max(1));
+        let (kick, p) = (3.0 * self.kick_prob(y), self.shot_prob(y));
+        self.points_from(kick, p * td_value, 1.0 - p, down, self.ep_timeouts, secs)
+    }
+
+    /// `final_points` from `down` with `timeouts` and `secs` left: `kick`
+    /// and `scored` the points a kick and a shot's touchdown are worth,
+    /// `miss` the shot's chance of failing.
+    fn points_from(&self, kick: f64, scored: f64, miss: f64, down: i32, timeouts: i32, secs: f64) -> f64 {
+        if secs <= 0.0 {
+            return 0.0;
+        }
+        let next = |t: f64, to: i32| if down >= 4 || t <= 0.0 { 0.0 } else { self.points_from(kick, scored, miss, down + 1, to, t) };
+        let running = if timeouts > 0 { next(secs - self.stop_secs, timeouts - 1) } else { next(secs - self.run_secs, 0) };
+        let missed = self.incomplete * next(secs - self.one_snap_secs, timeouts) + (1.0 - self.incomplete - self.intercepted) * running;
+        kick.max(scored + miss * missed)
+    }
+
     /// `wp` (the fitted WP of a snap in the 4th period of regulation)
     /// with the final seconds' rules: no lower than a kick now in the
     /// final `FLOOR_SECS` (coming in over `FLOOR_IN_SECS` before them); in
@@ -396,6 +434,7 @@ impl Finish {
         };
         let (one_snap_secs, kick_secs) = clock_of(plays, rows);
         let (incomplete, intercepted, run_secs, stop_secs) = goal_line_of(plays, rows);
+        let ep_timeouts = ep_timeouts_of(plays, rows);
         Some(Finish {
             kick: [kick[0], kick[1], kick[2]],
             shot: [shot[0], shot[1]],
@@ -407,8 +446,31 @@ impl Finish {
             intercepted,
             run_secs,
             stop_secs,
+            ep_timeouts,
         })
     }
+}
+
+/// The median timeouts an offense held at the snaps among `rows` the
+/// final snaps value (the final 0:40 of the 2nd period or of the 4th,
+/// behind or level, from the opponent's 25 in); `DEFAULT_EP_TIMEOUTS`
+/// where fewer than `MIN_SNAP_READS`.
+fn ep_timeouts_of(plays: &Plays, rows: &[u32]) -> i32 {
+    let mut held: Vec<f64> = rows
+        .iter()
+        .map(|&r| r as usize)
+        .filter(|&i| {
+            plays.down[i] > 0
+                && f64::from(plays.clock[i]) <= SNAPS_FROM_SECS
+                && f64::from(plays.ball_on[i]) >= SNAPS_FROM_BALL_ON
+                && (plays.period[i] == 2 || (plays.period[i] == 4 && plays.margin[i] <= 0))
+        })
+        .map(|i| f64::from(plays.off_timeouts[i].clamp(0, 3)))
+        .collect();
+    if held.len() < MIN_SNAP_READS {
+        return DEFAULT_EP_TIMEOUTS;
+    }
+    quantile(&mut held, 0.5).map_or(DEFAULT_EP_TIMEOUTS, |x| x.round() as i32)
 }
 
 /// The final snaps' outcomes (`Finish::final_snaps`) from the dropbacks

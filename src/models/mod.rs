@@ -28,4 +28,4 @@ pub use pending::{CalibStatus, CalibrationCell};
 pub use scored::{calibrate, fit_and_score, fit_and_score_beside, fit_and_score_in, scored_frame, Scored};
 
 /// Bumped whenever features, labels or conventions change; part of the cache key.
-pub const MODEL_VERSION: &str = "lategame-models-24";
+pub const MODEL_VERSION: &str = "lategame-models-25";

@@ -5,7 +5,8 @@ use super::*;
 /// Every kick good 9 times in 10 (logit ln 9), every shot 1 in 5 (logit
 /// ln ¼), extra points 0.94, two-point tries 0.48, a 4 s snap, a 5 s kick;
 /// at the goal line half the misses incomplete, none intercepted, 16 s to
-/// the next snap when the clock runs, 8 s with a timeout.
+/// the next snap when the clock runs, 8 s with a timeout; EP's final snaps
+/// without a timeout.
 fn flat() -> Finish {
     Finish {
         kick: [9f64.ln(), 0.0, 0.0],
@@ -18,6 +19,7 @@ fn flat() -> Finish {
         intercepted: 0.0,
         run_secs: 16.0,
         stop_secs: 8.0,
+        ep_timeouts: 0,
     }
 }
 
@@ -234,4 +236,25 @@ fn the_final_snaps_by_hand() {
     assert!(close(f.snaps_weight(30.0, 80), 0.5));
     assert!(close(f.snaps_weight(41.0, 99), 0.0));
     assert!(close(f.snaps_weight(10.0, 75), 0.0));
+}
+
+/// Worked by hand: the points of the final snaps at the goal line (EP's).
+/// A shot scores half the time (a touchdown worth 7), a kick 0.9 × 3 =
+/// 2.7, every other rule as in `the_final_snaps_by_hand`:
+/// - 4th down, 1 s: the shot, 3.5.
+/// - 3rd down, 5 s: 3.5 + 0.5 × (½ × 3.5 + ½ × 0) = 4.375.
+/// - 2nd down, 9 s: 3.5 + 0.5 × (½ × 4.375 + ½ × 0) = 4.59375.
+/// - The same holding a timeout: 3.5 + 0.5 × (½ × 4.375 + ½ × 3.5) =
+///   5.46875 (a play short of the line leaves a 3rd down with 1 s: 3.5).
+/// - A shot scoring 1 in 10: the kick, 2.7, on 4th down with 1 s.
+#[test]
+fn the_final_points_by_hand() {
+    let f = Finish { shot: [0.0, 0.0], ..flat() };
+    assert!(close(f.final_points(97, 1.0, 4, 7.0), 3.5));
+    assert!(close(f.final_points(97, 5.0, 3, 7.0), 4.375));
+    assert!(close(f.final_points(97, 9.0, 2, 7.0), 4.59375));
+    let held = Finish { ep_timeouts: 1, ..f.clone() };
+    assert!(close(held.final_points(97, 9.0, 2, 7.0), 5.46875));
+    let unlikely = Finish { shot: [(1.0f64 / 9.0).ln(), 0.0], ..flat() };
+    assert!(close(unlikely.final_points(97, 1.0, 4, 7.0), 2.7));
 }
