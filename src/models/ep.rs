@@ -344,11 +344,9 @@ impl EpModel {
         match &self.finish {
             Some(f) if down > 0 => {
                 let secs = f64::from(secs_half);
-                // The final snaps at the goal line, at the end of the 1st
-                // half and, behind or level, of regulation (a leader runs
-                // the clock: the fit's score terms).
-                let near = f.snaps_weight(secs, ball_on);
-                let ep = if near > 0.0 && (sc.period == 2 || (sc.period == 4 && sc.margin <= 0)) {
+                // The final snaps at the goal line.
+                let near = f.points_weight(sc.period, sc.margin, secs, ball_on);
+                let ep = if near > 0.0 {
                     near * f.final_points(ball_on, secs, down, self.td_value) + (1.0 - near) * ep
                 } else {
                     ep
@@ -418,18 +416,15 @@ impl EpModel {
     /// `(score_all, score_all_blind)` in one go: the score and period
     /// change a snap's EP only in the 4th period's final 4:00 (before that
     /// every late-game feature is +0 either way) and where the final snaps
-    /// at the goal line count at the end of the 1st half (`finish`), so
+    /// at the goal line count (`Finish::points_weight`), so
     /// elsewhere the blind value is the snap's EP, the same bits.
     pub fn score_all_and_blind(&self, plays: &Plays) -> (Vec<f64>, Vec<f64>) {
         use rayon::prelude::*;
         let blind = self.score_all_blind(plays);
         let told = |i: usize| {
             let secs = f64::from(plays.secs_half[i]);
-            match plays.period[i] {
-                4 => secs < FOUR_MINUTE_SECS,
-                2 => plays.down[i] > 0 && self.finish.as_ref().is_some_and(|f| f.snaps_weight(secs, plays.ball_on[i]) > 0.0),
-                _ => false,
-            }
+            let near = |f: &Finish| f.points_weight(plays.period[i], plays.margin[i], secs, plays.ball_on[i]) > 0.0;
+            (plays.period[i] == 4 && secs < FOUR_MINUTE_SECS) || (plays.down[i] > 0 && self.finish.as_ref().is_some_and(near))
         };
         let ep = (0..plays.len())
             .into_par_iter()

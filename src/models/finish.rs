@@ -163,6 +163,16 @@ pub struct Late {
     pub is_try: bool,
 }
 
+/// What the final snaps' outcomes are worth, to `Finish::best_of_snaps`:
+/// the game's (or the half's) end, a kick with `secs` left, a touchdown
+/// with `secs` left after it, the other side's ball with `secs` left.
+struct Worth<K, S, O> {
+    end: f64,
+    kick: K,
+    scored: S,
+    over: O,
+}
+
 fn sigmoid(x: f64) -> f64 {
     1.0 / (1.0 + (-x).exp())
 }
@@ -296,6 +306,18 @@ impl Finish {
         t * z
     }
 
+    /// How far EP's final snaps (`final_points`) have taken over for an
+    /// offense `margin` ahead in `period`: at the end of the 1st half, and
+    /// at the end of regulation behind or level (a leader runs the clock:
+    /// the fit's score terms), as `snaps_weight`; 0 elsewhere.
+    pub fn points_weight(&self, period: i32, margin: i32, secs: f64, ball_on: i32) -> f64 {
+        if period == 2 || (period == 4 && margin <= 0) {
+            self.snaps_weight(secs, ball_on)
+        } else {
+            0.0
+        }
+    }
+
     /// WP from the final snaps at the goal line, by backward induction:
     /// on each down a kick now or a shot at the end zone, whichever is
     /// worth more. A shot scores with `shot_prob` (then the better try
@@ -311,43 +333,16 @@ impl Finish {
         // Yards to the goal line, and the other side's own yard line when
         // it takes the ball here.
         let y = f64::from((100 - s.ball_on).max(1));
-        let p = self.shot_prob(y);
-        let over = |secs: f64| if secs <= 0.0 { end(m) } else { 1.0 - other(-f64::from(m), secs, y) };
-        self.snaps_from(s, m, p, down, timeouts, s.secs, receive_at, other, &over)
-    }
-
-    #[allow(clippy::too_many_arguments)]
-    fn snaps_from(
-        &self,
-        s: &Late,
-        m: i32,
-        p: f64,
-        down: i32,
-        timeouts: i32,
-        secs: f64,
-        receive_at: f64,
-        other: &impl Fn(f64, f64, f64) -> f64,
-        over: &impl Fn(f64) -> f64,
-    ) -> f64 {
-        if secs <= 0.0 {
-            return end(m);
-        }
-        let kick = self.kick_now(&Late { secs, ..*s }, receive_at, other);
-        let after = secs - self.one_snap_secs;
-        let next = |t: f64, to: i32| {
-            if down >= 4 {
-                over(t)
-            } else if t <= 0.0 {
-                end(m)
-            } else {
-                self.snaps_from(s, m, p, down + 1, to, t, receive_at, other, over)
-            }
+        let worth = Worth {
+            end: end(m),
+            kick: |secs: f64| self.kick_now(&Late { secs, ..*s }, receive_at, other),
+            scored: |after: f64| {
+                let at = Late { margin: f64::from(m + 6), secs: after.max(0.0), ball_on: s.ball_on, is_try: true };
+                self.try_now(&at, receive_at, other)
+            },
+            over: |secs: f64| if secs <= 0.0 { end(m) } else { 1.0 - other(-f64::from(m), secs, y) },
         };
-        let scored = self.try_now(&Late { margin: f64::from(m + 6), secs: after.max(0.0), ball_on: s.ball_on, is_try: true }, receive_at, other);
-        let running = if timeouts > 0 { next(secs - self.stop_secs, timeouts - 1) } else { next(secs - self.run_secs, 0) };
-        let missed = self.incomplete * next(after, timeouts) + self.intercepted * over(after) + (1.0 - self.incomplete - self.intercepted) * running;
-        let shot = p * scored + (1.0 - p) * missed;
-        kick.max(shot)
+        self.best_of_snaps(&worth, self.shot_prob(y), down, timeouts, s.secs)
     }
 
     /// The points the final snaps at the goal line are expected to score
@@ -358,21 +353,38 @@ impl Finish {
     /// an offense behind or level.
     pub fn final_points(&self, ball_on: i32, secs: f64, down: i32, td_value: f64) -> f64 {
         let y = f64::from((100 - ball_on).max(1));
-        let (kick, p) = (3.0 * self.kick_prob(y), self.shot_prob(y));
-        self.points_from(kick, p * td_value, 1.0 - p, down, self.ep_timeouts, secs)
+        let kick = 3.0 * self.kick_prob(y);
+        let worth = Worth { end: 0.0, kick: |_: f64| kick, scored: |_: f64| td_value, over: |_: f64| 0.0 };
+        self.best_of_snaps(&worth, self.shot_prob(y), down, self.ep_timeouts, secs)
     }
 
-    /// `final_points` from `down` with `timeouts` and `secs` left: `kick`
-    /// and `scored` the points a kick and a shot's touchdown are worth,
-    /// `miss` the shot's chance of failing.
-    fn points_from(&self, kick: f64, scored: f64, miss: f64, down: i32, timeouts: i32, secs: f64) -> f64 {
+    /// The backward induction of `final_snaps` and `final_points` from
+    /// `down` with `timeouts` and `secs` left, a shot scoring with `p`,
+    /// each outcome worth what `worth` says.
+    fn best_of_snaps<K, S, O>(&self, worth: &Worth<K, S, O>, p: f64, down: i32, timeouts: i32, secs: f64) -> f64
+    where
+        K: Fn(f64) -> f64,
+        S: Fn(f64) -> f64,
+        O: Fn(f64) -> f64,
+    {
         if secs <= 0.0 {
-            return 0.0;
+            return worth.end;
         }
-        let next = |t: f64, to: i32| if down >= 4 || t <= 0.0 { 0.0 } else { self.points_from(kick, scored, miss, down + 1, to, t) };
+        let next = |t: f64, to: i32| {
+            if down >= 4 {
+                (worth.over)(t)
+            } else if t <= 0.0 {
+                worth.end
+            } else {
+                self.best_of_snaps(worth, p, down + 1, to, t)
+            }
+        };
+        let after = secs - self.one_snap_secs;
         let running = if timeouts > 0 { next(secs - self.stop_secs, timeouts - 1) } else { next(secs - self.run_secs, 0) };
-        let missed = self.incomplete * next(secs - self.one_snap_secs, timeouts) + (1.0 - self.incomplete - self.intercepted) * running;
-        kick.max(scored + miss * missed)
+        let missed = self.incomplete * next(after, timeouts)
+            + self.intercepted * (worth.over)(after)
+            + (1.0 - self.incomplete - self.intercepted) * running;
+        (worth.kick)(secs).max(p * (worth.scored)(after) + (1.0 - p) * missed)
     }
 
     /// `wp` (the fitted WP of a snap in the 4th period of regulation)
